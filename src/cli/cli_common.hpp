@@ -1,0 +1,29 @@
+#pragma once
+// Shared pieces of the subcommands: loading inputs, the exit-code contract, and
+// the options every simulation command takes. Subcommands stay thin: parse,
+// call the library, print.
+#include <string>
+#include <vector>
+
+#include <CLI/CLI.hpp>
+
+#include "io/problem_file.hpp"
+#include "io/schedule_file.hpp"
+
+namespace gapwise::cli {
+
+/// Exit codes: 0 success, 2 bad input, 1 internal failure.
+inline constexpr int kExitOk = 0;
+inline constexpr int kExitBadInput = 2;
+inline constexpr int kExitInternal = 1;
+
+/// Set by a subcommand's callback; main() returns it.
+int& exit_code();
+/// The command line as typed, for provenance.
+std::string& command_line();
+
+/// One registration function per subcommand file.
+void register_inspect(CLI::App& app);
+void register_anneal(CLI::App& app);
+
+}  // namespace gapwise::cli

@@ -1,0 +1,170 @@
+// `gapwise anneal PROBLEM SCHEDULE`: one anneal of a given duration; the
+// ground-state probability, the most probable outcomes, and the checks that
+// make the number trustworthy (norm drift, convergence under a tighter tolerance).
+#include <cmath>
+#include <iostream>
+#include <memory>
+#include <optional>
+
+#include <fmt/format.h>
+
+#include "cli/cli_common.hpp"
+#include "dynamics/anneal_simulation.hpp"
+#include "hamiltonian/memory_budget.hpp"
+#include "io/atomic_file.hpp"
+#include "io/hdf5_output.hpp"
+#include "io/input_error.hpp"
+#include "io/json_summary.hpp"
+#include "io/text_table.hpp"
+
+namespace gapwise::cli {
+namespace {
+
+struct AnnealOptions {
+  std::string problem, schedule, out, csv, propagator = "odeint";
+  std::optional<double> duration_ns;
+  double tolerance = 1e-6;
+  int samples = 20, top = 8;
+  bool json = false, no_check = false;
+};
+
+void run_anneal(const AnnealOptions& o) {
+  const IsingProblem p = read_problem_file(o.problem);
+  const Schedule sch = read_schedule_file(o.schedule);
+  if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
+    throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
+                     "use a value between 1e-12 and 1e-2 (default 1e-6)");
+  if (!o.out.empty()) check_output_path(o.out, "--out");
+  if (!o.csv.empty()) check_output_path(o.csv, "--csv");
+  check_memory(p.qubits, 10, 0, o.problem);
+  const TransverseIsingHamiltonian H(p);
+  const GroundManifold gm = find_ground_manifold(p, H.diagonal());
+  const AnnealPath path = sch.path_for(o.duration_ns);
+  const QuantumState psi0 = initial_state(H, sch, path);
+
+  SimulationOptions sim;
+  sim.propagator = o.propagator;
+  sim.propagation.tolerance = o.tolerance;
+  sim.samples_per_piece = std::max(0, o.samples);
+  sim.top_outcomes = o.top;
+  TraceObserver trace(H, gm);
+  const AnnealResult r = simulate_anneal(H, gm, sch.scales, path, psi0, sim, {&trace});
+  std::optional<double> delta_p;
+  if (!o.no_check) {
+    SimulationOptions tight = sim;
+    tight.propagation.tolerance = o.tolerance / 10.0;
+    tight.top_outcomes = 0;
+    delta_p = std::abs(simulate_anneal(H, gm, sch.scales, path, psi0, tight).ground_probability - r.ground_probability);
+  }
+
+  TextTable outcomes({"rank", fmt::format("bits q0..q{}", p.qubits - 1), "spins", "energy", "probability", "ground"});
+  for (std::size_t k = 0; k < r.top_outcomes.size(); ++k) {
+    const auto& oc = r.top_outcomes[k];
+    outcomes.add({std::to_string(k + 1), bits_string(oc.state, p.qubits), spins_string(oc.state, p.qubits),
+                  fmt_num(oc.energy, 8), fmt_num(oc.probability, 6), oc.in_ground_manifold ? "yes" : ""});
+  }
+  TextTable tr({"t_ns", "s", "p_ground", "energy_ghz", "norm"});
+  for (const auto& row : trace.rows())
+    tr.add({fmt_num(row.t_ns, 8), fmt_num(row.s, 8), fmt_num(row.ground_probability, 10), fmt_num(row.energy_ghz, 10),
+            fmt_num(row.norm, 14)});
+
+  if (o.json) {
+    toml::table j;
+    put(j, "problem_file", o.problem);
+    put(j, "schedule_file", o.schedule);
+    put(j, "duration_ns", r.duration_ns);
+    put(j, "ground_probability", r.ground_probability);
+    put(j, "ground_energy", gm.energy);
+    put(j, "ground_degeneracy", static_cast<long long>(gm.degeneracy()));
+    put(j, "norm_drift", r.norm_drift);
+    if (delta_p) put(j, "convergence_delta_p", *delta_p);
+    put(j, "tolerance", o.tolerance);
+    put(j, "propagator", r.propagator);
+    put(j, "steps", static_cast<long long>(r.stats.steps));
+    put(j, "hamiltonian_applications", static_cast<long long>(r.stats.hamiltonian_applications));
+    put(j, "wall_seconds", r.wall_seconds);
+    toml::array arr;
+    for (const auto& oc : r.top_outcomes) {
+      toml::table e;
+      put(e, "bits", bits_string(oc.state, p.qubits));
+      put(e, "spins", spins_string(oc.state, p.qubits));
+      put(e, "energy", oc.energy);
+      put(e, "probability", oc.probability);
+      put(e, "ground", oc.in_ground_manifold);
+      arr.push_back(std::move(e));
+    }
+    j.insert_or_assign("outcomes", std::move(arr));
+    std::cout << to_json(j) << "\n";
+  } else {
+    std::cout << fmt::format("problem      {}: {} qubits, {} couplings; ground energy {:.10g}, degeneracy {}\n", o.problem,
+                             p.qubits, p.couplings.size(), gm.energy, gm.degeneracy());
+    std::cout << fmt::format("schedule     {}: {}\n", o.schedule, sch.scales.describe());
+    std::cout << fmt::format("path         {} waypoints, duration {} ns, start: {}\n", path.points().size(),
+                             r.duration_ns, sch.start.kind == StartKind::Ground ? "ground state of H(s0)" : "classical state");
+    std::cout << fmt::format("propagator   {} (tolerance {:.0e}): {} steps, {} H applications, {:.3f} s\n", r.propagator,
+                             o.tolerance, r.stats.steps, r.stats.hamiltonian_applications, r.wall_seconds);
+    std::cout << fmt::format("\nground-state probability  {:.8f}\n", r.ground_probability);
+    if (delta_p)
+      std::cout << fmt::format("convergence               |dp| = {:.1e} when the tolerance is tightened tenfold{}\n", *delta_p,
+                               *delta_p > o.tolerance ? "  (WARNING: larger than expected)" : "");
+    std::cout << fmt::format("norm drift                {:.1e}\n\n", r.norm_drift);
+    std::cout << "most probable outcomes\n" << outcomes.render();
+  }
+
+  if (!o.csv.empty()) write_file_atomically(o.csv, tr.csv());
+  if (!o.out.empty()) {
+    Hdf5Output h5(o.out);
+    write_provenance(h5, command_line(), {o.problem, o.schedule});
+    h5.attribute("/anneal", "duration_ns", r.duration_ns);
+    h5.attribute("/anneal", "ground_probability", r.ground_probability);
+    h5.attribute("/anneal", "norm_drift", r.norm_drift);
+    h5.attribute("/anneal", "tolerance", o.tolerance);
+    h5.attribute("/anneal", "propagator", r.propagator);
+    h5.attribute("/anneal", "steps", static_cast<long long>(r.stats.steps));
+    if (delta_p) h5.attribute("/anneal", "convergence_delta_p", *delta_p);
+    h5.attribute("/anneal", "ground_energy", gm.energy);
+    std::vector<long long> gstates(gm.states.begin(), gm.states.end());
+    h5.write("/anneal/ground_states", gstates, "basis index (bit i = qubit i)");
+    std::vector<double> t, s, pg, e, nrm;
+    for (const auto& row : trace.rows()) {
+      t.push_back(row.t_ns); s.push_back(row.s); pg.push_back(row.ground_probability);
+      e.push_back(row.energy_ghz); nrm.push_back(row.norm);
+    }
+    h5.write("/anneal/trace/t", t, "ns");
+    h5.write("/anneal/trace/s", s, "1");
+    h5.write("/anneal/trace/ground_probability", pg, "1");
+    h5.write("/anneal/trace/energy", e, "GHz");
+    h5.write("/anneal/trace/norm", nrm, "1");
+    const auto probs = probabilities(r.final_state);
+    h5.write("/anneal/final_probabilities", probs, "1");
+    h5.commit();
+  }
+}
+
+}  // namespace
+
+void register_anneal(CLI::App& app) {
+  auto o = std::make_shared<AnnealOptions>();
+  CLI::App* sub = app.add_subcommand("anneal",
+      "Simulate one anneal of PROBLEM along SCHEDULE and report the ground-state\n"
+      "probability (all classical ground states together), the most probable outcomes,\n"
+      "the norm drift, and how much p moves when the tolerance is tightened tenfold.\n"
+      "Units: durations in ns, energy scales in GHz; d psi/dt = -i 2 pi H psi.\n"
+      "Example: gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20 --out run.h5");
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("-d,--duration-ns", o->duration_ns,
+                  "anneal duration in ns; stretches the schedule's path (default: the schedule's own)");
+  sub->add_option("--tolerance", o->tolerance, "target accuracy of the ground-state probability (checked by a re-run at tolerance/10)")->capture_default_str();
+  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  sub->add_option("--samples", o->samples, "observations inside each piece of the path (trace)")->capture_default_str();
+  sub->add_option("--top", o->top, "how many most probable outcomes to list")->capture_default_str();
+  sub->add_flag("--no-check", o->no_check, "skip the convergence re-run at tolerance/10");
+  sub->add_option("--out", o->out, "write an HDF5 result file (trace, final probabilities, provenance)");
+  sub->add_option("--csv", o->csv, "write the trace (t, s, p_ground, energy, norm) as CSV");
+  sub->add_flag("--json", o->json, "print a JSON summary instead of text");
+  sub->callback([o] { run_anneal(*o); });
+}
+
+}  // namespace gapwise::cli

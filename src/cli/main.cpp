@@ -1,0 +1,45 @@
+// gapwise: the command line. Each subcommand lives in its own cmd_*.cpp file and
+// registers itself here; all computation is in the library.
+#include <iostream>
+
+#include <fmt/format.h>
+
+#include "cli/cli_common.hpp"
+#include "gapwise_version.hpp"
+#include "io/input_error.hpp"
+
+namespace gapwise::cli {
+int& exit_code() { static int code = kExitOk; return code; }
+std::string& command_line() { static std::string s; return s; }
+}  // namespace gapwise::cli
+
+int main(int argc, char** argv) {
+  using namespace gapwise;
+  for (int i = 0; i < argc; ++i) cli::command_line() += (i ? " " : "") + std::string(argv[i]);
+  CLI::App app{fmt::format(
+      "gapwise {}: how long must a small problem be annealed?\n"
+      "Exact closed-system simulation of the transverse-field Ising Hamiltonian\n"
+      "  H(s) = -(A(s)/2) sum_i X_i + (B(s)/2) [sum_i h_i Z_i + sum_{{i<j}} J_ij Z_i Z_j]   (GHz)\n"
+      "along a schedule s(t), with its spectrum and minimum gap.\n\n"
+      "Start with:  gapwise inspect data-samples/triangle.toml\n"
+      "             gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20\n"
+      "Every subcommand has its own --help. Exit codes: 0 ok, 2 bad input, 1 internal failure.",
+      kVersion)};
+  app.set_version_flag("--version", std::string(kVersion));
+  app.require_subcommand(1);
+  cli::register_inspect(app);
+  cli::register_anneal(app);
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::ParseError& e) {
+    const int code = app.exit(e);
+    return code == 0 ? 0 : cli::kExitBadInput;
+  } catch (const InputError& e) {
+    std::cerr << "gapwise: error: " << e.what() << "\n";
+    return cli::kExitBadInput;
+  } catch (const std::exception& e) {
+    std::cerr << "gapwise: internal failure: " << e.what() << "\n";
+    return cli::kExitInternal;
+  }
+  return cli::exit_code();
+}

@@ -1,0 +1,58 @@
+#pragma once
+// One anneal, start to end: initial state, propagation piece by piece along the
+// path, observers at the waypoints and samples, and the measured outcome.
+//
+//   TransverseIsingHamiltonian H(problem);
+//   GroundManifold gm = find_ground_manifold(problem, H.diagonal());
+//   AnnealPath path = schedule.path_for(100.0);
+//   AnnealResult r = simulate_anneal(H, gm, schedule.scales, path,
+//                                    initial_state(H, schedule, path), {});
+//   r.ground_probability;  r.top_outcomes;  r.norm_drift;
+#include <string>
+#include <vector>
+
+#include "dynamics/anneal_observer.hpp"
+#include "dynamics/propagator.hpp"
+#include "schedule/schedule.hpp"
+
+namespace gapwise {
+
+struct SimulationOptions {
+  std::string propagator = "odeint";
+  PropagatorOptions propagation;
+  int samples_per_piece = 0;  ///< observations inside each piece, besides the waypoints
+  int top_outcomes = 8;
+};
+
+struct Outcome {
+  BasisIndex state = 0;
+  double probability = 0;
+  double energy = 0;  ///< problem energy, offset included
+  bool in_ground_manifold = false;
+};
+
+struct AnnealResult {
+  double duration_ns = 0;
+  double ground_probability = 0;
+  double norm_drift = 0;  ///< | <psi|psi> - 1 | at the end
+  PropagationStats stats;
+  std::vector<Outcome> top_outcomes;
+  QuantumState final_state;
+  double wall_seconds = 0;
+  std::string propagator;
+};
+
+/// Ground state of H at the path's first s (|+>^n when B = 0 there) or the
+/// classical start state. Throws InputError when the ground state is not unique
+/// (A = 0 at the start) or the start bits do not fit.
+QuantumState initial_state(const TransverseIsingHamiltonian& h, const Schedule& schedule, const AnnealPath& path);
+
+AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundManifold& ground,
+                             const EnergyScales& scales, const AnnealPath& path, QuantumState psi,
+                             const SimulationOptions& options, const std::vector<AnnealObserver*>& observers = {});
+
+/// The k most probable outcomes (ties broken by basis index).
+std::vector<Outcome> most_probable_outcomes(const QuantumState& psi, const TransverseIsingHamiltonian& h,
+                                            const GroundManifold& ground, int k);
+
+}  // namespace gapwise

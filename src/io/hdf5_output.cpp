@@ -1,0 +1,170 @@
+#include "io/hdf5_output.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <fstream>
+#include <sstream>
+#include <stdexcept>
+
+#include <H5Cpp.h>
+#include <fmt/format.h>
+
+#include "gapwise_version.hpp"
+#include "io/atomic_file.hpp"
+
+namespace gapwise {
+
+struct Hdf5Output::Impl {
+  std::string final_path, temp_path;
+  std::unique_ptr<H5::H5File> file;
+  bool committed = false;
+};
+
+Hdf5Output::Hdf5Output(std::string final_path) : impl_(std::make_unique<Impl>()) {
+  check_output_path(final_path, "--out");
+  impl_->final_path = std::move(final_path);
+  impl_->temp_path = temporary_path_for(impl_->final_path);
+  H5::Exception::dontPrint();
+  try {
+    impl_->file = std::make_unique<H5::H5File>(impl_->temp_path, H5F_ACC_TRUNC);
+  } catch (const H5::Exception& e) {
+    throw std::runtime_error(fmt::format("cannot create '{}': {}", impl_->temp_path, e.getDetailMsg()));
+  }
+}
+
+Hdf5Output::~Hdf5Output() {
+  if (!impl_->committed) {
+    try { if (impl_->file) impl_->file->close(); } catch (...) {}
+    std::remove(impl_->temp_path.c_str());
+  }
+}
+
+void Hdf5Output::group(const std::string& path) {
+  std::string cur;
+  std::stringstream ss(path);
+  std::string part;
+  while (std::getline(ss, part, '/')) {
+    if (part.empty()) continue;
+    cur += "/" + part;
+    if (!impl_->file->nameExists(cur)) impl_->file->createGroup(cur);
+  }
+}
+
+namespace {
+std::string parent_of(const std::string& path) {
+  const auto k = path.find_last_of('/');
+  return k == std::string::npos || k == 0 ? "/" : path.substr(0, k);
+}
+void unit_attr(H5::DataSet& ds, const std::string& unit) {
+  H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
+  ds.createAttribute("unit", st, H5::DataSpace(H5S_SCALAR)).write(st, unit);
+}
+void check_finite(const std::string& path, const std::vector<double>& v) {
+  for (double x : v)
+    if (!std::isfinite(x))
+      throw std::runtime_error(fmt::format("refusing to write a non-finite number into '{}'", path));
+}
+}  // namespace
+
+void Hdf5Output::write(const std::string& path, const std::vector<double>& v, const std::string& unit) {
+  write_matrix(path, v, v.size(), 1, unit);
+}
+
+void Hdf5Output::write_matrix(const std::string& path, const std::vector<double>& v, std::size_t rows,
+                              std::size_t cols, const std::string& unit) {
+  check_finite(path, v);
+  group(parent_of(path));
+  hsize_t dims[2] = {rows, cols};
+  H5::DataSpace space(cols == 1 ? 1 : 2, dims);
+  H5::DataSet ds = impl_->file->createDataSet(path, H5::PredType::NATIVE_DOUBLE, space);
+  if (!v.empty()) ds.write(v.data(), H5::PredType::NATIVE_DOUBLE);
+  unit_attr(ds, unit);
+}
+
+void Hdf5Output::write(const std::string& path, const std::vector<long long>& v, const std::string& unit) {
+  group(parent_of(path));
+  hsize_t dims[1] = {v.size()};
+  H5::DataSpace space(1, dims);
+  H5::DataSet ds = impl_->file->createDataSet(path, H5::PredType::NATIVE_LLONG, space);
+  if (!v.empty()) ds.write(v.data(), H5::PredType::NATIVE_LLONG);
+  unit_attr(ds, unit);
+}
+
+void Hdf5Output::write_strings(const std::string& path, const std::vector<std::string>& v) {
+  group(parent_of(path));
+  std::vector<const char*> ptrs;
+  for (const auto& s : v) ptrs.push_back(s.c_str());
+  hsize_t dims[1] = {v.size()};
+  H5::DataSpace space(1, dims);
+  H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
+  H5::DataSet ds = impl_->file->createDataSet(path, st, space);
+  if (!v.empty()) ds.write(ptrs.data(), st);
+}
+
+namespace {
+// Calls f on the group or dataset at `path`.
+template <class F>
+void with_object(H5::H5File& f, const std::string& path, F fn) {
+  if (path == "/" || path.empty()) { H5::Group g = f.openGroup("/"); fn(g); return; }
+  H5O_info_t info;
+  H5Oget_info_by_name(f.getId(), path.c_str(), &info, H5P_DEFAULT);
+  if (info.type == H5O_TYPE_DATASET) { H5::DataSet d = f.openDataSet(path); fn(d); }
+  else { H5::Group g = f.openGroup(path); fn(g); }
+}
+}  // namespace
+
+void Hdf5Output::attribute(const std::string& object, const std::string& name, const std::string& value) {
+  if (object != "/" && !impl_->file->nameExists(object)) group(object);
+  with_object(*impl_->file, object, [&](H5::H5Object& o) {
+    H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
+    o.createAttribute(name, st, H5::DataSpace(H5S_SCALAR)).write(st, value);
+  });
+}
+
+void Hdf5Output::attribute(const std::string& object, const std::string& name, double value) {
+  if (!std::isfinite(value))
+    throw std::runtime_error(fmt::format("refusing to write a non-finite number into '{}@{}'", object, name));
+  if (object != "/" && !impl_->file->nameExists(object)) group(object);
+  with_object(*impl_->file, object, [&](H5::H5Object& o) {
+    o.createAttribute(name, H5::PredType::NATIVE_DOUBLE, H5::DataSpace(H5S_SCALAR)).write(H5::PredType::NATIVE_DOUBLE, &value);
+  });
+}
+
+void Hdf5Output::attribute(const std::string& object, const std::string& name, long long value) {
+  if (object != "/" && !impl_->file->nameExists(object)) group(object);
+  with_object(*impl_->file, object, [&](H5::H5Object& o) {
+    o.createAttribute(name, H5::PredType::NATIVE_LLONG, H5::DataSpace(H5S_SCALAR)).write(H5::PredType::NATIVE_LLONG, &value);
+  });
+}
+
+void Hdf5Output::commit() {
+  try {
+    impl_->file->flush(H5F_SCOPE_GLOBAL);
+    impl_->file->close();
+  } catch (const H5::Exception& e) {
+    std::remove(impl_->temp_path.c_str());
+    impl_->committed = true;
+    throw std::runtime_error(fmt::format("cannot finish '{}': {}", impl_->final_path, e.getDetailMsg()));
+  }
+  impl_->committed = true;
+  commit_temporary(impl_->temp_path, impl_->final_path);
+}
+
+void write_provenance(Hdf5Output& out, const std::string& command_line, const std::vector<std::string>& inputs) {
+  out.group("/provenance");
+  out.attribute("/provenance", "tool", std::string("gapwise"));
+  out.attribute("/provenance", "version", std::string(kVersion));
+  out.attribute("/provenance", "command_line", command_line);
+  std::vector<std::string> names, texts;
+  for (const auto& f : inputs) {
+    std::ifstream in(f, std::ios::binary);
+    std::ostringstream t;
+    t << in.rdbuf();
+    names.push_back(f);
+    texts.push_back(t.str());
+  }
+  out.write_strings("/provenance/input_files", names);
+  out.write_strings("/provenance/input_texts", texts);
+}
+
+}  // namespace gapwise

@@ -1,0 +1,45 @@
+#pragma once
+// An HDF5 result file written atomically (temporary file, renamed on commit()).
+// Datasets carry a "unit" attribute; every file carries the tool version and the
+// inputs for provenance (write_provenance). Readable by any HDF5 client (h5py, h5dump).
+//
+//   Hdf5Output out("run.h5");
+//   out.write("/anneal/trace/s", s_values, "1");
+//   out.write("/anneal/trace/t", t_values, "ns");
+//   out.attribute("/anneal", "ground_probability", 0.93);
+//   out.commit();   // without commit() the target is left untouched
+#include <memory>
+#include <string>
+#include <vector>
+
+namespace gapwise {
+
+class Hdf5Output {
+ public:
+  explicit Hdf5Output(std::string final_path);
+  ~Hdf5Output();
+  Hdf5Output(const Hdf5Output&) = delete;
+  Hdf5Output& operator=(const Hdf5Output&) = delete;
+
+  /// Creates the group and its parents if needed.
+  void group(const std::string& path);
+  void write(const std::string& path, const std::vector<double>& values, const std::string& unit);
+  void write(const std::string& path, const std::vector<long long>& values, const std::string& unit);
+  /// Row-major rows x cols matrix.
+  void write_matrix(const std::string& path, const std::vector<double>& values, std::size_t rows,
+                    std::size_t cols, const std::string& unit);
+  void write_strings(const std::string& path, const std::vector<std::string>& values);
+  void attribute(const std::string& object, const std::string& name, const std::string& value);
+  void attribute(const std::string& object, const std::string& name, double value);
+  void attribute(const std::string& object, const std::string& name, long long value);
+  void commit();
+
+ private:
+  struct Impl;
+  std::unique_ptr<Impl> impl_;
+};
+
+/// /provenance: tool version, command line, and the input files' text.
+void write_provenance(Hdf5Output& out, const std::string& command_line, const std::vector<std::string>& input_files);
+
+}  // namespace gapwise

@@ -1,0 +1,179 @@
+#include "io/schedule_file.hpp"
+
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "io/toml_reader.hpp"
+
+namespace gapwise {
+namespace {
+
+constexpr const char* kFormat = "gapwise-schedule";
+
+EnergyScales read_scales(const TomlReader& r, const toml::table* t) {
+  if (!t) return EnergyScales::linear(5.0, 5.0);
+  const std::string kind = r.get_string(*t, "kind", "scales").value_or("linear");
+  if (kind == "linear") {
+    r.allow_keys(*t, "scales", {"kind", "a_max_ghz", "b_max_ghz"});
+    const double a = r.require_double(*t, "a_max_ghz", "scales");
+    const double b = r.require_double(*t, "b_max_ghz", "scales");
+    if (a < 0) r.fail(t->get("a_max_ghz"), "scales.a_max_ghz", "energy scale is negative", "give A >= 0 GHz");
+    if (b < 0) r.fail(t->get("b_max_ghz"), "scales.b_max_ghz", "energy scale is negative", "give B >= 0 GHz");
+    return EnergyScales::linear(a, b);
+  }
+  if (kind != "table")
+    r.fail(t->get("kind"), "scales.kind", fmt::format("unknown kind \"{}\"", kind), "use \"linear\" or \"table\"");
+  r.allow_keys(*t, "scales", {"kind", "interpolation", "s", "a_ghz", "b_ghz"});
+  const std::string interp = r.get_string(*t, "interpolation", "scales").value_or("monotone-cubic");
+  if (interp != "monotone-cubic" && interp != "linear")
+    r.fail(t->get("interpolation"), "scales.interpolation", fmt::format("unknown interpolation \"{}\"", interp),
+           "use \"monotone-cubic\" or \"linear\"");
+  std::vector<double> cols[3];
+  const char* names[3] = {"s", "a_ghz", "b_ghz"};
+  for (int c = 0; c < 3; ++c) {
+    const toml::array* a = r.get_array(*t, names[c], "scales");
+    if (!a) r.fail(t, fmt::format("scales.{}", names[c]), "required key is missing",
+                   fmt::format("add `{} = [ ... ]` to [scales]", names[c]));
+    cols[c] = r.number_list(*a, fmt::format("scales.{}", names[c]));
+    if (c > 0 && cols[c].size() != cols[0].size())
+      r.fail(a, fmt::format("scales.{}", names[c]),
+             fmt::format("{} values but s has {}", cols[c].size(), cols[0].size()), "give one value per s");
+    for (std::size_t k = 0; k < cols[c].size(); ++k) {
+      const std::string key = fmt::format("scales.{}[{}]", names[c], k);
+      if (c == 0 && (cols[0][k] < 0 || cols[0][k] > 1))
+        r.fail(a->get(k), key, fmt::format("s = {} is outside [0, 1]", cols[0][k]), "use s between 0 and 1");
+      if (c == 0 && k > 0 && !(cols[0][k] > cols[0][k - 1]))
+        r.fail(a->get(k), key, "s values must increase strictly", "sort the table by s and remove repeats");
+      if (c > 0 && cols[c][k] < 0)
+        r.fail(a->get(k), key, fmt::format("energy scale {} GHz is negative", cols[c][k]), "energy scales are >= 0 GHz");
+    }
+  }
+  if (cols[0].size() < 2) r.fail(t->get("s"), "scales.s", "a table needs at least two points", "add points");
+  return EnergyScales::table(cols[0], cols[1], cols[2],
+                             interp == "linear" ? ScaleInterpolation::Linear : ScaleInterpolation::MonotoneCubic);
+}
+
+}  // namespace
+
+Schedule parse_schedule_text(std::string_view text, const std::string& name) {
+  const TomlReader r = TomlReader::from_string(text, name);
+  const toml::table& root = r.root();
+  r.allow_keys(root, "", {"format", "format_version", "description", "scales", "path"});
+  if (auto f = r.get_string(root, "format", ""); f && *f != kFormat)
+    r.fail(root.get("format"), "format", fmt::format("this is not a gapwise schedule file (format = \"{}\")", *f),
+           fmt::format("set format = \"{}\"", kFormat));
+  const long long version = r.get_int(root, "format_version", "").value_or(1);
+  if (version != 1)
+    r.fail(root.get("format_version"), "format_version", fmt::format("format_version {} is not known", version),
+           "set format_version = 1");
+
+  Schedule sch;
+  sch.source = name;
+  sch.description = r.get_string(root, "description", "").value_or("");
+  sch.scales = read_scales(r, r.get_table(root, "scales", ""));
+
+  const toml::table* p = r.get_table(root, "path", "");
+  toml::table empty;
+  if (!p) p = &empty;
+  r.allow_keys(*p, "path", {"time", "duration_ns", "points", "start", "start_bits"});
+  const std::string time = r.get_string(*p, "time", "path").value_or("fraction");
+  if (time != "fraction" && time != "ns")
+    r.fail(p->get("time"), "path.time", fmt::format("unknown time unit \"{}\"", time), "use \"fraction\" or \"ns\"");
+  sch.time_in_ns = time == "ns";
+  if (auto d = r.get_double(*p, "duration_ns", "path")) {
+    if (!(*d > 0)) r.fail(p->get("duration_ns"), "path.duration_ns", "duration must be > 0 ns", "give a positive duration");
+    if (sch.time_in_ns)
+      r.fail(p->get("duration_ns"), "path.duration_ns", "duration_ns is implied when time = \"ns\"",
+             "remove duration_ns, or use time = \"fraction\"");
+    sch.duration_ns = *d;
+  }
+
+  std::vector<Waypoint> pts;
+  if (const toml::array* a = r.get_array(*p, "points", "path")) {
+    for (std::size_t k = 0; k < a->size(); ++k) {
+      const std::string key = fmt::format("path.points[{}]", k);
+      const toml::array* e = a->get(k)->as_array();
+      if (!e || e->size() != 2) r.fail(a->get(k), key, "each waypoint must be [time, s]", "write it as [t, s]");
+      Waypoint w{r.number(*e->get(0), key), r.number(*e->get(1), key)};
+      if (w.s < 0 || w.s > 1) r.fail(e->get(1), key, fmt::format("s = {} is outside [0, 1]", w.s), "use s in [0, 1]");
+      if (k == 0 && w.t_ns != 0) r.fail(e->get(0), key, "the path must start at time 0", "make the first time 0");
+      if (k > 0 && !(w.t_ns > pts.back().t_ns))
+        r.fail(e->get(0), key, fmt::format("time {} does not increase (previous {})", w.t_ns, pts.back().t_ns),
+               "times must increase strictly; a quench is a short ramp, not a zero-length one");
+      if (!sch.time_in_ns && w.t_ns > 1)
+        r.fail(e->get(0), key, fmt::format("time fraction {} is above 1", w.t_ns),
+               "fractions run from 0 to 1; use time = \"ns\" for absolute times");
+      pts.push_back(w);
+    }
+    if (pts.size() < 2) r.fail(a, "path.points", "a path needs at least two waypoints", "add waypoints");
+    if (!sch.time_in_ns && pts.back().t_ns != 1.0)
+      r.fail(a->get(a->size() - 1), fmt::format("path.points[{}]", a->size() - 1),
+             "the last time fraction must be 1", "end the path at time 1 (the full duration)");
+    sch.shape = AnnealPath(pts);
+  }
+
+  const AnnealPath& shape = sch.shape;
+  if (shape.s_min() < sch.scales.s_first() - 1e-12 || shape.s_max() > sch.scales.s_last() + 1e-12)
+    r.fail(root.get("scales"), "scales.s",
+           fmt::format("the table covers s in [{}, {}] but the path visits [{}, {}]", sch.scales.s_first(),
+                       sch.scales.s_last(), shape.s_min(), shape.s_max()),
+           "extend the table to cover every s the path visits");
+
+  const std::string start = r.get_string(*p, "start", "path").value_or(p->get("start_bits") ? "classical" : "ground");
+  if (start != "ground" && start != "classical")
+    r.fail(p->get("start"), "path.start", fmt::format("unknown start \"{}\"", start), "use \"ground\" or \"classical\"");
+  sch.start.kind = start == "ground" ? StartKind::Ground : StartKind::Classical;
+  if (const toml::array* b = r.get_array(*p, "start_bits", "path")) {
+    if (sch.start.kind == StartKind::Ground)
+      r.fail(b, "path.start_bits", "start_bits given but start = \"ground\"", "remove start_bits or set start = \"classical\"");
+    for (std::size_t k = 0; k < b->size(); ++k) {
+      const long long v = r.integer(*b->get(k), fmt::format("path.start_bits[{}]", k));
+      if (v != 0 && v != 1) r.fail(b->get(k), fmt::format("path.start_bits[{}]", k), "a bit must be 0 or 1", "write 0 or 1");
+      sch.start.bits.push_back(static_cast<int>(v));
+    }
+  }
+  if (sch.start.kind == StartKind::Classical && sch.start.bits.empty())
+    r.fail(p, "path.start_bits", "start = \"classical\" needs the start state", "add `start_bits = [0, 1, ...]`, qubit 0 first");
+  if (sch.start.kind == StartKind::Ground && !p->get("start") && shape.points().front().s > 0)
+    r.fail(p->get("points"), "path.start_bits",
+           fmt::format("the path starts at s = {}: a reverse anneal needs a classical start state",
+                       shape.points().front().s),
+           "add `start_bits = [...]` (qubit 0 first), or `start = \"ground\"` to start in the ground state of H(s)");
+  return sch;
+}
+
+Schedule read_schedule_file(const std::string& path) { return parse_schedule_text(read_text_file(path), path); }
+
+std::string format_schedule_toml(const Schedule& s) {
+  std::string out = fmt::format("format = \"{}\"\nformat_version = 1\n", kFormat);
+  if (!s.description.empty()) out += fmt::format("description = \"{}\"\n", s.description);
+  out += "\n[scales]\n";
+  if (s.scales.is_linear_ramp()) {
+    out += fmt::format("kind = \"linear\"\na_max_ghz = {:.17g}\nb_max_ghz = {:.17g}\n", s.scales.a_max_ghz(),
+                       s.scales.b_max_ghz());
+  } else {
+    out += fmt::format("kind = \"table\"\ninterpolation = \"{}\"\n",
+                       s.scales.interpolation() == ScaleInterpolation::Linear ? "linear" : "monotone-cubic");
+    auto list = [](const std::vector<double>& v) {
+      std::string l = "[";
+      for (std::size_t k = 0; k < v.size(); ++k) l += fmt::format("{}{:.17g}", k ? ", " : "", v[k]);
+      return l + "]";
+    };
+    out += "s = " + list(s.scales.table_s()) + "\na_ghz = " + list(s.scales.table_a()) + "\nb_ghz = " +
+           list(s.scales.table_b()) + "\n";
+  }
+  out += fmt::format("\n[path]\ntime = \"{}\"\n", s.time_in_ns ? "ns" : "fraction");
+  if (s.duration_ns) out += fmt::format("duration_ns = {:.17g}\n", *s.duration_ns);
+  out += "points = [\n";
+  for (const auto& w : s.shape.points()) out += fmt::format("  [{:.17g}, {:.17g}],\n", w.t_ns, w.s);
+  out += "]\n";
+  if (s.start.kind == StartKind::Classical) {
+    out += "start = \"classical\"\nstart_bits = [";
+    for (std::size_t k = 0; k < s.start.bits.size(); ++k) out += fmt::format("{}{}", k ? ", " : "", s.start.bits[k]);
+    out += "]\n";
+  }
+  return out;
+}
+
+}  // namespace gapwise

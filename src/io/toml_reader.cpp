@@ -1,0 +1,168 @@
+#include "io/toml_reader.hpp"
+
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+
+#include <fmt/format.h>
+
+namespace gapwise {
+namespace {
+
+std::string type_name(const toml::node& n) {
+  switch (n.type()) {
+    case toml::node_type::table: return "a table";
+    case toml::node_type::array: return "an array";
+    case toml::node_type::string: return "a string";
+    case toml::node_type::integer: return "an integer";
+    case toml::node_type::floating_point: return "a number";
+    case toml::node_type::boolean: return "a boolean";
+    default: return "a date/time";
+  }
+}
+
+}  // namespace
+
+std::string read_text_file(const std::string& path) {
+  std::error_code ec;
+  if (std::filesystem::is_directory(path, ec))
+    throw InputError({path, 0, 0, ""}, "this is a directory, not a file", "give the path of a file");
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError({path, 0, 0, ""}, "cannot open the file for reading",
+                            "check the path and the file's permissions");
+  std::ostringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
+TomlReader TomlReader::open(const std::string& path) { return from_string(read_text_file(path), path); }
+
+TomlReader TomlReader::from_string(std::string_view text, const std::string& name) {
+  try {
+    return TomlReader(toml::parse(text, name), name);
+  } catch (const toml::parse_error& e) {
+    const auto& src = e.source();
+    throw InputError({name, static_cast<int>(src.begin.line), static_cast<int>(src.begin.column), ""},
+                     fmt::format("TOML syntax error: {}", e.description()),
+                     "correct the syntax at that place (see the file format in the user guide)");
+  }
+}
+
+SourcePlace TomlReader::place(const toml::node* node, const std::string& key) const {
+  SourcePlace p{file_, 0, 0, key};
+  if (node) {
+    p.line = static_cast<int>(node->source().begin.line);
+    p.column = static_cast<int>(node->source().begin.column);
+  }
+  return p;
+}
+
+void TomlReader::fail(const toml::node* node, const std::string& key, const std::string& problem,
+                      const std::string& fix) const {
+  throw InputError(place(node, key), problem, fix);
+}
+
+std::string TomlReader::key_path(const std::string& prefix, std::string_view key) const {
+  return prefix.empty() ? std::string(key) : prefix + "." + std::string(key);
+}
+
+void TomlReader::allow_keys(const toml::table& table, const std::string& prefix,
+                            std::initializer_list<std::string_view> allowed) const {
+  for (auto&& [k, v] : table) {
+    bool ok = false;
+    for (auto a : allowed) ok = ok || (k.str() == a);
+    if (!ok) {
+      std::string list;
+      for (auto a : allowed) list += (list.empty() ? "" : ", ") + std::string(a);
+      SourcePlace p{file_, static_cast<int>(k.source().begin.line),
+                    static_cast<int>(k.source().begin.column), key_path(prefix, k.str())};
+      throw InputError(p, "unknown key", "remove it or use one of: " + list);
+    }
+  }
+}
+
+const toml::node* TomlReader::find(const toml::table& table, std::string_view key) const {
+  return table.get(key);
+}
+
+double TomlReader::number(const toml::node& node, const std::string& key) const {
+  double v;
+  if (auto i = node.as_integer()) v = static_cast<double>(i->get());
+  else if (auto f = node.as_floating_point()) v = f->get();
+  else fail(&node, key, "expected a number, found " + type_name(node), "write a number such as 1.5");
+  if (!std::isfinite(v)) fail(&node, key, "the number is not finite (inf or nan)", "write a finite number");
+  return v;
+}
+
+long long TomlReader::integer(const toml::node& node, const std::string& key) const {
+  if (auto i = node.as_integer()) return i->get();
+  if (auto f = node.as_floating_point()) {
+    const double x = f->get();
+    if (std::isfinite(x) && x == std::floor(x) && std::abs(x) < 9e15) return static_cast<long long>(x);
+  }
+  fail(&node, key, "expected an integer, found " + type_name(node), "write a whole number such as 3");
+}
+
+std::vector<double> TomlReader::number_list(const toml::array& arr, const std::string& key) const {
+  std::vector<double> out;
+  out.reserve(arr.size());
+  for (std::size_t k = 0; k < arr.size(); ++k) out.push_back(number(*arr.get(k), fmt::format("{}[{}]", key, k)));
+  return out;
+}
+
+std::optional<double> TomlReader::get_double(const toml::table& t, std::string_view key,
+                                             const std::string& prefix) const {
+  const toml::node* n = t.get(key);
+  if (!n) return std::nullopt;
+  return number(*n, key_path(prefix, key));
+}
+
+double TomlReader::require_double(const toml::table& t, std::string_view key, const std::string& prefix) const {
+  auto v = get_double(t, key, prefix);
+  if (!v) fail(&t, key_path(prefix, key), "required key is missing", fmt::format("add `{} = <number>`", key));
+  return *v;
+}
+
+std::optional<long long> TomlReader::get_int(const toml::table& t, std::string_view key,
+                                             const std::string& prefix) const {
+  const toml::node* n = t.get(key);
+  if (!n) return std::nullopt;
+  return integer(*n, key_path(prefix, key));
+}
+
+long long TomlReader::require_int(const toml::table& t, std::string_view key, const std::string& prefix) const {
+  auto v = get_int(t, key, prefix);
+  if (!v) fail(&t, key_path(prefix, key), "required key is missing", fmt::format("add `{} = <integer>`", key));
+  return *v;
+}
+
+std::optional<std::string> TomlReader::get_string(const toml::table& t, std::string_view key,
+                                                  const std::string& prefix) const {
+  const toml::node* n = t.get(key);
+  if (!n) return std::nullopt;
+  if (auto s = n->as_string()) return s->get();
+  fail(n, key_path(prefix, key), "expected a string, found " + type_name(*n), "write a quoted string");
+}
+
+std::string TomlReader::require_string(const toml::table& t, std::string_view key, const std::string& prefix) const {
+  auto v = get_string(t, key, prefix);
+  if (!v) fail(&t, key_path(prefix, key), "required key is missing", fmt::format("add `{} = \"...\"`", key));
+  return *v;
+}
+
+const toml::array* TomlReader::get_array(const toml::table& t, std::string_view key, const std::string& prefix) const {
+  const toml::node* n = t.get(key);
+  if (!n) return nullptr;
+  if (auto a = n->as_array()) return a;
+  fail(n, key_path(prefix, key), "expected an array, found " + type_name(*n), "write a list in [ ... ]");
+}
+
+const toml::table* TomlReader::get_table(const toml::table& t, std::string_view key, const std::string& prefix) const {
+  const toml::node* n = t.get(key);
+  if (!n) return nullptr;
+  if (auto a = n->as_table()) return a;
+  fail(n, key_path(prefix, key), "expected a table, found " + type_name(*n), fmt::format("write a [{}] section", key));
+}
+
+}  // namespace gapwise

@@ -1,0 +1,66 @@
+#pragma once
+// Typed access to a parsed TOML document that turns every failure into an
+// InputError naming file, line and key. Used by every file parser.
+//
+//   TomlReader r = TomlReader::open("problem.toml");
+//   r.allow_keys(r.root(), "", {"format", "qubits", ...});  // unknown key -> error
+//   int n = r.require_int(r.root(), "qubits", "");
+#include <initializer_list>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#define TOML_HEADER_ONLY 0
+#include <toml++/toml.h>
+
+#include "io/input_error.hpp"
+
+namespace gapwise {
+
+/// Whole file as text; an unreadable file is an InputError naming the path.
+std::string read_text_file(const std::string& path);
+
+class TomlReader {
+ public:
+  /// Parses a file; syntax errors and unreadable files become InputError.
+  static TomlReader open(const std::string& path);
+  /// Parses text (for tests and fuzzing); `name` stands in for the file name.
+  static TomlReader from_string(std::string_view text, const std::string& name);
+
+  const toml::table& root() const { return root_; }
+  const std::string& file() const { return file_; }
+
+  /// Place of a node (line/column) under a dotted key.
+  SourcePlace place(const toml::node* node, const std::string& key) const;
+  [[noreturn]] void fail(const toml::node* node, const std::string& key, const std::string& problem,
+                         const std::string& fix) const;
+
+  /// Every key of `table` must be one of `allowed`, else InputError naming it.
+  void allow_keys(const toml::table& table, const std::string& prefix,
+                  std::initializer_list<std::string_view> allowed) const;
+
+  const toml::node* find(const toml::table& table, std::string_view key) const;
+  std::string key_path(const std::string& prefix, std::string_view key) const;
+
+  double require_double(const toml::table& t, std::string_view key, const std::string& prefix) const;
+  std::optional<double> get_double(const toml::table& t, std::string_view key, const std::string& prefix) const;
+  long long require_int(const toml::table& t, std::string_view key, const std::string& prefix) const;
+  std::optional<long long> get_int(const toml::table& t, std::string_view key, const std::string& prefix) const;
+  std::string require_string(const toml::table& t, std::string_view key, const std::string& prefix) const;
+  std::optional<std::string> get_string(const toml::table& t, std::string_view key, const std::string& prefix) const;
+  const toml::array* get_array(const toml::table& t, std::string_view key, const std::string& prefix) const;
+  const toml::table* get_table(const toml::table& t, std::string_view key, const std::string& prefix) const;
+
+  /// A number (integer or float) that must be finite; `key` names it in errors.
+  double number(const toml::node& node, const std::string& key) const;
+  long long integer(const toml::node& node, const std::string& key) const;
+  std::vector<double> number_list(const toml::array& arr, const std::string& key) const;
+
+ private:
+  TomlReader(toml::table root, std::string file) : root_(std::move(root)), file_(std::move(file)) {}
+  toml::table root_;
+  std::string file_;
+};
+
+}  // namespace gapwise

@@ -1,0 +1,37 @@
+#include "schedule/schedule.hpp"
+
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "io/input_error.hpp"
+
+namespace gapwise {
+
+AnnealPath Schedule::path_for(std::optional<double> d) const {
+  if (d) {
+    if (!(*d > 0.0) || !std::isfinite(*d))
+      throw InputError({source, 0, 0, "duration_ns"}, fmt::format("duration {} ns is not positive", *d),
+                       "give a duration > 0 ns");
+    return shape.scaled_to(*d);
+  }
+  if (time_in_ns) return shape;
+  if (duration_ns) return shape.scaled_to(*duration_ns);
+  throw InputError({source, 0, 0, "path.duration_ns"},
+                   "the path's times are fractions of the duration, but no duration is given",
+                   "pass --duration-ns or add `duration_ns = <ns>` to [path]");
+}
+
+BasisIndex start_basis_state(const Schedule& schedule, int qubits) {
+  const auto& bits = schedule.start.bits;
+  if (static_cast<int>(bits.size()) != qubits)
+    throw InputError({schedule.source, 0, 0, "path.start_bits"},
+                     fmt::format("start_bits has {} entries but the problem has {} qubits", bits.size(), qubits),
+                     "give one bit (0 or 1) per qubit, qubit 0 first");
+  BasisIndex b = 0;
+  for (int i = 0; i < qubits; ++i)
+    if (bits[static_cast<std::size_t>(i)]) b |= BasisIndex{1} << i;
+  return b;
+}
+
+}  // namespace gapwise

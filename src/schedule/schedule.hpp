@@ -1,0 +1,47 @@
+#pragma once
+// A schedule: energy scales, the shape of the path s(t), its default duration
+// and the start state. The path for a run of a given duration is the shape
+// stretched to that duration, so one schedule serves a whole duration sweep.
+//
+//   Schedule sch = read_schedule_file("schedules/linear.toml");
+//   AnnealPath path = sch.path_for(100.0);            // 100 ns
+//   AnnealPath def  = sch.path_for(std::nullopt);     // the file's own duration
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "problem/ising_problem.hpp"
+#include "schedule/anneal_path.hpp"
+#include "schedule/energy_scales.hpp"
+
+namespace gapwise {
+
+enum class StartKind {
+  Ground,     ///< ground state of H(s) at the path's first s (|+>^n for a forward anneal)
+  Classical,  ///< a computational basis state given by the user (reverse anneals)
+};
+
+struct StartSpec {
+  StartKind kind = StartKind::Ground;
+  std::vector<int> bits;  ///< qubit 0 first, for Classical
+};
+
+struct Schedule {
+  EnergyScales scales = EnergyScales::linear(5.0, 5.0);
+  AnnealPath shape{{{0.0, 0.0}, {1.0, 1.0}}};  ///< t in ns, or in fractions of the duration
+  bool time_in_ns = false;
+  std::optional<double> duration_ns;  ///< default duration (required to run when times are fractions)
+  StartSpec start;
+  std::string description;
+  std::string source;  ///< file name it came from, for messages
+
+  /// Path for a run; `duration_ns` overrides the schedule's own. Throws InputError
+  /// when no duration is known.
+  AnnealPath path_for(std::optional<double> duration_ns) const;
+};
+
+/// The start basis state for a Classical start; throws InputError when the bit
+/// count does not match the problem.
+BasisIndex start_basis_state(const Schedule& schedule, int qubits);
+
+}  // namespace gapwise
