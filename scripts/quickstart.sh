@@ -1,0 +1,15 @@
+#!/usr/bin/env bash
+# From a fresh clone: install what is missing, build, and run the main job on a
+# bundled sample (how likely one anneal of the frustrated triangle ends in its
+# ground state, at a few durations).
+set -euo pipefail
+cd "$(dirname "$0")/.."
+bash scripts/install-deps.sh
+cmake -S . -B build -DCMAKE_BUILD_TYPE=Release >/dev/null
+cmake --build build -j"$(nproc)" --target gapwise
+echo
+echo "== gapwise inspect data-samples/triangle.toml"
+build/gapwise inspect data-samples/triangle.toml
+echo
+echo "== gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20"
+build/gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20
