@@ -1,0 +1,110 @@
+// The command line end to end: the inspect and anneal subcommands on bundled
+// samples, their JSON and HDF5 outputs, and the exit-code contract
+// (0 ok, 2 bad input, 1 internal failure). JSON is checked with Python's json
+// module (a general-purpose reference parser), HDF5 by reading it back with
+// the HDF5 library.
+#include <doctest/doctest.h>
+
+#include <H5Cpp.h>
+
+#include <cmath>
+#include <cstdlib>
+#include <fstream>
+#include <vector>
+
+#include "test_support.hpp"
+
+using gapwise::testing::run_gapwise;
+using gapwise::testing::source_dir;
+using gapwise::testing::TempDir;
+
+namespace {
+std::string sample(const char* rel) { return "'" + (source_dir() / rel).string() + "'"; }
+
+// Value of a top-level key of a JSON text, printed by Python's json module.
+std::string json_value(const TempDir& dir, const std::string& json, const std::string& key) {
+  const auto f = dir.write("summary.json", json);
+  const auto out = dir.path / "value.txt";
+  const std::string cmd = "/usr/bin/python3 -c \"import json,sys; print(json.load(open(sys.argv[1]))[sys.argv[2]])\" '" +
+                          f.string() + "' " + key + " > '" + out.string() + "'";
+  REQUIRE(std::system(cmd.c_str()) == 0);
+  std::ifstream in(out);
+  std::string v;
+  std::getline(in, v);
+  return v;
+}
+}  // namespace
+
+TEST_CASE("inspect: the triangle's ground state, checked by hand") {
+  // h = (0.3, -0.1, 0.05), J = +1 on all three pairs. Every frustrated state has
+  // coupling energy -1; the fields pick s = (-, +, -): -0.3 - 0.1 - 0.05 - 1 = -1.45.
+  TempDir dir;
+  auto r = run_gapwise("inspect " + sample("data-samples/triangle.toml") + " --json", dir);
+  REQUIRE(r.exit_code == 0);
+  CHECK(std::stod(json_value(dir, r.out, "ground_energy")) == doctest::Approx(-1.45));
+  CHECK(json_value(dir, r.out, "ground_degeneracy") == "1");
+  CHECK(json_value(dir, r.out, "ground_states_bits") == "['101']");
+  auto t = run_gapwise("inspect " + sample("data-samples/triangle.toml"), dir);
+  CHECK(t.exit_code == 0);
+  CHECK(t.out.find("degeneracy 1") != std::string::npos);
+}
+
+TEST_CASE("anneal: text, JSON and HDF5 agree; the HDF5 file carries units and provenance") {
+  TempDir dir;
+  const std::string h5 = (dir.path / "run.h5").string();
+  const std::string csv = (dir.path / "trace.csv").string();
+  auto r = run_gapwise("anneal " + sample("data-samples/triangle.toml") + " " + sample("schedules/linear.toml") +
+                           " --duration-ns 10 --json --out '" + h5 + "' --csv '" + csv + "'",
+                       dir);
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  const double p = std::stod(json_value(dir, r.out, "ground_probability"));
+  CHECK(p > 0.0);
+  CHECK(p < 1.0);
+  CHECK(std::stod(json_value(dir, r.out, "duration_ns")) == 10.0);
+  CHECK(std::stod(json_value(dir, r.out, "convergence_delta_p")) < 1e-6);
+
+  H5::H5File f(h5, H5F_ACC_RDONLY);
+  double p_h5 = 0;
+  f.openGroup("/anneal").openAttribute("ground_probability").read(H5::PredType::NATIVE_DOUBLE, &p_h5);
+  CHECK(p_h5 == doctest::Approx(p).epsilon(1e-12));
+  H5::DataSet t = f.openDataSet("/anneal/trace/t");
+  std::string unit;
+  t.openAttribute("unit").read(H5::StrType(H5::PredType::C_S1, H5T_VARIABLE), unit);
+  CHECK(unit == "ns");
+  std::string version;
+  f.openGroup("/provenance").openAttribute("version").read(H5::StrType(H5::PredType::C_S1, H5T_VARIABLE), version);
+  CHECK(!version.empty());
+  // final probabilities sum to the norm
+  H5::DataSet fp = f.openDataSet("/anneal/final_probabilities");
+  std::vector<double> probs(8);
+  fp.read(probs.data(), H5::PredType::NATIVE_DOUBLE);
+  double sum = 0;
+  for (double x : probs) sum += x;
+  CHECK(sum == doctest::Approx(1.0).epsilon(1e-6));
+  CHECK(probs[0b101] == doctest::Approx(p).epsilon(1e-12));
+
+  std::ifstream c(csv);
+  std::string header;
+  std::getline(c, header);
+  CHECK(header == "t_ns,s,p_ground,energy_ghz,norm");
+}
+
+TEST_CASE("exit codes: 2 for bad input with the place named, 0 for --help") {
+  TempDir dir;
+  const auto bad = dir.write("bad.toml", "qubits = 2\ncouplings = [[0, 0, 1.0]]\n");
+  auto r = run_gapwise("anneal '" + bad.string() + "' " + sample("schedules/linear.toml"), dir);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("bad.toml:2") != std::string::npos);
+  CHECK(r.err.find("self-coupling") != std::string::npos);
+  auto m = run_gapwise("anneal /nonexistent/x.toml " + sample("schedules/linear.toml"), dir);
+  CHECK(m.exit_code == 2);
+  auto d = run_gapwise("anneal " + sample("data-samples/triangle.toml") + " " + sample("schedules/linear.toml") +
+                           " --out '" + dir.path.string() + "'",
+                       dir);
+  CHECK(d.exit_code == 2);
+  CHECK(d.err.find("directory") != std::string::npos);
+  auto h = run_gapwise("anneal --help", dir);
+  CHECK(h.exit_code == 0);
+  CHECK(h.out.find("--duration-ns") != std::string::npos);
+}

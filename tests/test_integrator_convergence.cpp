@@ -1,0 +1,43 @@
+// The reference integrator keeps its promise: tightening the tolerance tenfold
+// moves p by less than the stated tolerance, and the norm is kept (common
+// practice for checking an adaptive integrator).
+#include <doctest/doctest.h>
+
+#include <cmath>
+
+#include "dynamics/anneal_simulation.hpp"
+#include "io/problem_file.hpp"
+#include "io/schedule_file.hpp"
+#include "test_support.hpp"
+
+using namespace gapwise;
+
+TEST_CASE("Tightening the tolerance tenfold moves p by less than the tolerance; norm kept") {
+  const auto dir = gapwise::testing::source_dir();
+  for (const char* problem : {"data-samples/triangle.toml", "data-samples/meeting-slots-qubo.toml"}) {
+    for (const char* schedule : {"schedules/linear.toml", "schedules/hardware-like.toml", "schedules/pause.toml"}) {
+      const IsingProblem p = read_problem_file((dir / problem).string());
+      const Schedule sch = read_schedule_file((dir / schedule).string());
+      const TransverseIsingHamiltonian h(p);
+      const GroundManifold gm = find_ground_manifold(p, h.diagonal());
+      const AnnealPath path = sch.path_for(15.0);
+      const QuantumState psi0 = initial_state(h, sch, path);
+      for (const std::string& prop : propagator_names()) {
+        for (double tol : {1e-5, 1e-7}) {
+          SimulationOptions a, b;
+          a.propagator = b.propagator = prop;
+          a.propagation.tolerance = tol;
+          b.propagation.tolerance = tol / 10;
+          const AnnealResult ra = simulate_anneal(h, gm, sch.scales, path, psi0, a);
+          const AnnealResult rb = simulate_anneal(h, gm, sch.scales, path, psi0, b);
+          INFO(problem << " " << schedule << " " << prop << " tol " << tol << ": p " << ra.ground_probability
+                       << " vs " << rb.ground_probability << ", norm drift " << ra.norm_drift);
+          CHECK(std::abs(ra.ground_probability - rb.ground_probability) < tol);
+          CHECK(ra.norm_drift < tol);
+          CHECK(ra.ground_probability > 0.0);
+          CHECK(ra.ground_probability < 1.0);
+        }
+      }
+    }
+  }
+}
