@@ -1,0 +1,197 @@
+#include "io/result_journal.hpp"
+
+#include <cerrno>
+#include <cstdint>
+#include <cstdlib>
+#include <cstring>
+#include <sstream>
+#include <stdexcept>
+
+#include <fcntl.h>
+#include <sys/file.h>
+#include <unistd.h>
+
+#include <fmt/format.h>
+
+#include "io/input_error.hpp"
+
+namespace gapwise {
+namespace {
+
+std::uint64_t fnv1a(std::string_view s, std::uint64_t h = 1469598103934665603ULL) {
+  for (unsigned char c : s) { h ^= c; h *= 1099511628211ULL; }
+  return h;
+}
+
+std::string join(const std::vector<std::string>& v) {
+  std::string s;
+  for (const auto& x : v) s += (s.empty() ? "" : ",") + x;
+  return s;
+}
+
+std::string header_line(const JournalLayout& l, const std::string& fp) {
+  return fmt::format("# gapwise-journal 1 kind={} fingerprint={}\n# keys: {}  values: {}\n", l.kind, fp,
+                     join(l.key_columns), join(l.value_columns));
+}
+
+std::string record_line(const std::vector<double>& key, const std::vector<double>& values) {
+  std::string body;
+  for (double x : key) body += fmt::format("{}{:a}", body.empty() ? "" : " ", x);
+  for (double x : values) body += fmt::format(" {:a}", x);
+  return fmt::format("{} *{:016x}\n", body, fnv1a(body));
+}
+
+// Parses one record line (without its newline); false when malformed.
+bool parse_record(const std::string& line, std::size_t nkeys, std::size_t nvalues, std::vector<double>& key,
+                  std::vector<double>& values) {
+  const auto star = line.rfind(" *");
+  if (star == std::string::npos) return false;
+  const std::string body = line.substr(0, star);
+  if (line.substr(star + 2) != fmt::format("{:016x}", fnv1a(body))) return false;
+  std::vector<double> nums;
+  const char* p = body.c_str();
+  while (*p) {
+    char* end = nullptr;
+    const double x = std::strtod(p, &end);
+    if (end == p) return false;
+    nums.push_back(x);
+    p = end;
+    while (*p == ' ') ++p;
+  }
+  if (nums.size() != nkeys + nvalues) return false;
+  key.assign(nums.begin(), nums.begin() + static_cast<std::ptrdiff_t>(nkeys));
+  values.assign(nums.begin() + static_cast<std::ptrdiff_t>(nkeys), nums.end());
+  return true;
+}
+
+void write_all(int fd, const std::string& text, const std::string& path) {
+  std::size_t done = 0;
+  while (done < text.size()) {
+    const ssize_t w = ::write(fd, text.data() + done, text.size() - done);
+    if (w < 0) {
+      if (errno == EINTR) continue;
+      throw std::runtime_error(fmt::format("cannot write the journal '{}': {}", path, std::strerror(errno)));
+    }
+    done += static_cast<std::size_t>(w);
+  }
+  if (::fsync(fd) != 0)
+    throw std::runtime_error(fmt::format("cannot flush the journal '{}': {}", path, std::strerror(errno)));
+}
+
+}  // namespace
+
+std::string input_fingerprint(const std::vector<std::string>& parts) {
+  std::uint64_t h = fnv1a("");
+  for (const auto& p : parts) h = fnv1a(p, fnv1a(fmt::format("{}:", p.size()), h));
+  return fmt::format("{:016x}", h);
+}
+
+std::string journal_path_for(const std::string& result_path) { return result_path + ".journal"; }
+
+ResultJournal::ResultJournal(std::string path, JournalLayout layout, std::string fingerprint)
+    : path_(std::move(path)), layout_(std::move(layout)), fingerprint_(std::move(fingerprint)) {
+  fd_ = ::open(path_.c_str(), O_RDWR | O_CREAT | O_CLOEXEC, 0644);
+  if (fd_ < 0)
+    throw InputError({path_, 0, 0, "journal"}, fmt::format("cannot open the journal: {}", std::strerror(errno)),
+                     "check that the folder exists and is writable");
+  if (::flock(fd_, LOCK_EX | LOCK_NB) != 0) {
+    ::close(fd_);
+    fd_ = -1;
+    throw InputError({path_, 0, 0, "journal"}, "another gapwise run is using this journal right now",
+                     "wait for it to finish, or write to another output file");
+  }
+  try {
+    std::string text;
+    char buf[1 << 16];
+    for (;;) {
+      const ssize_t r = ::read(fd_, buf, sizeof buf);
+      if (r < 0) {
+        if (errno == EINTR) continue;
+        throw std::runtime_error(fmt::format("cannot read the journal '{}': {}", path_, std::strerror(errno)));
+      }
+      if (r == 0) break;
+      text.append(buf, static_cast<std::size_t>(r));
+    }
+    const std::string header = header_line(layout_, fingerprint_);
+    std::size_t keep = 0;  // bytes of valid content
+    if (text.empty() || (text.size() < header.size() && header.compare(0, text.size(), text) == 0)) {
+      keep = 0;  // new journal (or one killed while writing its header)
+    } else {
+      if (text.compare(0, 17, "# gapwise-journal") != 0)
+        throw InputError({path_, 1, 1, "journal"}, "this file is not a gapwise journal",
+                         "remove it or choose another output file; gapwise keeps its journal beside the result file");
+      const auto nl = text.find('\n');
+      const std::string first = text.substr(0, nl);
+      if (first.find(fmt::format("kind={} ", layout_.kind)) == std::string::npos)
+        throw InputError({path_, 1, 1, "journal"},
+                         fmt::format("this journal belongs to another kind of study ({})", first),
+                         "choose another output file, or delete the journal to start afresh");
+      if (text.compare(0, header.size(), header) != 0)
+        throw InputError({path_, 1, 1, "journal"},
+                         "this journal was written for other inputs (problem, schedule or numerical options "
+                         "changed since), so its points cannot be reused",
+                         fmt::format("delete '{}' to start afresh, or write to another output file", path_));
+      keep = header.size();
+      int line_no = 3;
+      std::vector<double> key, values;
+      while (keep < text.size()) {
+        const auto end = text.find('\n', keep);
+        if (end == std::string::npos) break;  // torn last line: dropped
+        if (!parse_record(text.substr(keep, end - keep), layout_.key_columns.size(), layout_.value_columns.size(), key,
+                          values)) {
+          if (text.find('\n', end + 1) == std::string::npos && end + 1 >= text.size()) break;  // damaged last line
+          throw InputError({path_, line_no, 1, "journal"}, "a record in the middle of the journal is damaged",
+                           fmt::format("delete '{}' to start afresh", path_));
+        }
+        records_[key] = values;
+        keep = end + 1;
+        ++line_no;
+      }
+    }
+    resumed_ = records_.size();
+    if (keep < text.size() || keep == 0) {
+      if (::ftruncate(fd_, static_cast<off_t>(keep)) != 0)
+        throw std::runtime_error(fmt::format("cannot repair the journal '{}': {}", path_, std::strerror(errno)));
+    }
+    if (::lseek(fd_, static_cast<off_t>(keep), SEEK_SET) < 0)
+      throw std::runtime_error(fmt::format("cannot seek in the journal '{}': {}", path_, std::strerror(errno)));
+    if (keep == 0) write_all(fd_, header, path_);
+  } catch (...) {
+    ::close(fd_);
+    fd_ = -1;
+    throw;
+  }
+}
+
+ResultJournal::~ResultJournal() {
+  if (fd_ >= 0) ::close(fd_);  // releases the lock
+}
+
+std::size_t ResultJournal::size() const {
+  std::lock_guard<std::mutex> lock(mutex_);
+  return records_.size();
+}
+
+std::optional<std::vector<double>> ResultJournal::find(const std::vector<double>& key) const {
+  std::lock_guard<std::mutex> lock(mutex_);
+  const auto it = records_.find(key);
+  if (it == records_.end()) return std::nullopt;
+  return it->second;
+}
+
+std::map<std::vector<double>, std::vector<double>> ResultJournal::records() const {
+  std::lock_guard<std::mutex> lock(mutex_);
+  return records_;
+}
+
+void ResultJournal::append(const std::vector<double>& key, const std::vector<double>& values) {
+  if (key.size() != layout_.key_columns.size() || values.size() != layout_.value_columns.size())
+    throw std::invalid_argument(fmt::format("journal record has {} keys and {} values, the layout {} and {}", key.size(),
+                                            values.size(), layout_.key_columns.size(), layout_.value_columns.size()));
+  const std::string line = record_line(key, values);
+  std::lock_guard<std::mutex> lock(mutex_);
+  write_all(fd_, line, path_);
+  records_[key] = values;
+}
+
+}  // namespace gapwise

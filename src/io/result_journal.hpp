@@ -1,0 +1,88 @@
+#pragma once
+// A journal of finished points for long, resumable studies (duration sweeps,
+// pause maps, ensembles): each finished point is appended as one line and
+// flushed to disk before the study moves on, so a crash or kill loses at most
+// the points still running. Rerunning the same study opens the same journal,
+// finds the finished points and skips them.
+//
+// How a study uses it (the pattern gapwise's studies follow):
+//   1. fingerprint every input that decides the numbers (file texts, tolerances,
+//      propagator) with input_fingerprint(); a journal written for other inputs
+//      is refused with an InputError that says what to do, never silently reused;
+//   2. look each point up with find(key) before computing it;
+//   3. append(key, values) when it finishes (thread-safe);
+//   4. after each append, rewrite the result files atomically (Hdf5Output,
+//      write_file_atomically) from everything known, so the result files are
+//      complete and valid at every moment, too.
+//
+//   ResultJournal j("sweep.h5.journal", {"duration-sweep", {"duration_ns"},
+//                   {"ground_probability", "norm_drift"}}, input_fingerprint({problem_text, schedule_text}));
+//   if (auto v = j.find({20.0})) use((*v)[0]);
+//   else j.append({20.0}, {0.93, 1e-9});
+//
+// File format (text, one record a line; numbers as C99 hexadecimal floats so
+// they round-trip bit for bit):
+//   # gapwise-journal 1 kind=<kind> fingerprint=<16 hex digits>
+//   # keys: <names>  values: <names>
+//   <key...> <value...> *<checksum>
+// A line is accepted only when it ends in a newline and its checksum (FNV-1a
+// of the text before '*') matches; a torn last line (killed mid-write) is
+// dropped, and the journal is compacted when it is reopened. Only one process
+// may use a journal at a time (an exclusive lock; a second run gets an InputError).
+#include <map>
+#include <memory>
+#include <mutex>
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace gapwise {
+
+struct JournalLayout {
+  std::string kind;                      ///< what study wrote it, e.g. "duration-sweep"
+  std::vector<std::string> key_columns;  ///< numbers that identify a point
+  std::vector<std::string> value_columns;
+};
+
+class ResultJournal {
+ public:
+  /// Opens (creating when absent) the journal at `path`. Throws InputError when
+  /// the file belongs to another kind of study or other inputs, or is locked.
+  ResultJournal(std::string path, JournalLayout layout, std::string fingerprint);
+  ~ResultJournal();
+  ResultJournal(const ResultJournal&) = delete;
+  ResultJournal& operator=(const ResultJournal&) = delete;
+
+  const std::string& path() const { return path_; }
+  const JournalLayout& layout() const { return layout_; }
+  /// Number of records (loaded and appended).
+  std::size_t size() const;
+  /// Records loaded from disk when the journal was opened.
+  std::size_t resumed() const { return resumed_; }
+  /// Values of the point with exactly this key (exact comparison of doubles).
+  std::optional<std::vector<double>> find(const std::vector<double>& key) const;
+  /// Every record, ordered by key.
+  std::map<std::vector<double>, std::vector<double>> records() const;
+  /// Appends and flushes (fsync) one record; thread-safe. A key already present
+  /// is replaced in memory and written again (the later line wins on reload).
+  void append(const std::vector<double>& key, const std::vector<double>& values);
+
+ private:
+  std::string path_;
+  JournalLayout layout_;
+  std::string fingerprint_;
+  int fd_ = -1;
+  std::size_t resumed_ = 0;
+  mutable std::mutex mutex_;
+  std::map<std::vector<double>, std::vector<double>> records_;
+};
+
+/// 16 hex digits (FNV-1a, 64 bit) over the parts, each length-prefixed, so that
+/// ("ab", "c") and ("a", "bc") differ. Not cryptographic: it detects changed
+/// inputs, it does not defend against forged journals.
+std::string input_fingerprint(const std::vector<std::string>& parts);
+
+/// The journal path used beside a result file: "<result>.journal".
+std::string journal_path_for(const std::string& result_path);
+
+}  // namespace gapwise

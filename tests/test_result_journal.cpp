@@ -1,0 +1,86 @@
+// The journal of finished points: exact round trip, resume, torn last line,
+// refusal of foreign or locked journals. Common practice (append-only log with
+// per-record checksums), no outside source.
+#include <cmath>
+#include <fstream>
+#include <limits>
+
+#include <doctest/doctest.h>
+
+#include "io/input_error.hpp"
+#include "io/result_journal.hpp"
+#include "test_support.hpp"
+
+using namespace gapwise;
+
+namespace {
+JournalLayout layout() { return {"test-study", {"a", "b"}, {"x", "y"}}; }
+}
+
+TEST_CASE("records round-trip bit for bit and are found again after reopening") {
+  testing::TempDir dir;
+  const std::string path = (dir.path / "j.journal").string();
+  const double third = 1.0 / 3.0, tiny = std::numeric_limits<double>::denorm_min();
+  {
+    ResultJournal j(path, layout(), input_fingerprint({"problem", "schedule"}));
+    CHECK(j.resumed() == 0);
+    j.append({0.1, 2.0}, {third, tiny});
+    j.append({0.2, 2.0}, {-0.0, std::numeric_limits<double>::infinity()});
+    CHECK(j.size() == 2);
+  }
+  ResultJournal j(path, layout(), input_fingerprint({"problem", "schedule"}));
+  CHECK(j.resumed() == 2);
+  const auto v = j.find({0.1, 2.0});
+  REQUIRE(v);
+  CHECK((*v)[0] == third);
+  CHECK((*v)[1] == tiny);
+  CHECK(std::isinf((*j.find({0.2, 2.0}))[1]));
+  CHECK_FALSE(j.find({0.1, 2.0000000000000004}));
+}
+
+TEST_CASE("a torn last line (killed mid-write) is dropped and the journal stays usable") {
+  testing::TempDir dir;
+  const std::string path = (dir.path / "j.journal").string();
+  const auto fp = input_fingerprint({"p"});
+  { ResultJournal j(path, layout(), fp); j.append({1, 1}, {2, 3}); j.append({2, 1}, {4, 5}); }
+  { std::ofstream(path, std::ios::app) << "0x1p+0 0x1p+1 0x1.8p"; }  // no checksum, no newline
+  {
+    ResultJournal j(path, layout(), fp);
+    CHECK(j.resumed() == 2);
+    j.append({3, 1}, {6, 7});
+  }
+  ResultJournal j(path, layout(), fp);
+  CHECK(j.resumed() == 3);
+  CHECK((*j.find({3, 1}))[1] == 7.0);
+}
+
+TEST_CASE("a record whose checksum does not match is not believed") {
+  testing::TempDir dir;
+  const std::string path = (dir.path / "j.journal").string();
+  const auto fp = input_fingerprint({"p"});
+  { ResultJournal j(path, layout(), fp); j.append({1, 1}, {2, 3}); }
+  std::string text;
+  { std::ifstream f(path); text.assign(std::istreambuf_iterator<char>(f), {}); }
+  const auto k = text.rfind("0x1p+1");  // the value 2 in the record line
+  REQUIRE(k != std::string::npos);
+  text.replace(k, 6, "0x1p+2");
+  { std::ofstream(path) << text; }
+  ResultJournal j(path, layout(), fp);
+  CHECK(j.resumed() == 0);  // damaged last line dropped, not misread as 4
+}
+
+TEST_CASE("journals of other inputs or other studies are refused, and a journal in use is locked") {
+  testing::TempDir dir;
+  const std::string path = (dir.path / "j.journal").string();
+  ResultJournal j(path, layout(), input_fingerprint({"p"}));
+  CHECK_THROWS_AS(ResultJournal(path, layout(), input_fingerprint({"p"})), InputError);  // locked
+  j.append({1, 1}, {1, 1});
+  // Fingerprints separate the parts: ("ab","c") != ("a","bc").
+  CHECK(input_fingerprint({"ab", "c"}) != input_fingerprint({"a", "bc"}));
+  const std::string other = (dir.path / "k.journal").string();
+  { ResultJournal k(other, layout(), input_fingerprint({"p"})); }
+  CHECK_THROWS_AS(ResultJournal(other, layout(), input_fingerprint({"q"})), InputError);
+  CHECK_THROWS_AS(ResultJournal(other, {"other-study", {"a", "b"}, {"x", "y"}}, input_fingerprint({"p"})), InputError);
+  const std::string notj = dir.write("plain.txt", "hello\n").string();
+  CHECK_THROWS_AS(ResultJournal(notj, layout(), input_fingerprint({"p"})), InputError);
+}
