@@ -4,7 +4,7 @@ set -euo pipefail
 pkgs=(cmake g++ make pkg-config
       libeigen3-dev libboost-dev libhdf5-dev libcli11-dev doctest-dev
       libspectra-dev libtomlplusplus-dev libfmt-dev
-      libopenmpi-dev openmpi-bin libplplot-dev hdf5-tools
+      libopenmpi-dev openmpi-bin libplplot-dev plplot-driver-cairo hdf5-tools
       clang libclang-rt-14-dev ccache
       python3 python3-numpy python3-scipy python3-h5py)
 missing=()

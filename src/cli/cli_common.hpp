@@ -25,5 +25,6 @@ std::string& command_line();
 /// One registration function per subcommand file.
 void register_inspect(CLI::App& app);
 void register_anneal(CLI::App& app);
+void register_figure(CLI::App& app);
 
 }  // namespace gapwise::cli

@@ -29,6 +29,7 @@ int main(int argc, char** argv) {
   app.require_subcommand(1);
   cli::register_inspect(app);
   cli::register_anneal(app);
+  cli::register_figure(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -1,0 +1,210 @@
+#include "io/figure_plot.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <limits>
+#include <stdexcept>
+
+#include <fmt/format.h>
+#include <plstream.h>
+
+#include "io/atomic_file.hpp"
+
+namespace gapwise {
+namespace {
+
+// A palette that stays distinguishable in print (colour-blind-safe order).
+constexpr int kPalette[][3] = {{0, 114, 178}, {213, 94, 0}, {0, 158, 115}, {204, 121, 167},
+                               {230, 159, 0}, {86, 180, 233}, {120, 120, 120}, {0, 0, 0}};
+constexpr int kPaletteSize = 8;
+constexpr int kGridColour = 12;
+
+std::string device_for(const std::string& path) {
+  const std::string ext = std::filesystem::path(path).extension().string();
+  if (ext == ".svg") return "svgcairo";
+  if (ext == ".png") return "pngcairo";
+  throw std::runtime_error(fmt::format("unknown figure format '{}' (use .svg or .png)", ext));
+}
+
+struct Stream {
+  plstream pls;
+  std::string temp, final_path;
+  explicit Stream(const std::string& path) : temp(temporary_path_for(path)), final_path(path) {
+    pls.sdev(device_for(path).c_str());
+    pls.sfnam(temp.c_str());
+    pls.spage(0, 0, 1000, 700, 0, 0);
+    pls.scolbg(255, 255, 255);
+    pls.scmap0n(16);
+    pls.scol0(0, 255, 255, 255);  // background
+    pls.scol0(1, 0, 0, 0);        // axes and text
+    for (int k = 0; k < kPaletteSize; ++k) pls.scol0(2 + k, kPalette[k][0], kPalette[k][1], kPalette[k][2]);
+    pls.scol0(kGridColour, 215, 215, 215);
+    pls.init();
+    pls.schr(0, 0.95);
+  }
+};
+
+std::vector<double> transformed(const std::vector<double>& v, bool log) {
+  std::vector<double> out;
+  out.reserve(v.size());
+  for (double x : v) out.push_back(log ? (x > 0 ? std::log10(x) : std::numeric_limits<double>::quiet_NaN()) : x);
+  return out;
+}
+
+std::pair<double, double> range_of(const std::vector<PlotSeries>& series, bool y, bool log) {
+  double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+  for (const auto& s : series)
+    for (double v : transformed(y ? s.y : s.x, log))
+      if (std::isfinite(v)) { lo = std::min(lo, v); hi = std::max(hi, v); }
+  if (!std::isfinite(lo)) throw std::runtime_error("nothing to plot: no finite data");
+  if (hi - lo < 1e-12 * std::max(1.0, std::abs(hi))) { lo -= 0.5; hi += 0.5; }
+  const double pad = 0.04 * (hi - lo);
+  return {lo - pad, hi + pad};
+}
+
+// Splits a series at non-finite points so gaps stay gaps.
+template <class F>
+void for_finite_runs(const std::vector<double>& x, const std::vector<double>& y, F f) {
+  std::vector<double> rx, ry;
+  for (std::size_t k = 0; k < std::min(x.size(), y.size()); ++k) {
+    if (std::isfinite(x[k]) && std::isfinite(y[k])) { rx.push_back(x[k]); ry.push_back(y[k]); continue; }
+    if (!rx.empty()) f(rx, ry);
+    rx.clear(); ry.clear();
+  }
+  if (!rx.empty()) f(rx, ry);
+}
+
+}  // namespace
+
+void render_figure(const LinePlot& plot, const std::string& path) {
+  check_output_path(path, "figure");
+  auto [x0, x1] = plot.x_range ? std::pair{plot.log_x ? std::log10(plot.x_range->first) : plot.x_range->first,
+                                           plot.log_x ? std::log10(plot.x_range->second) : plot.x_range->second}
+                               : range_of(plot.series, false, plot.log_x);
+  auto [y0, y1] = plot.y_range ? std::pair{plot.log_y ? std::log10(plot.y_range->first) : plot.y_range->first,
+                                           plot.log_y ? std::log10(plot.y_range->second) : plot.y_range->second}
+                               : range_of(plot.series, true, plot.log_y);
+  {
+    Stream s(path);
+    plstream& p = s.pls;
+    p.adv(0);
+    p.vpor(0.1, 0.95, 0.12, 0.86);
+    p.wind(x0, x1, y0, y1);
+    p.width(1.0);
+    p.col0(kGridColour);  // light grid first, axes over it
+    p.box(plot.log_x ? "gl" : "g", 0, 0, plot.log_y ? "gl" : "g", 0, 0);
+    p.col0(1);
+    const std::string xopt = plot.log_x ? "bcnstl" : "bcnst";
+    const std::string yopt = plot.log_y ? "bcnstvl" : "bcnstv";
+    p.box(xopt.c_str(), 0, 0, yopt.c_str(), 0, 0);
+    p.lab(plot.x_label.c_str(), plot.y_label.c_str(), "");
+    p.mtex("t", plot.note.empty() ? 1.2 : 2.4, 0.5, 0.5, plot.title.c_str());
+    if (!plot.note.empty()) {
+      p.schr(0, 0.75);
+      p.mtex("t", 1.0, 0.5, 0.5, plot.note.c_str());
+      p.schr(0, 0.95);
+    }
+
+    std::vector<PLINT> opt, lcol, lsty, scol, snum;
+    std::vector<PLFLT> lwid, sscale;
+    std::vector<const char*> texts, syms;
+    int next = 0;
+    for (const auto& ser : plot.series) {
+      const int col = 2 + ((ser.color >= 0 ? ser.color : next++) % kPaletteSize);
+      const auto xs = transformed(ser.x, plot.log_x), ys = transformed(ser.y, plot.log_y);
+      p.col0(col);
+      p.width(2.0);
+      const bool line = ser.style != SeriesStyle::Points, points = ser.style == SeriesStyle::Points || ser.style == SeriesStyle::LinePoints;
+      p.lsty(ser.style == SeriesStyle::Dashed ? 2 : 1);
+      for_finite_runs(xs, ys, [&](const std::vector<double>& rx, const std::vector<double>& ry) {
+        if (line) p.line(static_cast<PLINT>(rx.size()), rx.data(), ry.data());
+        if (points) p.string(static_cast<PLINT>(rx.size()), rx.data(), ry.data(), "#(840)");
+      });
+      p.lsty(1);
+      if (!ser.label.empty()) {
+        opt.push_back((line ? PL_LEGEND_LINE : 0) | (points ? PL_LEGEND_SYMBOL : 0));
+        lcol.push_back(col); lsty.push_back(ser.style == SeriesStyle::Dashed ? 2 : 1); lwid.push_back(2.0);
+        scol.push_back(col); sscale.push_back(1.0); snum.push_back(points ? 1 : 0);
+        texts.push_back(ser.label.c_str()); syms.push_back("#(840)");
+      }
+    }
+    p.col0(1);
+    p.width(1.0);
+    for (double v : plot.vertical_lines) {
+      const double xv = plot.log_x ? std::log10(v) : v;
+      const PLFLT xx[2] = {xv, xv}, yy[2] = {y0, y1};
+      p.lsty(3);
+      p.line(2, xx, yy);
+      p.lsty(1);
+    }
+    for (const auto& m : plot.markers) {
+      const PLFLT mx = plot.log_x ? std::log10(m.x) : m.x, my = plot.log_y ? std::log10(m.y) : m.y;
+      p.col0(1);
+      p.string(1, &mx, &my, "#(841)");
+      p.schr(0, 0.8);
+      p.ptex(mx + 0.01 * (x1 - x0), my + 0.03 * (y1 - y0), 1, 0, 0, m.text.c_str());
+      p.schr(0, 0.95);
+    }
+    if (!texts.empty()) {
+      PLFLT lw, lh;
+      std::vector<PLINT> tcol(texts.size(), 1), bcol(texts.size(), 0), bpat(texts.size(), 0);
+      std::vector<PLFLT> bsc(texts.size(), 0), blw(texts.size(), 0);
+      p.legend(&lw, &lh, PL_LEGEND_BACKGROUND | PL_LEGEND_BOUNDING_BOX, PL_POSITION_TOP | PL_POSITION_RIGHT | PL_POSITION_INSIDE,
+               0.02, 0.02, 0.08, 0, 1, 1, 0, 0, static_cast<PLINT>(texts.size()), opt.data(), 1.0, 0.8, 2.0, 0.0,
+               tcol.data(), texts.data(), bcol.data(), bpat.data(), bsc.data(), blw.data(), lcol.data(), lsty.data(),
+               lwid.data(), scol.data(), sscale.data(), snum.data(), syms.data());
+    }
+  }  // plstream destructor closes the file
+  commit_temporary(temporary_path_for(path), path);
+}
+
+void render_figure(const HeatMap& map, const std::string& path) {
+  check_output_path(path, "figure");
+  const std::size_t nx = map.x.size(), ny = map.y.size();
+  if (nx == 0 || ny == 0 || map.values.size() != nx * ny) throw std::runtime_error("heat map: inconsistent sizes");
+  double zmin = std::numeric_limits<double>::infinity(), zmax = -zmin;
+  for (double v : map.values) if (std::isfinite(v)) { zmin = std::min(zmin, v); zmax = std::max(zmax, v); }
+  if (!std::isfinite(zmin)) throw std::runtime_error("heat map: no finite values");
+  if (zmax - zmin < 1e-14) zmax = zmin + 1e-14;
+  auto edges = [](const std::vector<double>& c) {
+    const double h0 = c.size() > 1 ? 0.5 * (c[1] - c[0]) : 0.5, h1 = c.size() > 1 ? 0.5 * (c.back() - c[c.size() - 2]) : 0.5;
+    return std::pair{c.front() - h0, c.back() + h1};
+  };
+  auto [x0, x1] = edges(map.x);
+  auto [y0, y1] = edges(map.y);
+  {
+    Stream s(path);
+    plstream& p = s.pls;
+    // A sequential colour map: dark blue -> yellow.
+    const PLFLT pos[3] = {0.0, 0.5, 1.0}, r[3] = {0.1, 0.2, 1.0}, g[3] = {0.1, 0.6, 0.9}, b[3] = {0.4, 0.6, 0.2};
+    p.scmap1n(256);
+    p.scmap1l(true, 3, pos, r, g, b, nullptr);
+    p.adv(0);
+    p.vpor(0.1, 0.82, 0.12, 0.88);
+    p.wind(x0, x1, y0, y1);
+    std::vector<std::vector<PLFLT>> rows(nx, std::vector<PLFLT>(ny));
+    std::vector<const PLFLT*> ptrs(nx);
+    for (std::size_t i = 0; i < nx; ++i) {
+      for (std::size_t j = 0; j < ny; ++j) rows[i][j] = map.values[i * ny + j];
+      ptrs[i] = rows[i].data();
+    }
+    p.image(ptrs.data(), static_cast<PLINT>(nx), static_cast<PLINT>(ny), x0, x1, y0, y1, zmin, zmax, x0, x1, y0, y1);
+    p.col0(1);
+    p.box("bcnst", 0, 0, "bcnstv", 0, 0);
+    p.lab(map.x_label.c_str(), map.y_label.c_str(), map.title.c_str());
+    // Colour bar as a narrow second image with its own axis.
+    p.vpor(0.86, 0.89, 0.12, 0.88);
+    p.wind(0, 1, zmin, zmax);
+    std::vector<PLFLT> bar(64);
+    for (int k = 0; k < 64; ++k) bar[static_cast<std::size_t>(k)] = zmin + (zmax - zmin) * k / 63.0;
+    const PLFLT* bp[2] = {bar.data(), bar.data()};
+    p.image(bp, 2, 64, 0, 1, zmin, zmax, zmin, zmax, 0, 1, zmin, zmax);
+    p.box("bc", 0, 0, "bcmstv", 0, 0);
+    p.mtex("r", 5.0, 0.5, 0.5, map.value_label.c_str());
+  }
+  commit_temporary(temporary_path_for(path), path);
+}
+
+}  // namespace gapwise

@@ -1,0 +1,53 @@
+#pragma once
+// Figures drawn with PLplot (SVG or PNG through its cairo devices): line plots
+// with several series, markers and log axes, and heat maps. Files are written
+// atomically (temporary name, then rename).
+//
+//   LinePlot fig;
+//   fig.title = "ground-state probability";
+//   fig.x_label = "anneal duration t_f (ns)"; fig.log_x = true;
+//   fig.series.push_back({"simulated", t, p, SeriesStyle::LinePoints});
+//   render_figure(fig, "p_vs_duration.svg");   // or .png
+#include <optional>
+#include <string>
+#include <utility>
+#include <vector>
+
+namespace gapwise {
+
+enum class SeriesStyle { Line, Points, LinePoints, Dashed };
+
+struct PlotSeries {
+  std::string label;  ///< empty: not in the legend
+  std::vector<double> x, y;
+  SeriesStyle style = SeriesStyle::Line;
+  int color = -1;  ///< palette index; -1: next in order
+};
+
+struct PlotMarker {
+  double x = 0, y = 0;
+  std::string text;
+};
+
+struct LinePlot {
+  std::string title, x_label, y_label;
+  bool log_x = false, log_y = false;
+  std::vector<PlotSeries> series;
+  std::vector<PlotMarker> markers;  ///< a cross and a text label at (x, y)
+  std::vector<double> vertical_lines;
+  std::optional<std::pair<double, double>> x_range, y_range;
+  std::string note;  ///< a line of small text under the title
+};
+
+struct HeatMap {
+  std::string title, x_label, y_label, value_label;
+  std::vector<double> x, y;  ///< cell centres, ascending
+  std::vector<double> values;  ///< x-major: values[ix * y.size() + iy]
+};
+
+/// Writes the figure; the format follows the extension (.svg or .png).
+/// Throws std::runtime_error when nothing can be drawn or written.
+void render_figure(const LinePlot& plot, const std::string& path);
+void render_figure(const HeatMap& map, const std::string& path);
+
+}  // namespace gapwise

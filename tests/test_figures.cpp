@@ -1,0 +1,59 @@
+// The figure command turns result files into non-empty, valid SVG and PNG
+// files. Validity is checked with outside references: the PNG signature of the
+// PNG specification (ISO/IEC 15948), and Python's XML parser for the SVG.
+#include <doctest/doctest.h>
+
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+
+#include "test_support.hpp"
+
+using gapwise::testing::run_gapwise;
+using gapwise::testing::source_dir;
+using gapwise::testing::TempDir;
+
+namespace gapwise::testing {
+
+/// Asserts that `path` is a non-empty PNG (signature) or a well-formed SVG document.
+inline void check_figure_file(const std::filesystem::path& path) {
+  INFO(path.string());
+  REQUIRE(std::filesystem::exists(path));
+  CHECK(std::filesystem::file_size(path) > 1000);
+  if (path.extension() == ".png") {
+    std::ifstream f(path, std::ios::binary);
+    unsigned char sig[8] = {};
+    f.read(reinterpret_cast<char*>(sig), 8);
+    const unsigned char expect[8] = {0x89, 'P', 'N', 'G', '\r', '\n', 0x1a, '\n'};
+    CHECK(std::equal(sig, sig + 8, expect));
+  } else {
+    const std::string cmd = "/usr/bin/python3 -c \"import sys, xml.etree.ElementTree as E; "
+                            "r = E.parse(sys.argv[1]).getroot(); sys.exit(0 if r.tag.endswith('svg') else 1)\" '" +
+                            path.string() + "'";
+    CHECK(std::system(cmd.c_str()) == 0);
+  }
+}
+
+}  // namespace gapwise::testing
+
+TEST_CASE("figure: an anneal result gives a valid SVG and PNG trace figure") {
+  TempDir dir;
+  const std::string h5 = (dir.path / "run.h5").string();
+  auto a = run_gapwise("anneal '" + (source_dir() / "data-samples/triangle.toml").string() + "' '" +
+                           (source_dir() / "schedules/pause.toml").string() + "' --duration-ns 5 --no-check --out '" + h5 + "'",
+                       dir);
+  REQUIRE(a.exit_code == 0);
+  auto f = run_gapwise("figure '" + h5 + "' --out-dir '" + (dir.path / "figs").string() + "'", dir);
+  INFO(f.err);
+  REQUIRE(f.exit_code == 0);
+  gapwise::testing::check_figure_file(dir.path / "figs" / "run-anneal-trace.svg");
+  gapwise::testing::check_figure_file(dir.path / "figs" / "run-anneal-trace.png");
+}
+
+TEST_CASE("figure: a file that is not a result is refused with exit code 2") {
+  TempDir dir;
+  const auto junk = dir.write("junk.h5", "not hdf5 at all");
+  auto f = run_gapwise("figure '" + junk.string() + "' --out-dir '" + (dir.path / "figs").string() + "'", dir);
+  CHECK(f.exit_code == 2);
+  CHECK(f.err.find("junk.h5") != std::string::npos);
+}
