@@ -10,6 +10,7 @@
 #include <string>
 
 #include "io/embedding_file.hpp"
+#include "test_support.hpp"
 #include "io/problem_file.hpp"
 #include "problem/embedding.hpp"
 
@@ -19,19 +20,10 @@ namespace {
 
 const std::string kHeader = "format = \"gapwise-embedding\"\nformat_version = 1\n";
 
-// Parses `text`, expects an InputError and returns it (fails the test otherwise).
-InputError parse_error(const std::string& text) {
-  try {
-    parse_embedding_text(text, "emb.toml");
-  } catch (const InputError& e) {
-    return e;
-  }
-  FAIL("expected an InputError for:\n" << text);
-  return InputError({}, "");
-}
-
 void check_error(const std::string& text, const std::string& key, int line, const std::string& words) {
-  const InputError e = parse_error(text);
+  const auto err = testing::input_error_of([&] { parse_embedding_text(text, "emb.toml"); });
+  REQUIRE_MESSAGE(err, "expected an InputError for:\n" << text);
+  const InputError& e = *err;
   INFO("message: " << e.what());
   CHECK(e.place().file == "emb.toml");
   CHECK(e.place().key == key);
@@ -146,33 +138,25 @@ TEST_CASE("chain strength and term limit errors") {
 TEST_CASE("an embedding must fit its logical problem: chain count and served couplings (Choi 2008)") {
   const IsingProblem triangle = parse_problem_text(kTriangle, "tri.toml").ising;
   // Two chains for three logical qubits.
-  {
-    const Embedding e = parse_embedding_text(kHeader + "chains = [[0, 1], [2]]\n", "emb.toml");
-    try {
-      check_embedding_serves(e, triangle, "tri.toml");
-      FAIL("expected an InputError");
-    } catch (const InputError& err) {
-      CHECK(err.place().key == "chains");
-      CHECK(std::string(err.what()).find("2 chains but the problem tri.toml has 3 logical qubits") !=
-            std::string::npos);
-    }
-  }
+  const Embedding two = parse_embedding_text(kHeader + "chains = [[0, 1], [2]]\n", "emb.toml");
+  const auto count = testing::input_error_of([&] { check_embedding_serves(two, triangle, "tri.toml"); });
+  REQUIRE(count);
+  CHECK(count->place().key == "chains");
+  CHECK(count->place().line == 3);
+  CHECK(count->problem().find("2 chains but the problem tri.toml has 3 logical qubits") != std::string::npos);
   // A six-qubit ring with chains of two: the logical coupling (0, 2) needs the
   // ring coupler 5-0; leave it out and the coupling is not served.
   const std::string chains = "chains = [[0, 1], [2, 3], [4, 5]]\n";
   const Embedding open_ring = parse_embedding_text(
       kHeader + chains + "couplers = [[0, 1], [1, 2], [2, 3], [3, 4], [4, 5]]\n", "emb.toml");
-  try {
-    check_embedding_serves(open_ring, triangle, "tri.toml");
-    FAIL("expected an InputError");
-  } catch (const InputError& err) {
-    INFO(err.what());
-    CHECK(err.place().key == "couplers");
-    CHECK(err.place().line == 4);
-    CHECK(err.problem().find("logical coupling 2 (q0, q2) of tri.toml has no physical coupler between chain 0 [0, 1] "
-                             "and chain 2 [4, 5]") != std::string::npos);
-    CHECK(err.fix().find("add a coupler") != std::string::npos);
-  }
+  const auto unserved = testing::input_error_of([&] { check_embedding_serves(open_ring, triangle, "tri.toml"); });
+  REQUIRE(unserved);
+  INFO(unserved->what());
+  CHECK(unserved->place().key == "couplers");
+  CHECK(unserved->place().line == 4);
+  CHECK(unserved->problem().find("logical coupling 2 (q0, q2) of tri.toml has no physical coupler between chain 0 "
+                                 "[0, 1] and chain 2 [4, 5]") != std::string::npos);
+  CHECK(unserved->fix().find("add a coupler") != std::string::npos);
   const Embedding ring = parse_embedding_text(
       kHeader + chains + "couplers = [[0, 1], [1, 2], [2, 3], [3, 4], [4, 5], [5, 0]]\n", "emb.toml");
   CHECK_NOTHROW(check_embedding_serves(ring, triangle, "tri.toml"));
@@ -185,13 +169,10 @@ TEST_CASE("an embedding must fit its logical problem: chain count and served cou
 TEST_CASE("a relative chain strength needs a logical term; an absolute one must be positive") {
   const IsingProblem empty(2);
   const SourcePlace where{"emb.toml", 4, 1, "chain_strength_relative"};
-  try {
-    ChainStrength::relative_to_largest(2.0).resolve(empty, where);
-    FAIL("expected an InputError");
-  } catch (const InputError& e) {
-    CHECK(e.place().line == 4);
-    CHECK(e.fix().find("absolute") != std::string::npos);
-  }
+  const auto relative = testing::input_error_of([&] { ChainStrength::relative_to_largest(2.0).resolve(empty, where); });
+  REQUIRE(relative);
+  CHECK(relative->place().line == 4);
+  CHECK(relative->fix().find("absolute") != std::string::npos);
   CHECK_THROWS_AS(ChainStrength::absolute(0.0).resolve(empty, where), InputError);
   CHECK(ChainStrength::absolute(1.25).resolve(empty, where) == 1.25);
   const IsingProblem triangle = parse_problem_text(kTriangle, "tri.toml").ising;

@@ -4,9 +4,12 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <optional>
 #include <string>
 #include <sys/wait.h>
 #include <unistd.h>
+
+#include "io/input_error.hpp"
 
 namespace gapwise::testing {
 
@@ -36,6 +39,19 @@ struct TempDir {
     return p;
   }
 };
+
+/// Runs `f`, which must throw an InputError, and returns that error; returns
+/// std::nullopt when nothing (or something else) was thrown.
+template <class F>
+std::optional<gapwise::InputError> input_error_of(F&& f) {
+  try {
+    f();
+  } catch (const gapwise::InputError& e) {
+    return e;
+  } catch (...) {
+  }
+  return std::nullopt;
+}
 
 struct CommandResult { int exit_code; std::string out; std::string err; };
 

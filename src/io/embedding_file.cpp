@@ -94,16 +94,7 @@ Embedding parse_embedding_text(std::string_view text, const std::string& name) {
   const toml::table& t = r.root();
   r.allow_keys(t, "", {"format", "format_version", "description", "physical_qubits", "chains", "couplers",
                        "chain_strength", "chain_strength_relative", "term_limit"});
-  const auto format = r.get_string(t, "format", "");
-  if (!format)
-    r.fail(&t, "format", "required key is missing", fmt::format("add `format = \"{}\"` at the top", kFormat));
-  if (*format != kFormat)
-    r.fail(t.get("format"), "format", fmt::format("this is not a gapwise embedding file (format = \"{}\")", *format),
-           fmt::format("set format = \"{}\"", kFormat));
-  const long long version = r.get_int(t, "format_version", "").value_or(1);
-  if (version != 1)
-    r.fail(t.get("format_version"), "format_version",
-           fmt::format("format_version {} is not known to this gapwise", version), "set format_version = 1");
+  r.check_format(t, kFormat, "embedding", /*required=*/true);
 
   Embedding e;
   e.source = name;

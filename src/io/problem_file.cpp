@@ -80,13 +80,7 @@ ProblemFile parse_problem_text(std::string_view text, const std::string& name) {
   const toml::table& t = r.root();
   r.allow_keys(t, "", {"format", "format_version", "kind", "qubits", "description", "labels", "offset",
                        "fields", "couplings", "terms"});
-  if (auto f = r.get_string(t, "format", ""); f && *f != kFormat)
-    r.fail(t.get("format"), "format", fmt::format("this is not a gapwise problem file (format = \"{}\")", *f),
-           fmt::format("set format = \"{}\"", kFormat));
-  const long long version = r.get_int(t, "format_version", "").value_or(1);
-  if (version != 1)
-    r.fail(t.get("format_version"), "format_version",
-           fmt::format("format_version {} is not known to this gapwise", version), "set format_version = 1");
+  r.check_format(t, kFormat, "problem", /*required=*/false);
 
   ProblemFile out;
   out.kind = r.get_string(t, "kind", "").value_or("ising");

@@ -60,13 +60,7 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
   const TomlReader r = TomlReader::from_string(text, name);
   const toml::table& root = r.root();
   r.allow_keys(root, "", {"format", "format_version", "description", "scales", "path"});
-  if (auto f = r.get_string(root, "format", ""); f && *f != kFormat)
-    r.fail(root.get("format"), "format", fmt::format("this is not a gapwise schedule file (format = \"{}\")", *f),
-           fmt::format("set format = \"{}\"", kFormat));
-  const long long version = r.get_int(root, "format_version", "").value_or(1);
-  if (version != 1)
-    r.fail(root.get("format_version"), "format_version", fmt::format("format_version {} is not known", version),
-           "set format_version = 1");
+  r.check_format(root, kFormat, "schedule", /*required=*/false);
 
   Schedule sch;
   sch.source = name;

@@ -67,6 +67,20 @@ std::string TomlReader::key_path(const std::string& prefix, std::string_view key
   return prefix.empty() ? std::string(key) : prefix + "." + std::string(key);
 }
 
+void TomlReader::check_format(const toml::table& t, std::string_view format, std::string_view what, bool required,
+                              long long version) const {
+  const auto f = get_string(t, "format", "");
+  if (!f && required)
+    fail(&t, "format", "required key is missing", fmt::format("add `format = \"{}\"` at the top", format));
+  if (f && *f != format)
+    fail(t.get("format"), "format", fmt::format("this is not a gapwise {} file (format = \"{}\")", what, *f),
+         fmt::format("set format = \"{}\"", format));
+  const long long v = get_int(t, "format_version", "").value_or(version);
+  if (v != version)
+    fail(t.get("format_version"), "format_version", fmt::format("format_version {} is not known to this gapwise", v),
+         fmt::format("set format_version = {}", version));
+}
+
 void TomlReader::allow_keys(const toml::table& table, const std::string& prefix,
                             std::initializer_list<std::string_view> allowed) const {
   for (auto&& [k, v] : table) {

@@ -36,6 +36,12 @@ class TomlReader {
   [[noreturn]] void fail(const toml::node* node, const std::string& key, const std::string& problem,
                          const std::string& fix) const;
 
+  /// The header every gapwise file shares: `format` must be `format` (required or
+  /// optional) and `format_version`, when given, must be `version`. `what` names
+  /// the kind of file in messages ("problem", "embedding").
+  void check_format(const toml::table& table, std::string_view format, std::string_view what, bool required,
+                    long long version = 1) const;
+
   /// Every key of `table` must be one of `allowed`, else InputError naming it.
   void allow_keys(const toml::table& table, const std::string& prefix,
                   std::initializer_list<std::string_view> allowed) const;
