@@ -110,7 +110,7 @@ TEST_CASE("format_problem_toml round-trips") {
   p.h = {0.1, -0.2, 0.3};
   p.couplings = {{0, 1, -1.0}, {1, 2, 0.5}};
   p.offset = 1.25;
-  p.description = "round \"trip\"";
+  p.description = "round \"trip\" \\ with\nnewline";
   const IsingProblem q = parse_problem_text(format_problem_toml(p), "rt.toml").ising;
   for (BasisIndex b = 0; b < 8; ++b) CHECK(q.energy(b) == doctest::Approx(p.energy(b)));
   CHECK(q.description == p.description);

@@ -141,7 +141,7 @@ Schedule read_schedule_file(const std::string& path) { return parse_schedule_tex
 
 std::string format_schedule_toml(const Schedule& s) {
   std::string out = fmt::format("format = \"{}\"\nformat_version = 1\n", kFormat);
-  if (!s.description.empty()) out += fmt::format("description = \"{}\"\n", s.description);
+  if (!s.description.empty()) out += "description = " + toml_quoted(s.description) + "\n";
   out += "\n[scales]\n";
   if (s.scales.is_linear_ramp()) {
     out += fmt::format("kind = \"linear\"\na_max_ghz = {:.17g}\nb_max_ghz = {:.17g}\n", s.scales.a_max_ghz(),

@@ -24,6 +24,12 @@ std::string type_name(const toml::node& n) {
 
 }  // namespace
 
+std::string toml_quoted(std::string_view text) {
+  std::ostringstream os;
+  os << toml::value<std::string>(std::string(text));  // toml++ writes a valid, escaped string literal
+  return os.str();
+}
+
 std::string read_text_file(const std::string& path) {
   std::error_code ec;
   if (std::filesystem::is_directory(path, ec))

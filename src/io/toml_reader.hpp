@@ -18,6 +18,10 @@
 
 namespace gapwise {
 
+/// A TOML basic string literal for `text`, quotes included, with escapes
+/// (for the writers of problem and schedule files).
+std::string toml_quoted(std::string_view text);
+
 /// Whole file as text; an unreadable file is an InputError naming the path.
 std::string read_text_file(const std::string& path);
 
