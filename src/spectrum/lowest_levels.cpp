@@ -1,58 +1,206 @@
 #include "spectrum/lowest_levels.hpp"
 
 #include <algorithm>
+#include <cmath>
+#include <numeric>
+#include <random>
 #include <stdexcept>
 
 #include <Spectra/SymEigsSolver.h>
 #include <fmt/format.h>
 
+#include "io/input_error.hpp"
+
 namespace gapwise {
 
-Levels lowest_levels(const TransverseIsingHamiltonian& h, double a, double b, int k, bool vectors,
-                     EigenMethod method) {
+std::string eigen_method_name(EigenMethod m) {
+  switch (m) {
+    case EigenMethod::Dense: return "dense";
+    case EigenMethod::Lanczos: return "lanczos";
+    default: return "auto";
+  }
+}
+
+namespace {
+
+using Eigen::Index;
+
+/// H + sigma V V^T: the found levels moved up by sigma, everything else untouched.
+class DeflatedOperator {
+ public:
+  using Scalar = double;
+  DeflatedOperator(const SectorOperatorAtS& op, const Eigen::MatrixXd& v, double sigma)
+      : op_(&op), v_(&v), sigma_(sigma) {}
+  long rows() const { return op_->rows(); }
+  long cols() const { return op_->cols(); }
+  void perform_op(const double* x_in, double* y_out) const {
+    op_->perform_op(x_in, y_out);
+    Eigen::Map<const Eigen::VectorXd> x(x_in, rows());
+    Eigen::Map<Eigen::VectorXd> y(y_out, rows());
+    y.noalias() += sigma_ * (*v_ * (v_->transpose() * x));
+  }
+
+ private:
+  const SectorOperatorAtS* op_;
+  const Eigen::MatrixXd* v_;
+  double sigma_;
+};
+
+struct RitzResult {
+  Eigen::VectorXd values;  // ascending
+  Eigen::MatrixXd vectors;
+  int iterations = 0;
+};
+
+/// `seed` 0: Spectra's own start vector; otherwise a pseudo-random one from that seed
+/// (every deflation round needs a fresh direction, or it sees nothing new).
+template <class Op>
+RitzResult run_lanczos(Op op, int nev, double tolerance, const std::string& where, unsigned seed = 0) {
+  const long dim = op.rows();
+  int ncv = static_cast<int>(std::min<long>(dim, std::max(2 * nev + 1, 20)));
+  for (int attempt = 0; attempt < 3; ++attempt) {
+    Spectra::SymEigsSolver<Op> eigs(op, nev, ncv);
+    if (seed == 0) {
+      eigs.init();
+    } else {
+      std::mt19937_64 rng(seed);
+      std::uniform_real_distribution<double> u(-0.5, 0.5);
+      Eigen::VectorXd start(dim);
+      for (Index i = 0; i < dim; ++i) start[i] = u(rng);
+      eigs.init(start.data());
+    }
+    eigs.compute(Spectra::SortRule::SmallestAlge, 20000, tolerance);
+    if (eigs.info() == Spectra::CompInfo::Successful) {
+      RitzResult r;
+      const Eigen::VectorXd ev = eigs.eigenvalues();
+      const Eigen::MatrixXd vec = eigs.eigenvectors();
+      std::vector<Index> order(static_cast<std::size_t>(ev.size()));
+      std::iota(order.begin(), order.end(), Index{0});
+      std::sort(order.begin(), order.end(), [&](Index x, Index y) { return ev[x] < ev[y]; });
+      r.values.resize(ev.size());
+      r.vectors.resize(vec.rows(), ev.size());
+      for (std::size_t i = 0; i < order.size(); ++i) {
+        r.values[static_cast<Index>(i)] = ev[order[i]];
+        r.vectors.col(static_cast<Index>(i)) = vec.col(order[i]);
+      }
+      r.iterations = static_cast<int>(eigs.num_iterations());
+      return r;
+    }
+    if (ncv >= dim) break;
+    ncv = static_cast<int>(std::min<long>(dim, 2L * ncv));  // clustered levels: a larger subspace helps
+  }
+  throw std::runtime_error(fmt::format("Lanczos did not converge for the lowest {} levels ({})", nev, where));
+}
+
+/// Lanczos with the deflation check: returns the lowest `k` levels and vectors.
+RitzResult lanczos_levels(const SectorOperatorAtS& op, int k, double tolerance, bool check, int& added,
+                          const std::string& where) {
+  RitzResult r = run_lanczos(op, k, tolerance, where);
+  added = 0;
+  if (!check) return r;
+  const long dim = op.rows();
+  for (int round = 0; round < k && r.values.size() < dim; ++round) {
+    const double top = r.values[r.values.size() - 1];
+    const double spread = top - r.values[0];
+    const double sigma = 2.0 * spread + 1.0 + 1e-3 * std::abs(top);
+    if (r.vectors.cols() + 2 > dim) break;  // nothing left that Lanczos could explore
+    DeflatedOperator dop(op, r.vectors, sigma);
+    RitzResult extra = run_lanczos(dop, 1, tolerance, where + ", deflation check", 1000u + static_cast<unsigned>(round));
+    const double e = extra.values[0];
+    const double resolution = 10.0 * tolerance * std::max(1.0, std::abs(top));
+    if (!(e < top - resolution)) break;  // no level hidden below the highest one found
+    // A missed level: merge it, keep the k lowest.
+    ++added;
+    const Index m = r.values.size();
+    Eigen::VectorXd vals(m + 1);
+    Eigen::MatrixXd vecs(r.vectors.rows(), m + 1);
+    Index pos = 0;
+    while (pos < m && r.values[pos] <= e) ++pos;
+    vals << r.values.head(pos), e, r.values.tail(m - pos);
+    vecs << r.vectors.leftCols(pos), extra.vectors.col(0), r.vectors.rightCols(m - pos);
+    r.values = vals.head(k);
+    r.vectors = vecs.leftCols(k);
+  }
+  return r;
+}
+
+}  // namespace
+
+Levels lowest_levels(const SectorHamiltonian& h, double a, double b, const LevelOptions& opt) {
   const std::size_t dim = h.dim();
-  k = std::min<int>(k, static_cast<int>(dim));
+  const int k = std::max(1, std::min<int>(opt.levels, static_cast<int>(std::min<std::size_t>(dim, 1u << 30))));
+  EigenMethod method = opt.method;
   if (method == EigenMethod::Auto) method = dim <= kDenseMaxDim ? EigenMethod::Dense : EigenMethod::Lanczos;
   if (method == EigenMethod::Lanczos && static_cast<std::size_t>(k) + 2 > dim) method = EigenMethod::Dense;
+  if (method == EigenMethod::Dense && dim > kDenseHardMaxDim)
+    throw InputError({"solver", 0, 0, "solver"},
+                     fmt::format("the dense solver would need a {0} x {0} matrix ({1:.1f} GiB)", dim,
+                                 8.0 * double(dim) * double(dim) / (1024.0 * 1024.0 * 1024.0)),
+                     fmt::format("use the Lanczos solver (the automatic choice) above dimension {}", kDenseHardMaxDim));
   Levels out;
   out.method_used = method;
+  const Index n = static_cast<Index>(dim);
+  const SectorOperatorAtS op(h, a, b);
+
+  if (a == 0.0) {
+    // Purely classical point: the levels are the sorted diagonal, basis vectors exact.
+    const auto& d = h.diagonal();
+    std::vector<Index> order(dim);
+    std::iota(order.begin(), order.end(), Index{0});
+    std::partial_sort(order.begin(), order.begin() + k, order.end(), [&](Index x, Index y) {
+      return d[static_cast<std::size_t>(x)] < d[static_cast<std::size_t>(y)] ||
+             (d[static_cast<std::size_t>(x)] == d[static_cast<std::size_t>(y)] && x < y);
+    });
+    if (opt.vectors) out.vectors = Eigen::MatrixXd::Zero(n, k);
+    for (int i = 0; i < k; ++i) {
+      out.energies_ghz.push_back(0.5 * b * d[static_cast<std::size_t>(order[static_cast<std::size_t>(i)])]);
+      if (opt.vectors) {
+        out.vectors(order[static_cast<std::size_t>(i)], i) = 1.0;
+        out.residuals_ghz.push_back(0.0);
+      }
+    }
+    return out;
+  }
+
   if (method == EigenMethod::Dense) {
-    const Eigen::Index n = static_cast<Eigen::Index>(dim);
     Eigen::MatrixXd m(n, n);
     Eigen::VectorXd e(n), col(n);
-    for (Eigen::Index j = 0; j < n; ++j) {
+    for (Index j = 0; j < n; ++j) {
       e.setZero();
       e[j] = 1.0;
       h.apply(a, b, e.data(), col.data());
       m.col(j) = col;
     }
-    Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(m, vectors ? Eigen::ComputeEigenvectors : Eigen::EigenvaluesOnly);
+    Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(m, opt.vectors ? Eigen::ComputeEigenvectors
+                                                                      : Eigen::EigenvaluesOnly);
     if (es.info() != Eigen::Success) throw std::runtime_error("dense eigensolver failed");
     for (int i = 0; i < k; ++i) out.energies_ghz.push_back(es.eigenvalues()[i]);
-    if (vectors) out.vectors = es.eigenvectors().leftCols(k);
-    return out;
+    if (opt.vectors) out.vectors = es.eigenvectors().leftCols(k);
+  } else {
+    const std::string where = fmt::format("{}, A = {} GHz, B = {} GHz", describe_sector(h.sector()), a, b);
+    RitzResult r = lanczos_levels(op, k, opt.tolerance, opt.check_missed_levels, out.missed_levels_found, where);
+    out.iterations = r.iterations;
+    for (Index i = 0; i < r.values.size(); ++i) out.energies_ghz.push_back(r.values[i]);
+    if (opt.vectors) out.vectors = std::move(r.vectors);
   }
-  HamiltonianAtS op(h, a, b);
-  const int ncv = static_cast<int>(std::min<std::size_t>(dim, static_cast<std::size_t>(std::max(2 * k + 1, 20))));
-  Spectra::SymEigsSolver<HamiltonianAtS> eigs(op, k, ncv);
-  eigs.init();
-  eigs.compute(Spectra::SortRule::SmallestAlge, 10000, 1e-12);
-  if (eigs.info() != Spectra::CompInfo::Successful)
-    throw std::runtime_error(fmt::format("Lanczos did not converge for the lowest {} levels (A = {} GHz, B = {} GHz)",
-                                         k, a, b));
-  out.iterations = static_cast<int>(eigs.num_iterations());
-  Eigen::VectorXd ev = eigs.eigenvalues();  // descending for SmallestAlge? sort below
-  std::vector<int> order(static_cast<std::size_t>(ev.size()));
-  for (int i = 0; i < ev.size(); ++i) order[static_cast<std::size_t>(i)] = i;
-  std::sort(order.begin(), order.end(), [&](int x, int y) { return ev[x] < ev[y]; });
-  Eigen::MatrixXd vec;
-  if (vectors) vec = eigs.eigenvectors();
-  if (vectors) out.vectors.resize(vec.rows(), ev.size());
-  for (std::size_t i = 0; i < order.size(); ++i) {
-    out.energies_ghz.push_back(ev[order[i]]);
-    if (vectors) out.vectors.col(static_cast<Eigen::Index>(i)) = vec.col(order[i]);
+  if (opt.vectors) {
+    Eigen::VectorXd hv(n);
+    for (int i = 0; i < k; ++i) {
+      op.perform_op(out.vectors.col(i).data(), hv.data());
+      out.residuals_ghz.push_back((hv - out.energies_ghz[static_cast<std::size_t>(i)] * out.vectors.col(i)).norm());
+    }
   }
   return out;
+}
+
+Levels lowest_levels(const TransverseIsingHamiltonian& h, double a, double b, int k, bool vectors,
+                     EigenMethod method) {
+  const SectorHamiltonian full(h, SpinFlipSector::Full);
+  LevelOptions o;
+  o.levels = k;
+  o.vectors = vectors;
+  o.method = method;
+  return lowest_levels(full, a, b, o);
 }
 
 }  // namespace gapwise

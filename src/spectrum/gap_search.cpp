@@ -1,0 +1,509 @@
+#include "spectrum/gap_search.hpp"
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <limits>
+#include <numbers>
+
+#include <boost/math/tools/minima.hpp>
+#include <fmt/format.h>
+
+#include "hamiltonian/memory_budget.hpp"
+#include "io/input_error.hpp"
+
+namespace gapwise {
+
+namespace {
+
+using Eigen::Index;
+
+/// Levels closer than this count as degenerate (for matrix elements and flags).
+double degeneracy_tolerance(const std::vector<double>& e, double error_bound) {
+  double scale = 1.0;
+  for (double x : e) scale = std::max(scale, std::abs(x));
+  return std::max(1e-9 * scale, 10.0 * error_bound);
+}
+
+/// Norm of <j|w> over the levels j degenerate with `level` (excluding level 0).
+double subspace_element(const std::vector<double>& e, const Eigen::VectorXd& elements, int level, double tol) {
+  double sum = 0.0;
+  for (int j = 1; j < static_cast<int>(e.size()); ++j)
+    if (std::abs(e[static_cast<std::size_t>(j)] - e[static_cast<std::size_t>(level)]) <= tol)
+      sum += elements[j] * elements[j];
+  return std::sqrt(sum);
+}
+
+}  // namespace
+
+SpectrumPoint spectrum_at(const SectorHamiltonian& h, const EnergyScales& scales, double s, int levels, int g,
+                          const LevelOptions& base) {
+  SpectrumPoint p;
+  p.s = s;
+  p.a_ghz = scales.a_ghz(s);
+  p.b_ghz = scales.b_ghz(s);
+  LevelOptions lo = base;
+  lo.levels = levels;
+  lo.vectors = true;
+  const Levels lv = lowest_levels(h, p.a_ghz, p.b_ghz, lo);
+  p.energies_ghz = lv.energies_ghz;
+  const int k = static_cast<int>(p.energies_ghz.size());
+  const double da = scales.da_ds(s), db = scales.db_ds(s);
+  const Index n = static_cast<Index>(h.dim());
+  Eigen::MatrixXd dv(n, k);
+  for (int j = 0; j < k; ++j) h.apply(da, db, lv.vectors.col(j).data(), dv.col(j).data());
+  p.slopes_ghz.resize(static_cast<std::size_t>(k));
+  for (int j = 0; j < k; ++j) p.slopes_ghz[static_cast<std::size_t>(j)] = lv.vectors.col(j).dot(dv.col(j));
+  const Eigen::VectorXd elements = lv.vectors.transpose() * dv.col(0);  // <j| dH/ds |0>
+  const int gi = std::min(g, k - 1);
+  p.error_bound_ghz = lv.residuals_ghz[0] + lv.residuals_ghz[static_cast<std::size_t>(gi)];
+  const double tol = degeneracy_tolerance(p.energies_ghz, p.error_bound_ghz);
+  p.gap_ghz = p.energies_ghz[static_cast<std::size_t>(gi)] - p.energies_ghz[0];
+  p.gap_10_ghz = k > 1 ? p.energies_ghz[1] - p.energies_ghz[0] : 0.0;
+  p.matrix_element_ghz = gi > 0 ? subspace_element(p.energies_ghz, elements, gi, tol) : 0.0;
+  p.matrix_element_10_ghz = k > 1 ? subspace_element(p.energies_ghz, elements, 1, tol) : 0.0;
+  return p;
+}
+
+std::string gap_definition(int g) {
+  if (g <= 1) return "E_1 - E_0 (ground level to first excited level; the final ground state is unique in the sector)";
+  return fmt::format(
+      "E_{0} - E_0 (ground level to the lowest level that does not end in the {0}-fold degenerate ground manifold; "
+      "levels 0..{1} all end there)",
+      g, g - 1);
+}
+
+SpinFlipSector default_sector(const IsingProblem& problem) {
+  return problem.has_fields() || problem.qubits < 1 ? SpinFlipSector::Full : SpinFlipSector::Even;
+}
+
+double estimate_gap_search_bytes(int qubits, SpinFlipSector sector, int levels, EigenMethod method) {
+  const double full = std::ldexp(1.0, qubits);
+  const double dim = sector == SpinFlipSector::Full ? full : full / 2.0;
+  double bytes = 8.0 * full + (sector == SpinFlipSector::Full ? 0.0 : 8.0 * dim);  // diagonals
+  const bool dense = method == EigenMethod::Dense || (method == EigenMethod::Auto && dim <= double(kDenseMaxDim));
+  if (dense) return bytes + 8.0 * dim * dim * 2.0 + 8.0 * dim * (4.0 * levels + 8.0);
+  const double ncv = std::max(2.0 * levels + 1.0, 20.0);
+  // Main Lanczos basis, the deflation check's basis, Ritz vectors, d H/ds images, work vectors.
+  return bytes + 8.0 * dim * (2.0 * ncv + 4.0 * levels + 12.0);
+}
+
+void check_gap_search_size(int qubits, SpinFlipSector sector, int levels, EigenMethod method, const std::string& what) {
+  const double need = estimate_gap_search_bytes(qubits, sector, levels, method);
+  if (qubits > kMaxSpectrumQubits)
+    throw InputError({what, 0, 0, "qubits"},
+                     fmt::format("{} qubits: the spectrum search works on at most {} qubits (it would need about {} "
+                                 "and many hours on 2^{} amplitudes)",
+                                 qubits, kMaxSpectrumQubits, human_bytes(need), qubits),
+                     fmt::format("use a problem with at most {} qubits", kMaxSpectrumQubits));
+  const double have = available_bytes();
+  if (have > 0 && need > 0.9 * have)
+    throw InputError({what, 0, 0, "qubits"},
+                     fmt::format("the spectrum search on {} qubits needs about {} but only {} is available", qubits,
+                                 human_bytes(need), human_bytes(have)),
+                     "use fewer qubits, fewer levels, or a machine with more memory");
+}
+
+namespace {
+
+class GapSearch {
+ public:
+  GapSearch(const TransverseIsingHamiltonian& h, const EnergyScales& scales, const GapSearchOptions& o)
+      : full_(h), scales_(scales), o_(o), sector_(o.sector.value_or(default_sector(h.problem()))),
+        sh_(h, sector_) {}
+
+  MinimumGapReport run() {
+    const auto t0 = std::chrono::steady_clock::now();
+    setup();
+    coarse_scan();
+    subdivide();
+    refine();
+    summarize();
+    if (o_.other_sector && sector_ != SpinFlipSector::Full) other_sector_levels();
+    final_levels();
+    r_.wall_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+    return std::move(r_);
+  }
+
+ private:
+  const TransverseIsingHamiltonian& full_;
+  const EnergyScales& scales_;
+  const GapSearchOptions& o_;
+  SpinFlipSector sector_;
+  SectorHamiltonian sh_;
+  MinimumGapReport r_;
+  GroundManifold gm_;
+  LevelOptions lo_;
+  int g_ = 1, k_ = 4;
+  std::size_t evaluations_ = 0, planned_ = 0;
+  const char* stage_ = "";
+
+  void setup() {
+    const IsingProblem& p = full_.problem();
+    r_.sector = sector_;
+    r_.s_first = o_.s_first.value_or(scales_.s_first());
+    r_.s_last = o_.s_last.value_or(scales_.s_last());
+    if (!(r_.s_first < r_.s_last) || r_.s_first < scales_.s_first() - 1e-12 || r_.s_last > scales_.s_last() + 1e-12)
+      throw InputError({"s range", 0, 0, "s range"},
+                       fmt::format("the s range [{}, {}] is empty or leaves the range [{}, {}] the energy scales cover",
+                                   r_.s_first, r_.s_last, scales_.s_first(), scales_.s_last()),
+                       "give s_first < s_last inside the schedule's table");
+    if (o_.coarse_points < 3)
+      throw InputError({"points", 0, 0, "points"}, fmt::format("{} coarse points are too few", o_.coarse_points),
+                       "use at least 3 (the default 101 suits most problems)");
+    if (!(o_.s_tolerance > 0.0 && o_.s_tolerance < 0.1))
+      throw InputError({"s tolerance", 0, 0, "s-tolerance"},
+                       fmt::format("s tolerance {} is out of range", o_.s_tolerance), "use a value in (0, 0.1), e.g. 1e-6");
+    gm_ = find_ground_manifold(p, full_.diagonal());
+    r_.classical_ground_states = gm_.degeneracy();
+    g_ = 0;
+    for (BasisIndex b : gm_.states)
+      if (b < sh_.dim()) ++g_;  // one representative per pair in a sector
+    if (static_cast<std::size_t>(g_) >= sh_.dim())
+      throw InputError({"problem", 0, 0, "problem"},
+                       fmt::format("all {} basis states of the {} are classical ground states: there is no level "
+                                   "outside the ground manifold, so no gap to find",
+                                   sh_.dim(), describe_sector(sector_)),
+                       "add couplings or fields that single out a ground state");
+    if (g_ + 1 > 128)
+      throw InputError({"problem", 0, 0, "problem"},
+                       fmt::format("the ground manifold holds {} states in the {}; following {} levels is beyond this "
+                                   "search", g_, describe_sector(sector_), g_ + 1),
+                       "lift the degeneracy with small fields or couplings");
+    r_.ground_degeneracy = g_;
+    k_ = std::max(o_.levels, g_ + 1);
+    k_ = static_cast<int>(std::min<std::size_t>(static_cast<std::size_t>(k_), sh_.dim()));
+    r_.levels = k_;
+    if (k_ > o_.levels)
+      r_.flags.push_back(fmt::format("levels raised from {} to {} so that the first level outside the {}-fold ground "
+                                     "manifold is followed",
+                                     o_.levels, k_, g_));
+    r_.definition = gap_definition(g_);
+    lo_.method = o_.method;
+    lo_.check_missed_levels = o_.check_missed_levels;
+    lo_.tolerance = o_.lanczos_tolerance;
+    EigenMethod m = o_.method;
+    if (m == EigenMethod::Auto) m = sh_.dim() <= kDenseMaxDim ? EigenMethod::Dense : EigenMethod::Lanczos;
+    if (m == EigenMethod::Lanczos && static_cast<std::size_t>(k_) + 2 > sh_.dim()) m = EigenMethod::Dense;
+    r_.method = m;
+  }
+
+  SpectrumPoint evaluate(double s, int origin) {
+    SpectrumPoint p = spectrum_at(sh_, scales_, s, k_, g_, lo_);
+    p.origin = origin;
+    ++evaluations_;
+    planned_ = std::max(planned_, evaluations_);
+    if (o_.progress) o_.progress(GapSearchProgress{evaluations_, planned_, s, stage_});
+    return p;
+  }
+
+  void insert(SpectrumPoint p) {
+    auto it = std::lower_bound(r_.curve.begin(), r_.curve.end(), p.s,
+                               [](const SpectrumPoint& a, double s) { return a.s < s; });
+    r_.curve.insert(it, std::move(p));
+  }
+
+  void coarse_scan() {
+    stage_ = "coarse scan";
+    planned_ = static_cast<std::size_t>(o_.coarse_points);
+    const int n = o_.coarse_points;
+    for (int i = 0; i < n; ++i) {
+      const double s = i == n - 1 ? r_.s_last : r_.s_first + (r_.s_last - r_.s_first) * i / (n - 1);
+      r_.curve.push_back(evaluate(s, 0));
+    }
+  }
+
+  /// Does a level bend sharply inside [a, b] compared with the local gap?
+  bool needs_split(const SpectrumPoint& a, const SpectrumPoint& b) const {
+    const double h = b.s - a.s;
+    if (h <= std::max(o_.s_tolerance, 1e-12 * std::max(1.0, std::abs(b.s)))) return false;
+    const double local = std::min(a.gap_ghz, b.gap_ghz);
+    const std::size_t gi = static_cast<std::size_t>(std::min(g_, k_ - 1));
+    double bend = 0.0;
+    for (std::size_t j : {std::size_t{0}, gi})
+      bend = std::max(bend, std::abs(b.slopes_ghz[j] - a.slopes_ghz[j]) * h);
+    // The gap itself: the change of its slope across the interval.
+    const double gap_bend = std::abs((b.slopes_ghz[gi] - b.slopes_ghz[0]) - (a.slopes_ghz[gi] - a.slopes_ghz[0])) * h;
+    bend = std::max(bend, gap_bend);
+    return bend > o_.bend_threshold * std::max(local, 0.0) && local > 0.0;
+  }
+
+  void subdivide() {
+    stage_ = "subdivision";
+    for (int pass = 0; pass < 60; ++pass) {
+      std::vector<double> mids;
+      for (std::size_t i = 0; i + 1 < r_.curve.size(); ++i)
+        if (needs_split(r_.curve[i], r_.curve[i + 1])) mids.push_back(0.5 * (r_.curve[i].s + r_.curve[i + 1].s));
+      if (mids.empty()) return;
+      const std::size_t room =
+          static_cast<std::size_t>(std::max(0, o_.max_points - 40)) > r_.curve.size()
+              ? static_cast<std::size_t>(o_.max_points - 40) - r_.curve.size()
+              : 0;
+      bool truncated = false;
+      if (mids.size() > room) {
+        // Keep the splits nearest the smallest gaps.
+        std::sort(mids.begin(), mids.end(), [&](double x, double y) { return gap_near(x) < gap_near(y); });
+        mids.resize(room);
+        std::sort(mids.begin(), mids.end());
+        truncated = true;
+      }
+      planned_ = evaluations_ + mids.size();
+      for (double s : mids) insert(evaluate(s, 1));
+      if (truncated) {
+        r_.flags.push_back(fmt::format("the point budget ({}) ran out during subdivision: some intervals where levels "
+                                       "bend sharply were not resolved; raise the point budget",
+                                       o_.max_points));
+        return;
+      }
+    }
+  }
+
+  double gap_near(double s) const {
+    auto it = std::lower_bound(r_.curve.begin(), r_.curve.end(), s,
+                               [](const SpectrumPoint& a, double x) { return a.s < x; });
+    if (it == r_.curve.end()) return r_.curve.back().gap_ghz;
+    if (it == r_.curve.begin()) return it->gap_ghz;
+    return std::min(it->gap_ghz, std::prev(it)->gap_ghz);
+  }
+
+  /// Brent on [lo, hi] around grid point `i`; returns the refined minimum.
+  GapMinimum refine_at(std::size_t i) {
+    const double lo = r_.curve[i - 1].s, hi = r_.curve[i + 1].s;
+    const double tol = o_.s_tolerance / 2.5;
+    const int bits = std::clamp(static_cast<int>(std::ceil(1.0 - std::log2(tol))), 8,
+                                std::numeric_limits<double>::digits / 2);
+    const double used_tol = std::ldexp(1.0, 1 - bits);
+    std::vector<SpectrumPoint> seen;
+    auto f = [&](double s) {
+      SpectrumPoint p = evaluate(s, 2);
+      const double gap = p.gap_ghz;
+      seen.push_back(std::move(p));
+      return gap;
+    };
+    boost::uintmax_t iters = 200;
+    planned_ = evaluations_ + 30;
+    const auto [s_min, gap_min] = boost::math::tools::brent_find_minima(f, lo, hi, bits, iters);
+    (void)gap_min;
+    GapMinimum m;
+    m.s = s_min;
+    const double brent_unc = 2.0 * used_tol * std::abs(s_min) + used_tol / 2.0;
+    // The point at s*, and two neighbours for the curvature.
+    const SpectrumPoint* at = nullptr;
+    for (const auto& p : seen)
+      if (p.s == s_min) at = &p;
+    SpectrumPoint mid = at ? *at : evaluate(s_min, 2);
+    if (!at) seen.push_back(mid);
+    const double h_local = std::min(s_min - lo, hi - s_min);
+    const double delta = std::max({h_local / 8.0, 10.0 * brent_unc, 1e-9});
+    double curvature = 0.0;
+    if (s_min - delta > r_.s_first && s_min + delta < r_.s_last) {
+      const SpectrumPoint left = evaluate(s_min - delta, 2), right = evaluate(s_min + delta, 2);
+      curvature = (left.gap_ghz + right.gap_ghz - 2.0 * mid.gap_ghz) / (delta * delta);
+      seen.push_back(left);
+      seen.push_back(right);
+    }
+    m.gap_ghz = mid.gap_ghz;
+    m.curvature_ghz = curvature;
+    const double eig_err = mid.error_bound_ghz + 4.0 * std::numeric_limits<double>::epsilon() *
+                                                     std::max(1.0, std::abs(mid.energies_ghz[0]));
+    const double noise_unc = curvature > 0.0 ? std::sqrt(2.0 * eig_err / curvature) : 0.0;
+    m.s_uncertainty = brent_unc + noise_unc;
+    m.gap_uncertainty_ghz = eig_err + (curvature > 0.0 ? 0.5 * curvature * m.s_uncertainty * m.s_uncertainty : 0.0);
+    // Anything seen lower than the Brent answer (within the error) means the bracket was not unimodal.
+    for (const auto& p : seen)
+      if (p.gap_ghz < m.gap_ghz - eig_err) {
+        m.s = p.s;
+        m.gap_ghz = p.gap_ghz;
+      }
+    for (auto& p : seen) insert(std::move(p));
+    return m;
+  }
+
+  void refine() {
+    stage_ = "refinement";
+    // Local minima of the governing gap on the scanned curve.
+    std::vector<std::size_t> cand;
+    const auto& c = r_.curve;
+    for (std::size_t i = 1; i + 1 < c.size(); ++i)
+      if (c[i].gap_ghz <= c[i - 1].gap_ghz && c[i].gap_ghz <= c[i + 1].gap_ghz &&
+          (c[i].gap_ghz < c[i - 1].gap_ghz || c[i].gap_ghz < c[i + 1].gap_ghz))
+        cand.push_back(i);
+    double grid_min = std::numeric_limits<double>::infinity();
+    for (const auto& p : c) grid_min = std::min(grid_min, p.gap_ghz);
+    // Refine the deepest minima (at most 6; each costs about 20 eigenproblems).
+    std::sort(cand.begin(), cand.end(), [&](std::size_t x, std::size_t y) { return c[x].gap_ghz < c[y].gap_ghz; });
+    if (cand.size() > 6) {
+      r_.flags.push_back(fmt::format("{} local minima of the gap along s; the 6 deepest were refined", cand.size()));
+      cand.resize(6);
+    }
+    std::vector<double> cand_s;
+    for (std::size_t i : cand) cand_s.push_back(c[i].s);
+    for (double s : cand_s) {
+      // Indices move as points are inserted: look the point up again.
+      std::size_t i = 0;
+      while (r_.curve[i].s != s) ++i;
+      r_.minima.push_back(refine_at(i));
+    }
+    // End points count when the gap is smallest there.
+    auto end_min = [&](const SpectrumPoint& p) {
+      GapMinimum m;
+      m.s = p.s;
+      m.gap_ghz = p.gap_ghz;
+      m.gap_uncertainty_ghz = p.error_bound_ghz;
+      m.at_end_point = true;
+      return m;
+    };
+    if (r_.curve.front().gap_ghz < r_.curve[1].gap_ghz) r_.minima.push_back(end_min(r_.curve.front()));
+    if (r_.curve.back().gap_ghz < r_.curve[r_.curve.size() - 2].gap_ghz) r_.minima.push_back(end_min(r_.curve.back()));
+    std::sort(r_.minima.begin(), r_.minima.end(), [](const GapMinimum& x, const GapMinimum& y) { return x.s < y.s; });
+  }
+
+  void summarize() {
+    const auto best = std::min_element(r_.minima.begin(), r_.minima.end(), [](const GapMinimum& x, const GapMinimum& y) {
+      return x.gap_ghz < y.gap_ghz;
+    });
+    const SpectrumPoint* pmin = &*std::min_element(
+        r_.curve.begin(), r_.curve.end(), [](const SpectrumPoint& x, const SpectrumPoint& y) { return x.gap_ghz < y.gap_ghz; });
+    if (best != r_.minima.end() && best->gap_ghz <= pmin->gap_ghz + best->gap_uncertainty_ghz) {
+      r_.s_star = best->s;
+      r_.s_star_uncertainty = best->s_uncertainty;
+      r_.gap_ghz = best->gap_ghz;
+      r_.gap_uncertainty_ghz = best->gap_uncertainty_ghz;
+      r_.at_end_point = best->at_end_point;
+    } else {  // flat or monotone without a strict minimum: the smallest sample
+      r_.s_star = pmin->s;
+      r_.gap_ghz = pmin->gap_ghz;
+      r_.gap_uncertainty_ghz = pmin->error_bound_ghz;
+      r_.at_end_point = pmin == &r_.curve.front() || pmin == &r_.curve.back();
+    }
+    // Matrix element at s* (from the sample there).
+    for (const auto& p : r_.curve)
+      if (std::abs(p.s - r_.s_star) <= 1e-15) r_.matrix_element_ghz = p.matrix_element_ghz;
+    if (r_.at_end_point)
+      r_.flags.push_back(fmt::format("the smallest gap lies at the end point s = {} (no interior minimum is smaller)",
+                                     r_.s_star));
+    // Adiabatic time scale for s = t / t_f.
+    const double two_pi = 2.0 * std::numbers::pi;
+    double mmax = 0.0;
+    for (const auto& p : r_.curve) {
+      mmax = std::max(mmax, p.matrix_element_ghz);
+      if (p.gap_ghz > 0.0) {
+        const double t = p.matrix_element_ghz / (two_pi * p.gap_ghz * p.gap_ghz);
+        if (t > r_.adiabatic_time_ns) {
+          r_.adiabatic_time_ns = t;
+          r_.adiabatic_time_s = p.s;
+        }
+      }
+    }
+    if (r_.gap_ghz > 0.0) r_.adiabatic_time_crude_ns = mmax / (two_pi * r_.gap_ghz * r_.gap_ghz);
+    // E_1 - E_0, labelled.
+    const auto& c = r_.curve;
+    r_.gap_10_end_ghz = c.back().gap_10_ghz;
+    for (std::size_t i = 1; i + 1 < c.size(); ++i)
+      if (c[i].gap_10_ghz <= c[i - 1].gap_10_ghz && c[i].gap_10_ghz <= c[i + 1].gap_10_ghz &&
+          (!r_.gap_10_interior_minimum || c[i].gap_10_ghz < r_.gap_10_interior_minimum->gap_ghz)) {
+        GapMinimum m;
+        m.s = c[i].s;
+        m.s_uncertainty = 0.5 * (c[i + 1].s - c[i - 1].s);
+        m.gap_ghz = c[i].gap_10_ghz;
+        m.gap_uncertainty_ghz = c[i].error_bound_ghz;
+        r_.gap_10_interior_minimum = m;
+      }
+    if (g_ >= 2)
+      r_.flags.push_back(fmt::format("E_1 - E_0 closes to {:.3g} GHz at s = {} because the ground manifold is {}-fold "
+                                     "degenerate in the {}; that closing does not cost success",
+                                     r_.gap_10_end_ghz, c.back().s, g_, describe_sector(sector_)));
+    flag_close_levels();
+  }
+
+  /// Interior near-degeneracies and crossings among the followed levels.
+  void flag_close_levels() {
+    const auto& c = r_.curve;
+    double scale = 0.0;
+    for (const auto& p : c) scale = std::max({scale, std::abs(p.a_ghz), std::abs(p.b_ghz)});
+    const double near = 1e-3 * std::max(scale, 1e-9);
+    int reported = 0;
+    for (int j = 0; j + 1 < k_ && reported < 8; ++j) {
+      for (std::size_t i = 1; i + 1 < c.size() && reported < 8; ++i) {
+        auto sp = [&](std::size_t q) {
+          return c[q].energies_ghz[static_cast<std::size_t>(j + 1)] - c[q].energies_ghz[static_cast<std::size_t>(j)];
+        };
+        const double d = sp(i);
+        if (!(d <= sp(i - 1) && d <= sp(i + 1) && d < near)) continue;
+        const double tol = degeneracy_tolerance(c[i].energies_ghz, c[i].error_bound_ghz);
+        r_.flags.push_back(fmt::format("levels {} and {} {} at s = {:.6f} (spacing {:.3g} GHz){}", j, j + 1,
+                                       d <= tol ? "touch (crossing or exact degeneracy)" : "come close", c[i].s, d,
+                                       j + 1 <= g_ ? " - this enters the governing gap" : ""));
+        ++reported;
+        // Skip the rest of this dip.
+        while (i + 1 < c.size() && sp(i + 1) < near) ++i;
+      }
+    }
+  }
+
+  void other_sector_levels() {
+    const SpinFlipSector other = sector_ == SpinFlipSector::Even ? SpinFlipSector::Odd : SpinFlipSector::Even;
+    const SectorHamiltonian oh(full_, other);
+    stage_ = "other sector";
+    planned_ = evaluations_ + r_.curve.size();
+    LevelOptions lo = lo_;
+    lo.levels = k_;
+    lo.vectors = false;
+    for (auto& p : r_.curve) {
+      p.other_energies_ghz = lowest_levels(oh, p.a_ghz, p.b_ghz, lo).energies_ghz;
+      ++evaluations_;
+      if (o_.progress) o_.progress(GapSearchProgress{evaluations_, planned_, p.s, stage_});
+    }
+  }
+
+  void final_levels() {
+    LevelOptions lo = lo_;
+    lo.levels = k_;
+    lo.vectors = true;
+    const double s = r_.s_last;
+    const Levels lv = lowest_levels(sh_, scales_.a_ghz(s), scales_.b_ghz(s), lo);
+    const IsingProblem& p = full_.problem();
+    const double amp_scale = sector_ == SpinFlipSector::Full ? 1.0 : 0.5;  // weight splits over the pair
+    for (int j = 0; j < static_cast<int>(lv.energies_ghz.size()); ++j) {
+      FinalLevel fl;
+      fl.level = j;
+      fl.energy_ghz = lv.energies_ghz[static_cast<std::size_t>(j)];
+      std::vector<std::pair<double, std::size_t>> w;
+      const auto col = lv.vectors.col(j);
+      for (Index i = 0; i < col.size(); ++i)
+        if (col[i] * col[i] >= 1e-3) w.push_back({col[i] * col[i], static_cast<std::size_t>(i)});
+      std::sort(w.begin(), w.end(), [](auto& x, auto& y) { return x.first > y.first || (x.first == y.first && x.second < y.second); });
+      if (w.size() > 4) w.resize(4);
+      for (const auto& [weight, idx] : w) {
+        fl.states.push_back(sh_.representative(idx));
+        fl.weights.push_back(weight * amp_scale);
+        if (sector_ != SpinFlipSector::Full) {
+          fl.states.push_back(sh_.partner(idx));
+          fl.weights.push_back(weight * amp_scale);
+        }
+      }
+      if (!fl.states.empty()) {
+        fl.problem_energy = p.energy(fl.states.front());
+        fl.in_ground_manifold = gm_.contains(fl.states.front());
+      }
+      r_.final_levels.push_back(std::move(fl));
+    }
+    if (scales_.a_ghz(s) > 0.0)
+      r_.flags.push_back(fmt::format("at the last s = {} the transverse scale A = {:.3g} GHz is not zero: the final "
+                                     "levels are close to, not exactly, classical states",
+                                     s, scales_.a_ghz(s)));
+    r_.missed_levels_found = 0;
+  }
+};
+
+}  // namespace
+
+MinimumGapReport find_minimum_gap(const TransverseIsingHamiltonian& h, const EnergyScales& scales,
+                                  const GapSearchOptions& options) {
+  const SpinFlipSector sector = options.sector.value_or(default_sector(h.problem()));
+  check_gap_search_size(h.qubits(), sector, std::max(options.levels, 1), options.method, "problem");
+  GapSearch search(h, scales, options);
+  return search.run();
+}
+
+}  // namespace gapwise

@@ -1,0 +1,163 @@
+#pragma once
+// The instantaneous spectrum of H(s) along s and its minimum gap, located
+// precisely and reported with its definition and uncertainty.
+//
+//   H(s) = -(A(s)/2) sum_i sigma^x_i + (B(s)/2) D      (GHz)
+//
+// Sector: with every field zero the global spin flip commutes with H(s) and the
+// anneal starts in its even sector, so the search works there (half the
+// dimension) unless told otherwise. Gap: with g the degeneracy of the final
+// classical ground manifold inside the sector, the gap that governs success is
+// E_g - E_0 (the ground level to the lowest level that does not end in the
+// ground manifold; E_1 - E_0 when g = 1). E_1 - E_0 is reported too, labelled:
+// it closes at s = 1 whenever g >= 2.
+//
+// Method: a uniform coarse scan; adaptive subdivision of every interval where a
+// level bends sharply compared with the local gap (Hellmann-Feynman slopes
+// dE/ds = <E|dH/ds|E> at both ends), so a narrow avoided crossing between two
+// coarse points is not missed; then Brent's method (Boost.Math
+// brent_find_minima; Brent, "Algorithms for Minimization without Derivatives",
+// 1973) on each local minimum of the gap. Uncertainties: the eigenvalue error
+// bound from residual norms (|E - E_exact| <= ||H v - E v||, Weinstein/Kato)
+// plus Brent's bracket and the curvature of the gap at s*.
+//
+//   TransverseIsingHamiltonian H(problem);
+//   GapSearchOptions opt;                        // 4 levels, sector chosen automatically
+//   opt.s_tolerance = 1e-7;
+//   MinimumGapReport r = find_minimum_gap(H, schedule.scales, opt);
+//   fmt::print("Delta_min = {} +- {} GHz at s* = {} +- {} ({}; {})\n", r.gap_ghz,
+//              r.gap_uncertainty_ghz, r.s_star, r.s_star_uncertainty, r.definition,
+//              describe_sector(r.sector));
+//   for (const SpectrumPoint& p : r.curve) use(p.s, p.energies_ghz, p.gap_ghz);
+//
+//   // One point only (levels, gaps, matrix elements at s):
+//   SectorHamiltonian even(H, SpinFlipSector::Even);
+//   SpectrumPoint p = spectrum_at(even, schedule.scales, 0.4, /*levels=*/4, /*g=*/1, LevelOptions{});
+#include <cstddef>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "hamiltonian/spin_flip_sector.hpp"
+#include "hamiltonian/transverse_ising.hpp"
+#include "problem/classical_spectrum.hpp"
+#include "schedule/energy_scales.hpp"
+#include "spectrum/lowest_levels.hpp"
+
+namespace gapwise {
+
+/// Largest qubit count the spectrum tools accept (Lanczos vectors of 2^n doubles).
+inline constexpr int kMaxSpectrumQubits = 20;
+
+/// The spectrum at one s.
+struct SpectrumPoint {
+  double s = 0.0;
+  double a_ghz = 0.0, b_ghz = 0.0;
+  std::vector<double> energies_ghz;  ///< lowest levels, ascending (sector used)
+  std::vector<double> slopes_ghz;    ///< dE_j/ds (Hellmann-Feynman, GHz per unit s)
+  double gap_ghz = 0.0;              ///< E_g - E_0 (governs success)
+  double gap_10_ghz = 0.0;           ///< E_1 - E_0 (closes at s = 1 when g >= 2)
+  /// |<g|dH/ds|0>| in GHz; when level g is degenerate, the norm over its
+  /// degenerate subspace (basis-independent).
+  double matrix_element_ghz = 0.0;
+  double matrix_element_10_ghz = 0.0;  ///< |<1|dH/ds|0>|, same treatment for level 1
+  double error_bound_ghz = 0.0;        ///< residual bound on E_0 plus that on E_g
+  int origin = 0;                      ///< 0 coarse grid, 1 subdivision, 2 refinement
+  std::vector<double> other_energies_ghz;  ///< other spin-flip sector, on request
+};
+
+/// Levels, slopes, gaps and matrix elements at one s; g is the ground degeneracy in the sector.
+SpectrumPoint spectrum_at(const SectorHamiltonian& h, const EnergyScales& scales, double s, int levels, int g,
+                          const LevelOptions& base);
+
+struct GapSearchProgress {
+  std::size_t evaluations = 0;  ///< eigenproblems solved so far
+  std::size_t planned = 0;      ///< current estimate of the total
+  double s = 0.0;               ///< last point
+  const char* stage = "";       ///< "coarse scan", "subdivision", "refinement"
+};
+
+struct GapSearchOptions {
+  int levels = 4;                       ///< k; raised to g + 1 when the ground manifold needs it
+  std::optional<SpinFlipSector> sector; ///< unset: even sector when no fields, else full space
+  EigenMethod method = EigenMethod::Auto;
+  int coarse_points = 101;              ///< uniform scan points, end points included (>= 3)
+  double s_tolerance = 1e-6;            ///< wanted precision of s* (Brent)
+  int max_points = 3000;                ///< cap on all evaluated points; hitting it is flagged
+  double bend_threshold = 0.25;         ///< split when |dE/ds(b) - dE/ds(a)| (b - a) > this * local gap
+  bool other_sector = false;            ///< also the levels of the other spin-flip sector at each point
+  bool check_missed_levels = true;      ///< Lanczos deflation check (see lowest_levels.hpp)
+  double lanczos_tolerance = 1e-12;
+  std::optional<double> s_first, s_last;  ///< default: the range the energy scales cover
+  std::function<void(const GapSearchProgress&)> progress;  ///< called after each point
+};
+
+/// A local minimum of the governing gap, after refinement.
+struct GapMinimum {
+  double s = 0.0, s_uncertainty = 0.0;
+  double gap_ghz = 0.0, gap_uncertainty_ghz = 0.0;
+  double curvature_ghz = 0.0;   ///< d^2 gap / ds^2 at s (GHz)
+  bool at_end_point = false;
+};
+
+/// What a lowest level becomes at the last s: its dominant classical states.
+struct FinalLevel {
+  int level = 0;
+  double energy_ghz = 0.0;
+  std::vector<BasisIndex> states;  ///< dominant basis states (full-space indices, sector partners included)
+  std::vector<double> weights;     ///< their probabilities in the eigenvector
+  double problem_energy = 0.0;     ///< classical energy of the dominant state, offset included
+  bool in_ground_manifold = false;
+};
+
+struct MinimumGapReport {
+  // The answer.
+  double s_star = 0.0, s_star_uncertainty = 0.0;
+  double gap_ghz = 0.0, gap_uncertainty_ghz = 0.0;
+  bool at_end_point = false;      ///< the smallest gap is at an end of the s range (not interior)
+  std::string definition;         ///< e.g. "E_2 - E_0 (g = 2: ...)"
+  int ground_degeneracy = 1;      ///< g, in the sector used
+  std::size_t classical_ground_states = 1;  ///< ground manifold size in the full space
+  SpinFlipSector sector = SpinFlipSector::Full;
+  double matrix_element_ghz = 0.0;          ///< |<g|dH/ds|0>| at s*
+  // E_1 - E_0, labelled (differs from the above only when g >= 2).
+  double gap_10_end_ghz = 0.0;              ///< at the last s
+  std::optional<GapMinimum> gap_10_interior_minimum;  ///< smallest interior minimum on the curve
+  // Adiabatic time scale for s = t / t_f: t_ad = max_s |<g|dH/ds|0>| / (2 pi Delta(s)^2) in ns
+  // (the 2 pi turns GHz into angular frequency; see method notes).
+  double adiabatic_time_ns = 0.0;
+  double adiabatic_time_s = 0.0;            ///< where the maximum sits
+  double adiabatic_time_crude_ns = 0.0;     ///< max_s |M| / (2 pi Delta_min^2), the coarser bound
+  // Everything found along the way.
+  std::vector<GapMinimum> minima;           ///< refined local minima of the governing gap, by s
+  std::vector<SpectrumPoint> curve;         ///< every evaluated point, sorted by s
+  std::vector<FinalLevel> final_levels;     ///< at the last s
+  std::vector<std::string> flags;           ///< near-degeneracies, crossings, unresolved regions
+  int levels = 4;                           ///< k actually used
+  EigenMethod method = EigenMethod::Auto;   ///< solver actually used
+  double s_first = 0.0, s_last = 1.0;
+  int missed_levels_found = 0;              ///< total from the Lanczos deflation checks
+  double wall_seconds = 0.0;
+};
+
+/// "E_1 - E_0" for g = 1, "E_g - E_0 (g = ...)" otherwise, with a short explanation.
+std::string gap_definition(int ground_degeneracy);
+
+/// Memory the search needs (bytes) for this size, sector, level count and solver.
+double estimate_gap_search_bytes(int qubits, SpinFlipSector sector, int levels, EigenMethod method);
+
+/// Refuses (InputError naming `what`) more than kMaxSpectrumQubits qubits or more
+/// memory than is available; the message gives the estimate.
+void check_gap_search_size(int qubits, SpinFlipSector sector, int levels, EigenMethod method, const std::string& what);
+
+/// The sector the search uses for this problem when none is requested.
+SpinFlipSector default_sector(const IsingProblem& problem);
+
+/// The full search. Throws InputError for an impossible request (sector with fields,
+/// no level outside the ground manifold, too many qubits), std::runtime_error when an
+/// eigensolver fails.
+MinimumGapReport find_minimum_gap(const TransverseIsingHamiltonian& h, const EnergyScales& scales,
+                                  const GapSearchOptions& options);
+
+}  // namespace gapwise
