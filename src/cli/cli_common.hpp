@@ -26,5 +26,6 @@ std::string& command_line();
 void register_inspect(CLI::App& app);
 void register_anneal(CLI::App& app);
 void register_figure(CLI::App& app);
+void register_generate(CLI::App& app);
 
 }  // namespace gapwise::cli

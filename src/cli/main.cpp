@@ -30,6 +30,7 @@ int main(int argc, char** argv) {
   cli::register_inspect(app);
   cli::register_anneal(app);
   cli::register_figure(app);
+  cli::register_generate(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -1,15 +1,34 @@
 #include "io/hdf5_input.hpp"
 
+#include <atomic>
+#include <cstring>
+
 #include <H5Cpp.h>
 #include <fmt/format.h>
+#include <unistd.h>
 
+#include "io/hdf5_seal.hpp"
 #include "io/input_error.hpp"
+#include "io/toml_reader.hpp"
 
 namespace gapwise {
 
 struct Hdf5Input::Impl {
   std::unique_ptr<H5::H5File> file;
 };
+
+namespace {
+constexpr std::string_view kSignature("\x89HDF\r\n\x1a\n", 8);
+const char* const kRewrite = "check that the file was written by this version of gapwise";
+}  // namespace
+
+bool looks_like_hdf5(std::string_view bytes) {
+  for (std::size_t at = 0; at < bytes.size(); at = at == 0 ? 512 : 2 * at)
+    if (bytes.substr(at, kSignature.size()) == kSignature) return true;
+  return false;
+}
+
+Hdf5Input::Hdf5Input() : impl_(std::make_unique<Impl>()) {}
 
 Hdf5Input::Hdf5Input(const std::string& path) : impl_(std::make_unique<Impl>()), path_(path) {
   H5::Exception::dontPrint();
@@ -21,18 +40,57 @@ Hdf5Input::Hdf5Input(const std::string& path) : impl_(std::make_unique<Impl>()),
   }
 }
 
+Hdf5Input::Hdf5Input(const std::string& path, const std::string& sealed_format)
+    : Hdf5Input(from_bytes(read_text_file(path), path, sealed_format)) {}
+
+Hdf5Input Hdf5Input::from_bytes(std::string_view bytes, const std::string& name, const std::string& sealed_format) {
+  H5::Exception::dontPrint();
+  if (!sealed_format.empty()) check_hdf5_seal(bytes, name, sealed_format);
+  if (!looks_like_hdf5(bytes))
+    throw InputError({name, 0, 0, ""}, "this is not an HDF5 file (no HDF5 signature)", "give an HDF5 file written by gapwise");
+  Hdf5Input in;
+  in.path_ = name;
+  // The core driver refuses the name of a file that exists on disk ("file already
+  // exists"), so the image is opened under a name of its own; messages use `name`.
+  static std::atomic<unsigned long> images{0};
+  const std::string image_name = fmt::format("gapwise-in-memory-image-{}-{}", static_cast<long>(::getpid()), images++);
+  try {
+    H5::FileAccPropList fapl;
+    if (H5Pset_fapl_core(fapl.getId(), 1 << 16, 0) < 0 ||
+        H5Pset_file_image(fapl.getId(), const_cast<char*>(bytes.data()), bytes.size()) < 0)
+      throw std::runtime_error("HDF5: cannot set up an in-memory file");
+    in.impl_->file = std::make_unique<H5::H5File>(image_name, H5F_ACC_RDONLY, H5::FileCreatPropList::DEFAULT, fapl);
+  } catch (const H5::Exception&) {
+    throw InputError({name, 0, 0, ""}, "the HDF5 file is damaged or truncated and cannot be opened",
+                     "write it again (gapwise writes atomically, so a finished file is whole)");
+  }
+  return in;
+}
+
 Hdf5Input::~Hdf5Input() = default;
+Hdf5Input::Hdf5Input(Hdf5Input&&) noexcept = default;
+Hdf5Input& Hdf5Input::operator=(Hdf5Input&&) noexcept = default;
+
+void Hdf5Input::fail(const std::string& key, const std::string& problem, const std::string& fix) const {
+  throw InputError({path_, 0, 0, key}, problem, fix);
+}
 
 bool Hdf5Input::has(const std::string& object) const {
   // Check each prefix: nameExists fails on missing intermediate groups.
+  if (object == "/") return true;
+  if (object.empty() || object[0] != '/') return false;
   std::string cur;
   std::size_t pos = 1;
-  while (pos <= object.size()) {
-    const std::size_t next = object.find('/', pos);
-    cur = object.substr(0, next == std::string::npos ? object.size() : next);
-    if (!impl_->file->nameExists(cur)) return false;
-    if (next == std::string::npos) break;
-    pos = next + 1;
+  try {
+    while (pos <= object.size()) {
+      const std::size_t next = object.find('/', pos);
+      cur = object.substr(0, next == std::string::npos ? object.size() : next);
+      if (!impl_->file->nameExists(cur)) return false;
+      if (next == std::string::npos) break;
+      pos = next + 1;
+    }
+  } catch (const H5::Exception&) {
+    return false;
   }
   return true;
 }
@@ -41,82 +99,159 @@ namespace {
 template <class F>
 auto with_object(H5::H5File& f, const std::string& path, F fn) {
   H5O_info_t info;
-  H5Oget_info_by_name(f.getId(), path.c_str(), &info, H5P_DEFAULT);
+  if (H5Oget_info_by_name(f.getId(), path.c_str(), &info, H5P_DEFAULT) < 0) throw H5::GroupIException("open", "missing");
   if (info.type == H5O_TYPE_DATASET) { H5::DataSet d = f.openDataSet(path); return fn(static_cast<H5::H5Object&>(d)); }
   H5::Group g = f.openGroup(path);
   return fn(static_cast<H5::H5Object&>(g));
+}
+
+std::string attr_key(const std::string& object, const std::string& name) {
+  return object == "/" ? "@" + name : object + "@" + name;
 }
 }  // namespace
 
 bool Hdf5Input::has_attribute(const std::string& object, const std::string& name) const {
   if (!has(object)) return false;
-  return with_object(*impl_->file, object, [&](H5::H5Object& o) { return o.attrExists(name); });
+  try {
+    return with_object(*impl_->file, object, [&](H5::H5Object& o) { return o.attrExists(name); });
+  } catch (const H5::Exception&) {
+    return false;
+  }
 }
 
 std::vector<std::size_t> Hdf5Input::shape(const std::string& dataset) const {
-  H5::DataSet ds = impl_->file->openDataSet(dataset);
-  H5::DataSpace sp = ds.getSpace();
-  std::vector<hsize_t> d(static_cast<std::size_t>(sp.getSimpleExtentNdims()));
-  sp.getSimpleExtentDims(d.data());
-  return {d.begin(), d.end()};
+  if (!has(dataset)) fail(dataset, "required dataset is missing", kRewrite);
+  try {
+    H5::DataSet ds = impl_->file->openDataSet(dataset);
+    H5::DataSpace sp = ds.getSpace();
+    std::vector<hsize_t> d(static_cast<std::size_t>(sp.getSimpleExtentNdims()));
+    sp.getSimpleExtentDims(d.data());
+    return {d.begin(), d.end()};
+  } catch (const H5::Exception& e) {
+    fail(dataset, "cannot read this dataset's shape: " + e.getDetailMsg(), kRewrite);
+  }
 }
 
 std::vector<double> Hdf5Input::read(const std::string& dataset) const {
+  if (!has(dataset)) fail(dataset, "required dataset is missing", kRewrite);
   try {
     H5::DataSet ds = impl_->file->openDataSet(dataset);
+    const H5T_class_t c = ds.getTypeClass();
+    if (c != H5T_FLOAT && c != H5T_INTEGER) fail(dataset, "expected numbers", kRewrite);
     const auto n = static_cast<std::size_t>(ds.getSpace().getSimpleExtentNpoints());
+    if (n > (std::size_t{1} << 32)) fail(dataset, "implausibly large dataset", kRewrite);
     std::vector<double> v(n);
     if (n) ds.read(v.data(), H5::PredType::NATIVE_DOUBLE);
     return v;
   } catch (const H5::Exception& e) {
-    throw InputError({path_, 0, 0, dataset}, "cannot read this dataset: " + e.getDetailMsg(),
-                     "check that the file was written by this version of gapwise");
+    fail(dataset, "cannot read this dataset: " + e.getDetailMsg(), kRewrite);
   }
 }
 
-std::vector<std::string> Hdf5Input::read_strings(const std::string& dataset) const {
-  H5::DataSet ds = impl_->file->openDataSet(dataset);
-  const auto n = static_cast<std::size_t>(ds.getSpace().getSimpleExtentNpoints());
-  std::vector<char*> raw(n, nullptr);
-  H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
-  if (n) ds.read(raw.data(), st);
-  std::vector<std::string> out;
-  for (char* c : raw) out.emplace_back(c ? c : "");
-  if (n) H5Dvlen_reclaim(st.getId(), ds.getSpace().getId(), H5P_DEFAULT, raw.data());
-  return out;
+namespace {
+std::size_t list_length(const Hdf5Input& in, const std::string& dataset, std::optional<std::size_t> expected) {
+  const auto dims = in.shape(dataset);
+  if (dims.size() > 2 || (dims.size() == 2 && dims[1] != 1))
+    in.fail(dataset, fmt::format("expected a list, found a dataset of rank {}", dims.size()), kRewrite);
+  const std::size_t n = dims.empty() ? 1 : dims[0];
+  if (expected && n != *expected)
+    in.fail(dataset, fmt::format("expected {} entries, found {}", *expected, n),
+            "the lengths of an object's datasets must agree; write the file with gapwise");
+  return n;
+}
+}  // namespace
+
+std::vector<double> Hdf5Input::read_list(const std::string& dataset, std::optional<std::size_t> expected) const {
+  list_length(*this, dataset, expected);
+  return read(dataset);
+}
+
+std::vector<long long> Hdf5Input::read_int_list(const std::string& dataset, std::optional<std::size_t> expected) const {
+  const std::size_t n = list_length(*this, dataset, expected);
+  try {
+    H5::DataSet ds = impl_->file->openDataSet(dataset);
+    if (ds.getTypeClass() != H5T_INTEGER) fail(dataset, "expected integers", kRewrite);
+    std::vector<long long> v(n);
+    if (n) ds.read(v.data(), H5::PredType::NATIVE_LLONG);
+    return v;
+  } catch (const H5::Exception& e) {
+    fail(dataset, "cannot read this dataset: " + e.getDetailMsg(), kRewrite);
+  }
+}
+
+std::vector<std::string> Hdf5Input::read_strings(const std::string& dataset, std::optional<std::size_t> expected) const {
+  const std::size_t n = list_length(*this, dataset, expected);
+  try {
+    H5::DataSet ds = impl_->file->openDataSet(dataset);
+    if (ds.getTypeClass() != H5T_STRING || !ds.getStrType().isVariableStr())
+      fail(dataset, "expected variable-length strings", kRewrite);
+    std::vector<char*> raw(n, nullptr);
+    H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
+    if (n) ds.read(raw.data(), st);
+    std::vector<std::string> out;
+    for (char* c : raw) out.emplace_back(c ? c : "");
+    if (n) H5Dvlen_reclaim(st.getId(), ds.getSpace().getId(), H5P_DEFAULT, raw.data());
+    return out;
+  } catch (const H5::Exception& e) {
+    fail(dataset, "cannot read these strings: " + e.getDetailMsg(), kRewrite);
+  }
 }
 
 double Hdf5Input::attribute_double(const std::string& object, const std::string& name) const {
   try {
     return with_object(*impl_->file, object, [&](H5::H5Object& o) {
+      H5::Attribute a = o.openAttribute(name);
+      const H5T_class_t c = a.getTypeClass();
+      if ((c != H5T_FLOAT && c != H5T_INTEGER) || a.getSpace().getSimpleExtentNpoints() != 1)
+        fail(attr_key(object, name), "expected a single number", kRewrite);
       double v = 0;
-      o.openAttribute(name).read(H5::PredType::NATIVE_DOUBLE, &v);
+      a.read(H5::PredType::NATIVE_DOUBLE, &v);
       return v;
     });
   } catch (const H5::Exception&) {
-    throw InputError({path_, 0, 0, object + "@" + name}, "missing or unreadable attribute",
-                     "check that the file was written by this version of gapwise");
+    throw InputError({path_, 0, 0, attr_key(object, name)}, "missing or unreadable attribute", kRewrite);
+  }
+}
+
+long long Hdf5Input::attribute_int(const std::string& object, const std::string& name) const {
+  try {
+    return with_object(*impl_->file, object, [&](H5::H5Object& o) {
+      H5::Attribute a = o.openAttribute(name);
+      if (a.getTypeClass() != H5T_INTEGER || a.getSpace().getSimpleExtentNpoints() != 1)
+        fail(attr_key(object, name), "expected a single integer", kRewrite);
+      long long v = 0;
+      a.read(H5::PredType::NATIVE_LLONG, &v);
+      return v;
+    });
+  } catch (const H5::Exception&) {
+    throw InputError({path_, 0, 0, attr_key(object, name)}, "missing or unreadable attribute", kRewrite);
   }
 }
 
 std::string Hdf5Input::attribute_string(const std::string& object, const std::string& name) const {
   try {
     return with_object(*impl_->file, object, [&](H5::H5Object& o) {
+      H5::Attribute a = o.openAttribute(name);
+      if (a.getTypeClass() != H5T_STRING || a.getSpace().getSimpleExtentNpoints() != 1 || !a.getStrType().isVariableStr())
+        fail(attr_key(object, name), "expected a single string", kRewrite);
       std::string v;
-      o.openAttribute(name).read(H5::StrType(H5::PredType::C_S1, H5T_VARIABLE), v);
+      a.read(H5::StrType(H5::PredType::C_S1, H5T_VARIABLE), v);
       return v;
     });
   } catch (const H5::Exception&) {
-    throw InputError({path_, 0, 0, object + "@" + name}, "missing or unreadable attribute",
-                     "check that the file was written by this version of gapwise");
+    throw InputError({path_, 0, 0, attr_key(object, name)}, "missing or unreadable attribute", kRewrite);
   }
 }
 
 std::vector<std::string> Hdf5Input::members(const std::string& group) const {
-  H5::Group g = impl_->file->openGroup(group);
-  std::vector<std::string> out;
-  for (hsize_t k = 0; k < g.getNumObjs(); ++k) out.push_back(g.getObjnameByIdx(k));
-  return out;
+  try {
+    H5::Group g = impl_->file->openGroup(group);
+    std::vector<std::string> out;
+    for (hsize_t k = 0; k < g.getNumObjs(); ++k) out.push_back(g.getObjnameByIdx(k));
+    return out;
+  } catch (const H5::Exception&) {
+    fail(group, "missing or unreadable group", kRewrite);
+  }
 }
 
 }  // namespace gapwise

@@ -11,22 +11,26 @@
 
 #include "gapwise_version.hpp"
 #include "io/atomic_file.hpp"
+#include "io/hdf5_seal.hpp"
 
 namespace gapwise {
 
 struct Hdf5Output::Impl {
-  std::string final_path, temp_path;
+  std::string final_path, temp_path, sealed_format;
   std::unique_ptr<H5::H5File> file;
   bool committed = false;
 };
 
-Hdf5Output::Hdf5Output(std::string final_path) : impl_(std::make_unique<Impl>()) {
+Hdf5Output::Hdf5Output(std::string final_path, std::string sealed_format) : impl_(std::make_unique<Impl>()) {
   check_output_path(final_path, "--out");
   impl_->final_path = std::move(final_path);
   impl_->temp_path = temporary_path_for(impl_->final_path);
+  impl_->sealed_format = std::move(sealed_format);
   H5::Exception::dontPrint();
   try {
-    impl_->file = std::make_unique<H5::H5File>(impl_->temp_path, H5F_ACC_TRUNC);
+    H5::FileCreatPropList fcpl;
+    if (!impl_->sealed_format.empty()) fcpl.setUserblock(kSealBytes);
+    impl_->file = std::make_unique<H5::H5File>(impl_->temp_path, H5F_ACC_TRUNC, fcpl);
   } catch (const H5::Exception& e) {
     throw std::runtime_error(fmt::format("cannot create '{}': {}", impl_->temp_path, e.getDetailMsg()));
   }
@@ -114,7 +118,7 @@ void with_object(H5::H5File& f, const std::string& path, F fn) {
 }  // namespace
 
 void Hdf5Output::attribute(const std::string& object, const std::string& name, const std::string& value) {
-  if (object != "/" && !impl_->file->nameExists(object)) group(object);
+  if (object != "/") group(object);  // creates missing parents too
   with_object(*impl_->file, object, [&](H5::H5Object& o) {
     H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
     o.createAttribute(name, st, H5::DataSpace(H5S_SCALAR)).write(st, value);
@@ -124,14 +128,14 @@ void Hdf5Output::attribute(const std::string& object, const std::string& name, c
 void Hdf5Output::attribute(const std::string& object, const std::string& name, double value) {
   if (!std::isfinite(value))
     throw std::runtime_error(fmt::format("refusing to write a non-finite number into '{}@{}'", object, name));
-  if (object != "/" && !impl_->file->nameExists(object)) group(object);
+  if (object != "/") group(object);  // creates missing parents too
   with_object(*impl_->file, object, [&](H5::H5Object& o) {
     o.createAttribute(name, H5::PredType::NATIVE_DOUBLE, H5::DataSpace(H5S_SCALAR)).write(H5::PredType::NATIVE_DOUBLE, &value);
   });
 }
 
 void Hdf5Output::attribute(const std::string& object, const std::string& name, long long value) {
-  if (object != "/" && !impl_->file->nameExists(object)) group(object);
+  if (object != "/") group(object);  // creates missing parents too
   with_object(*impl_->file, object, [&](H5::H5Object& o) {
     o.createAttribute(name, H5::PredType::NATIVE_LLONG, H5::DataSpace(H5S_SCALAR)).write(H5::PredType::NATIVE_LLONG, &value);
   });
@@ -147,6 +151,14 @@ void Hdf5Output::commit() {
     throw std::runtime_error(fmt::format("cannot finish '{}': {}", impl_->final_path, e.getDetailMsg()));
   }
   impl_->committed = true;
+  if (!impl_->sealed_format.empty()) {
+    try {
+      seal_hdf5_file(impl_->temp_path, impl_->sealed_format);
+    } catch (...) {
+      std::remove(impl_->temp_path.c_str());
+      throw;
+    }
+  }
   commit_temporary(impl_->temp_path, impl_->final_path);
 }
 

@@ -16,7 +16,8 @@ namespace gapwise {
 
 class Hdf5Output {
  public:
-  explicit Hdf5Output(std::string final_path);
+  /// With a `sealed_format`, the file gets gapwise's seal (io/hdf5_seal.hpp) on commit().
+  explicit Hdf5Output(std::string final_path, std::string sealed_format = {});
   ~Hdf5Output();
   Hdf5Output(const Hdf5Output&) = delete;
   Hdf5Output& operator=(const Hdf5Output&) = delete;
