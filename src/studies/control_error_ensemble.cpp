@@ -114,14 +114,5 @@ std::vector<double> ControlEnsemble::p_column(std::size_t duration) const {
   return v;
 }
 
-double quantile(std::vector<double> v, double q) {
-  v.erase(std::remove_if(v.begin(), v.end(), [](double x) { return std::isnan(x); }), v.end());
-  if (v.empty()) return kNotComputed;
-  std::sort(v.begin(), v.end());
-  const double h = (static_cast<double>(v.size()) - 1) * std::clamp(q, 0.0, 1.0);
-  const std::size_t lo = static_cast<std::size_t>(std::floor(h));
-  const std::size_t hi = std::min(lo + 1, v.size() - 1);
-  return v[lo] + (h - static_cast<double>(lo)) * (v[hi] - v[lo]);
-}
 
 }  // namespace gapwise

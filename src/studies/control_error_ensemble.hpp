@@ -27,6 +27,8 @@
 
 #include "problem/classical_spectrum.hpp"
 
+#include "studies/ensemble_statistics.hpp"  // quantile()
+
 namespace gapwise {
 
 struct ControlErrorModel {
@@ -91,10 +93,5 @@ ControlEnsemble run_control_error_ensemble(const IsingProblem& problem, const Gr
 
 /// Margin and ground_changed of one perturbed problem against the intended manifold.
 void classify_ground_change(const IsingProblem& perturbed, const GroundManifold& intended, ControlSample& sample);
-
-/// Sample quantile, linear interpolation between order statistics (Hyndman &
-/// Fan, Am. Stat. 50, 361 (1996), definition 7, the default of R and NumPy).
-/// NaNs are ignored; NaN when nothing is left.
-double quantile(std::vector<double> values, double q);
 
 }  // namespace gapwise

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <random>
 #include <stdexcept>
 
@@ -19,17 +20,24 @@ double sorted_quantile(const std::vector<double>& x, double q) {
   if (frac == 0.0 || x[lo] == x[lo + 1]) return x[lo];  // also keeps inf from becoming nan
   return x[lo] + frac * (x[lo + 1] - x[lo]);
 }
+
+
+std::vector<double> without_nan(std::vector<double> v) {
+  v.erase(std::remove_if(v.begin(), v.end(), [](double x) { return std::isnan(x); }), v.end());
+  return v;
+}
 }  // namespace
 
 double quantile(std::vector<double> values, double q) {
-  if (values.empty()) throw std::invalid_argument("quantile of an empty sample");
-  if (!(q >= 0.0 && q <= 1.0)) throw std::invalid_argument("quantile level outside [0, 1]");
+  values = without_nan(std::move(values));
+  if (values.empty()) return std::numeric_limits<double>::quiet_NaN();
   std::sort(values.begin(), values.end());
-  return sorted_quantile(values, q);
+  return sorted_quantile(values, std::clamp(q, 0.0, 1.0));
 }
 
-Interval bootstrap_quantile_interval(const std::vector<double>& values, double q, int resamples, double level,
+Interval bootstrap_quantile_interval(const std::vector<double>& all, double q, int resamples, double level,
                                      std::uint64_t seed) {
+  const std::vector<double> values = without_nan(all);
   if (values.empty()) throw std::invalid_argument("bootstrap of an empty sample");
   if (resamples < 1 || !(level > 0.0 && level < 1.0)) throw std::invalid_argument("bootstrap settings out of range");
   std::mt19937_64 rng(seed);
@@ -47,7 +55,7 @@ Interval bootstrap_quantile_interval(const std::vector<double>& values, double q
 SampleSummary summarize_sample(const std::vector<double>& values, const std::vector<double>& qs, int resamples,
                                double level, std::uint64_t seed) {
   SampleSummary s;
-  s.count = values.size();
+  s.count = without_nan(values).size();
   for (std::size_t k = 0; k < qs.size(); ++k) {
     QuantileEstimate e;
     e.q = qs[k];

@@ -17,7 +17,8 @@
 
 namespace gapwise {
 
-/// q in [0, 1]; the values need not be sorted. Throws std::invalid_argument when empty.
+/// q in [0, 1] (clamped); the values need not be sorted. NaNs are ignored; NaN
+/// when nothing is left. Infinite values are ordered, never turned into NaN.
 double quantile(std::vector<double> values, double q);
 
 struct Interval {
@@ -25,7 +26,9 @@ struct Interval {
   double high = 0;
 };
 
-/// Percentile-bootstrap interval for the q-quantile. One value gives [v, v].
+/// Percentile-bootstrap interval for the q-quantile of the non-NaN values. One
+/// value gives [v, v]. Throws std::invalid_argument when no value is left or the
+/// settings are out of range.
 Interval bootstrap_quantile_interval(const std::vector<double>& values, double q, int resamples, double level,
                                      std::uint64_t seed);
 
