@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <numbers>
 #include <numeric>
 
 #include <fmt/format.h>
@@ -50,6 +51,12 @@ std::vector<Outcome> most_probable_outcomes(const QuantumState& psi, const Trans
   return out;
 }
 
+void apply_diagonal_phases(const TransverseIsingHamiltonian& h, double b_ghz, double dt_ns, QuantumState& psi) {
+  const double w = -2.0 * std::numbers::pi * 0.5 * b_ghz * dt_ns;
+  const auto& d = h.diagonal();
+  for (std::size_t k = 0; k < psi.size(); ++k) psi[k] *= std::polar(1.0, w * d[k]);
+}
+
 AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundManifold& ground,
                              const EnergyScales& scales, const AnnealPath& path, QuantumState psi,
                              const SimulationOptions& options, const std::vector<AnnealObserver*>& observers) {
@@ -70,10 +77,17 @@ AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundMa
   for (std::size_t k = 0; k + 1 < pts.size(); ++k) {
     const double t0 = pts[k].t_ns, t1 = pts[k + 1].t_ns;
     const int m = observers.empty() ? 0 : std::max(options.samples_per_piece, 0);
+    // A piece at constant s where A(s) = 0 (a pause or dwell with the transverse
+    // term off) has the diagonal Hamiltonian (B/2) D: its propagator is exactly
+    // the phase exp(-i 2 pi (B/2) D_b dt) on each basis state, applied as such.
+    const bool diagonal_pause = pts[k].s == pts[k + 1].s && scales.a_ghz(pts[k].s) == 0.0;
     double t = t0;
     for (int j = 1; j <= m + 1; ++j) {
       const double tn = j == m + 1 ? t1 : t0 + (t1 - t0) * j / (m + 1);
-      prop->advance(drive, t, tn, psi, r.stats);
+      if (diagonal_pause)
+        apply_diagonal_phases(h, scales.b_ghz(pts[k].s), tn - t, psi);
+      else
+        prop->advance(drive, t, tn, psi, r.stats);
       t = tn;
       observe(t);
     }

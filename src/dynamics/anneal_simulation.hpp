@@ -51,6 +51,10 @@ AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundMa
                              const EnergyScales& scales, const AnnealPath& path, QuantumState psi,
                              const SimulationOptions& options, const std::vector<AnnealObserver*>& observers = {});
 
+/// psi <- exp(-i 2 pi (b/2) D dt) psi: the exact propagator of H = (b/2) D (A = 0)
+/// over dt ns. simulate_anneal uses it on constant-s pieces where A(s) = 0.
+void apply_diagonal_phases(const TransverseIsingHamiltonian& h, double b_ghz, double dt_ns, QuantumState& psi);
+
 /// The k most probable outcomes (ties broken by basis index).
 std::vector<Outcome> most_probable_outcomes(const QuantumState& psi, const TransverseIsingHamiltonian& h,
                                             const GroundManifold& ground, int k);

@@ -54,6 +54,59 @@ EnergyScales read_scales(const TomlReader& r, const toml::table* t) {
                              interp == "linear" ? ScaleInterpolation::Linear : ScaleInterpolation::MonotoneCubic);
 }
 
+/// The shape tables of [path], when any is present (see path_shapes.hpp).
+std::optional<PathShapeSpec> read_shape_tables(const TomlReader& r, const toml::table& p) {
+  const toml::table* pause = r.get_table(p, "pause", "path");
+  const toml::table* quench = r.get_table(p, "quench", "path");
+  const toml::table* reverse = r.get_table(p, "reverse", "path");
+  if (!pause && !quench && !reverse) return std::nullopt;
+  if (p.get("points"))
+    r.fail(p.get("points"), "path.points", "waypoints and shape tables ([path.pause], [path.quench], [path.reverse]) are both given",
+           "describe the path one way: either `points`, or the shape tables");
+  if (reverse && (pause || quench))
+    r.fail(pause ? pause : quench, pause ? "path.pause" : "path.quench",
+           "a reverse anneal cannot also have a forward pause or quench",
+           "remove the table; a reverse anneal's pause is its `dwell`");
+  PathShapeSpec spec;
+  if (pause) {
+    r.allow_keys(*pause, "path.pause", {"s", "duration"});
+    spec.forward.pause = PauseSpec{r.require_double(*pause, "s", "path.pause"), r.require_double(*pause, "duration", "path.pause")};
+  }
+  if (quench) {
+    r.allow_keys(*quench, "path.quench", {"s", "duration"});
+    spec.forward.quench =
+        QuenchSpec{r.require_double(*quench, "s", "path.quench"), r.require_double(*quench, "duration", "path.quench")};
+  }
+  if (reverse) {
+    r.allow_keys(*reverse, "path.reverse", {"turn_s", "down", "dwell", "up"});
+    ReverseSpec rs;
+    rs.turn_s = r.require_double(*reverse, "turn_s", "path.reverse");
+    rs.down = r.require_double(*reverse, "down", "path.reverse");
+    rs.dwell = r.require_double(*reverse, "dwell", "path.reverse");
+    rs.up = r.get_double(*reverse, "up", "path.reverse").value_or(rs.down);
+    spec.reverse = rs;
+  }
+  return spec;
+}
+
+/// Builds the path of a shape spec; a refused shape is re-raised at its line.
+AnnealPath build_shape(const TomlReader& r, const toml::table& p, const PathShapeSpec& spec, double total) {
+  try {
+    return path_from_shape(spec, total);
+  } catch (const InputError& e) {
+    // e's key is "pause.s", "reverse.dwell", ...: find that node under [path].
+    const std::string& key = e.place().key;
+    const toml::node* node = &p;
+    const auto dot = key.find('.');
+    if (const toml::table* t = r.get_table(p, key.substr(0, dot), "path")) {
+      node = t;
+      if (dot != std::string::npos)
+        if (const toml::node* leaf = t->get(key.substr(dot + 1))) node = leaf;
+    }
+    r.fail(node, "path." + key, e.problem(), e.fix());
+  }
+}
+
 }  // namespace
 
 Schedule parse_schedule_text(std::string_view text, const std::string& name) {
@@ -70,15 +123,18 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
   const toml::table* p = r.get_table(root, "path", "");
   toml::table empty;
   if (!p) p = &empty;
-  r.allow_keys(*p, "path", {"time", "duration_ns", "points", "start", "start_bits"});
+  r.allow_keys(*p, "path", {"time", "duration_ns", "points", "start", "start_bits", "pause", "quench", "reverse"});
+  const std::optional<PathShapeSpec> spec = read_shape_tables(r, *p);
   const std::string time = r.get_string(*p, "time", "path").value_or("fraction");
   if (time != "fraction" && time != "ns")
     r.fail(p->get("time"), "path.time", fmt::format("unknown time unit \"{}\"", time), "use \"fraction\" or \"ns\"");
   sch.time_in_ns = time == "ns";
   if (auto d = r.get_double(*p, "duration_ns", "path")) {
     if (!(*d > 0)) r.fail(p->get("duration_ns"), "path.duration_ns", "duration must be > 0 ns", "give a positive duration");
-    if (sch.time_in_ns)
-      r.fail(p->get("duration_ns"), "path.duration_ns", "duration_ns is implied when time = \"ns\"",
+    const bool forward_shape_in_ns = spec && !spec->is_reverse();
+    if (sch.time_in_ns && !forward_shape_in_ns)
+      r.fail(p->get("duration_ns"), "path.duration_ns",
+             spec ? "duration_ns is implied by down + dwell + up when time = \"ns\"" : "duration_ns is implied when time = \"ns\"",
              "remove duration_ns, or use time = \"fraction\"");
     sch.duration_ns = *d;
   }
@@ -106,6 +162,28 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
              "the last time fraction must be 1", "end the path at time 1 (the full duration)");
     sch.shape = AnnealPath(pts);
   }
+  if (spec) {
+    double total = 1.0;
+    if (spec->is_reverse()) {
+      total = spec->reverse->total();
+      if (!sch.time_in_ns && std::abs(total - 1.0) > 1e-9)
+        r.fail(p->get("reverse"), "path.reverse",
+               fmt::format("down + dwell + up = {} but with time = \"fraction\" they must add up to 1", total),
+               "make the three fractions add up to 1, or use time = \"ns\"");
+    } else if (sch.time_in_ns) {
+      if (!sch.duration_ns)
+        r.fail(p, "path.duration_ns", "a forward shape with time = \"ns\" needs its total duration",
+               "add `duration_ns = <ns>` to [path]");
+      total = *sch.duration_ns;
+    }
+    sch.shape = build_shape(r, *p, *spec, total);
+    if (spec->is_reverse() && !sch.time_in_ns) {  // fractions end at exactly 1
+      std::vector<Waypoint> w = sch.shape.points();
+      w.back().t_ns = 1.0;
+      sch.shape = AnnealPath(std::move(w));
+    }
+    sch.shape_spec = spec;
+  }
 
   const AnnealPath& shape = sch.shape;
   if (shape.s_min() < sch.scales.s_first() - 1e-12 || shape.s_max() > sch.scales.s_last() + 1e-12)
@@ -127,6 +205,9 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
       sch.start.bits.push_back(static_cast<int>(v));
     }
   }
+  if (spec && spec->is_reverse() && sch.start.kind == StartKind::Ground)
+    r.fail(p->get("reverse"), "path.start_bits", "a reverse anneal ([path.reverse]) needs a classical start state",
+           "add `start_bits = [0, 1, ...]` (qubit 0 first) to [path]");
   if (sch.start.kind == StartKind::Classical && sch.start.bits.empty())
     r.fail(p, "path.start_bits", "start = \"classical\" needs the start state", "add `start_bits = [0, 1, ...]`, qubit 0 first");
   if (sch.start.kind == StartKind::Ground && !p->get("start") && shape.points().front().s > 0)
@@ -158,14 +239,30 @@ std::string format_schedule_toml(const Schedule& s) {
            list(s.scales.table_b()) + "\n";
   }
   out += fmt::format("\n[path]\ntime = \"{}\"\n", s.time_in_ns ? "ns" : "fraction");
-  if (s.duration_ns) out += fmt::format("duration_ns = {:.17g}\n", *s.duration_ns);
-  out += "points = [\n";
-  for (const auto& w : s.shape.points()) out += fmt::format("  [{:.17g}, {:.17g}],\n", w.t_ns, w.s);
-  out += "]\n";
+  if (s.duration_ns)
+    out += fmt::format("duration_ns = {:.17g}\n", *s.duration_ns);
+  else if (s.shape_spec && s.time_in_ns && !s.shape_spec->is_reverse())
+    out += fmt::format("duration_ns = {:.17g}\n", s.shape.duration_ns());
+  if (!s.shape_spec) {
+    out += "points = [\n";
+    for (const auto& w : s.shape.points()) out += fmt::format("  [{:.17g}, {:.17g}],\n", w.t_ns, w.s);
+    out += "]\n";
+  }
   if (s.start.kind == StartKind::Classical) {
     out += "start = \"classical\"\nstart_bits = [";
     for (std::size_t k = 0; k < s.start.bits.size(); ++k) out += fmt::format("{}{}", k ? ", " : "", s.start.bits[k]);
     out += "]\n";
+  }
+  if (s.shape_spec) {
+    const PathShapeSpec& sp = *s.shape_spec;
+    if (sp.forward.pause)
+      out += fmt::format("\n[path.pause]\ns = {:.17g}\nduration = {:.17g}\n", sp.forward.pause->s, sp.forward.pause->duration);
+    if (sp.forward.quench)
+      out += fmt::format("\n[path.quench]\ns = {:.17g}\nduration = {:.17g}\n", sp.forward.quench->s,
+                         sp.forward.quench->duration);
+    if (sp.reverse)
+      out += fmt::format("\n[path.reverse]\nturn_s = {:.17g}\ndown = {:.17g}\ndwell = {:.17g}\nup = {:.17g}\n",
+                         sp.reverse->turn_s, sp.reverse->down, sp.reverse->dwell, sp.reverse->up);
   }
   return out;
 }

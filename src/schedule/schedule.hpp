@@ -13,6 +13,7 @@
 #include "problem/ising_problem.hpp"
 #include "schedule/anneal_path.hpp"
 #include "schedule/energy_scales.hpp"
+#include "schedule/path_shapes.hpp"
 
 namespace gapwise {
 
@@ -32,6 +33,10 @@ struct Schedule {
   bool time_in_ns = false;
   std::optional<double> duration_ns;  ///< default duration (required to run when times are fractions)
   StartSpec start;
+  /// Set when the file described the path by shape tables ([path.pause],
+  /// [path.quench], [path.reverse]) rather than waypoints; `shape` holds the
+  /// waypoints generated from it either way.
+  std::optional<PathShapeSpec> shape_spec;
   std::string description;
   std::string source;  ///< file name it came from, for messages
 
