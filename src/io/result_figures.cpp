@@ -2,6 +2,7 @@
 
 #include <filesystem>
 #include <functional>
+#include <limits>
 
 #include <fmt/format.h>
 
@@ -28,6 +29,50 @@ void anneal_trace(const Hdf5Input& in, const Emit& emit) {
   emit("anneal-trace", [&](const std::string& path) { render_figure(fig, path); });
 }
 
+// `gap` results: the lowest levels along s, and the gaps with the minimum marked.
+void spectrum(const Hdf5Input& in, const Emit& emit) {
+  const std::string G = "/gap";
+  if (!in.has(G + "/curve/energies")) return;
+  const auto s = in.read(G + "/curve/s");
+  const auto shape = in.shape(G + "/curve/energies");
+  const auto e = in.read(G + "/curve/energies");
+  const std::size_t n = s.size(), k = shape.size() > 1 ? shape[1] : 1;
+  if (e.size() != n * k) return;
+  const double s_star = in.attribute_double(G, "s_star"), gap = in.attribute_double(G, "gap_ghz");
+  const double s_unc = in.attribute_double(G, "s_star_uncertainty");
+  const std::string definition = in.attribute_string(G, "definition"), sector = in.attribute_string(G, "sector");
+
+  LinePlot levels;
+  levels.title = "Lowest levels of H(s)";
+  levels.note = fmt::format("sector: {}; minimum gap {:.4g} GHz at s* = {:.4f} (+- {:.1g})", sector, gap, s_star, s_unc);
+  levels.x_label = "anneal fraction s";
+  levels.y_label = "energy (GHz)";
+  for (std::size_t j = 0; j < k; ++j) {
+    PlotSeries ser{j < 6 ? fmt::format("E{}", j) : "", s, std::vector<double>(n), SeriesStyle::Line, static_cast<int>(j)};
+    for (std::size_t i = 0; i < n; ++i) ser.y[i] = e[i * k + j];
+    levels.series.push_back(std::move(ser));
+  }
+  levels.vertical_lines = {s_star};
+  emit("spectrum", [&](const std::string& path) { render_figure(levels, path); });
+
+  LinePlot gaps;
+  gaps.title = "Spectral gap along the anneal";
+  const std::string short_definition = definition.substr(0, definition.find(" ("));
+  gaps.note = fmt::format("gap = {}; minimum {:.4g} GHz at s* = {:.4f}", short_definition, gap, s_star);
+  gaps.x_label = "anneal fraction s";
+  gaps.y_label = "gap (GHz)";
+  gaps.log_y = true;
+  auto positive = [](std::vector<double> v) {
+    for (double& x : v) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
+    return v;
+  };
+  gaps.series.push_back({"gap that governs success", s, positive(in.read(G + "/curve/gap")), SeriesStyle::Line, 0});
+  if (in.has(G + "/curve/gap_e1_e0"))
+    gaps.series.push_back({"E1 - E0", s, positive(in.read(G + "/curve/gap_e1_e0")), SeriesStyle::Dashed, 1});
+  if (gap > 0) gaps.markers.push_back({s_star, gap, fmt::format("min {:.3g} GHz", gap)});
+  emit("gap", [&](const std::string& path) { render_figure(gaps, path); });
+}
+
 }  // namespace
 
 std::vector<std::string> draw_result_figures(const std::string& result_file, const std::string& out_dir,
@@ -51,6 +96,7 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
     if (f != "svg" && f != "png")
       throw InputError({"--format", 0, 0, "--format"}, fmt::format("unknown figure format '{}'", f), "use svg and/or png");
   anneal_trace(in, emit);
+  spectrum(in, emit);
   if (written.empty())
     throw InputError({result_file, 0, 0, ""}, "this file holds no result that gapwise can draw",
                      "give a file written with --out by anneal or another study subcommand");
