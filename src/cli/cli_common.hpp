@@ -27,5 +27,6 @@ void register_inspect(CLI::App& app);
 void register_anneal(CLI::App& app);
 void register_figure(CLI::App& app);
 void register_generate(CLI::App& app);
+void register_gap(CLI::App& app);
 
 }  // namespace gapwise::cli

@@ -31,6 +31,7 @@ int main(int argc, char** argv) {
   cli::register_anneal(app);
   cli::register_figure(app);
   cli::register_generate(app);
+  cli::register_gap(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -4,6 +4,7 @@
 #include <chrono>
 #include <cmath>
 #include <limits>
+#include <map>
 #include <numbers>
 
 #include <boost/math/tools/minima.hpp>
@@ -62,6 +63,40 @@ SpectrumPoint spectrum_at(const SectorHamiltonian& h, const EnergyScales& scales
   p.gap_10_ghz = k > 1 ? p.energies_ghz[1] - p.energies_ghz[0] : 0.0;
   p.matrix_element_ghz = gi > 0 ? subspace_element(p.energies_ghz, elements, gi, tol) : 0.0;
   p.matrix_element_10_ghz = k > 1 ? subspace_element(p.energies_ghz, elements, 1, tol) : 0.0;
+  return p;
+}
+
+std::vector<double> spectrum_point_values(const SpectrumPoint& p) {
+  std::vector<double> v{p.a_ghz, p.b_ghz};
+  v.insert(v.end(), p.energies_ghz.begin(), p.energies_ghz.end());
+  v.insert(v.end(), p.slopes_ghz.begin(), p.slopes_ghz.end());
+  v.insert(v.end(), {p.gap_ghz, p.gap_10_ghz, p.matrix_element_ghz, p.matrix_element_10_ghz, p.error_bound_ghz});
+  return v;
+}
+
+std::vector<std::string> spectrum_point_value_names(int levels) {
+  std::vector<std::string> n{"a_ghz", "b_ghz"};
+  for (int j = 0; j < levels; ++j) n.push_back(fmt::format("e{}_ghz", j));
+  for (int j = 0; j < levels; ++j) n.push_back(fmt::format("slope{}_ghz", j));
+  for (const char* x : {"gap_ghz", "gap_10_ghz", "matrix_element_ghz", "matrix_element_10_ghz", "error_bound_ghz"})
+    n.push_back(x);
+  return n;
+}
+
+SpectrumPoint spectrum_point_from_values(double s, const std::vector<double>& v, int levels) {
+  const std::size_t k = static_cast<std::size_t>(levels);
+  if (v.size() != 2 * k + 7) throw std::runtime_error("spectrum point record of the wrong length");
+  SpectrumPoint p;
+  p.s = s;
+  p.a_ghz = v[0];
+  p.b_ghz = v[1];
+  p.energies_ghz.assign(v.begin() + 2, v.begin() + 2 + static_cast<long>(k));
+  p.slopes_ghz.assign(v.begin() + 2 + static_cast<long>(k), v.begin() + 2 + 2 * static_cast<long>(k));
+  p.gap_ghz = v[2 * k + 2];
+  p.gap_10_ghz = v[2 * k + 3];
+  p.matrix_element_ghz = v[2 * k + 4];
+  p.matrix_element_10_ghz = v[2 * k + 5];
+  p.error_bound_ghz = v[2 * k + 6];
   return p;
 }
 
@@ -137,9 +172,9 @@ class GapSearch {
   int g_ = 1, k_ = 4;
   std::size_t evaluations_ = 0, planned_ = 0;
   const char* stage_ = "";
+  std::map<double, SpectrumPoint> memo_;
 
   void setup() {
-    const IsingProblem& p = full_.problem();
     r_.sector = sector_;
     r_.s_first = o_.s_first.value_or(scales_.s_first());
     r_.s_last = o_.s_last.value_or(scales_.s_last());
@@ -154,44 +189,44 @@ class GapSearch {
     if (!(o_.s_tolerance > 0.0 && o_.s_tolerance < 0.1))
       throw InputError({"s tolerance", 0, 0, "s-tolerance"},
                        fmt::format("s tolerance {} is out of range", o_.s_tolerance), "use a value in (0, 0.1), e.g. 1e-6");
-    gm_ = find_ground_manifold(p, full_.diagonal());
+    const GapSearchPlan plan = plan_gap_search(full_, o_);
+    gm_ = plan.ground;
     r_.classical_ground_states = gm_.degeneracy();
-    g_ = 0;
-    for (BasisIndex b : gm_.states)
-      if (b < sh_.dim()) ++g_;  // one representative per pair in a sector
-    if (static_cast<std::size_t>(g_) >= sh_.dim())
-      throw InputError({"problem", 0, 0, "problem"},
-                       fmt::format("all {} basis states of the {} are classical ground states: there is no level "
-                                   "outside the ground manifold, so no gap to find",
-                                   sh_.dim(), describe_sector(sector_)),
-                       "add couplings or fields that single out a ground state");
-    if (g_ + 1 > 128)
-      throw InputError({"problem", 0, 0, "problem"},
-                       fmt::format("the ground manifold holds {} states in the {}; following {} levels is beyond this "
-                                   "search", g_, describe_sector(sector_), g_ + 1),
-                       "lift the degeneracy with small fields or couplings");
+    g_ = plan.ground_degeneracy;
     r_.ground_degeneracy = g_;
-    k_ = std::max(o_.levels, g_ + 1);
-    k_ = static_cast<int>(std::min<std::size_t>(static_cast<std::size_t>(k_), sh_.dim()));
+    k_ = plan.levels;
     r_.levels = k_;
     if (k_ > o_.levels)
       r_.flags.push_back(fmt::format("levels raised from {} to {} so that the first level outside the {}-fold ground "
                                      "manifold is followed",
                                      o_.levels, k_, g_));
     r_.definition = gap_definition(g_);
-    lo_.method = o_.method;
+    lo_.method = plan.method;
     lo_.check_missed_levels = o_.check_missed_levels;
     lo_.tolerance = o_.lanczos_tolerance;
-    EigenMethod m = o_.method;
-    if (m == EigenMethod::Auto) m = sh_.dim() <= kDenseMaxDim ? EigenMethod::Dense : EigenMethod::Lanczos;
-    if (m == EigenMethod::Lanczos && static_cast<std::size_t>(k_) + 2 > sh_.dim()) m = EigenMethod::Dense;
+    const EigenMethod m = plan.method;
     r_.method = m;
   }
 
   SpectrumPoint evaluate(double s, int origin) {
-    SpectrumPoint p = spectrum_at(sh_, scales_, s, k_, g_, lo_);
+    if (auto it = memo_.find(s); it != memo_.end()) {  // Brent may ask for a point twice
+      SpectrumPoint p = it->second;
+      p.origin = origin;
+      return p;
+    }
+    std::optional<SpectrumPoint> known = o_.lookup ? o_.lookup(s) : std::nullopt;
+    SpectrumPoint p;
+    if (known && known->energies_ghz.size() == static_cast<std::size_t>(k_)) {
+      p = std::move(*known);
+      ++r_.resumed_points;
+    } else {
+      p = spectrum_at(sh_, scales_, s, k_, g_, lo_);
+      if (o_.record) o_.record(p);
+    }
     p.origin = origin;
+    memo_[s] = p;
     ++evaluations_;
+    r_.evaluations = evaluations_;
     planned_ = std::max(planned_, evaluations_);
     if (o_.progress) o_.progress(GapSearchProgress{evaluations_, planned_, s, stage_});
     return p;
@@ -200,6 +235,7 @@ class GapSearch {
   void insert(SpectrumPoint p) {
     auto it = std::lower_bound(r_.curve.begin(), r_.curve.end(), p.s,
                                [](const SpectrumPoint& a, double s) { return a.s < s; });
+    if (it != r_.curve.end() && it->s == p.s) return;  // already on the curve
     r_.curve.insert(it, std::move(p));
   }
 
@@ -492,16 +528,46 @@ class GapSearch {
       r_.flags.push_back(fmt::format("at the last s = {} the transverse scale A = {:.3g} GHz is not zero: the final "
                                      "levels are close to, not exactly, classical states",
                                      s, scales_.a_ghz(s)));
-    r_.missed_levels_found = 0;
   }
 };
 
 }  // namespace
 
+GapSearchPlan plan_gap_search(const TransverseIsingHamiltonian& h, const GapSearchOptions& o) {
+  GapSearchPlan plan;
+  plan.sector = o.sector.value_or(default_sector(h.problem()));
+  check_gap_search_size(h.qubits(), plan.sector, std::max(o.levels, 1), o.method, "problem");
+  const SectorHamiltonian sh(h, plan.sector);  // refuses a sector the problem does not have
+  plan.dimension = sh.dim();
+  plan.ground = find_ground_manifold(h.problem(), h.diagonal());
+  int g = 0;
+  for (BasisIndex b : plan.ground.states)
+    if (b < sh.dim()) ++g;  // one representative per pair in a sector
+  if (static_cast<std::size_t>(g) >= sh.dim())
+    throw InputError({"problem", 0, 0, "problem"},
+                     fmt::format("all {} basis states of the {} are classical ground states: there is no level "
+                                 "outside the ground manifold, so no gap to find",
+                                 sh.dim(), describe_sector(plan.sector)),
+                     "add couplings or fields that single out a ground state");
+  if (g + 1 > 128)
+    throw InputError({"problem", 0, 0, "problem"},
+                     fmt::format("the ground manifold holds {} states in the {}; following {} levels is beyond this "
+                                 "search",
+                                 g, describe_sector(plan.sector), g + 1),
+                     "lift the degeneracy with small fields or couplings");
+  plan.ground_degeneracy = g;
+  plan.levels = static_cast<int>(std::min<std::size_t>(static_cast<std::size_t>(std::max(o.levels, g + 1)), sh.dim()));
+  EigenMethod m = o.method;
+  if (m == EigenMethod::Auto) m = sh.dim() <= kDenseMaxDim ? EigenMethod::Dense : EigenMethod::Lanczos;
+  if (m == EigenMethod::Lanczos && static_cast<std::size_t>(plan.levels) + 2 > sh.dim()) m = EigenMethod::Dense;
+  plan.method = m;
+  plan.memory_bytes = estimate_gap_search_bytes(h.qubits(), plan.sector, plan.levels, m);
+  if (plan.levels > o.levels) check_gap_search_size(h.qubits(), plan.sector, plan.levels, m, "problem");
+  return plan;
+}
+
 MinimumGapReport find_minimum_gap(const TransverseIsingHamiltonian& h, const EnergyScales& scales,
                                   const GapSearchOptions& options) {
-  const SpinFlipSector sector = options.sector.value_or(default_sector(h.problem()));
-  check_gap_search_size(h.qubits(), sector, std::max(options.levels, 1), options.method, "problem");
   GapSearch search(h, scales, options);
   return search.run();
 }

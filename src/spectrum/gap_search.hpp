@@ -18,7 +18,7 @@
 // coarse points is not missed; then Brent's method (Boost.Math
 // brent_find_minima; Brent, "Algorithms for Minimization without Derivatives",
 // 1973) on each local minimum of the gap. Uncertainties: the eigenvalue error
-// bound from residual norms (|E - E_exact| <= ||H v - E v||, Weinstein/Kato)
+// bound from residual norms (|E - E_exact| <= ||H v - E v||, Weinstein's bound)
 // plus Brent's bracket and the curvature of the gap at s*.
 //
 //   TransverseIsingHamiltonian H(problem);
@@ -91,7 +91,17 @@ struct GapSearchOptions {
   double lanczos_tolerance = 1e-12;
   std::optional<double> s_first, s_last;  ///< default: the range the energy scales cover
   std::function<void(const GapSearchProgress&)> progress;  ///< called after each point
+  /// Resuming a long search: `lookup` is asked before each eigenproblem (return the
+  /// point when it is already known), `record` is told every newly computed point.
+  /// The command line backs both with a ResultJournal (see spectrum_point_values).
+  std::function<std::optional<SpectrumPoint>(double s)> lookup;
+  std::function<void(const SpectrumPoint&)> record;
 };
+
+/// A point as a flat list of numbers (for journals) and back; `levels` is k.
+std::vector<double> spectrum_point_values(const SpectrumPoint& p);
+std::vector<std::string> spectrum_point_value_names(int levels);
+SpectrumPoint spectrum_point_from_values(double s, const std::vector<double>& values, int levels);
 
 /// A local minimum of the governing gap, after refinement.
 struct GapMinimum {
@@ -137,7 +147,8 @@ struct MinimumGapReport {
   int levels = 4;                           ///< k actually used
   EigenMethod method = EigenMethod::Auto;   ///< solver actually used
   double s_first = 0.0, s_last = 1.0;
-  int missed_levels_found = 0;              ///< total from the Lanczos deflation checks
+  std::size_t evaluations = 0;              ///< eigenproblems solved (main sector)
+  std::size_t resumed_points = 0;           ///< points taken from `lookup` instead
   double wall_seconds = 0.0;
 };
 
@@ -153,6 +164,20 @@ void check_gap_search_size(int qubits, SpinFlipSector sector, int levels, EigenM
 
 /// The sector the search uses for this problem when none is requested.
 SpinFlipSector default_sector(const IsingProblem& problem);
+
+/// What a search will do before it starts: sector, dimension, ground degeneracy g,
+/// levels k, solver and memory. find_minimum_gap follows exactly this plan.
+struct GapSearchPlan {
+  SpinFlipSector sector = SpinFlipSector::Full;
+  std::size_t dimension = 0;        ///< of the sector
+  GroundManifold ground;            ///< classical ground manifold (full space)
+  int ground_degeneracy = 1;        ///< g in the sector
+  int levels = 4;                   ///< k = max(requested, g + 1)
+  EigenMethod method = EigenMethod::Auto;  ///< resolved: Dense or Lanczos
+  double memory_bytes = 0.0;
+};
+/// Throws InputError for an impossible request (see find_minimum_gap).
+GapSearchPlan plan_gap_search(const TransverseIsingHamiltonian& h, const GapSearchOptions& options);
 
 /// The full search. Throws InputError for an impossible request (sector with fields,
 /// no level outside the ground manifold, too many qubits), std::runtime_error when an
