@@ -78,8 +78,18 @@ void for_finite_runs(const std::vector<double>& x, const std::vector<double>& y,
 
 }  // namespace
 
-void render_figure(const LinePlot& plot, const std::string& path) {
+void render_figure(const LinePlot& requested, const std::string& path) {
   check_output_path(path, "figure");
+  // A log axis over less than a decade and a half shows one or two labels at
+  // most; such data read better on a linear axis.
+  LinePlot plot = requested;
+  for (bool y : {false, true}) {
+    bool& log = y ? plot.log_y : plot.log_x;
+    if (log && !(y ? plot.y_range : plot.x_range)) {
+      auto [lo, hi] = range_of(plot.series, y, true);
+      if (hi - lo < 1.5) log = false;
+    }
+  }
   auto [x0, x1] = plot.x_range ? std::pair{plot.log_x ? std::log10(plot.x_range->first) : plot.x_range->first,
                                            plot.log_x ? std::log10(plot.x_range->second) : plot.x_range->second}
                                : range_of(plot.series, false, plot.log_x);
@@ -112,6 +122,10 @@ void render_figure(const LinePlot& plot, const std::string& path) {
     std::vector<const char*> texts, syms;
     int next = 0;
     for (const auto& ser : plot.series) {
+      bool any = false;  // a series with no finite point is left out, legend included
+      for (std::size_t k = 0; k < std::min(ser.x.size(), ser.y.size()); ++k)
+        any = any || (std::isfinite(ser.x[k]) && std::isfinite(ser.y[k]) && (!plot.log_y || ser.y[k] > 0));
+      if (!any) continue;
       const int col = 2 + ((ser.color >= 0 ? ser.color : next++) % kPaletteSize);
       const auto xs = transformed(ser.x, plot.log_x), ys = transformed(ser.y, plot.log_y);
       p.col0(col);
@@ -151,7 +165,14 @@ void render_figure(const LinePlot& plot, const std::string& path) {
       PLFLT lw, lh;
       std::vector<PLINT> tcol(texts.size(), 1), bcol(texts.size(), 0), bpat(texts.size(), 0);
       std::vector<PLFLT> bsc(texts.size(), 0), blw(texts.size(), 0);
-      p.legend(&lw, &lh, PL_LEGEND_BACKGROUND | PL_LEGEND_BOUNDING_BOX, PL_POSITION_TOP | PL_POSITION_RIGHT | PL_POSITION_INSIDE,
+      PLINT where = PL_POSITION_INSIDE;
+      switch (plot.legend) {
+        case LinePlot::Legend::TopRight: where |= PL_POSITION_TOP | PL_POSITION_RIGHT; break;
+        case LinePlot::Legend::BottomRight: where |= PL_POSITION_BOTTOM | PL_POSITION_RIGHT; break;
+        case LinePlot::Legend::TopLeft: where |= PL_POSITION_TOP | PL_POSITION_LEFT; break;
+        case LinePlot::Legend::BottomLeft: where |= PL_POSITION_BOTTOM | PL_POSITION_LEFT; break;
+      }
+      p.legend(&lw, &lh, PL_LEGEND_BACKGROUND | PL_LEGEND_BOUNDING_BOX, where,
                0.02, 0.02, 0.08, 0, 1, 1, 0, 0, static_cast<PLINT>(texts.size()), opt.data(), 1.0, 0.8, 2.0, 0.0,
                tcol.data(), texts.data(), bcol.data(), bpat.data(), bsc.data(), blw.data(), lcol.data(), lsty.data(),
                lwid.data(), scol.data(), sscale.data(), snum.data(), syms.data());

@@ -37,6 +37,7 @@ struct LinePlot {
   std::vector<double> vertical_lines;
   std::optional<std::pair<double, double>> x_range, y_range;
   std::string note;  ///< a line of small text under the title
+  enum class Legend { TopRight, BottomRight, TopLeft, BottomLeft } legend = Legend::TopRight;
 };
 
 struct HeatMap {

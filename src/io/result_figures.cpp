@@ -23,6 +23,7 @@ void anneal_trace(const Hdf5Input& in, const Emit& emit) {
   fig.x_label = "time t (ns)";
   fig.y_label = "probability / anneal fraction";
   fig.y_range = std::pair{0.0, 1.05};
+  fig.legend = LinePlot::Legend::TopLeft;
   fig.note = fmt::format("final ground-state probability {:.6f}", in.attribute_double("/anneal", "ground_probability"));
   fig.series.push_back({"ground-state probability", t, p, SeriesStyle::LinePoints});
   fig.series.push_back({"anneal fraction s(t)", t, s, SeriesStyle::Dashed});
@@ -62,6 +63,7 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
   gaps.x_label = "anneal fraction s";
   gaps.y_label = "gap (GHz)";
   gaps.log_y = true;
+  gaps.legend = LinePlot::Legend::BottomLeft;
   auto positive = [](std::vector<double> v) {
     for (double& x : v) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
     return v;
@@ -71,6 +73,52 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
     gaps.series.push_back({"E1 - E0", s, positive(in.read(G + "/curve/gap_e1_e0")), SeriesStyle::Dashed, 1});
   if (gap > 0) gaps.markers.push_back({s_star, gap, fmt::format("min {:.3g} GHz", gap)});
   emit("gap", [&](const std::string& path) { render_figure(gaps, path); });
+}
+
+// Duration studies: p(t_f) with the predictions beside it, and TTS with its optimum.
+void duration_study(const Hdf5Input& in, const Emit& emit) {
+  const std::string R = "/durations", P = R + "/points";
+  if (!in.has(P + "/duration_ns")) return;
+  const auto t = in.read(P + "/duration_ns"), p = in.read(P + "/ground_probability");
+  const double target = in.attribute_double(R, "target_probability");
+  auto applicable = [](std::vector<double> v) {  // -1 marks "not applicable"
+    for (double& x : v) if (x < 0) x = std::numeric_limits<double>::quiet_NaN();
+    return v;
+  };
+  LinePlot fp;
+  fp.title = "Ground-state probability against anneal duration";
+  fp.x_label = "anneal duration t_f (ns)";
+  fp.y_label = "ground-state probability p";
+  fp.log_x = true;
+  fp.y_range = std::pair{0.0, 1.05};
+  fp.legend = LinePlot::Legend::BottomRight;
+  fp.series.push_back({"simulated", t, p, SeriesStyle::LinePoints, 0});
+  if (in.has(P + "/p_landau_zener"))
+    fp.series.push_back({"Landau-Zener at the minimum gap", t, applicable(in.read(P + "/p_landau_zener")), SeriesStyle::Dashed, 1});
+  if (in.has(P + "/p_adiabatic"))
+    fp.series.push_back({"adiabatic-condition estimate", t, applicable(in.read(P + "/p_adiabatic")), SeriesStyle::Dashed, 2});
+  fp.series.push_back({fmt::format("target p* = {}", target), {t.front(), t.back()}, {target, target}, SeriesStyle::Line, 6});
+  if (in.has(R + "/predictions"))
+    fp.note = fmt::format("minimum gap {:.4g} GHz at s* = {:.4f}", in.attribute_double(R + "/predictions", "gap_ghz"),
+                          in.attribute_double(R + "/predictions", "s_star"));
+  emit("probability", [&](const std::string& path) { render_figure(fp, path); });
+
+  LinePlot ft;
+  ft.title = fmt::format("Time to solution for p* = {}", target);
+  ft.x_label = "anneal duration t_f (ns)";
+  ft.y_label = "TTS (ns)";
+  ft.log_x = ft.log_y = true;
+  auto tts = in.read(P + "/tts_ns");
+  for (double& x : tts) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
+  ft.series.push_back({"TTS(t_f) = t_f ln(1-p*)/ln(1-p)", t, tts, SeriesStyle::LinePoints, 0});
+  if (in.has(R + "/tts_optimum")) {
+    const double d = in.attribute_double(R + "/tts_optimum", "duration_ns"), v = in.attribute_double(R + "/tts_optimum", "tts_ns");
+    if (v > 0) {
+      ft.markers.push_back({d, v, fmt::format("optimum {:.3g} ns at t_f = {:.3g} ns", v, d)});
+      ft.note = fmt::format("optimal t_f = {:.4g} ns, TTS = {:.4g} ns", d, v);
+    }
+  }
+  emit("tts", [&](const std::string& path) { render_figure(ft, path); });
 }
 
 }  // namespace
@@ -97,6 +145,7 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
       throw InputError({"--format", 0, 0, "--format"}, fmt::format("unknown figure format '{}'", f), "use svg and/or png");
   anneal_trace(in, emit);
   spectrum(in, emit);
+  duration_study(in, emit);
   if (written.empty())
     throw InputError({result_file, 0, 0, ""}, "this file holds no result that gapwise can draw",
                      "give a file written with --out by anneal or another study subcommand");
