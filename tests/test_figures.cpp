@@ -57,3 +57,18 @@ TEST_CASE("figure: a file that is not a result is refused with exit code 2") {
   CHECK(f.exit_code == 2);
   CHECK(f.err.find("junk.h5") != std::string::npos);
 }
+
+TEST_CASE("figure: a gap result gives the spectrum and gap figures") {
+  TempDir dir;
+  const std::string h5 = (dir.path / "gap.h5").string();
+  auto g = run_gapwise("gap '" + (source_dir() / "data-samples/triangle.toml").string() + "' '" +
+                           (source_dir() / "schedules/linear.toml").string() + "' --points 31 --out '" + h5 + "'",
+                       dir);
+  INFO(g.err);
+  REQUIRE(g.exit_code == 0);
+  auto f = run_gapwise("figure '" + h5 + "' --out-dir '" + (dir.path / "figs").string() + "'", dir);
+  INFO(f.err);
+  REQUIRE(f.exit_code == 0);
+  for (const char* name : {"gap-spectrum.svg", "gap-spectrum.png", "gap-gap.svg", "gap-gap.png"})
+    gapwise::testing::check_figure_file(dir.path / "figs" / name);
+}
