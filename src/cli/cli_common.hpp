@@ -25,6 +25,7 @@ std::string& command_line();
 /// One registration function per subcommand file.
 void register_inspect(CLI::App& app);
 void register_anneal(CLI::App& app);
+void register_diagnose(CLI::App& app);
 void register_figure(CLI::App& app);
 void register_generate(CLI::App& app);
 void register_gap(CLI::App& app);

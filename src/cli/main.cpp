@@ -29,6 +29,7 @@ int main(int argc, char** argv) {
   app.require_subcommand(1);
   cli::register_inspect(app);
   cli::register_anneal(app);
+  cli::register_diagnose(app);
   cli::register_figure(app);
   cli::register_generate(app);
   cli::register_gap(app);

@@ -1,0 +1,127 @@
+// `gapwise diagnose PROBLEM SCHEDULE -d T [-d T2 ...]`: why an anneal loses the
+// ground state. Ranked loss channels with one-line verdicts; the library
+// (studies/loss_diagnosis.hpp) does the work, io/diagnosis_output.hpp prints it.
+#include <cmath>
+#include <iostream>
+#include <memory>
+#include <optional>
+
+#include <fmt/format.h>
+
+#include "cli/cli_common.hpp"
+#include "hamiltonian/memory_budget.hpp"
+#include "io/atomic_file.hpp"
+#include "io/diagnosis_output.hpp"
+#include "io/input_error.hpp"
+
+namespace gapwise::cli {
+namespace {
+
+struct DiagnoseOptions {
+  std::string problem, schedule, out, propagator = "odeint";
+  std::vector<double> durations_ns;
+  std::optional<double> control_tolerance;
+  double tolerance = 1e-6, sigma_h = 0.03, sigma_j = 0.03, window = 5.0, target_loss = 0.01;
+  bool relative = false, json = false, quiet = false, no_control_gaps = false;
+  int levels = 4, threads = 0;
+  long long samples = 100;
+  unsigned long long seed = 1;
+};
+
+void run_diagnose(const DiagnoseOptions& o) {
+  const IsingProblem p = read_problem_file(o.problem);
+  const Schedule sch = read_schedule_file(o.schedule);
+  if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
+    throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
+                     "use a value between 1e-12 and 1e-2 (default 1e-6)");
+  if (o.sigma_h < 0 || o.sigma_j < 0)
+    throw InputError({"--sigma-h/--sigma-j", 0, 0, "--sigma-h"}, "a control-error sigma is negative",
+                     "give sigmas >= 0 (0 switches that error off)");
+  if (o.samples < 0)
+    throw InputError({"--samples", 0, 0, "--samples"}, "the sample count is negative", "use 0 to skip the Monte Carlo");
+  if (!(o.target_loss > 0 && o.target_loss < 1))
+    throw InputError({"--target-loss", 0, 0, "--target-loss"}, fmt::format("target loss {} is outside (0, 1)", o.target_loss),
+                     "e.g. --target-loss 0.01");
+  if (!o.out.empty()) check_output_path(o.out, "--out");
+  check_memory(p.qubits, 12, 0, o.problem);
+
+  DiagnosisOptions d;
+  d.durations_ns = o.durations_ns;
+  d.simulation.propagator = o.propagator;
+  d.simulation.propagation.tolerance = o.tolerance;
+  d.gap.levels = o.levels;
+  d.overlap.levels = o.levels;
+  d.window_factor = o.window;
+  d.target_loss = o.target_loss;
+  d.control_gaps = !o.no_control_gaps;
+  d.control_tolerance = o.control_tolerance;
+  if (o.samples > 0) {
+    ControlEnsembleOptions c;
+    c.model = {o.sigma_h, o.sigma_j, o.relative};
+    c.samples = static_cast<std::uint64_t>(o.samples);
+    c.seed = o.seed;
+    c.threads = o.threads;
+    d.control = c;
+  }
+  if (!o.quiet)
+    d.progress = [](const DiagnosisProgress& pr) {
+      std::cerr << fmt::format("\r[diagnose] {} {}/{}   ", pr.stage, pr.done, pr.total);
+      if (pr.done == pr.total) std::cerr << "\n";
+    };
+  const Diagnosis result = diagnose_anneal(p, sch, d);
+  const DiagnosisContext ctx{o.problem, o.schedule, command_line(), p.qubits, sch.description};
+  if (o.json)
+    std::cout << to_json(diagnosis_json(result, ctx)) << "\n";
+  else
+    std::cout << diagnosis_report_text(result, ctx);
+  if (!o.out.empty()) write_diagnosis_hdf5(result, ctx, o.out);
+}
+
+}  // namespace
+
+void register_diagnose(CLI::App& app) {
+  auto o = std::make_shared<DiagnoseOptions>();
+  CLI::App* sub = app.add_subcommand("diagnose",
+      "Why does an anneal of PROBLEM along SCHEDULE lose the ground state? For each\n"
+      "duration, a ranked list of loss channels with a one-line verdict each:\n"
+      "  avoided crossing  each interior gap minimum: s*, Delta_min, the Landau-Zener\n"
+      "                    loss predicted and the population the simulation moves\n"
+      "                    out of the levels ending in the ground manifold there;\n"
+      "  late crossing     a crossing where the ground level switches from an excited\n"
+      "                    classical level to the ground manifold (faster anneals end\n"
+      "                    on the excited level);\n"
+      "  elsewhere         loss not at a gap minimum;\n"
+      "  unfair sampling   a degenerate ground manifold shared unevenly (costs no p);\n"
+      "  control errors    Monte Carlo over Gaussian errors on h and J: how often the\n"
+      "                    programmed problem has another ground state, and the p left.\n"
+      "Also where the lost probability goes (excited states, energies, spin flips to\n"
+      "the nearest ground state). Forward anneals only (s never decreasing).\n"
+      "Example: gapwise diagnose data-samples/weak-field-ring.toml schedules/linear.toml -d 20 -d 200 --out why.h5");
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("-d,--duration-ns", o->durations_ns, "anneal duration(s) in ns; repeat for several")->required();
+  sub->add_option("--tolerance", o->tolerance, "target accuracy of the simulated probabilities")->capture_default_str();
+  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  sub->add_option("--levels", o->levels, "lowest levels tracked in the gap search and overlap track")->capture_default_str();
+  sub->add_option("--window", o->window,
+                  "populations around a crossing are read where the gap is this many times Delta_min")->capture_default_str();
+  sub->add_option("--target-loss", o->target_loss,
+                  "loss per crossing the verdicts size the duration for (Landau-Zener)")->capture_default_str();
+  sub->add_option("--sigma-h", o->sigma_h, "control error on each field h_i (standard deviation)")->capture_default_str();
+  sub->add_option("--sigma-j", o->sigma_j, "control error on each programmed coupling J_ij")->capture_default_str();
+  sub->add_flag("--relative", o->relative, "sigmas are fractions of |h_i| and |J_ij| instead of absolute values");
+  sub->add_option("--samples", o->samples, "Monte Carlo samples of control errors (0: skip)")->capture_default_str();
+  sub->add_option("--seed", o->seed, "seed of the Monte Carlo (stored in the output)")->capture_default_str();
+  sub->add_option("--threads", o->threads, "threads for the Monte Carlo (0: OpenMP default; results do not depend on it)")
+      ->capture_default_str();
+  sub->add_option("--control-tolerance", o->control_tolerance,
+                  "propagator tolerance of the perturbed anneals (default: --tolerance; looser is faster)");
+  sub->add_flag("--no-control-gaps", o->no_control_gaps, "skip the gap search of every perturbed problem (faster)");
+  sub->add_option("--out", o->out, "write an HDF5 file (curves, crossings, per-duration results, every sample)");
+  sub->add_flag("--json", o->json, "print JSON instead of the text report");
+  sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
+  sub->callback([o] { run_diagnose(*o); });
+}
+
+}  // namespace gapwise::cli

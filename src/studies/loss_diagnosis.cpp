@@ -1,0 +1,371 @@
+#include "studies/loss_diagnosis.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numbers>
+#include <stdexcept>
+
+#include <fmt/format.h>
+
+#include "dynamics/level_population_observer.hpp"
+#include "hamiltonian/spin_flip_sector.hpp"
+#include "io/input_error.hpp"
+
+namespace gapwise {
+
+const char* channel_kind_name(ChannelKind k) {
+  switch (k) {
+    case ChannelKind::AvoidedCrossing: return "avoided crossing";
+    case ChannelKind::LateCrossing: return "late crossing";
+    case ChannelKind::EndGap: return "end gap";
+    case ChannelKind::Elsewhere: return "elsewhere";
+    case ChannelKind::UnfairSampling: return "unfair sampling";
+    case ChannelKind::ControlErrors: return "control errors";
+  }
+  return "?";
+}
+
+double crossing_diabatic_slope_ghz(const GapMinimum& m) {
+  return std::sqrt(std::max(0.0, m.gap_ghz * m.curvature_ghz));
+}
+
+namespace {
+
+/// First time at which the path reaches s (non-decreasing path); nullopt when it never does.
+std::optional<double> first_time_at(const AnnealPath& path, double s) {
+  const auto& p = path.points();
+  if (p.empty() || s < p.front().s) return std::nullopt;
+  if (s == p.front().s) return p.front().t_ns;
+  for (std::size_t k = 0; k + 1 < p.size(); ++k) {
+    if (p[k].s < s && s <= p[k + 1].s)
+      return p[k].t_ns + (s - p[k].s) / (p[k + 1].s - p[k].s) * (p[k + 1].t_ns - p[k].t_ns);
+  }
+  return std::nullopt;
+}
+
+void require_forward(const Schedule& schedule, const AnnealPath& path) {
+  const auto& p = path.points();
+  for (std::size_t k = 0; k + 1 < p.size(); ++k)
+    if (p[k + 1].s < p[k].s)
+      throw InputError({schedule.source, 0, 0, "path.points"},
+                       fmt::format("the path goes back from s = {} to s = {}: the diagnosis follows forward anneals only",
+                                   p[k].s, p[k + 1].s),
+                       "use a path whose s never decreases (pauses are fine); reverse anneals are not diagnosed");
+  if (schedule.start.kind != StartKind::Ground)
+    throw InputError({schedule.source, 0, 0, "path.start"}, "the diagnosis needs a forward anneal from the ground state of H(s0)",
+                     "remove start = \"classical\" from the schedule");
+}
+
+/// Window around a minimum on the gap curve: outwards until the gap reaches
+/// factor * Delta_min or stops rising (a neighbouring minimum follows).
+std::pair<double, double> crossing_window(const MinimumGapReport& g, const GapMinimum& m, double factor) {
+  const auto& c = g.curve;
+  std::size_t i = 0;
+  while (i + 1 < c.size() && c[i + 1].s <= m.s) ++i;  // last point at or below s*
+  std::size_t lo = i;
+  while (lo > 0 && c[lo].gap_ghz < factor * m.gap_ghz && c[lo - 1].gap_ghz >= c[lo].gap_ghz) --lo;
+  std::size_t hi = std::min(i + 1, c.size() - 1);
+  while (hi + 1 < c.size() && c[hi].gap_ghz < factor * m.gap_ghz && c[hi + 1].gap_ghz >= c[hi].gap_ghz) ++hi;
+  double a = std::min(c[lo].s, m.s), b = std::max(c[hi].s, m.s);
+  return {a, b};
+}
+
+/// Population of the levels that end in the ground manifold: the full-space
+/// levels below the midpoint between E_{g-1} and E_g of the sector.
+double ground_block_population(const LevelPopulations& lp, double cutoff_ghz) {
+  double p = 0;
+  for (std::size_t l = 0; l < lp.energies_ghz.size(); ++l)
+    if (std::isfinite(lp.energies_ghz[l]) && lp.energies_ghz[l] < cutoff_ghz) p += lp.populations[l];
+  return p;
+}
+
+std::string share_list(const OutcomeAnalysis& oa, int qubits, std::size_t most) {
+  std::vector<GroundStateShare> g = oa.ground;
+  std::sort(g.begin(), g.end(), [](const auto& x, const auto& y) { return x.probability > y.probability; });
+  std::string s;
+  for (std::size_t k = 0; k < g.size() && k < most; ++k)
+    s += fmt::format("{}{} {:.3f}", k ? ", " : "", bits_string(g[k].state, qubits), g[k].probability);
+  if (g.size() > most) s += fmt::format(", ... ({} more)", g.size() - most);
+  return s;
+}
+
+}  // namespace
+
+AnnealPath with_waypoints_at(const AnnealPath& path, const std::vector<double>& s_values) {
+  std::vector<Waypoint> pts = path.points();
+  for (double s : s_values) {
+    const auto t = first_time_at(path, s);
+    if (!t) continue;
+    bool present = false;
+    for (const auto& w : pts) present = present || std::abs(w.t_ns - *t) <= 1e-12 * std::max(1.0, path.duration_ns());
+    if (present) continue;
+    pts.push_back({*t, path.s_at(*t)});
+  }
+  std::sort(pts.begin(), pts.end(), [](const Waypoint& a, const Waypoint& b) { return a.t_ns < b.t_ns; });
+  return AnnealPath(pts);
+}
+
+Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule, const DiagnosisOptions& o) {
+  if (o.durations_ns.empty()) throw InputError({"--duration-ns", 0, 0, "--duration-ns"}, "no duration given",
+                                               "give one or more durations, e.g. -d 20 -d 100");
+  for (double d : o.durations_ns)
+    if (!(d > 0)) throw InputError({"--duration-ns", 0, 0, "--duration-ns"}, fmt::format("duration {} ns is not positive", d),
+                                   "durations are in ns and must be > 0");
+  auto report = [&](const std::string& stage, std::size_t done, std::size_t total) {
+    if (o.progress) o.progress({stage, done, total});
+  };
+  const AnnealPath shape = schedule.path_for(o.durations_ns.front());
+  require_forward(schedule, shape);
+
+  Diagnosis d;
+  d.durations_ns = o.durations_ns;
+  const TransverseIsingHamiltonian H(problem);
+  d.ground = find_ground_manifold(problem, H.diagonal());
+
+  // 1. Spectrum along the path's range of s.
+  GapSearchOptions gopt = o.gap;
+  gopt.s_first = shape.s_min();
+  gopt.s_last = shape.s_max();
+  report("gap search", 0, 1);
+  d.gap = find_minimum_gap(H, schedule.scales, gopt);
+  report("overlap track", 0, 1);
+  d.overlap = track_ground_overlap(H, d.ground, schedule.scales, o.overlap);
+
+  // 2. Interior minima become crossings; late crossings are matched to them.
+  std::vector<double> window_s;
+  for (const GapMinimum& m : d.gap.minima) {
+    if (m.at_end_point) continue;
+    AvoidedCrossing c;
+    c.minimum = m;
+    c.diabatic_slope_ghz = crossing_diabatic_slope_ghz(m);
+    std::tie(c.window_s_before, c.window_s_after) = crossing_window(d.gap, m, o.window_factor);
+    double best = std::numeric_limits<double>::infinity();
+    for (std::size_t x = 0; x < d.overlap.late_crossings.size(); ++x) {
+      const double sx = d.overlap.late_crossings[x].s_switch;
+      if (sx >= c.window_s_before && sx <= c.window_s_after && std::abs(sx - m.s) < best) {
+        best = std::abs(sx - m.s);
+        c.late_crossing = x;
+      }
+    }
+    window_s.push_back(c.window_s_before);
+    window_s.push_back(c.window_s_after);
+    d.crossings.push_back(std::move(c));
+  }
+  if (d.gap.at_end_point && !d.gap.curve.empty()) {
+    // The smallest gap at an end of the path: from where the gap has opened to the end.
+    AvoidedCrossing c;
+    c.at_end_point = true;
+    c.minimum.s = d.gap.s_star;
+    c.minimum.s_uncertainty = d.gap.s_star_uncertainty;
+    c.minimum.gap_ghz = d.gap.gap_ghz;
+    c.minimum.gap_uncertainty_ghz = d.gap.gap_uncertainty_ghz;
+    c.minimum.at_end_point = true;
+    const auto& cv = d.gap.curve;
+    const bool at_start = std::abs(d.gap.s_star - cv.front().s) < std::abs(d.gap.s_star - cv.back().s);
+    if (at_start) {
+      std::size_t hi = 0;
+      while (hi + 1 < cv.size() && cv[hi].gap_ghz < o.window_factor * c.minimum.gap_ghz && cv[hi + 1].gap_ghz >= cv[hi].gap_ghz) ++hi;
+      c.window_s_before = cv.front().s;
+      c.window_s_after = cv[hi].s;
+    } else {
+      std::size_t lo = cv.size() - 1;
+      while (lo > 0 && cv[lo].gap_ghz < o.window_factor * c.minimum.gap_ghz && cv[lo - 1].gap_ghz >= cv[lo].gap_ghz) --lo;
+      c.window_s_before = cv[lo].s;
+      c.window_s_after = cv.back().s;
+    }
+    window_s.push_back(c.window_s_before);
+    window_s.push_back(c.window_s_after);
+    d.crossings.push_back(std::move(c));
+  }
+
+  // 3. One simulation per duration, populations read at the crossing windows.
+  const SectorHamiltonian sector(H, d.gap.sector);
+  const int g = d.gap.ground_degeneracy;
+  auto cutoff_at = [&](double s) {
+    const SpectrumPoint sp = spectrum_at(sector, schedule.scales, s, g + 1, g, LevelOptions{});
+    return 0.5 * (sp.energies_ghz[static_cast<std::size_t>(g - 1)] + sp.energies_ghz[static_cast<std::size_t>(g)]);
+  };
+  std::vector<std::pair<double, double>> cutoffs;  // before/after per crossing
+  for (const auto& c : d.crossings) cutoffs.push_back({cutoff_at(c.window_s_before), cutoff_at(c.window_s_after)});
+
+  LevelPopulationOptions lpo;
+  lpo.levels = static_cast<int>(std::min<std::size_t>(H.dim(), d.ground.degeneracy() + 4));
+  std::vector<AnnealPath> paths;
+  for (std::size_t r = 0; r < o.durations_ns.size(); ++r) {
+    report("anneals", r, o.durations_ns.size());
+    const double dur = o.durations_ns[r];
+    const AnnealPath path = with_waypoints_at(schedule.path_for(dur), window_s);
+    paths.push_back(path);
+    LevelPopulationObserver obs(H, lpo);
+    SimulationOptions sim = o.simulation;
+    sim.samples_per_piece = 0;
+    DurationDiagnosis run;
+    run.duration_ns = dur;
+    run.anneal = simulate_anneal(H, d.ground, schedule.scales, path, initial_state(H, schedule, path), sim, {&obs});
+    run.outcome = analyze_outcome(H, d.ground, probabilities(run.anneal.final_state), o.outcome);
+    double moved = 0;
+    for (std::size_t ci = 0; ci < d.crossings.size(); ++ci) {
+      AvoidedCrossing& c = d.crossings[ci];
+      CrossingPassage ps;
+      ps.duration_ns = dur;
+      ps.s_before = c.window_s_before;
+      ps.s_after = c.window_s_after;
+      ps.t_before_ns = first_time_at(path, ps.s_before).value_or(0.0);
+      ps.t_after_ns = first_time_at(path, ps.s_after).value_or(path.duration_ns());
+      auto row_at = [&](double t) {
+        const LevelPopulationObserver::Row* best = &obs.rows().front();
+        for (const auto& row : obs.rows())
+          if (std::abs(row.t_ns - t) < std::abs(best->t_ns - t)) best = &row;
+        return best;
+      };
+      ps.population_before = ground_block_population(row_at(ps.t_before_ns)->levels, cutoffs[ci].first);
+      ps.population_after = ground_block_population(row_at(ps.t_after_ns)->levels, cutoffs[ci].second);
+      ps.transferred = ps.population_before - ps.population_after;
+      const auto t_star = first_time_at(path, c.minimum.s);
+      const double ds_dt = t_star ? path.ds_dt_ns(path.piece_at(*t_star)) : 0.0;
+      ps.sweep_rate_ghz_per_ns = c.diabatic_slope_ghz * std::abs(ds_dt);
+      const double delta = c.minimum.gap_ghz;
+      ps.landau_zener_loss = c.at_end_point ? std::nan("")
+                             : ps.sweep_rate_ghz_per_ns > 0
+                                 ? std::exp(-std::numbers::pi * std::numbers::pi * delta * delta / ps.sweep_rate_ghz_per_ns)
+                                 : 0.0;
+      moved += ps.transferred;
+      c.passages.push_back(ps);
+    }
+    run.unattributed_loss = (1.0 - run.anneal.ground_probability) - moved;
+    d.runs.push_back(std::move(run));
+  }
+  report("anneals", o.durations_ns.size(), o.durations_ns.size());
+
+  // 4. Control errors: the same analysis on perturbed problems, same paths.
+  if (o.control) {
+    ControlEnsembleOptions copt = *o.control;
+    GapSearchOptions quiet = gopt;
+    quiet.progress = nullptr;
+    SimulationOptions sim = o.simulation;
+    sim.samples_per_piece = 0;
+    sim.top_outcomes = 0;
+    if (o.control_tolerance) sim.propagation.tolerance = *o.control_tolerance;
+    copt.progress = [&](std::uint64_t done, std::uint64_t total) { report("control-error samples", done, total); };
+    const GroundManifold& intended = d.ground;
+    d.control = run_control_error_ensemble(problem, intended, copt, [&](const IsingProblem& q, ControlSample& s) {
+      const TransverseIsingHamiltonian Hq(q);
+      if (o.control_gaps) {
+        GapSearchOptions qo = quiet;
+        if (q.has_fields() != problem.has_fields()) qo.sector.reset();
+        const MinimumGapReport gr = find_minimum_gap(Hq, schedule.scales, qo);
+        s.delta_min_ghz = gr.gap_ghz;
+        s.s_star = gr.s_star;
+      }
+      for (const AnnealPath& path : paths) {
+        const AnnealResult r = simulate_anneal(Hq, intended, schedule.scales, path, initial_state(Hq, schedule, path), sim);
+        s.p_intended.push_back(r.ground_probability);
+      }
+    });
+  }
+
+  // 5. Channels and verdicts, ranked per duration.
+  const int n = problem.qubits;
+  for (std::size_t r = 0; r < d.runs.size(); ++r) {
+    DurationDiagnosis& run = d.runs[r];
+    const double dur = run.duration_ns;
+    for (std::size_t ci = 0; ci < d.crossings.size(); ++ci) {
+      const AvoidedCrossing& c = d.crossings[ci];
+      const CrossingPassage& ps = c.passages[r];
+      const double delta = c.minimum.gap_ghz;
+      // Landau-Zener duration for a loss of target_loss at this crossing: the path
+      // is stretched, so v scales as 1/t_f.
+      const double t_needed = ps.sweep_rate_ghz_per_ns > 0
+                                  ? dur * ps.sweep_rate_ghz_per_ns * std::log(1.0 / o.target_loss) /
+                                        (std::numbers::pi * std::numbers::pi * delta * delta)
+                                  : 0.0;
+      Channel ch;
+      ch.index = ci;
+      ch.loss = ps.transferred;
+      if (c.at_end_point) {
+        ch.kind = ChannelKind::EndGap;
+        ch.verdict = fmt::format(
+            "the gap is smallest at the end of the path, {:.4g} GHz at s = {:.4f} (classical gap {:.4g} times B/2 when A "
+            "vanishes there): {:.3f} of the population leaves between s = {:.3f} and {:.3f} at {:g} ns; the adiabatic "
+            "scale is {:.3g} ns, so anneal several times longer or slow down over that stretch",
+            delta, c.minimum.s, d.ground.first_excited_energy - d.ground.energy, ps.transferred, c.window_s_before,
+            c.window_s_after, dur, d.gap.adiabatic_time_ns);
+      } else if (c.late_crossing) {
+        const LateCrossing& x = d.overlap.late_crossings[*c.late_crossing];
+        ch.kind = ChannelKind::LateCrossing;
+        ch.verdict = fmt::format(
+            "late crossing at s = {:.4f} (Delta_min {:.4g} GHz at s* = {:.4f}): before it the ground level sits on the "
+            "excited classical level E = {:.6g} ({} states, {:.1f} spins from a ground state on average); {:.3f} of the "
+            "population leaves here at {:g} ns (Landau-Zener {:.3f}); a loss of {:g} here needs about {:.3g} ns, and "
+            "faster anneals end on that excited level",
+            x.s_switch, delta, c.minimum.s, x.excited_energy, x.excited_degeneracy, x.mean_hamming_before, ps.transferred,
+            dur, ps.landau_zener_loss, o.target_loss, t_needed);
+      } else {
+        ch.kind = ChannelKind::AvoidedCrossing;
+        ch.verdict = fmt::format(
+            "avoided crossing at s* = {:.4f}, Delta_min {:.4g} GHz: {:.3f} of the population leaves here at {:g} ns "
+            "(Landau-Zener {:.3f}, sweep {:.3g} GHz/ns); a loss of {:g} here needs about {:.3g} ns, or a slower path "
+            "over s in [{:.3f}, {:.3f}]",
+            c.minimum.s, delta, ps.transferred, dur, ps.landau_zener_loss, ps.sweep_rate_ghz_per_ns, o.target_loss,
+            t_needed, c.window_s_before, c.window_s_after);
+      }
+      run.channels.push_back(ch);
+    }
+    {
+      Channel ch;
+      ch.kind = ChannelKind::Elsewhere;
+      ch.loss = run.unattributed_loss;
+      std::string sink;
+      if (!run.outcome.sink_levels.empty()) {
+        const SinkLevel& top = run.outcome.sink_levels.front();
+        sink = fmt::format("; the largest sink is E = {:.6g} ({} states, {:.3f}, {} flip(s) from a ground state)",
+                           top.energy, top.states, top.probability, top.min_hamming_to_ground);
+      }
+      ch.verdict = d.crossings.empty()
+                       ? fmt::format("{:.3f} of p is lost with no interior gap minimum to blame: diabatic loss spread "
+                                     "along the path; a longer anneal reduces it{}",
+                                     run.unattributed_loss, sink)
+                       : fmt::format("{:.3f} of p is lost away from the gap minima (spread along the path, before or "
+                                     "after the crossings){}",
+                                     run.unattributed_loss, sink);
+      run.channels.push_back(ch);
+    }
+    if (d.ground.degeneracy() >= 2) {
+      Channel ch;
+      ch.kind = ChannelKind::UnfairSampling;
+      ch.loss = 0;
+      const GroundBalance& b = run.outcome.balance;
+      ch.verdict = fmt::format(
+          "{} ground states share p = {:.3f} as {}: max/min {}, {:.3f} from fair sampling (costs no p; matters when "
+          "every ground state is wanted)",
+          d.ground.degeneracy(), run.outcome.ground_probability, share_list(run.outcome, n, 4),
+          std::isfinite(b.max_over_min) ? fmt::format("{:.3g}", b.max_over_min) : std::string("infinite"),
+          b.distance_from_fair);
+      run.channels.push_back(ch);
+    }
+    if (d.control) {
+      const ControlEnsemble& e = *d.control;
+      const std::vector<double> p = e.p_column(r);
+      double mean = 0;
+      for (double x : p) mean += x;
+      mean /= static_cast<double>(p.size());
+      Channel ch;
+      ch.kind = ChannelKind::ControlErrors;
+      ch.loss = std::max(0.0, run.anneal.ground_probability - mean);
+      ch.verdict = fmt::format(
+          "with sigma_h = {:g}, sigma_J = {:g} ({}): the intended ground state is not the ground state of {:.3f} +- "
+          "{:.3f} of the programmed problems; p has median {:.3f} (5-95 %: {:.3f} - {:.3f}, mean {:.3f}) against {:.3f} "
+          "without errors",
+          e.options.model.sigma_h, e.options.model.sigma_j, e.options.model.relative ? "relative" : "absolute",
+          e.ground_change_rate, e.ground_change_stderr, quantile(p, 0.5), quantile(p, 0.05), quantile(p, 0.95), mean,
+          run.anneal.ground_probability);
+      run.channels.push_back(ch);
+    }
+    std::stable_sort(run.channels.begin(), run.channels.end(),
+                     [](const Channel& a, const Channel& b) { return a.loss > b.loss; });
+  }
+  return d;
+}
+
+}  // namespace gapwise
