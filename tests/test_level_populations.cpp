@@ -113,3 +113,33 @@ TEST_CASE("a sudden sweep leaks population, and the leak is located where it hap
   CHECK(leak.drop == doctest::Approx(best).epsilon(1e-3));
   CHECK(leak.drop > 0.05);
 }
+
+TEST_CASE("even-sector populations equal the full-space ones for a state in that sector") {
+  // Common practice: with no fields the global spin flip commutes with H, so the
+  // levels of a state in the even sector are the even-sector levels; the odd
+  // levels carry no weight and the even ones carry all of it.
+  IsingProblem p(4);
+  p.couplings = {{0, 1, 1.0}, {1, 2, -1.0}, {2, 3, 1.0}, {0, 3, 1.0}, {0, 2, 0.5}};
+  const TransverseIsingHamiltonian H(p);
+  const GroundManifold gm = find_ground_manifold(p, H.diagonal());
+  const Schedule sch;
+  const AnnealResult r = simulate_anneal(H, gm, sch.scales, AnnealPath({{0, 0}, {1.5, 0.6}}), uniform_superposition(4), {});
+  const auto full = level_populations(H, 2.0, 3.0, r.final_state, {.levels = 16});
+  const auto even = level_populations(H, 2.0, 3.0, r.final_state, {.levels = 3, .sector = SpinFlipSector::Even});
+  double total_even = 0, total_full = 0;
+  for (std::size_t k = 0; k < 16; ++k)
+    if (!std::isnan(full.populations[k])) total_full += full.populations[k];
+  CHECK(total_full == doctest::Approx(norm_squared(r.final_state)).epsilon(1e-12));  // completeness
+  // Each even level appears among the full-space levels with the same energy and weight.
+  for (std::size_t k = 0; k < 3; ++k) {
+    total_even += even.populations[k];
+    bool found = false;
+    for (std::size_t j = 0; j < 16; ++j)
+      if (std::abs(full.energies_ghz[j] - even.energies_ghz[k]) < 1e-9) {
+        found = true;
+        CHECK(full.populations[j] == doctest::Approx(even.populations[k]).epsilon(1e-10));
+      }
+    CHECK(found);
+  }
+  CHECK(total_even > 0.5);
+}

@@ -9,8 +9,13 @@ namespace gapwise {
 
 LevelPopulations level_populations(const TransverseIsingHamiltonian& h, double a, double b, const QuantumState& psi,
                                    const LevelPopulationOptions& o) {
+  return level_populations(SectorHamiltonian(h, o.sector), a, b, psi, o);
+}
+
+LevelPopulations level_populations(const SectorHamiltonian& h, double a, double b, const QuantumState& psi,
+                                   const LevelPopulationOptions& o) {
   if (o.levels < 1) throw std::invalid_argument("level populations need at least one level");
-  if (psi.size() != h.dim()) throw std::invalid_argument("state and Hamiltonian dimensions differ");
+  if (psi.size() != h.full().dim()) throw std::invalid_argument("state and Hamiltonian dimensions differ");
   const std::size_t dim = h.dim();
   EigenMethod method = o.method;
   if (method == EigenMethod::Auto) method = dim <= kDenseMaxDim ? EigenMethod::Dense : EigenMethod::Lanczos;
@@ -19,7 +24,23 @@ LevelPopulations level_populations(const TransverseIsingHamiltonian& h, double a
   const int want = method == EigenMethod::Dense
                        ? static_cast<int>(dim)
                        : static_cast<int>(std::min<std::size_t>(dim, static_cast<std::size_t>(3 * o.levels + 2)));
-  const Levels lv = lowest_levels(h, a, b, want, true, method);
+  LevelOptions lo;
+  lo.levels = want;
+  lo.vectors = true;
+  lo.method = method;
+  const Levels lv = lowest_levels(h, a, b, lo);
+  // <v|psi> for a sector vector v: sum_i v_i (psi[b_i] + p psi[~b_i]) / sqrt(2).
+  const bool full = h.sector() == SpinFlipSector::Full;
+  const double parity = h.sector() == SpinFlipSector::Odd ? -1.0 : 1.0;
+  auto overlap = [&](Eigen::Index c) {
+    Complex sum(0.0, 0.0);
+    const auto col = lv.vectors.col(c);
+    for (std::size_t i = 0; i < dim; ++i) {
+      const Complex x = full ? psi[i] : (psi[h.representative(i)] + parity * psi[h.partner(i)]) * M_SQRT1_2;
+      sum += col[static_cast<Eigen::Index>(i)] * x;
+    }
+    return sum;
+  };
   const int m = static_cast<int>(lv.energies_ghz.size());
   const bool all_levels = m == static_cast<int>(dim);
 
@@ -36,12 +57,7 @@ LevelPopulations level_populations(const TransverseIsingHamiltonian& h, double a
       ++j;
     if (j == m && !all_levels) break;  // the eigenspace may continue beyond what was computed
     double pop = 0.0;
-    for (int c = i; c < j; ++c) {
-      Complex overlap(0.0, 0.0);
-      const auto col = lv.vectors.col(c);
-      for (std::size_t k = 0; k < dim; ++k) overlap += col[static_cast<Eigen::Index>(k)] * psi[k];
-      pop += std::norm(overlap);
-    }
+    for (int c = i; c < j; ++c) pop += std::norm(overlap(c));
     const auto l = static_cast<std::size_t>(level);
     out.energies_ghz[l] = lv.energies_ghz[static_cast<std::size_t>(i)];
     out.degeneracy[l] = j - i;
@@ -52,6 +68,8 @@ LevelPopulations level_populations(const TransverseIsingHamiltonian& h, double a
 }
 
 void LevelPopulationObserver::observe(const ObservationPoint& at, const QuantumState& psi) {
+  const bool last = opt_.final_time_ns > 0 && at.t_ns >= opt_.final_time_ns;
+  if (!rows_.empty() && !last && at.t_ns - rows_.back().t_ns < opt_.min_interval_ns * (1 - 1e-9)) return;
   rows_.push_back({at.t_ns, at.s, level_populations(h_, at.a_ghz, at.b_ghz, psi, opt_)});
 }
 

@@ -26,6 +26,14 @@ struct LevelPopulationOptions {
   int levels = 4;                       ///< distinct levels to report
   double degeneracy_tol_ghz = 1e-8;     ///< eigenvalues closer than this are one level
   EigenMethod method = EigenMethod::Auto;
+  /// Even: levels of the even spin-flip sector only (problems without fields,
+  /// state in that sector, e.g. a forward anneal from |+>): half the dimension,
+  /// and no columns spent on odd levels the state never reaches.
+  SpinFlipSector sector = SpinFlipSector::Full;
+  /// Record an observation only when at least this long after the last recorded
+  /// one (0: every observation), or at t >= final_time_ns.
+  double min_interval_ns = 0.0;
+  double final_time_ns = 0.0;
 };
 
 /// Populations of the lowest distinct levels of H = H(a, b) in psi.
@@ -35,6 +43,9 @@ struct LevelPopulations {
   std::vector<double> populations;   ///< size levels; NaN where not resolved
 };
 
+/// psi is a full-space state; `h` may be a sector (then psi must lie in it).
+LevelPopulations level_populations(const SectorHamiltonian& h, double a_ghz, double b_ghz, const QuantumState& psi,
+                                   const LevelPopulationOptions& options);
 LevelPopulations level_populations(const TransverseIsingHamiltonian& h, double a_ghz, double b_ghz,
                                    const QuantumState& psi, const LevelPopulationOptions& options);
 
@@ -45,13 +56,13 @@ class LevelPopulationObserver final : public AnnealObserver {
     LevelPopulations levels;
   };
   explicit LevelPopulationObserver(const TransverseIsingHamiltonian& h, LevelPopulationOptions options = {})
-      : h_(h), opt_(options) {}
+      : h_(h, options.sector), opt_(options) {}
   void observe(const ObservationPoint& at, const QuantumState& psi) override;
   const std::vector<Row>& rows() const { return rows_; }
   const LevelPopulationOptions& options() const { return opt_; }
 
  private:
-  const TransverseIsingHamiltonian& h_;
+  SectorHamiltonian h_;
   LevelPopulationOptions opt_;
   std::vector<Row> rows_;
 };
