@@ -29,5 +29,12 @@ void register_diagnose(CLI::App& app);
 void register_figure(CLI::App& app);
 void register_generate(CLI::App& app);
 void register_gap(CLI::App& app);
+void register_gap_path(CLI::App& app);
+void register_compare_paths(CLI::App& app);
+void register_pause_map(CLI::App& app);
+void register_reverse_map(CLI::App& app);
+
+/// "20,50,100" or "0.3:0.7:9" (FIRST:LAST:COUNT, ends included); InputError naming `option`.
+std::vector<double> parse_value_list(const std::string& text, const std::string& option);
 
 }  // namespace gapwise::cli

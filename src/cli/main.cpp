@@ -33,6 +33,10 @@ int main(int argc, char** argv) {
   cli::register_figure(app);
   cli::register_generate(app);
   cli::register_gap(app);
+  cli::register_gap_path(app);
+  cli::register_compare_paths(app);
+  cli::register_pause_map(app);
+  cli::register_reverse_map(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -30,9 +30,11 @@ struct LevelPopulationOptions {
   /// state in that sector, e.g. a forward anneal from |+>): half the dimension,
   /// and no columns spent on odd levels the state never reaches.
   SpinFlipSector sector = SpinFlipSector::Full;
-  /// Record an observation only when at least this long after the last recorded
-  /// one (0: every observation), or at t >= final_time_ns.
+  /// Record an observation only when at least min_interval_ns after the last
+  /// recorded one or at least min_interval_s away from it in s (0, 0: every
+  /// observation), and always at t >= final_time_ns.
   double min_interval_ns = 0.0;
+  double min_interval_s = 0.0;
   double final_time_ns = 0.0;
 };
 

@@ -1,0 +1,200 @@
+// `gapwise compare-paths PROBLEM SCHEDULE [MORE...] --duration-ns T[,T2...]`:
+// several paths on one problem at equal total duration: p, time to solution,
+// and where the instantaneous ground level loses population, per path.
+#include <filesystem>
+#include <iostream>
+#include <memory>
+
+#include <fmt/format.h>
+
+#include "cli/cli_common.hpp"
+#include "hamiltonian/memory_budget.hpp"
+#include "io/atomic_file.hpp"
+#include "io/hdf5_output.hpp"
+#include "io/input_error.hpp"
+#include "io/text_table.hpp"
+#include "studies/gap_adapted_schedule.hpp"
+#include "studies/shape_comparison.hpp"
+
+namespace gapwise::cli {
+namespace {
+
+struct CompareOptions {
+  std::string problem;
+  std::vector<std::string> schedules, pauses, quenches;
+  std::string durations, out, csv, propagator = "odeint";
+  bool gap_adapted = false;
+  int levels = 4, points = 60, threads = 0, waypoints = 200;
+  double tolerance = 1e-6, target = kDefaultTargetProbability;
+};
+
+/// "S:F" -> {S, F}; InputError naming the option.
+std::pair<double, double> two_numbers(const std::string& text, const std::string& option) {
+  const auto c = text.find(':');
+  if (c == std::string::npos || text.find(':', c + 1) != std::string::npos)
+    throw InputError({option, 0, 0, option}, fmt::format("\"{}\" is not S:FRACTION", text),
+                     fmt::format("write {} 0.45:0.2 (at s = 0.45, for 20 % of the duration)", option));
+  const auto a = parse_value_list(text.substr(0, c), option), b = parse_value_list(text.substr(c + 1), option);
+  if (a.size() != 1 || b.size() != 1)
+    throw InputError({option, 0, 0, option}, fmt::format("\"{}\" is not S:FRACTION", text), "give one s and one fraction");
+  return {a[0], b[0]};
+}
+
+/// The generated shape on the base schedule's path, as a schedule of its own.
+Schedule with_shape(const Schedule& base, const ForwardShapeSpec& spec, const std::string& option) {
+  Schedule s = base;
+  s.shape = base.shape.scaled_to(1.0);
+  s.time_in_ns = false;
+  s.shape_spec.reset();
+  try {
+    s.shape = forward_shape(s.shape, spec, 1.0);
+  } catch (const InputError& e) {
+    throw InputError({option, 0, 0, option + " (" + e.place().key + ")"}, e.problem(), e.fix());
+  }
+  return s;
+}
+
+void run_compare(const CompareOptions& o) {
+  const IsingProblem p = read_problem_file(o.problem);
+  check_memory(p.qubits, 10, 0, o.problem);
+  if (!o.out.empty()) check_output_path(o.out, "--out");
+  if (!o.csv.empty()) check_output_path(o.csv, "--csv");
+  if (!(o.target > 0 && o.target < 1))
+    throw InputError({"--target", 0, 0, "--target"}, fmt::format("target {} is not inside (0, 1)", o.target), "use e.g. 0.99");
+  std::vector<ShapeCandidate> cands;
+  const Schedule base = read_schedule_file(o.schedules.front());
+  for (const auto& f : o.schedules) cands.push_back({std::filesystem::path(f).filename().string(), read_schedule_file(f)});
+  for (const auto& text : o.pauses) {
+    const auto [s, f] = two_numbers(text, "--pause");
+    cands.push_back({fmt::format("pause s={:g} for {:g}%", s, 100 * f), with_shape(base, {.pause = PauseSpec{s, f}}, "--pause")});
+  }
+  for (const auto& text : o.quenches) {
+    const auto [s, f] = two_numbers(text, "--quench");
+    cands.push_back({fmt::format("quench from s={:g} in {:g}%", s, 100 * f), with_shape(base, {.quench = QuenchSpec{s, f}}, "--quench")});
+  }
+  std::optional<GapAdaptedSchedule> gap;
+  if (o.gap_adapted) {
+    const TransverseIsingHamiltonian H(p);
+    std::cerr << "computing the spectrum along s for the gap-adapted path...\n";
+    gap = gap_adapted_schedule(H, base, {}, {.waypoints = o.waypoints});
+    cands.push_back({"gap-adapted", gap->schedule});
+  }
+  ShapeComparisonOptions co;
+  co.durations_ns = parse_value_list(o.durations, "--duration-ns");
+  co.target_probability = o.target;
+  co.simulation.propagator = o.propagator;
+  co.simulation.propagation.tolerance = o.tolerance;
+  co.levels = o.levels;
+  co.population_points = o.points;
+  co.threads = o.threads;
+  std::cerr << fmt::format("running {} anneals ({} paths x {} durations)...\n", cands.size() * co.durations_ns.size(),
+                           cands.size(), co.durations_ns.size());
+  const ShapeComparison r = compare_shapes(p, cands, co);
+
+  std::cout << fmt::format("problem  {}: {} qubits; paths compared at equal total duration\n", o.problem, p.qubits);
+  std::cout << fmt::format("levels   populations of the lowest {} instantaneous levels ({})\n", o.levels,
+                           describe_sector(r.sector));
+  if (gap)
+    std::cout << fmt::format("gap      {:.6g} GHz at s* = {:.6g} ({}); gap-adapted I = {:.6g} ns\n", gap->report.gap_ghz,
+                             gap->report.s_star, gap->report.definition, gap->path.integral_ns);
+  TextTable t({"path", "duration_ns", "end_ns", "p_ground", fmt::format("TTS{:g}_ns", 100 * o.target), "largest leak (s)",
+               "leak", "level0_end"});
+  for (std::size_t j = 0; j < r.durations_ns.size(); ++j)
+    for (std::size_t i = 0; i < r.names.size(); ++i) {
+      const ShapeRun& x = r.at(i, j);
+      t.add({x.name, fmt_num(x.duration_ns, 8), fmt_num(x.end_time_ns, 17), fmt_num(x.ground_probability, 8),
+             std::isfinite(x.tts.tts_ns) ? fmt_num(x.tts.tts_ns, 6) : "never",
+             x.leak.drop > 0 ? fmt::format("{:.3f}-{:.3f}", x.leak.s_from, x.leak.s_to) : "-", fmt_num(x.leak.drop, 4),
+             fmt_num(x.leak.final_ground_level, 6)});
+    }
+  std::cout << "\n" << t.render();
+  std::cout << "\nleak: the largest drop of the instantaneous ground level's population between two observations,\n"
+               "and where along s it happened; level0_end: that population at the end (= p_ground when A(1) = 0).\n";
+  if (!o.csv.empty()) write_file_atomically(o.csv, t.csv());
+  if (!o.out.empty()) {
+    Hdf5Output h5(o.out);
+    std::vector<std::string> inputs{o.problem};
+    for (const auto& f : o.schedules) inputs.push_back(f);
+    write_provenance(h5, command_line(), inputs);
+    h5.write_strings("/compare/paths", r.names);
+    h5.write("/compare/durations_ns", r.durations_ns, "ns");
+    std::vector<double> pg, tts, end;
+    for (const auto& x : r.runs) {
+      pg.push_back(x.ground_probability);
+      tts.push_back(x.tts.tts_ns);
+      end.push_back(x.end_time_ns);
+    }
+    const std::size_t ni = r.names.size(), nj = r.durations_ns.size();
+    h5.write_matrix("/compare/ground_probability", pg, ni, nj, "1");
+    h5.write_matrix("/compare/tts_ns", tts, ni, nj, "ns");
+    h5.write_matrix("/compare/end_time_ns", end, ni, nj, "ns");
+    h5.attribute("/compare", "target_probability", o.target);
+    h5.attribute("/compare", "level_sector", sector_name(r.sector));
+    for (std::size_t i = 0; i < ni; ++i) {
+      // Each path's waypoints (fractions of the duration), so the file says what ran.
+      std::vector<double> wt, ws;
+      for (const auto& w : cands[i].schedule.shape.scaled_to(1.0).points()) { wt.push_back(w.t_ns); ws.push_back(w.s); }
+      h5.write(fmt::format("/compare/path_{}/waypoint_time_fraction", i), wt, "1");
+      h5.write(fmt::format("/compare/path_{}/waypoint_s", i), ws, "1");
+      h5.attribute(fmt::format("/compare/path_{}", i), "name", r.names[i]);
+      for (std::size_t j = 0; j < nj; ++j) {
+        const ShapeRun& x = r.at(i, j);
+        const std::string g = fmt::format("/compare/path_{}/duration_{}", i, j);
+        std::vector<double> tt, ss, e, pop, deg;
+        for (const auto& row : x.populations) {
+          tt.push_back(row.t_ns);
+          ss.push_back(row.s);
+          for (int l = 0; l < o.levels; ++l) {
+            e.push_back(row.levels.energies_ghz[static_cast<std::size_t>(l)]);
+            pop.push_back(row.levels.populations[static_cast<std::size_t>(l)]);
+            deg.push_back(row.levels.degeneracy[static_cast<std::size_t>(l)]);
+          }
+        }
+        h5.write(g + "/t", tt, "ns");
+        h5.write(g + "/s", ss, "1");
+        h5.write_matrix(g + "/level_energy", e, tt.size(), static_cast<std::size_t>(o.levels), "GHz");
+        h5.write_matrix(g + "/level_population", pop, tt.size(), static_cast<std::size_t>(o.levels), "1");
+        h5.write_matrix(g + "/level_degeneracy", deg, tt.size(), static_cast<std::size_t>(o.levels), "1");
+        h5.attribute(g, "duration_ns", x.duration_ns);
+        h5.attribute(g, "ground_probability", x.ground_probability);
+        h5.attribute(g, "norm_drift", x.norm_drift);
+      }
+    }
+    h5.commit();
+    std::cout << fmt::format("wrote {}\n", o.out);
+  }
+}
+
+}  // namespace
+
+void register_compare_paths(CLI::App& app) {
+  auto o = std::make_shared<CompareOptions>();
+  CLI::App* sub = app.add_subcommand("compare-paths",
+      "Compare paths on one problem at equal total duration: each path (a schedule file, or a\n"
+      "shape generated on the first schedule's path) is stretched to exactly each duration;\n"
+      "reports the ground-state probability p, the time to solution, and the populations of the\n"
+      "lowest instantaneous levels along s, so you see where population leaks out of the ground\n"
+      "level. All schedules must share the same energy scales (paths are compared, not hardware).\n"
+      "Example: gapwise compare-paths data-samples/weak-field-ring.toml schedules/linear.toml \\\n"
+      "           --pause 0.5:0.2 --gap-adapted --duration-ns 10,20 --out cmp.h5");
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("schedules", o->schedules, "schedule files; the first is the base for generated shapes")
+      ->required()->check(CLI::ExistingFile);
+  sub->add_option("-d,--duration-ns", o->durations, "total durations: a list 10,20,50 or a range FIRST:LAST:COUNT")->required();
+  sub->add_option("--pause", o->pauses, "add the base path with a pause S:FRACTION (at s = S for FRACTION of the duration); repeatable");
+  sub->add_option("--quench", o->quenches, "add the base path quenched from s = S to 1 in FRACTION of the duration; repeatable");
+  sub->add_flag("--gap-adapted", o->gap_adapted, "add the gap-adapted path (see `gapwise gap-path --help`)");
+  sub->add_option("--waypoints", o->waypoints, "waypoints of the gap-adapted path")->capture_default_str();
+  sub->add_option("--levels", o->levels, "instantaneous levels whose populations are followed")->capture_default_str()->check(CLI::Range(1, 64));
+  sub->add_option("--points", o->points, "population observations along each run (about)")->capture_default_str()->check(CLI::Range(2, 100000));
+  sub->add_option("--target", o->target, "target success probability of the time to solution")->capture_default_str();
+  sub->add_option("--tolerance", o->tolerance, "target accuracy of p")->capture_default_str();
+  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  sub->add_option("--threads", o->threads, "OpenMP threads (0: default); results do not depend on it")->capture_default_str();
+  sub->add_option("--out", o->out, "HDF5: p, TTS and end times per path and duration; level populations along each run");
+  sub->add_option("--csv", o->csv, "the table as CSV");
+  sub->callback([o] { run_compare(*o); });
+}
+
+}  // namespace gapwise::cli

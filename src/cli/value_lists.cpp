@@ -1,0 +1,49 @@
+// Number lists on the command line: "20,50,100" or a linear range "0.3:0.7:9"
+// (first:last:count, both ends included).
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "cli/cli_common.hpp"
+#include "io/input_error.hpp"
+
+namespace gapwise::cli {
+
+std::vector<double> parse_value_list(const std::string& text, const std::string& option) {
+  auto number = [&](const std::string& x) {
+    try {
+      std::size_t used = 0;
+      const double v = std::stod(x, &used);
+      if (used != x.size() || !std::isfinite(v)) throw std::invalid_argument(x);
+      return v;
+    } catch (const std::exception&) {
+      throw InputError({option, 0, 0, option}, fmt::format("\"{}\" is not a number", x),
+                       "write numbers like 0.45, a list 0.3,0.5 or a range FIRST:LAST:COUNT");
+    }
+  };
+  std::vector<double> out;
+  if (text.find(':') != std::string::npos) {
+    const auto a = text.find(':'), b = text.find(':', a + 1);
+    if (b == std::string::npos || text.find(':', b + 1) != std::string::npos)
+      throw InputError({option, 0, 0, option}, fmt::format("\"{}\" is not a range", text), "write FIRST:LAST:COUNT, e.g. 0.3:0.7:9");
+    const double first = number(text.substr(0, a)), last = number(text.substr(a + 1, b - a - 1));
+    const double count = number(text.substr(b + 1));
+    if (!(count >= 1) || count != std::floor(count) || count > 10000)
+      throw InputError({option, 0, 0, option}, fmt::format("count {} in \"{}\" is not a whole number from 1 to 10000", count, text),
+                       "write FIRST:LAST:COUNT with a whole COUNT");
+    const int n = static_cast<int>(count);
+    for (int k = 0; k < n; ++k) out.push_back(n == 1 ? first : first + (last - first) * k / (n - 1));
+    if (n > 1) out.back() = last;
+    return out;
+  }
+  std::size_t pos = 0;
+  while (pos <= text.size()) {
+    const auto comma = text.find(',', pos);
+    out.push_back(number(text.substr(pos, comma == std::string::npos ? std::string::npos : comma - pos)));
+    if (comma == std::string::npos) break;
+    pos = comma + 1;
+  }
+  return out;
+}
+
+}  // namespace gapwise::cli
