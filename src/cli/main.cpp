@@ -37,6 +37,7 @@ int main(int argc, char** argv) {
   cli::register_compare_paths(app);
   cli::register_pause_map(app);
   cli::register_reverse_map(app);
+  cli::register_embed_cost(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -1,0 +1,289 @@
+// `gapwise embed-cost LOGICAL EMBEDDING SCHEDULE`: what embedding a logical
+// problem costs. Scans the chain strength, and for each reports the minimum gap
+// of the physical problem, p_logical(t_f) with the chain statistics, and the
+// duration needed for the target; then the best strength and the price of
+// embedding (duration needed embedded / logical). All work is in
+// studies/chain_strength_scan.hpp.
+#include <algorithm>
+#include <cmath>
+#include <iostream>
+#include <memory>
+#include <optional>
+#include <sstream>
+
+#include <fmt/format.h>
+
+#include "cli/cli_common.hpp"
+#include "dynamics/propagator.hpp"
+#include "hamiltonian/memory_budget.hpp"
+#include "io/atomic_file.hpp"
+#include "io/embedding_file.hpp"
+#include "io/hdf5_output.hpp"
+#include "io/input_error.hpp"
+#include "io/json_summary.hpp"
+#include "io/text_table.hpp"
+#include "studies/chain_strength_scan.hpp"
+
+namespace gapwise::cli {
+namespace {
+
+struct EmbedCostOptions {
+  std::string problem, embedding, schedule, out, csv, write_physical, range = "1:1000:13";
+  std::string propagator = "odeint";
+  std::vector<double> strengths;
+  bool absolute = false, json = false, quiet = false, no_term_limit = false;
+  std::optional<double> duration_ns, term_limit;
+  double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3;
+  int threads = 0;
+};
+
+std::vector<double> parse_range(const std::string& text) {
+  double first = 0, last = 0;
+  int count = 0;
+  char c1 = 0, c2 = 0;
+  std::istringstream in(text);
+  if (!(in >> first >> c1 >> last >> c2 >> count) || c1 != ':' || c2 != ':' || !(in >> std::ws).eof())
+    throw InputError({"--range", 0, 0, "--range"}, fmt::format("cannot read the range '{}'", text),
+                     "write FIRST:LAST:COUNT in ns, e.g. --range 1:1000:13 (log-spaced, both ends included)");
+  return log_spaced_durations(first, last, count);
+}
+
+std::string chains_text(const Embedding& e, const IsingProblem& logical) {
+  std::string s;
+  for (int v = 0; v < e.logical_qubits(); ++v) {
+    std::string members;
+    for (int q : e.chains[static_cast<std::size_t>(v)]) members += (members.empty() ? "" : ",") + std::to_string(q);
+    s += fmt::format("{}{}=[{}]", v ? " " : "", logical.label(v), members);
+  }
+  return s;
+}
+
+std::string needed_text(const NeededDuration& n) {
+  std::string s = n.describe();
+  if (n.lost_again)
+    s += n.stays_reached_ns ? fmt::format(" (p dips below the target again; stays above from {:.4g} ns)", *n.stays_reached_ns)
+                            : " (p falls below the target again at the longest duration)";
+  return s;
+}
+
+void check_options(const EmbedCostOptions& o) {
+  if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
+    throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
+                     "use a value between 1e-12 and 1e-2 (default 1e-6)");
+  if (!(o.target > 0.0 && o.target < 1.0))
+    throw InputError({"--target", 0, 0, "--target"}, fmt::format("target {} is not inside (0, 1)", o.target),
+                     "give a success probability such as 0.99");
+  if (!(o.resolution > 0.0 && o.resolution < 1.0))
+    throw InputError({"--resolution", 0, 0, "--resolution"},
+                     fmt::format("resolution {} is not inside (0, 1)", o.resolution),
+                     "give the relative width at which bisection stops, e.g. 0.005");
+  for (double s : o.strengths)
+    if (!(s > 0.0) || !std::isfinite(s))
+      throw InputError({"--strengths", 0, 0, "--strengths"}, fmt::format("chain strength {} is not positive", s),
+                       "give magnitudes > 0 (the chain coupling is always ferromagnetic)");
+  if (o.term_limit && o.no_term_limit)
+    throw InputError({"--term-limit", 0, 0, "--term-limit"}, "both --term-limit and --no-term-limit were given",
+                     "give one of them");
+  for (const auto& [path, key] : {std::pair{&o.out, "--out"}, std::pair{&o.csv, "--csv"},
+                                  std::pair{&o.write_physical, "--write-physical"}})
+    if (!path->empty()) check_output_path(*path, key);
+}
+
+void run_embed_cost(const EmbedCostOptions& o) {
+  check_options(o);
+  const IsingProblem logical = read_problem_file(o.problem);
+  const Embedding embedding = read_embedding_file(o.embedding);
+  const Schedule schedule = read_schedule_file(o.schedule);
+  check_embedding_serves(embedding, logical, o.problem);
+  check_memory(embedding.physical_qubits, 10, 0, o.embedding);
+
+  ChainScanOptions scan;
+  const std::vector<double> values = o.strengths.empty() ? std::vector<double>{0.5, 1, 1.5, 2, 3, 4} : o.strengths;
+  for (double v : values)
+    scan.strengths.push_back(o.absolute ? ChainStrength::absolute(v) : ChainStrength::relative_to_largest(v));
+  if (embedding.chain_strength) scan.strengths.push_back(*embedding.chain_strength);  // the file's default, always
+  scan.term_limit = o.no_term_limit ? std::nullopt : (o.term_limit ? o.term_limit : embedding.term_limit);
+  scan.duration_ns = schedule.path_for(o.duration_ns).duration_ns();
+  scan.grid_ns = parse_range(o.range);
+  scan.needed.target = o.target;
+  scan.needed.relative_width = o.resolution;
+  scan.needed.noise = std::max(10.0 * o.tolerance, 1e-5);
+  scan.simulation.propagator = o.propagator;
+  scan.simulation.propagation.tolerance = o.tolerance;
+  scan.threads = o.threads;
+  if (!o.quiet) scan.progress = [](const std::string& what) { std::cerr << "gapwise embed-cost: " << what << "\n"; };
+
+  const ChainScanResult r = scan_chain_strength(logical, embedding, schedule, scan);
+  const ChainScanPoint& best = r.points[r.best];
+
+  TextTable table({"strength", "J_chain", "scale", "min_gap_ghz", "s_star", "p_logical", "p_physical", "broken_frac",
+                   "needed_ns", "bound"});
+  for (std::size_t k = 0; k < r.points.size(); ++k) {
+    const auto& p = r.points[k];
+    table.add({p.strength.relative ? fmt::format("{:g}x", p.strength.value) : fmt::format("{:g}", p.strength.value),
+               fmt_num(p.chain_coupling, 6), fmt_num(p.scale, 6), fmt_num(p.m.gap.gap_ghz, 6), fmt_num(p.m.gap.s_star, 5),
+               fmt_num(p.m.p_success, 6), fmt_num(p.m.p_physical, 6), fmt_num(p.m.decoded.mean_broken_fraction, 4),
+               p.m.needed.describe() + (k == r.best ? "  <- best" : ""), p.above_bound ? "above" : "below"});
+  }
+
+  if (o.json) {
+    toml::table j;
+    put(j, "problem_file", o.problem);
+    put(j, "embedding_file", o.embedding);
+    put(j, "schedule_file", o.schedule);
+    put(j, "target", o.target);
+    put(j, "duration_ns", scan.duration_ns);
+    put(j, "physical_qubits", static_cast<long long>(embedding.physical_qubits));
+    if (scan.term_limit) put(j, "term_limit", *scan.term_limit);
+    put(j, "chain_coupling_bound", r.chain_bound);
+    toml::table lg;
+    put(lg, "scale", r.logical_scale);
+    put(lg, "min_gap_ghz", r.logical_m.gap.gap_ghz);
+    put(lg, "s_star", r.logical_m.gap.s_star);
+    put(lg, "gap_definition", r.logical_m.gap.definition);
+    put(lg, "ground_probability", r.logical_m.p_success);
+    put(lg, "needed_ns", r.logical_m.needed.ns);
+    put(lg, "needed_kind", r.logical_m.needed.describe());
+    j.insert_or_assign("logical", std::move(lg));
+    toml::array pts;
+    for (const auto& p : r.points) {
+      toml::table e;
+      put(e, "strength", p.strength.value);
+      put(e, "relative", p.strength.relative);
+      put(e, "chain_coupling", p.chain_coupling);
+      put(e, "scale", p.scale);
+      put(e, "above_bound", p.above_bound);
+      put(e, "min_gap_ghz", p.m.gap.gap_ghz);
+      put(e, "s_star", p.m.gap.s_star);
+      put(e, "gap_definition", p.m.gap.definition);
+      put(e, "p_logical", p.m.p_success);
+      put(e, "p_physical", p.m.p_physical);
+      put(e, "chain_break_fraction", p.m.decoded.mean_broken_fraction);
+      put(e, "any_break_probability", p.m.decoded.any_break_probability);
+      put(e, "tie_probability", p.m.decoded.tie_probability);
+      put(e, "needed_ns", p.m.needed.ns);
+      put(e, "needed_kind", p.m.needed.describe());
+      pts.push_back(std::move(e));
+    }
+    j.insert_or_assign("scan", std::move(pts));
+    put(j, "best_index", static_cast<long long>(r.best));
+    put(j, "best_chain_coupling", best.chain_coupling);
+    put(j, "best_at_scan_edge", r.best_at_edge);
+    put(j, "price_of_embedding", r.price.ratio);
+    put(j, "price_relation", r.price.relation);
+    std::cout << to_json(j) << "\n";
+  } else {
+    const GroundManifold gm = find_ground_manifold(logical);
+    std::cout << fmt::format("logical      {}: {} qubits, {} couplings; ground energy {:.10g}, degeneracy {}\n", o.problem,
+                             logical.qubits, logical.couplings.size(), gm.energy, gm.degeneracy());
+    std::cout << fmt::format("embedding    {}: {} physical qubits, chains {}; {} couplers{}\n", o.embedding,
+                             embedding.physical_qubits, chains_text(embedding, logical),
+                             embedding.couplers_given ? std::to_string(embedding.couplers.size()) : "all pairs",
+                             embedding.couplers_given ? " listed" : " (no coupler list)");
+    std::cout << fmt::format("schedule     {}: {}\n", o.schedule, schedule.scales.describe());
+    std::cout << fmt::format("target       p >= {} ; durations {} (log-spaced, bisected to {:g}); t_f = {:g} ns\n", o.target,
+                             o.range, o.resolution, scan.duration_ns);
+    std::cout << fmt::format("term limit   {}\n", scan.term_limit
+                                                      ? fmt::format("|h|, |J| <= {:g}: larger physical problems are scaled down", *scan.term_limit)
+                                                      : std::string("none"));
+    std::cout << fmt::format("chain bound  {:.6g}: above it every physical ground state is intact (method notes)\n\n",
+                             r.chain_bound);
+    std::cout << fmt::format("logical problem (scale {:g}): minimum gap {:.6g} GHz at s* = {:.5g} ({}); p(t_f) = {:.6f}; "
+                             "duration needed {}\n\n",
+                             r.logical_scale, r.logical_m.gap.gap_ghz, r.logical_m.gap.s_star, r.logical_m.gap.definition,
+                             r.logical_m.p_success, needed_text(r.logical_m.needed));
+    std::cout << "chain-strength scan (strength: x = times the largest logical |h|, |J|; p_logical: majority vote per\n"
+                 "chain, ties to the chain's first qubit; broken_frac: expected fraction of broken chains at t_f)\n"
+              << table.render() << "\n";
+    std::cout << fmt::format("best chain strength  {} (chain coupling {:g}{}): duration needed {}{}\n",
+                             best.strength.describe(), best.chain_coupling,
+                             best.scale != 1.0 ? fmt::format(", problem scaled by {:.4g}", best.scale) : "",
+                             needed_text(best.m.needed),
+                             r.best_at_edge ? "\n                     (at the edge of the scan: widen --strengths)" : "");
+    std::cout << fmt::format("price of embedding   {} (duration needed embedded / logical)\n", r.price.describe());
+  }
+
+  if (!o.csv.empty()) write_file_atomically(o.csv, table.csv());
+  if (!o.write_physical.empty()) {
+    IsingProblem phys = best.physical;
+    phys.description = fmt::format("{} (from {} and {}, chain strength {})", phys.description, o.problem, o.embedding,
+                                   best.strength.describe());
+    write_file_atomically(o.write_physical, format_problem_toml(phys));
+  }
+  if (!o.out.empty()) {
+    Hdf5Output h5(o.out);
+    write_provenance(h5, command_line(), {o.problem, o.embedding, o.schedule});
+    h5.attribute("/embedding", "target", o.target);
+    h5.attribute("/embedding", "duration_ns", scan.duration_ns);
+    h5.attribute("/embedding", "chain_coupling_bound", r.chain_bound);
+    h5.attribute("/embedding", "best_chain_coupling", best.chain_coupling);
+    h5.attribute("/embedding", "price_of_embedding", r.price.ratio);
+    h5.attribute("/embedding", "price_relation", r.price.relation);
+    h5.attribute("/embedding/logical", "min_gap_ghz", r.logical_m.gap.gap_ghz);
+    h5.attribute("/embedding/logical", "s_star", r.logical_m.gap.s_star);
+    h5.attribute("/embedding/logical", "ground_probability", r.logical_m.p_success);
+    h5.attribute("/embedding/logical", "needed_ns", r.logical_m.needed.ns);
+    h5.attribute("/embedding/logical", "needed", r.logical_m.needed.describe());
+    std::vector<double> coupling, scale, gap, sstar, pl, pp, broken, needed;
+    for (const auto& p : r.points) {
+      coupling.push_back(p.chain_coupling); scale.push_back(p.scale); gap.push_back(p.m.gap.gap_ghz);
+      sstar.push_back(p.m.gap.s_star); pl.push_back(p.m.p_success); pp.push_back(p.m.p_physical);
+      broken.push_back(p.m.decoded.mean_broken_fraction); needed.push_back(p.m.needed.ns);
+    }
+    h5.write("/embedding/scan/chain_coupling", coupling, "1");
+    h5.write("/embedding/scan/scale", scale, "1");
+    h5.write("/embedding/scan/min_gap", gap, "GHz");
+    h5.write("/embedding/scan/s_star", sstar, "1");
+    h5.write("/embedding/scan/p_logical", pl, "1");
+    h5.write("/embedding/scan/p_physical", pp, "1");
+    h5.write("/embedding/scan/chain_break_fraction", broken, "1");
+    h5.write("/embedding/scan/needed_duration", needed, "ns");
+    h5.commit();
+  }
+}
+
+}  // namespace
+
+void register_embed_cost(CLI::App& app) {
+  auto o = std::make_shared<EmbedCostOptions>();
+  CLI::App* sub = app.add_subcommand("embed-cost",
+      "What embedding costs. LOGICAL is a problem file, EMBEDDING gives each logical qubit\n"
+      "its chain of physical qubits (see the user guide). For each chain strength the\n"
+      "physical problem is built (fields and couplings split over chains, ferromagnetic\n"
+      "chains) and gapwise reports its minimum gap, p_logical at t_f (majority vote per\n"
+      "chain), the chain-break fraction and the duration needed for p_logical >= target;\n"
+      "then the best chain strength and the price of embedding: the duration needed on\n"
+      "the embedded problem over that on the logical problem (under the same term limit).\n"
+      "Example: gapwise embed-cost data-samples/triangle.toml data-samples/triangle-ring-embedding.toml \\\n"
+      "           schedules/linear.toml --strengths 1,2,3 --write-physical ring.toml");
+  sub->add_option("logical", o->problem, "logical problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("embedding", o->embedding, "embedding file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("--strengths", o->strengths,
+                  "chain strengths to scan, comma-separated; multiples of the largest logical |h| or |J|\n"
+                  "unless --absolute (default 0.5,1,1.5,2,3,4; the embedding file's own strength is added)")
+      ->delimiter(',');
+  sub->add_flag("--absolute", o->absolute, "read --strengths as absolute magnitudes in problem units");
+  sub->add_option("--term-limit", o->term_limit,
+                  "largest |h| or |J| the device accepts; larger problems are scaled down (default: the file's)");
+  sub->add_flag("--no-term-limit", o->no_term_limit, "ignore the embedding file's term limit");
+  sub->add_option("--target", o->target, "success probability the needed duration must reach")->capture_default_str();
+  sub->add_option("--range", o->range, "FIRST:LAST:COUNT, log-spaced durations in ns seeding the search")
+      ->capture_default_str();
+  sub->add_option("--resolution", o->resolution, "relative width at which the bisection for the needed duration stops")
+      ->capture_default_str();
+  sub->add_option("-d,--duration-ns", o->duration_ns, "t_f of the anneal reporting p_logical (default: the schedule's)");
+  sub->add_option("--tolerance", o->tolerance, "target accuracy of each anneal's probabilities")->capture_default_str();
+  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  sub->add_option("--threads", o->threads, "anneals run in parallel (0: OpenMP's default)")->capture_default_str();
+  sub->add_option("--write-physical", o->write_physical,
+                  "write the physical problem at the best strength as a problem file");
+  sub->add_option("--out", o->out, "write an HDF5 result file (scan columns, logical reference, provenance)");
+  sub->add_option("--csv", o->csv, "write the scan table as CSV");
+  sub->add_flag("--json", o->json, "print a JSON summary instead of text");
+  sub->add_flag("-q,--quiet", o->quiet, "no progress lines on stderr");
+  sub->callback([o] { run_embed_cost(*o); });
+}
+
+}  // namespace gapwise::cli
