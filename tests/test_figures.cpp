@@ -72,3 +72,22 @@ TEST_CASE("figure: a gap result gives the spectrum and gap figures") {
   for (const char* name : {"gap-spectrum.svg", "gap-spectrum.png", "gap-gap.svg", "gap-gap.png"})
     gapwise::testing::check_figure_file(dir.path / "figs" / name);
 }
+
+TEST_CASE("figure: pause maps and path comparisons give heat-map and population figures") {
+  TempDir dir;
+  const std::string tri = "'" + (source_dir() / "data-samples/triangle.toml").string() + "'";
+  const std::string lin = "'" + (source_dir() / "schedules/linear.toml").string() + "'";
+  const std::string pm = (dir.path / "pm.h5").string(), cmp = (dir.path / "cmp.h5").string();
+  auto a = run_gapwise("pause-map " + tri + " " + lin + " --duration-ns 2 --at 0.3,0.6 --pause-ns 0,0.5,1.5 --out '" + pm + "'", dir);
+  INFO(a.err);
+  REQUIRE(a.exit_code == 0);
+  auto b = run_gapwise("compare-paths " + tri + " " + lin + " --pause 0.5:0.2 --duration-ns 2 --out '" + cmp + "'", dir);
+  INFO(b.err);
+  REQUIRE(b.exit_code == 0);
+  auto f = run_gapwise("figure '" + pm + "' '" + cmp + "' --out-dir '" + (dir.path / "figs").string() + "'", dir);
+  INFO(f.err);
+  REQUIRE(f.exit_code == 0);
+  gapwise::testing::check_figure_file(dir.path / "figs" / "pm-pause-map.svg");
+  gapwise::testing::check_figure_file(dir.path / "figs" / "pm-pause-map.png");
+  gapwise::testing::check_figure_file(dir.path / "figs" / "cmp-populations-linear-toml-0.png");
+}

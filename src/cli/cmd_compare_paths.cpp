@@ -1,3 +1,4 @@
+#include <cmath>
 // `gapwise compare-paths PROBLEM SCHEDULE [MORE...] --duration-ns T[,T2...]`:
 // several paths on one problem at equal total duration: p, time to solution,
 // and where the instantaneous ground level loses population, per path.
@@ -140,14 +141,20 @@ void run_compare(const CompareOptions& o) {
       for (std::size_t j = 0; j < nj; ++j) {
         const ShapeRun& x = r.at(i, j);
         const std::string g = fmt::format("/compare/path_{}/duration_{}", i, j);
-        std::vector<double> tt, ss, e, pop, deg;
+        std::vector<double> tt, ss, e, pop, deg, resolved;
         for (const auto& row : x.populations) {
           tt.push_back(row.t_ns);
           ss.push_back(row.s);
           for (int l = 0; l < o.levels; ++l) {
-            e.push_back(row.levels.energies_ghz[static_cast<std::size_t>(l)]);
-            pop.push_back(row.levels.populations[static_cast<std::size_t>(l)]);
+            // A level group that runs past the computed levels is unresolved (NaN in
+            // memory); files get 0 there and a mask, never a NaN.
+            const double en = row.levels.energies_ghz[static_cast<std::size_t>(l)];
+            const double po = row.levels.populations[static_cast<std::size_t>(l)];
+            const bool ok = std::isfinite(en) && std::isfinite(po);
+            e.push_back(ok ? en : 0.0);
+            pop.push_back(ok ? po : 0.0);
             deg.push_back(row.levels.degeneracy[static_cast<std::size_t>(l)]);
+            resolved.push_back(ok ? 1.0 : 0.0);
           }
         }
         h5.write(g + "/t", tt, "ns");
@@ -155,6 +162,8 @@ void run_compare(const CompareOptions& o) {
         h5.write_matrix(g + "/level_energy", e, tt.size(), static_cast<std::size_t>(o.levels), "GHz");
         h5.write_matrix(g + "/level_population", pop, tt.size(), static_cast<std::size_t>(o.levels), "1");
         h5.write_matrix(g + "/level_degeneracy", deg, tt.size(), static_cast<std::size_t>(o.levels), "1");
+        h5.write_matrix(g + "/level_resolved", resolved, tt.size(), static_cast<std::size_t>(o.levels),
+                        "1 resolved, 0 not (the level group runs past the levels computed; energy and population 0)");
         h5.attribute(g, "duration_ns", x.duration_ns);
         h5.attribute(g, "ground_probability", x.ground_probability);
         h5.attribute(g, "norm_drift", x.norm_drift);

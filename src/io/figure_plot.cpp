@@ -189,12 +189,17 @@ void render_figure(const HeatMap& map, const std::string& path) {
   for (double v : map.values) if (std::isfinite(v)) { zmin = std::min(zmin, v); zmax = std::max(zmax, v); }
   if (!std::isfinite(zmin)) throw std::runtime_error("heat map: no finite values");
   if (zmax - zmin < 1e-14) zmax = zmin + 1e-14;
+  // Cell edges halfway between centres, so non-uniform grids are drawn where they are.
   auto edges = [](const std::vector<double>& c) {
-    const double h0 = c.size() > 1 ? 0.5 * (c[1] - c[0]) : 0.5, h1 = c.size() > 1 ? 0.5 * (c.back() - c[c.size() - 2]) : 0.5;
-    return std::pair{c.front() - h0, c.back() + h1};
+    std::vector<double> e(c.size() + 1);
+    for (std::size_t k = 1; k < c.size(); ++k) e[k] = 0.5 * (c[k - 1] + c[k]);
+    const double h0 = c.size() > 1 ? c[1] - c[0] : 1.0, h1 = c.size() > 1 ? c.back() - c[c.size() - 2] : 1.0;
+    e.front() = c.front() - 0.5 * h0;
+    e.back() = c.back() + 0.5 * h1;
+    return e;
   };
-  auto [x0, x1] = edges(map.x);
-  auto [y0, y1] = edges(map.y);
+  const auto ex = edges(map.x), ey = edges(map.y);
+  const double x0 = ex.front(), x1 = ex.back(), y0 = ey.front(), y1 = ey.back();
   {
     Stream s(path);
     plstream& p = s.pls;
@@ -205,13 +210,14 @@ void render_figure(const HeatMap& map, const std::string& path) {
     p.adv(0);
     p.vpor(0.1, 0.82, 0.12, 0.88);
     p.wind(x0, x1, y0, y1);
-    std::vector<std::vector<PLFLT>> rows(nx, std::vector<PLFLT>(ny));
-    std::vector<const PLFLT*> ptrs(nx);
-    for (std::size_t i = 0; i < nx; ++i) {
-      for (std::size_t j = 0; j < ny; ++j) rows[i][j] = map.values[i * ny + j];
-      ptrs[i] = rows[i].data();
-    }
-    p.image(ptrs.data(), static_cast<PLINT>(nx), static_cast<PLINT>(ny), x0, x1, y0, y1, zmin, zmax, x0, x1, y0, y1);
+    for (std::size_t i = 0; i < nx; ++i)
+      for (std::size_t j = 0; j < ny; ++j) {
+        const double v = map.values[i * ny + j];
+        if (!std::isfinite(v)) continue;
+        p.col1((v - zmin) / (zmax - zmin));
+        const PLFLT cx[4] = {ex[i], ex[i + 1], ex[i + 1], ex[i]}, cy[4] = {ey[j], ey[j], ey[j + 1], ey[j + 1]};
+        p.fill(4, cx, cy);
+      }
     p.col0(1);
     p.box("bcnst", 0, 0, "bcnstv", 0, 0);
     p.lab(map.x_label.c_str(), map.y_label.c_str(), map.title.c_str());

@@ -1,5 +1,6 @@
 #include "io/result_figures.hpp"
 
+#include <cctype>
 #include <filesystem>
 #include <functional>
 #include <limits>
@@ -121,6 +122,59 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   emit("tts", [&](const std::string& path) { render_figure(ft, path); });
 }
 
+// A heat map of ground-state probability over a 2-D grid of shape parameters.
+void probability_map(const Hdf5Input& in, const Emit& emit, const std::string& root, const std::string& xname,
+                     const std::string& yname, const std::string& kind, const std::string& title,
+                     const std::string& x_label, const std::string& y_label) {
+  if (!in.has(root + "/ground_probability")) return;
+  HeatMap m;
+  m.title = title;
+  m.x_label = x_label;
+  m.y_label = y_label;
+  m.value_label = "ground-state probability p";
+  m.x = in.read(root + "/" + xname);
+  m.y = in.read(root + "/" + yname);
+  m.values = in.read(root + "/ground_probability");
+  if (m.values.size() != m.x.size() * m.y.size() || m.x.empty() || m.y.empty()) return;
+  emit(kind, [&](const std::string& path) { render_figure(m, path); });
+}
+
+// compare-paths results: populations of the lowest instantaneous levels along s.
+void level_populations(const Hdf5Input& in, const Emit& emit) {
+  if (!in.has("/compare")) return;
+  for (int i = 0; in.has(fmt::format("/compare/path_{}", i)); ++i) {
+    const std::string name = in.attribute_string(fmt::format("/compare/path_{}", i), "name");
+    for (int j = 0; in.has(fmt::format("/compare/path_{}/duration_{}/level_population", i, j)); ++j) {
+      const std::string g = fmt::format("/compare/path_{}/duration_{}", i, j);
+      const auto t = in.read(g + "/t");
+      auto pop = in.read(g + "/level_population");
+      const std::size_t n = t.size(), k = n ? pop.size() / n : 0;
+      if (!n || pop.size() != n * k) continue;
+      if (in.has(g + "/level_resolved")) {  // unresolved levels are gaps in the curves
+        const auto ok = in.read(g + "/level_resolved");
+        for (std::size_t q = 0; q < pop.size() && q < ok.size(); ++q)
+          if (ok[q] == 0.0) pop[q] = std::numeric_limits<double>::quiet_NaN();
+      }
+      LinePlot fig;
+      fig.title = fmt::format("Populations of the lowest instantaneous levels: path '{}'", name);
+      fig.note = fmt::format("duration {:.4g} ns, final ground-state probability {:.6f}",
+                             in.attribute_double(g, "duration_ns"), in.attribute_double(g, "ground_probability"));
+      fig.x_label = "time t (ns)";
+      fig.y_label = "population";
+      fig.y_range = std::pair{0.0, 1.05};
+      fig.legend = LinePlot::Legend::BottomLeft;
+      for (std::size_t l = 0; l < k; ++l) {
+        PlotSeries ser{fmt::format("level {}", l), t, std::vector<double>(n), SeriesStyle::Line, static_cast<int>(l)};
+        for (std::size_t r = 0; r < n; ++r) ser.y[r] = pop[r * k + l];
+        fig.series.push_back(std::move(ser));
+      }
+      std::string safe;
+      for (char c : name) safe += std::isalnum(static_cast<unsigned char>(c)) ? c : '-';
+      emit(fmt::format("populations-{}-{}", safe, j), [&](const std::string& path) { render_figure(fig, path); });
+    }
+  }
+}
+
 }  // namespace
 
 std::vector<std::string> draw_result_figures(const std::string& result_file, const std::string& out_dir,
@@ -146,6 +200,11 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
   anneal_trace(in, emit);
   spectrum(in, emit);
   duration_study(in, emit);
+  probability_map(in, emit, "/pause_map", "pause_s", "pause_ns", "pause-map", "Pause map: ground-state probability",
+                  "pause location s_p", "pause duration (ns)");
+  probability_map(in, emit, "/reverse_map", "turn_s", "dwell_ns", "reverse-map",
+                  "Reverse anneal: ground-state probability", "turn point s_turn", "dwell (ns)");
+  level_populations(in, emit);
   if (written.empty())
     throw InputError({result_file, 0, 0, ""}, "this file holds no result that gapwise can draw",
                      "give a file written with --out by anneal or another study subcommand");
