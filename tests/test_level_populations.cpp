@@ -143,3 +143,17 @@ TEST_CASE("even-sector populations equal the full-space ones for a state in that
   }
   CHECK(total_even > 0.5);
 }
+
+TEST_CASE("highly degenerate levels are resolved: 8 qubits under the transverse term alone") {
+  // Common practice (binomial counting): -(A/2) sum X on 8 qubits has levels of
+  // degeneracy C(8, k) = 1, 8, 28, 56; |0...0> weighs C(8, k)/256 on each.
+  IsingProblem p(8);
+  p.couplings = {{0, 1, -1.0}};
+  const TransverseIsingHamiltonian H(p);
+  const auto lp = level_populations(H, 5.0, 0.0, basis_state(8, 0), {.levels = 4});
+  const int deg[4] = {1, 8, 28, 56};
+  for (std::size_t k = 0; k < 4; ++k) {
+    CHECK(lp.degeneracy[k] == deg[k]);
+    CHECK(lp.populations[k] == doctest::Approx(deg[k] / 256.0).epsilon(1e-10));
+  }
+}

@@ -18,7 +18,11 @@ LevelPopulations level_populations(const SectorHamiltonian& h, double a, double 
   if (psi.size() != h.full().dim()) throw std::invalid_argument("state and Hamiltonian dimensions differ");
   const std::size_t dim = h.dim();
   EigenMethod method = o.method;
-  if (method == EigenMethod::Auto) method = dim <= kDenseMaxDim ? EigenMethod::Dense : EigenMethod::Lanczos;
+  // Dense resolves every degenerate level (the transverse term alone has levels
+  // of binomial degeneracy); Lanczos only sees a few vectors of each. Dense
+  // costs a fraction of a second up to dimension 512.
+  constexpr std::size_t kPopulationDenseMaxDim = 512;
+  if (method == EigenMethod::Auto) method = dim <= kPopulationDenseMaxDim ? EigenMethod::Dense : EigenMethod::Lanczos;
   // Dense gives every level at the same cost; Lanczos gets headroom so the last
   // wanted eigenspace can be seen to be complete (a level beyond it exists).
   const int want = method == EigenMethod::Dense
