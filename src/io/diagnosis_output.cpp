@@ -58,9 +58,17 @@ std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c)
     const DurationDiagnosis& run = d.runs[r];
     out += fmt::format("\n== t_f = {:g} ns: p = {:.6f} (ground manifold), lost {:.6f}\n", run.duration_ns,
                        run.anneal.ground_probability, 1 - run.anneal.ground_probability);
-    for (std::size_t k = 0; k < run.channels.size(); ++k)
-      out += fmt::format("{:>2}. {:<17} loss {:>7.4f}  {}\n", k + 1, channel_kind_name(run.channels[k].kind),
-                         run.channels[k].loss, run.channels[k].verdict);
+    const double lost = 1 - run.anneal.ground_probability;
+    if (!run.channels.empty() && run.channels.front().loss >= 1e-3)
+      out += fmt::format("limited by: {} (loss {:.4f} of the {:.4f} lost)\n", channel_kind_name(run.channels.front().kind),
+                         run.channels.front().loss, lost);
+    else
+      out += fmt::format("no channel costs 1e-3 or more (lost {:.2g} in all)\n", lost);
+    for (std::size_t k = 0; k < run.channels.size(); ++k) {
+      const double loss = std::abs(run.channels[k].loss) < 5e-5 ? 0.0 : run.channels[k].loss;
+      out += fmt::format("{:>2}. {:<17} loss {:>7.4f}  {}\n", k + 1, channel_kind_name(run.channels[k].kind), loss,
+                         run.channels[k].verdict);
+    }
     if (!d.crossings.empty()) {
       TextTable ps({"crossing", "s_before", "s_after", "pop_before", "pop_after", "transferred", "LZ_predicted",
                     "sweep_GHz/ns"});

@@ -303,12 +303,14 @@ Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule,
             dur, ps.landau_zener_loss, o.target_loss, t_needed);
       } else {
         ch.kind = ChannelKind::AvoidedCrossing;
+        // The crossing region of the fitted hyperbola: |s - s*| <= Delta / alpha (gap <= sqrt(2) Delta).
+        const double half = c.diabatic_slope_ghz > 0 ? delta / c.diabatic_slope_ghz : 0.0;
         ch.verdict = fmt::format(
             "avoided crossing at s* = {:.4f}, Delta_min {:.4g} GHz: {:.3f} of the population leaves here at {:g} ns "
             "(Landau-Zener {:.3f}, sweep {:.3g} GHz/ns); a loss of {:g} here needs about {:.3g} ns, or a slower path "
-            "over s in [{:.3f}, {:.3f}]",
+            "over the crossing region s in [{:.3f}, {:.3f}]",
             c.minimum.s, delta, ps.transferred, dur, ps.landau_zener_loss, ps.sweep_rate_ghz_per_ns, o.target_loss,
-            t_needed, c.window_s_before, c.window_s_after);
+            t_needed, std::max(c.minimum.s - half, shape.s_min()), std::min(c.minimum.s + half, shape.s_max()));
       }
       run.channels.push_back(ch);
     }
@@ -316,6 +318,7 @@ Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule,
       Channel ch;
       ch.kind = ChannelKind::Elsewhere;
       ch.loss = run.unattributed_loss;
+      const double shown = std::abs(run.unattributed_loss) < 5e-5 ? 0.0 : run.unattributed_loss;
       std::string sink;
       if (!run.outcome.sink_levels.empty()) {
         const SinkLevel& top = run.outcome.sink_levels.front();
@@ -325,10 +328,10 @@ Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule,
       ch.verdict = d.crossings.empty()
                        ? fmt::format("{:.3f} of p is lost with no interior gap minimum to blame: diabatic loss spread "
                                      "along the path; a longer anneal reduces it{}",
-                                     run.unattributed_loss, sink)
+                                     shown, sink)
                        : fmt::format("{:.3f} of p is lost away from the gap minima (spread along the path, before or "
                                      "after the crossings){}",
-                                     run.unattributed_loss, sink);
+                                     shown, sink);
       run.channels.push_back(ch);
     }
     if (d.ground.degeneracy() >= 2) {
