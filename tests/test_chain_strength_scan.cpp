@@ -164,6 +164,15 @@ TEST_CASE("p_logical by decoding equals p_logical from the success set; above th
     CHECK(p.m.decoded.any_break_probability <= 1.0);
   }
   CHECK(r.points[1].m.p_success >= r.points[1].m.p_physical - 1e-12);
+  // Above the bound the ground states are intact (Choi 2008; method notes).
+  CHECK(r.points[1].ground_intact);
+  CHECK(r.points[1].ground_decodes);
+  // At half the largest term the frustrated ring's ground state breaks a chain
+  // (the cheapest term to violate is then a chain coupler), so that strength
+  // is not eligible as best even if its decoded p is high.
+  CHECK_FALSE(r.points[0].ground_intact);
+  CHECK(r.best == 1);
+  CHECK(r.best_ground_intact);
   CHECK(r.best < r.points.size());
   CHECK(r.price.ratio > 0.0);
 }

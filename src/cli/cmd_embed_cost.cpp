@@ -117,13 +117,14 @@ void run_embed_cost(const EmbedCostOptions& o) {
   const ChainScanPoint& best = r.points[r.best];
 
   TextTable table({"strength", "J_chain", "scale", "min_gap_ghz", "s_star", "p_logical", "p_physical", "broken_frac",
-                   "needed_ns", "bound"});
+                   "needed_ns", "ground", "bound"});
   for (std::size_t k = 0; k < r.points.size(); ++k) {
     const auto& p = r.points[k];
     table.add({p.strength.relative ? fmt::format("{:g}x", p.strength.value) : fmt::format("{:g}", p.strength.value),
                fmt_num(p.chain_coupling, 6), fmt_num(p.scale, 6), fmt_num(p.m.gap.gap_ghz, 6), fmt_num(p.m.gap.s_star, 5),
                fmt_num(p.m.p_success, 6), fmt_num(p.m.p_physical, 6), fmt_num(p.m.decoded.mean_broken_fraction, 4),
-               p.m.needed.describe() + (k == r.best ? "  <- best" : ""), p.above_bound ? "above" : "below"});
+               p.m.needed.describe() + (k == r.best ? "  <- best" : ""),
+               p.ground_intact ? "intact" : (p.ground_decodes ? "broken" : "wrong"), p.above_bound ? "above" : "below"});
   }
 
   if (o.json) {
@@ -153,6 +154,8 @@ void run_embed_cost(const EmbedCostOptions& o) {
       put(e, "chain_coupling", p.chain_coupling);
       put(e, "scale", p.scale);
       put(e, "above_bound", p.above_bound);
+      put(e, "ground_intact", p.ground_intact);
+      put(e, "ground_decodes", p.ground_decodes);
       put(e, "min_gap_ghz", p.m.gap.gap_ghz);
       put(e, "s_star", p.m.gap.s_star);
       put(e, "gap_definition", p.m.gap.definition);
@@ -169,6 +172,7 @@ void run_embed_cost(const EmbedCostOptions& o) {
     put(j, "best_index", static_cast<long long>(r.best));
     put(j, "best_chain_coupling", best.chain_coupling);
     put(j, "best_at_scan_edge", r.best_at_edge);
+    put(j, "best_ground_intact", r.best_ground_intact);
     put(j, "price_of_embedding", r.price.ratio);
     put(j, "price_relation", r.price.relation);
     std::cout << to_json(j) << "\n";
@@ -193,13 +197,16 @@ void run_embed_cost(const EmbedCostOptions& o) {
                              r.logical_scale, r.logical_m.gap.gap_ghz, r.logical_m.gap.s_star, r.logical_m.gap.definition,
                              r.logical_m.p_success, needed_text(r.logical_m.needed));
     std::cout << "chain-strength scan (strength: x = times the largest logical |h|, |J|; p_logical: majority vote per\n"
-                 "chain, ties to the chain's first qubit; broken_frac: expected fraction of broken chains at t_f)\n"
+                 "chain, ties to the chain's first qubit; broken_frac: expected fraction of broken chains at t_f;\n"
+                 "ground: are the physical ground states intact, broken but decoding right, or wrong)\n"
               << table.render() << "\n";
     std::cout << fmt::format("best chain strength  {} (chain coupling {:g}{}): duration needed {}{}\n",
                              best.strength.describe(), best.chain_coupling,
                              best.scale != 1.0 ? fmt::format(", problem scaled by {:.4g}", best.scale) : "",
                              needed_text(best.m.needed),
                              r.best_at_edge ? "\n                     (at the edge of the scan: widen --strengths)" : "");
+    if (!r.best_ground_intact)
+      std::cout << "WARNING              no scanned strength keeps the physical ground states intact: scan stronger chains\n";
     std::cout << fmt::format("price of embedding   {} (duration needed embedded / logical)\n", r.price.describe());
   }
 

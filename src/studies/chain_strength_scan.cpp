@@ -93,6 +93,7 @@ namespace {
 // duration; equal durations prefer the larger minimum gap.
 bool better(const ChainScanPoint& x, const ChainScanPoint& y) {
   using K = NeededDuration::Kind;
+  if (x.ground_intact != y.ground_intact) return x.ground_intact;
   const bool xr = x.m.needed.kind != K::MoreThan, yr = y.m.needed.kind != K::MoreThan;
   if (xr != yr) return xr;
   if (xr && x.m.needed.ns != y.m.needed.ns) return x.m.needed.ns < y.m.needed.ns;
@@ -142,6 +143,13 @@ ChainScanResult scan_chain_strength(const IsingProblem& logical, const Embedding
     const EmbeddedProblem ep = embed_problem(logical, e, coupling, o.term_limit);
     p.scale = ep.scale;
     p.physical = ep.physical;
+    const GroundManifold physical_ground = find_ground_manifold(ep.physical);
+    p.ground_intact = p.ground_decodes = true;
+    for (BasisIndex b : physical_ground.states) {
+      const ChainReadout rd = decode_majority(b, e);
+      p.ground_intact = p.ground_intact && rd.broken_chains == 0;
+      p.ground_decodes = p.ground_decodes && logical_ground.contains(rd.logical);
+    }
     AnnealSetup setup(ep.physical, schedule, o.simulation);
     setup.ground = logical_success_manifold(e, logical_ground, ep.physical);  // the search measures p_logical
     p.m = measure_problem(setup, &e, &logical_ground, o);
@@ -149,7 +157,12 @@ ChainScanResult scan_chain_strength(const IsingProblem& logical, const Embedding
   }
   for (std::size_t k = 1; k < out.points.size(); ++k)
     if (better(out.points[k], out.points[out.best])) out.best = k;
-  out.best_at_edge = out.points.size() > 1 && (out.best == 0 || out.best + 1 == out.points.size());
+  out.best_ground_intact = out.points[out.best].ground_intact;
+  // Edge of the eligible (intact) range: the optimum may lie beyond it.
+  std::size_t first = out.points.size(), last = 0;
+  for (std::size_t k = 0; k < out.points.size(); ++k)
+    if (out.points[k].ground_intact == out.best_ground_intact) first = std::min(first, k), last = std::max(last, k);
+  out.best_at_edge = last > first && (out.best == first || out.best == last);
   out.price = needed_ratio(out.points[out.best].m.needed, out.logical_m.needed);
   return out;
 }

@@ -9,7 +9,9 @@
 //   - the duration needed for p_logical >= target (studies/duration_needed.hpp,
 //     with the logical success set in place of the ground manifold).
 // The same is measured on the logical problem itself (held to the same term
-// limit). The best strength is the one whose needed duration is shortest; the
+// limit). The best strength is the one whose needed duration is shortest among
+// those whose physical ground states are all intact (a weak chain can break in
+// the ground state and still decode right by luck of the tie rule); the
 // price of embedding is its needed duration over the logical one.
 //
 //   ChainScanOptions o;
@@ -87,6 +89,12 @@ struct ChainScanPoint {
   double chain_coupling = 0;     ///< resolved magnitude, problem units, before the term limit
   double scale = 1;              ///< term-limit factor applied to the physical problem
   bool above_bound = false;      ///< chain_coupling > chain_coupling_bound: ground states provably intact
+  /// By enumeration: every physical ground state has all chains intact. When
+  /// false, success relies on broken chains (and for even chains on the tie
+  /// rule), so the strength is not eligible as "best".
+  bool ground_intact = false;
+  /// Every physical ground state decodes into the logical ground manifold.
+  bool ground_decodes = false;
   IsingProblem physical;
   ScanMeasurement m;
 };
@@ -97,7 +105,8 @@ struct ChainScanResult {
   ScanMeasurement logical_m;
   double chain_bound = 0;        ///< chain_coupling_bound of the logical problem (unscaled units)
   std::vector<ChainScanPoint> points;  ///< by increasing chain coupling
-  std::size_t best = 0;          ///< index into points
+  std::size_t best = 0;          ///< index into points (among ground_intact points when there are any)
+  bool best_ground_intact = false;  ///< false: no scanned strength keeps the physical ground states intact
   bool best_at_edge = false;     ///< the best strength is the weakest or the strongest scanned
   DurationRatio price;           ///< needed(embedded, best) / needed(logical)
 };
