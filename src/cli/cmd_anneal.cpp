@@ -21,7 +21,7 @@ namespace gapwise::cli {
 namespace {
 
 struct AnnealOptions {
-  std::string problem, schedule, out, csv, propagator = "odeint";
+  std::string problem, schedule, out, csv, propagator = "split4";
   std::optional<double> duration_ns;
   double tolerance = 1e-6;
   int samples = 20, top = 8;
@@ -82,6 +82,7 @@ void run_anneal(const AnnealOptions& o) {
     put(j, "propagator", r.propagator);
     put(j, "steps", static_cast<long long>(r.stats.steps));
     put(j, "hamiltonian_applications", static_cast<long long>(r.stats.hamiltonian_applications));
+    put(j, "error_estimate", r.stats.error_estimate);
     put(j, "wall_seconds", r.wall_seconds);
     toml::array arr;
     for (const auto& oc : r.top_outcomes) {
@@ -103,6 +104,9 @@ void run_anneal(const AnnealOptions& o) {
                              r.duration_ns, sch.start.kind == StartKind::Ground ? "ground state of H(s0)" : "classical state");
     std::cout << fmt::format("propagator   {} (tolerance {:.0e}): {} steps, {} H applications, {:.3f} s\n", r.propagator,
                              o.tolerance, r.stats.steps, r.stats.hamiltonian_applications, r.wall_seconds);
+    std::cout << fmt::format("error est.   {:.1e} ({})\n", r.stats.error_estimate,
+                             r.propagator == "odeint" ? "sum of local error estimates, amplitudes"
+                                                      : "largest error of any outcome probability, step doubling");
     std::cout << fmt::format("\nground-state probability  {:.8f}\n", r.ground_probability);
     if (delta_p)
       std::cout << fmt::format("convergence               |dp| = {:.1e} when the tolerance is tightened tenfold{}\n", *delta_p,
@@ -121,6 +125,7 @@ void run_anneal(const AnnealOptions& o) {
     h5.attribute("/anneal", "tolerance", o.tolerance);
     h5.attribute("/anneal", "propagator", r.propagator);
     h5.attribute("/anneal", "steps", static_cast<long long>(r.stats.steps));
+    h5.attribute("/anneal", "error_estimate", r.stats.error_estimate);
     if (delta_p) h5.attribute("/anneal", "convergence_delta_p", *delta_p);
     h5.attribute("/anneal", "ground_energy", gm.energy);
     std::vector<long long> gstates(gm.states.begin(), gm.states.end());
@@ -156,7 +161,9 @@ void register_anneal(CLI::App& app) {
   sub->add_option("-d,--duration-ns", o->duration_ns,
                   "anneal duration in ns; stretches the schedule's path (default: the schedule's own)");
   sub->add_option("--tolerance", o->tolerance, "target accuracy of the ground-state probability (checked by a re-run at tolerance/10)")->capture_default_str();
-  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+  sub->add_option("--propagator", o->propagator,
+                  "which propagator runs the dynamics: split4 (fast, fourth order, default), split2 (second\n"
+                  "order), split4-yoshida (fourth order, triple jump), odeint (the generic reference)")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
   sub->add_option("--samples", o->samples, "observations inside each piece of the path (trace)")->capture_default_str();
   sub->add_option("--top", o->top, "how many most probable outcomes to list")->capture_default_str();

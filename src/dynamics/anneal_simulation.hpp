@@ -18,7 +18,7 @@
 namespace gapwise {
 
 struct SimulationOptions {
-  std::string propagator = "odeint";
+  std::string propagator = "split4";  // the fast split-operator propagator; "odeint" is the reference
   PropagatorOptions propagation;
   int samples_per_piece = 0;  ///< observations inside each piece, besides the waypoints
   int top_outcomes = 8;

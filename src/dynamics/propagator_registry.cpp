@@ -2,14 +2,19 @@
 
 #include "dynamics/odeint_propagator.hpp"
 #include "dynamics/propagator.hpp"
+#include "dynamics/split_operator_propagator.hpp"
 
 namespace gapwise {
 
-std::vector<std::string> propagator_names() { return {"odeint"}; }
+std::vector<std::string> propagator_names() { return {"split4", "split2", "split4-yoshida", "odeint"}; }
 
 std::unique_ptr<Propagator> make_propagator(const std::string& name, const TransverseIsingHamiltonian& h,
                                             const PropagatorOptions& options) {
   if (name == "odeint") return std::make_unique<OdeintPropagator>(h, options);
+  if (name == "split4") return std::make_unique<SplitOperatorPropagator>(h, options, SplitComposition::Suzuki4);
+  if (name == "split2") return std::make_unique<SplitOperatorPropagator>(h, options, SplitComposition::Strang2);
+  if (name == "split4-yoshida")
+    return std::make_unique<SplitOperatorPropagator>(h, options, SplitComposition::Yoshida4);
   throw std::invalid_argument("unknown propagator '" + name + "'");
 }
 

@@ -1,0 +1,292 @@
+#include "dynamics/split_exponentials.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdlib>
+#include <new>
+#include <stdexcept>
+
+namespace gapwise {
+namespace {
+
+// States this large are shared between OpenMP threads (2^16 amplitudes = 1 MiB
+// as two double arrays); below, thread start-up costs more than it saves.
+constexpr std::size_t kParallelDim = std::size_t{1} << 16;
+
+// Exact rotation cos(theta) + i sin(theta) sigma^x on the pairs (lo[k], hi[k]),
+// k < len; lo and hi are disjoint contiguous ranges.
+inline void rotate_pairs(double* __restrict lr, double* __restrict li, double* __restrict hr,
+                         double* __restrict hi, std::size_t len, double c, double s) {
+#pragma omp simd
+  for (std::size_t k = 0; k < len; ++k) {
+    const double a = lr[k], b = li[k], x = hr[k], y = hi[k];
+    lr[k] = c * a - s * y;
+    li[k] = c * b + s * x;
+    hr[k] = c * x - s * b;
+    hi[k] = c * y + s * a;
+  }
+}
+
+// The same rotation on qubits q and q+1 at once: quads (k, k+s1, k+2 s1, k+3 s1).
+inline void rotate_quads(double* __restrict r0, double* __restrict i0, double* __restrict r1,
+                         double* __restrict i1, double* __restrict r2, double* __restrict i2,
+                         double* __restrict r3, double* __restrict i3, std::size_t len, double c, double s) {
+#pragma omp simd
+  for (std::size_t k = 0; k < len; ++k) {
+    // qubit q: pairs (0,1), (2,3)
+    double a0 = c * r0[k] - s * i1[k], b0 = c * i0[k] + s * r1[k];
+    double a1 = c * r1[k] - s * i0[k], b1 = c * i1[k] + s * r0[k];
+    double a2 = c * r2[k] - s * i3[k], b2 = c * i2[k] + s * r3[k];
+    double a3 = c * r3[k] - s * i2[k], b3 = c * i3[k] + s * r2[k];
+    // qubit q+1: pairs (0,2), (1,3)
+    r0[k] = c * a0 - s * b2;  i0[k] = c * b0 + s * a2;
+    r2[k] = c * a2 - s * b0;  i2[k] = c * b2 + s * a0;
+    r1[k] = c * a1 - s * b3;  i1[k] = c * b1 + s * a3;
+    r3[k] = c * a3 - s * b1;  i3[k] = c * b3 + s * a1;
+  }
+}
+
+// Qubits 0 and 1 on consecutive groups of four amplitudes.
+inline void rotate_low2(double* __restrict re, double* __restrict im, std::size_t count, double c, double s) {
+#pragma omp simd
+  for (std::size_t g = 0; g < count; g += 4) {
+    const double r0 = re[g], r1 = re[g + 1], r2 = re[g + 2], r3 = re[g + 3];
+    const double i0 = im[g], i1 = im[g + 1], i2 = im[g + 2], i3 = im[g + 3];
+    const double a0 = c * r0 - s * i1, b0 = c * i0 + s * r1;
+    const double a1 = c * r1 - s * i0, b1 = c * i1 + s * r0;
+    const double a2 = c * r2 - s * i3, b2 = c * i2 + s * r3;
+    const double a3 = c * r3 - s * i2, b3 = c * i3 + s * r2;
+    re[g] = c * a0 - s * b2;      im[g] = c * b0 + s * a2;
+    re[g + 2] = c * a2 - s * b0;  im[g + 2] = c * b2 + s * a0;
+    re[g + 1] = c * a1 - s * b3;  im[g + 1] = c * b1 + s * a3;
+    re[g + 3] = c * a3 - s * b1;  im[g + 3] = c * b3 + s * a1;
+  }
+}
+
+// Qubits 0 .. qubits-1 on one contiguous block of 2^qubits amplitudes.
+inline void rotate_block(double* re, double* im, int qubits, double c, double s) {
+  const std::size_t count = std::size_t{1} << qubits;
+  int q = 0;
+  if (qubits >= 2) {
+    rotate_low2(re, im, count, c, s);
+    q = 2;
+  }
+  for (; q + 1 < qubits; q += 2) {
+    const std::size_t s1 = std::size_t{1} << q;
+    for (std::size_t base = 0; base < count; base += 4 * s1)
+      rotate_quads(re + base, im + base, re + base + s1, im + base + s1, re + base + 2 * s1, im + base + 2 * s1,
+                   re + base + 3 * s1, im + base + 3 * s1, s1, c, s);
+  }
+  for (; q < qubits; ++q) {
+    const std::size_t s1 = std::size_t{1} << q;
+    for (std::size_t base = 0; base < count; base += 2 * s1)
+      rotate_pairs(re + base, im + base, re + base + s1, im + base + s1, s1, c, s);
+  }
+}
+
+}  // namespace
+
+AlignedBuffer::AlignedBuffer(std::size_t n) : n_(n) {
+  if (n == 0) return;
+  const std::size_t bytes = ((n * sizeof(double) + 63) / 64) * 64;
+  void* p = std::aligned_alloc(64, bytes);
+  if (!p) throw std::bad_alloc();
+  p_.reset(static_cast<double*>(p));
+}
+
+void AlignedBuffer::Free::operator()(double* p) const { std::free(p); }
+
+SplitState SplitState::from(const QuantumState& psi) {
+  SplitState s(psi.size());
+  s.load(psi);
+  return s;
+}
+
+void SplitState::load(const QuantumState& psi) {
+  if (psi.size() != dim()) throw std::invalid_argument("SplitState::load: size mismatch");
+  double* r = re.data();
+  double* i = im.data();
+  for (std::size_t k = 0; k < psi.size(); ++k) {
+    r[k] = psi[k].real();
+    i[k] = psi[k].imag();
+  }
+}
+
+void SplitState::store(QuantumState& psi) const {
+  if (psi.size() != dim()) throw std::invalid_argument("SplitState::store: size mismatch");
+  const double* r = re.data();
+  const double* i = im.data();
+  for (std::size_t k = 0; k < psi.size(); ++k) psi[k] = Complex(r[k], i[k]);
+}
+
+QuantumState SplitState::to_complex() const {
+  QuantumState psi(dim());
+  store(psi);
+  return psi;
+}
+
+void SplitState::copy_from(const SplitState& other) {
+  std::copy(other.re.data(), other.re.data() + dim(), re.data());
+  std::copy(other.im.data(), other.im.data() + dim(), im.data());
+}
+
+double SplitState::distance(const SplitState& other) const {
+  const double *ar = re.data(), *ai = im.data(), *br = other.re.data(), *bi = other.im.data();
+  double sum = 0.0;
+  const std::size_t n = dim();
+#pragma omp parallel for simd reduction(+ : sum) if (n >= kParallelDim) schedule(static)
+  for (std::size_t k = 0; k < n; ++k) {
+    const double dr = ar[k] - br[k], di = ai[k] - bi[k];
+    sum += dr * dr + di * di;
+  }
+  return std::sqrt(sum);
+}
+
+double SplitState::distance_up_to_phase(const SplitState& other) const {
+  const double *ar = re.data(), *ai = im.data(), *br = other.re.data(), *bi = other.im.data();
+  const std::size_t n = dim();
+  // z = <other|this>; the best phase is z / |z|.
+  double zr = 0.0, zi = 0.0;
+#pragma omp parallel for simd reduction(+ : zr, zi) if (n >= kParallelDim) schedule(static)
+  for (std::size_t k = 0; k < n; ++k) {
+    zr += br[k] * ar[k] + bi[k] * ai[k];
+    zi += br[k] * ai[k] - bi[k] * ar[k];
+  }
+  const double mod = std::hypot(zr, zi);
+  const double cr = mod > 0.0 ? zr / mod : 1.0, ci = mod > 0.0 ? zi / mod : 0.0;
+  double sum = 0.0;
+#pragma omp parallel for simd reduction(+ : sum) if (n >= kParallelDim) schedule(static)
+  for (std::size_t k = 0; k < n; ++k) {
+    const double dr = ar[k] - (cr * br[k] - ci * bi[k]);
+    const double di = ai[k] - (cr * bi[k] + ci * br[k]);
+    sum += dr * dr + di * di;
+  }
+  return std::sqrt(sum);
+}
+
+double SplitState::probability_distance(const SplitState& other) const {
+  const double *ar = re.data(), *ai = im.data(), *br = other.re.data(), *bi = other.im.data();
+  const std::size_t n = dim();
+  double sum = 0.0;
+#pragma omp parallel for simd reduction(+ : sum) if (n >= kParallelDim) schedule(static)
+  for (std::size_t k = 0; k < n; ++k) sum += std::abs(ar[k] * ar[k] + ai[k] * ai[k] - br[k] * br[k] - bi[k] * bi[k]);
+  return 0.5 * sum;
+}
+
+SplitExponentials::SplitExponentials(const TransverseIsingHamiltonian& h)
+    : h_(&h), n_(h.qubits()), dim_(h.dim()) {
+  const std::vector<double>& d = h.diagonal();
+  std::vector<double> lv(d.begin(), d.end());
+  std::sort(lv.begin(), lv.end());
+  lv.erase(std::unique(lv.begin(), lv.end()), lv.end());  // exact equality: no level is ever merged
+  if (lv.size() <= 65536) {
+    levels_ = std::move(lv);
+    index_.resize(dim_);
+    for (std::size_t b = 0; b < dim_; ++b)
+      index_[b] = static_cast<std::uint16_t>(std::lower_bound(levels_.begin(), levels_.end(), d[b]) - levels_.begin());
+  }
+}
+
+std::size_t SplitExponentials::memory_bytes() const {
+  return index_.size() * sizeof(std::uint16_t) + levels_.size() * sizeof(double);
+}
+
+int SplitExponentials::rotate_passes() const {
+  return n_ <= kBlockQubits ? 1 : 1 + (n_ - kBlockQubits + 1) / 2;
+}
+
+void SplitExponentials::phase_block(double* re, double* im, std::size_t begin, std::size_t count, const double* cs,
+                                    const double* sn, double phi) const {
+  double* __restrict r = re + begin;
+  double* __restrict i = im + begin;
+  if (!index_.empty()) {
+    const std::uint16_t* __restrict idx = index_.data() + begin;
+#pragma omp simd
+    for (std::size_t k = 0; k < count; ++k) {
+      const double c = cs[idx[k]], s = sn[idx[k]];  // exp(-i phi D) = c + i s
+      const double a = r[k], b = i[k];
+      r[k] = a * c - b * s;
+      i[k] = a * s + b * c;
+    }
+  } else {
+    const double* __restrict d = h_->diagonal().data() + begin;
+    for (std::size_t k = 0; k < count; ++k) {
+      const double c = std::cos(phi * d[k]), s = -std::sin(phi * d[k]);
+      const double a = r[k], b = i[k];
+      r[k] = a * c - b * s;
+      i[k] = a * s + b * c;
+    }
+  }
+}
+
+void SplitExponentials::phase(SplitState& psi, double phi) const {
+  std::vector<double> cs(levels_.size()), sn(levels_.size());
+  for (std::size_t j = 0; j < levels_.size(); ++j) {
+    cs[j] = std::cos(phi * levels_[j]);
+    sn[j] = -std::sin(phi * levels_[j]);
+  }
+  const std::size_t chunk = std::min<std::size_t>(dim_, std::size_t{1} << kBlockQubits);
+  const std::size_t chunks = dim_ / chunk;
+  double* re = psi.re.data();
+  double* im = psi.im.data();
+#pragma omp parallel for schedule(static) if (dim_ >= kParallelDim)
+  for (std::size_t c = 0; c < chunks; ++c) phase_block(re, im, c * chunk, chunk, cs.data(), sn.data(), phi);
+}
+
+void SplitExponentials::rotate(SplitState& psi, double theta) const { rotate_all(psi, false, 0.0, theta); }
+
+void SplitExponentials::phase_then_rotate(SplitState& psi, double phi, double theta) const {
+  rotate_all(psi, true, phi, theta);
+}
+
+void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi, double theta) const {
+  const double c = std::cos(theta), s = std::sin(theta);
+  std::vector<double> cs, sn;
+  if (with_phase) {
+    cs.resize(levels_.size());
+    sn.resize(levels_.size());
+    for (std::size_t j = 0; j < levels_.size(); ++j) {
+      cs[j] = std::cos(phi * levels_[j]);
+      sn[j] = -std::sin(phi * levels_[j]);
+    }
+  }
+  const int low = std::min(n_, kBlockQubits);
+  const std::size_t block = std::size_t{1} << low;
+  const std::size_t blocks = dim_ / block;
+  double* re = psi.re.data();
+  double* im = psi.im.data();
+#pragma omp parallel if (dim_ >= kParallelDim)
+  {
+    // Low qubits: each block is rotated while it is in L1 (after its phase).
+#pragma omp for schedule(static)
+    for (std::size_t bk = 0; bk < blocks; ++bk) {
+      if (with_phase) phase_block(re, im, bk * block, block, cs.data(), sn.data(), phi);
+      rotate_block(re + bk * block, im + bk * block, low, c, s);
+    }
+    // High qubits, two per pass; chunks of `block` contiguous amplitudes.
+    int q = low;
+    for (; q + 1 < n_; q += 2) {
+      const std::size_t s1 = std::size_t{1} << q;
+      const std::size_t per_group = s1 / block;          // chunks inside one quarter
+      const std::size_t groups = dim_ / (4 * s1);
+#pragma omp for schedule(static)
+      for (std::size_t w = 0; w < groups * per_group; ++w) {
+        const std::size_t base = (w / per_group) * 4 * s1 + (w % per_group) * block;
+        rotate_quads(re + base, im + base, re + base + s1, im + base + s1, re + base + 2 * s1, im + base + 2 * s1,
+                     re + base + 3 * s1, im + base + 3 * s1, block, c, s);
+      }
+    }
+    if (q < n_) {
+      const std::size_t s1 = std::size_t{1} << q;
+      const std::size_t per_group = s1 / block;
+      const std::size_t groups = dim_ / (2 * s1);
+#pragma omp for schedule(static)
+      for (std::size_t w = 0; w < groups * per_group; ++w) {
+        const std::size_t base = (w / per_group) * 2 * s1 + (w % per_group) * block;
+        rotate_pairs(re + base, im + base, re + base + s1, im + base + s1, block, c, s);
+      }
+    }
+  }
+}
+
+}  // namespace gapwise
