@@ -219,18 +219,25 @@ void SplitExponentials::phase_block(double* re, double* im, std::size_t begin, s
   }
 }
 
-void SplitExponentials::phase(SplitState& psi, double phi) const {
-  std::vector<double> cs(levels_.size()), sn(levels_.size());
+void SplitExponentials::fill_tables(double phi) const {
+  cs_.resize(levels_.size());
+  sn_.resize(levels_.size());
   for (std::size_t j = 0; j < levels_.size(); ++j) {
-    cs[j] = std::cos(phi * levels_[j]);
-    sn[j] = -std::sin(phi * levels_[j]);
+    cs_[j] = std::cos(phi * levels_[j]);
+    sn_[j] = -std::sin(phi * levels_[j]);
   }
+}
+
+void SplitExponentials::phase(SplitState& psi, double phi) const {
+  fill_tables(phi);
+  const double* cs = cs_.data();
+  const double* sn = sn_.data();
   const std::size_t chunk = std::min<std::size_t>(dim_, std::size_t{1} << kBlockQubits);
   const std::size_t chunks = dim_ / chunk;
   double* re = psi.re.data();
   double* im = psi.im.data();
 #pragma omp parallel for schedule(static) if (dim_ >= kParallelDim)
-  for (std::size_t c = 0; c < chunks; ++c) phase_block(re, im, c * chunk, chunk, cs.data(), sn.data(), phi);
+  for (std::size_t c = 0; c < chunks; ++c) phase_block(re, im, c * chunk, chunk, cs, sn, phi);
 }
 
 void SplitExponentials::rotate(SplitState& psi, double theta) const { rotate_all(psi, false, 0.0, theta); }
@@ -241,26 +248,21 @@ void SplitExponentials::phase_then_rotate(SplitState& psi, double phi, double th
 
 void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi, double theta) const {
   const double c = std::cos(theta), s = std::sin(theta);
-  std::vector<double> cs, sn;
-  if (with_phase) {
-    cs.resize(levels_.size());
-    sn.resize(levels_.size());
-    for (std::size_t j = 0; j < levels_.size(); ++j) {
-      cs[j] = std::cos(phi * levels_[j]);
-      sn[j] = -std::sin(phi * levels_[j]);
-    }
-  }
+  if (with_phase) fill_tables(phi);
+  const double* cs = cs_.data();
+  const double* sn = sn_.data();
   const int low = std::min(n_, kBlockQubits);
   const std::size_t block = std::size_t{1} << low;
   const std::size_t blocks = dim_ / block;
   double* re = psi.re.data();
   double* im = psi.im.data();
-#pragma omp parallel if (dim_ >= kParallelDim)
-  {
+  // The loops below are orphaned work-sharing constructs: inside the parallel
+  // region they are shared out, called directly they run serially at no cost.
+  auto body = [&] {
     // Low qubits: each block is rotated while it is in L1 (after its phase).
 #pragma omp for schedule(static)
     for (std::size_t bk = 0; bk < blocks; ++bk) {
-      if (with_phase) phase_block(re, im, bk * block, block, cs.data(), sn.data(), phi);
+      if (with_phase) phase_block(re, im, bk * block, block, cs, sn, phi);
       rotate_block(re + bk * block, im + bk * block, low, c, s);
     }
     // High qubits, two per pass; chunks of `block` contiguous amplitudes.
@@ -286,6 +288,12 @@ void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi,
         rotate_pairs(re + base, im + base, re + base + s1, im + base + s1, block, c, s);
       }
     }
+  };
+  if (dim_ >= kParallelDim) {
+#pragma omp parallel
+    body();
+  } else {
+    body();
   }
 }
 

@@ -73,6 +73,8 @@ struct SplitState {
   double probability_distance(const SplitState& other) const;
 };
 
+/// Not to be shared between threads (it keeps per-call scratch tables); each
+/// propagator owns its own.
 class SplitExponentials {
  public:
   /// Qubits rotated inside one cache-resident block (2^10 amplitudes, 16 KiB).
@@ -103,6 +105,8 @@ class SplitExponentials {
   std::vector<double> levels_;       ///< distinct values of D (empty: per-state fallback)
   std::vector<std::uint16_t> index_; ///< D_b == levels_[index_[b]]
 
+  mutable std::vector<double> cs_, sn_;  ///< per-call phase tables (one object per thread)
+  void fill_tables(double phi) const;
   void phase_block(double* re, double* im, std::size_t begin, std::size_t count, const double* cs,
                    const double* sn, double phi) const;
   void rotate_all(SplitState& psi, bool with_phase, double phi, double theta) const;
