@@ -227,3 +227,17 @@ TEST_CASE("order of convergence: error ratio ~4 (second order) and ~16 (fourth o
     CHECK(e2 / e3 == doctest::Approx(want).epsilon(0.15));
   }
 }
+
+TEST_CASE("anneals run one per OpenMP thread give the serial result bit for bit") {
+  // Studies run one anneal per thread; the kernels must not share work with
+  // the caller's threads (common practice: nested work sharing binds to the
+  // innermost parallel region).
+  IsingProblem prob = random_problem(6, 51, true);
+  const AnnealPath path({{0.0, 0.0}, {3.0, 1.0}});
+  const double serial = anneal(prob, path, "split4", 1e-6).p;
+  double threaded[2] = {0, 0};
+#pragma omp parallel for num_threads(2)
+  for (int k = 0; k < 2; ++k) threaded[k] = anneal(prob, path, "split4", 1e-6).p;
+  CHECK(threaded[0] == serial);
+  CHECK(threaded[1] == serial);
+}

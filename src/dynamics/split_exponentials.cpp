@@ -84,6 +84,20 @@ inline void rotate_block(double* re, double* im, int qubits, double c, double s)
   }
 }
 
+// f(0) .. f(count-1), shared among OpenMP threads when `parallel`. Always a
+// region of its own: work-sharing constructs orphaned here would bind to a
+// caller's parallel region (a sweep running one anneal per thread) and split
+// one thread's work among the others.
+template <class F>
+inline void for_each_index(std::size_t count, bool parallel, const F& f) {
+  if (parallel) {
+#pragma omp parallel for schedule(static)
+    for (std::size_t i = 0; i < count; ++i) f(i);
+  } else {
+    for (std::size_t i = 0; i < count; ++i) f(i);
+  }
+}
+
 }  // namespace
 
 AlignedBuffer::AlignedBuffer(std::size_t n) : n_(n) {
@@ -236,8 +250,8 @@ void SplitExponentials::phase(SplitState& psi, double phi) const {
   const std::size_t chunks = dim_ / chunk;
   double* re = psi.re.data();
   double* im = psi.im.data();
-#pragma omp parallel for schedule(static) if (dim_ >= kParallelDim)
-  for (std::size_t c = 0; c < chunks; ++c) phase_block(re, im, c * chunk, chunk, cs, sn, phi);
+  for_each_index(chunks, dim_ >= kParallelDim,
+                 [&](std::size_t c) { phase_block(re, im, c * chunk, chunk, cs, sn, phi); });
 }
 
 void SplitExponentials::rotate(SplitState& psi, double theta) const { rotate_all(psi, false, 0.0, theta); }
@@ -256,44 +270,32 @@ void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi,
   const std::size_t blocks = dim_ / block;
   double* re = psi.re.data();
   double* im = psi.im.data();
-  // The loops below are orphaned work-sharing constructs: inside the parallel
-  // region they are shared out, called directly they run serially at no cost.
-  auto body = [&] {
-    // Low qubits: each block is rotated while it is in L1 (after its phase).
-#pragma omp for schedule(static)
-    for (std::size_t bk = 0; bk < blocks; ++bk) {
-      if (with_phase) phase_block(re, im, bk * block, block, cs, sn, phi);
-      rotate_block(re + bk * block, im + bk * block, low, c, s);
-    }
-    // High qubits, two per pass; chunks of `block` contiguous amplitudes.
-    int q = low;
-    for (; q + 1 < n_; q += 2) {
-      const std::size_t s1 = std::size_t{1} << q;
-      const std::size_t per_group = s1 / block;          // chunks inside one quarter
-      const std::size_t groups = dim_ / (4 * s1);
-#pragma omp for schedule(static)
-      for (std::size_t w = 0; w < groups * per_group; ++w) {
-        const std::size_t base = (w / per_group) * 4 * s1 + (w % per_group) * block;
-        rotate_quads(re + base, im + base, re + base + s1, im + base + s1, re + base + 2 * s1, im + base + 2 * s1,
-                     re + base + 3 * s1, im + base + 3 * s1, block, c, s);
-      }
-    }
-    if (q < n_) {
-      const std::size_t s1 = std::size_t{1} << q;
-      const std::size_t per_group = s1 / block;
-      const std::size_t groups = dim_ / (2 * s1);
-#pragma omp for schedule(static)
-      for (std::size_t w = 0; w < groups * per_group; ++w) {
-        const std::size_t base = (w / per_group) * 2 * s1 + (w % per_group) * block;
-        rotate_pairs(re + base, im + base, re + base + s1, im + base + s1, block, c, s);
-      }
-    }
-  };
-  if (dim_ >= kParallelDim) {
-#pragma omp parallel
-    body();
-  } else {
-    body();
+  const bool parallel = dim_ >= kParallelDim;
+  // Low qubits: each block is rotated while it is in L1 (after its phase).
+  for_each_index(blocks, parallel, [&](std::size_t bk) {
+    if (with_phase) phase_block(re, im, bk * block, block, cs, sn, phi);
+    rotate_block(re + bk * block, im + bk * block, low, c, s);
+  });
+  // High qubits, two per pass; chunks of `block` contiguous amplitudes.
+  int q = low;
+  for (; q + 1 < n_; q += 2) {
+    const std::size_t s1 = std::size_t{1} << q;
+    const std::size_t per_group = s1 / block;  // chunks inside one quarter
+    const std::size_t groups = dim_ / (4 * s1);
+    for_each_index(groups * per_group, parallel, [&](std::size_t w) {
+      const std::size_t base = (w / per_group) * 4 * s1 + (w % per_group) * block;
+      rotate_quads(re + base, im + base, re + base + s1, im + base + s1, re + base + 2 * s1, im + base + 2 * s1,
+                   re + base + 3 * s1, im + base + 3 * s1, block, c, s);
+    });
+  }
+  if (q < n_) {
+    const std::size_t s1 = std::size_t{1} << q;
+    const std::size_t per_group = s1 / block;
+    const std::size_t groups = dim_ / (2 * s1);
+    for_each_index(groups * per_group, parallel, [&](std::size_t w) {
+      const std::size_t base = (w / per_group) * 2 * s1 + (w % per_group) * block;
+      rotate_pairs(re + base, im + base, re + base + s1, im + base + s1, block, c, s);
+    });
   }
 }
 
