@@ -87,7 +87,7 @@ struct GapSearchOptions {
   int max_points = 3000;                ///< cap on all evaluated points; hitting it is flagged
   double bend_threshold = 0.25;         ///< split when |dE/ds(b) - dE/ds(a)| (b - a) > this * local gap
   bool other_sector = false;            ///< also the levels of the other spin-flip sector at each point
-  bool check_missed_levels = true;      ///< Lanczos deflation check (see lowest_levels.hpp)
+  bool check_missed_levels = true;      ///< Lanczos deflation check where degeneracies are possible (lowest_levels.hpp)
   double lanczos_tolerance = 1e-12;
   std::optional<double> s_first, s_last;  ///< default: the range the energy scales cover
   std::function<void(const GapSearchProgress&)> progress;  ///< called after each point

@@ -14,10 +14,15 @@
 //   Levels lv2 = lowest_levels(H, a_ghz, b_ghz, 4, /*vectors=*/true);
 //
 // Lanczos from one start vector sees only one direction of an exactly degenerate
-// eigenspace. With check_missed_levels (the default) every Lanczos result is
-// re-checked: the found vectors are shifted out of the way (H + sigma V V^T) and
-// the lowest level of what remains is computed; any level below the highest one
-// found is merged in, until none is left. Dense results need no such check.
+// eigenspace. With check_missed_levels (the default) a Lanczos result is
+// re-checked whenever exact degeneracies are possible: the found vectors are
+// shifted out of the way (H + sigma V V^T) and the lowest level of what remains
+// is computed from a fresh random start; any level below the highest one found
+// is merged in, until none is left. Degeneracies that persist over a range of s
+// need a symmetry of H, and a problem whose diagonal has no repeated values has
+// none (only phases commute with D, and only a constant phase also commutes with
+// sum X), so for such problems the check is skipped unless B = 0.
+// Dense results need no such check.
 #include <cstddef>
 #include <string>
 #include <vector>
@@ -49,6 +54,7 @@ struct Levels {
   EigenMethod method_used = EigenMethod::Auto;
   int iterations = 0;                 ///< Lanczos restarts (main solve)
   int missed_levels_found = 0;        ///< levels the deflation check added
+  bool level_check_run = false;       ///< whether the deflation check ran
 };
 
 /// Dimension up to which Auto picks the dense solver.
