@@ -9,9 +9,11 @@
 namespace gapwise {
 namespace {
 
-// States this large are shared between OpenMP threads (2^16 amplitudes = 1 MiB
-// as two double arrays); below, thread start-up costs more than it saves.
-constexpr std::size_t kParallelDim = std::size_t{1} << 16;
+// States this large are shared between OpenMP threads (2^18 amplitudes = 4 MiB
+// as two double arrays); below, thread start-up and the barriers between
+// passes (which stall when the cores are shared with other work) cost more
+// than they save.
+constexpr std::size_t kParallelDim = std::size_t{1} << 18;
 
 // Exact rotation cos(theta) + i sin(theta) sigma^x on the pairs (lo[k], hi[k]),
 // k < len; lo and hi are disjoint contiguous ranges.
