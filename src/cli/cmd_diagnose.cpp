@@ -3,6 +3,8 @@
 // (studies/loss_diagnosis.hpp) does the work, io/diagnosis_output.hpp prints it.
 #include <cmath>
 #include <iostream>
+
+#include <unistd.h>
 #include <memory>
 #include <optional>
 
@@ -63,7 +65,8 @@ void run_diagnose(const DiagnoseOptions& o) {
     c.threads = o.threads;
     d.control = c;
   }
-  if (!o.quiet)
+  // Progress only on a terminal: logs and pipes stay clean.
+  if (!o.quiet && ::isatty(STDERR_FILENO))
     d.progress = [](const DiagnosisProgress& pr) {
       std::cerr << fmt::format("\r[diagnose] {} {}/{}   ", pr.stage, pr.done, pr.total);
       if (pr.done == pr.total) std::cerr << "\n";
