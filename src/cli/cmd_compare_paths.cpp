@@ -9,6 +9,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
@@ -23,7 +24,7 @@ namespace {
 struct CompareOptions {
   std::string problem;
   std::vector<std::string> schedules, pauses, quenches;
-  std::string durations, out, csv, propagator = "odeint";
+  std::string durations, out, csv, propagator = SimulationOptions{}.propagator;
   bool gap_adapted = false;
   int levels = 4, points = 60, threads = 0, waypoints = 200;
   double tolerance = 1e-6, target = kDefaultTargetProbability;

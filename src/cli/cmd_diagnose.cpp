@@ -11,6 +11,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/diagnosis_output.hpp"
@@ -20,7 +21,7 @@ namespace gapwise::cli {
 namespace {
 
 struct DiagnoseOptions {
-  std::string problem, schedule, out, propagator = "odeint";
+  std::string problem, schedule, out, propagator = SimulationOptions{}.propagator;
   std::vector<double> durations_ns;
   std::optional<double> control_tolerance;
   double tolerance = 1e-6, sigma_h = 0.03, sigma_j = 0.03, window = 5.0, target_loss = 0.01;

@@ -14,6 +14,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "dynamics/anneal_simulation.hpp"
 #include "dynamics/propagator.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
@@ -29,7 +30,7 @@ namespace {
 
 struct EmbedCostOptions {
   std::string problem, embedding, schedule, out, csv, write_physical, range = "1:1000:13";
-  std::string propagator = "odeint";
+  std::string propagator = SimulationOptions{}.propagator;
   std::vector<double> strengths;
   bool absolute = false, json = false, quiet = false, no_term_limit = false;
   std::optional<double> duration_ns, term_limit;

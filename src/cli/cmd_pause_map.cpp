@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
@@ -19,7 +20,7 @@ namespace gapwise::cli {
 namespace {
 
 struct PauseMapCli {
-  std::string problem, schedule, out, at = "0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = "odeint";
+  std::string problem, schedule, out, at = "0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = SimulationOptions{}.propagator;
   double duration_ns = 0, tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0;
 };

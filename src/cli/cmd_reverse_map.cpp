@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
@@ -19,7 +20,7 @@ namespace gapwise::cli {
 namespace {
 
 struct ReverseMapCli {
-  std::string problem, schedule, out, turn = "0.3:0.9:7", dwell_ns = "0,5,10,20", start_bits, propagator = "odeint";
+  std::string problem, schedule, out, turn = "0.3:0.9:7", dwell_ns = "0,5,10,20", start_bits, propagator = SimulationOptions{}.propagator;
   double ramp_ns = 5, tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0;
 };
