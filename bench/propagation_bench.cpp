@@ -107,6 +107,7 @@ Row run_split(const IsingProblem& prob, double duration, double tol, const std::
 int main(int argc, char** argv) {
   std::vector<double> sizes{8, 10, 12, 14, 16}, durations{10, 100, 1000};
   int odeint_max_n = 10, scipy_max_n = 0, big_n = 20;
+  double odeint_max_t = 100;
   double tol = 1e-6;
   std::string scipy;
   std::string python = "/usr/bin/python3";
@@ -119,6 +120,7 @@ int main(int argc, char** argv) {
     if (a == "--sizes") sizes = parse_list(next());
     else if (a == "--durations") durations = parse_list(next());
     else if (a == "--odeint-max-n") odeint_max_n = std::atoi(next());
+    else if (a == "--odeint-max-ns") odeint_max_t = std::atof(next());
     else if (a == "--scipy") scipy = next();
     else if (a == "--scipy-max-n") scipy_max_n = std::atoi(next());
     else if (a == "--python") python = next();
@@ -128,6 +130,7 @@ int main(int argc, char** argv) {
       std::printf(
           "bench_propagation [--sizes 8,10,...] [--durations 10,100,1000] [--tolerance 1e-6]\n"
           "  [--odeint-max-n N]   run the odeint reference for n <= N (slow: minutes at n = 14, 100 ns)\n"
+          "  [--odeint-max-ns T]  ... and for durations <= T ns (default 100)\n"
           "  [--scipy SCRIPT --scipy-max-n N] [--python /usr/bin/python3]  SciPy comparison at 100 ns\n"
           "  [--big-n N]          one extra run at 100 ns on N qubits (memory and time; 0 to skip)\n");
       return a == "--help" || a == "-h" ? 0 : 2;
@@ -170,7 +173,7 @@ int main(int argc, char** argv) {
       Row tight = run_split(prob, T, tol / 1000, "split4");
       r.err_vs_tight = std::abs(r.p - tight.p);
       std::string od = "-", ratio = "-";
-      if (n <= odeint_max_n) {
+      if (n <= odeint_max_n && T <= odeint_max_t) {
         Row o = run_split(prob, T, tol, "odeint");
         od = fmt::format("{:.2f}", o.wall_s);
         ratio = fmt::format("{:.1f}", o.wall_s / r.wall_s);
