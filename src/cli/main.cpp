@@ -38,6 +38,7 @@ int main(int argc, char** argv) {
   cli::register_pause_map(app);
   cli::register_reverse_map(app);
   cli::register_embed_cost(app);
+  cli::register_durations(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -90,6 +90,7 @@ std::vector<DurationPoint> DurationEvaluator::evaluate(const std::vector<double>
   std::sort(todo.begin(), todo.end(), std::greater<>());  // longest first: the cost grows with t_f
   todo.erase(std::unique(todo.begin(), todo.end()), todo.end());
 
+  if (!todo.empty() && on_batch) on_batch(todo);
   std::mutex lock;
   std::exception_ptr failure;
   bool stop = false;

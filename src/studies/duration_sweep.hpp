@@ -69,6 +69,9 @@ class DurationEvaluator {
   /// Called once per newly simulated point, in completion order, under a lock
   /// (after the point is journaled). Exceptions thrown here stop the sweep.
   std::function<void(const DurationPoint&)> on_finished;
+  /// Called before simulating, with the durations about to run (not called when
+  /// every requested point is known), e.g. to size a progress bar.
+  std::function<void(const std::vector<double>&)> on_batch;
 
   /// p(t_f) for each duration, in the given order; known points are reused and the
   /// missing ones simulated on up to `threads` threads (0: OpenMP's default;

@@ -1,0 +1,434 @@
+// `gapwise durations PROBLEM SCHEDULE`: the anneal-time study. Simulates p(t_f)
+// over a list or log-spaced range of durations, reports time to solution and
+// its optimum, finds the shortest duration that reaches the target by
+// bisection, and sets the Landau-Zener and adiabatic-condition predictions
+// beside the simulation. Resumable: finished points go to a journal beside the
+// output file and a rerun of the same command skips them.
+#include <algorithm>
+#include <cmath>
+#include <csignal>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+#include <iostream>
+#include <memory>
+#include <optional>
+#include <set>
+#include <sstream>
+
+#include <unistd.h>
+
+#include <fmt/format.h>
+
+#include "cli/cli_common.hpp"
+#include "hamiltonian/memory_budget.hpp"
+#include "io/atomic_file.hpp"
+#include "io/duration_study_file.hpp"
+#include "io/input_error.hpp"
+#include "io/json_summary.hpp"
+#include "io/progress_bar.hpp"
+#include "io/result_journal.hpp"
+#include "io/text_table.hpp"
+#include "studies/anneal_predictions.hpp"
+#include "studies/duration_study.hpp"
+
+#ifdef _OPENMP
+#include <omp.h>
+#endif
+
+namespace gapwise::cli {
+namespace {
+
+struct DurationsOptions {
+  std::string problem, schedule, out, csv, range, propagator = SimulationOptions{}.propagator;
+  std::vector<double> durations;
+  double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3, agreement = 0.02;
+  int threads = 0, probes = 2;
+  bool json = false, no_search = false, no_predictions = false, restart = false, quiet = false;
+};
+
+// Interrupts: everything finished is already on disk; say so and leave.
+char g_interrupt_message[1024] = "";
+extern "C" void on_interrupt(int sig) {
+  if (g_interrupt_message[0]) {
+    const ssize_t ignored = ::write(STDERR_FILENO, g_interrupt_message, std::strlen(g_interrupt_message));
+    (void)ignored;
+  }
+  ::_exit(128 + sig);
+}
+
+std::string read_text(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::ostringstream t;
+  t << in.rdbuf();
+  return t.str();
+}
+
+std::vector<double> parse_range(const std::string& text) {
+  double first = 0, last = 0;
+  int count = 0;
+  char c1 = 0, c2 = 0;
+  std::istringstream in(text);
+  if (!(in >> first >> c1 >> last >> c2 >> count) || c1 != ':' || c2 != ':' || !(in >> std::ws).eof())
+    throw InputError({"--range", 0, 0, "--range"}, fmt::format("cannot read the range '{}'", text),
+                     "write FIRST:LAST:COUNT in ns, e.g. --range 1:1000:13 (log-spaced, both ends included)");
+  return log_spaced_durations(first, last, count);
+}
+
+std::string p_text(double p) { return fmt::format("{:.6f}", std::clamp(p, 0.0, 1.0)); }
+std::string ns_text(double t) { return std::isinf(t) ? "inf" : fmt_num(t, 5); }
+
+void run_durations(const DurationsOptions& o) {
+  const IsingProblem problem = read_problem_file(o.problem);
+  const Schedule schedule = read_schedule_file(o.schedule);
+  if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
+    throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
+                     "use a value between 1e-12 and 1e-2 (default 1e-6)");
+  if (!(o.target > 0.0 && o.target < 1.0))
+    throw InputError({"--target", 0, 0, "--target"}, fmt::format("target {} is not inside (0, 1)", o.target),
+                     "give a success probability such as 0.99");
+  if (!(o.resolution > 0.0 && o.resolution < 1.0))
+    throw InputError({"--resolution", 0, 0, "--resolution"}, fmt::format("resolution {} is not inside (0, 1)", o.resolution),
+                     "give the relative width at which bisection stops, e.g. 0.005");
+  if (o.probes < 1 || o.probes > 64)
+    throw InputError({"--probes", 0, 0, "--probes"}, fmt::format("{} probes per round", o.probes), "use 1 to 64");
+  if (!o.range.empty() && !o.durations.empty())
+    throw InputError({"--range", 0, 0, "--range"}, "both --durations and --range were given", "give one of them");
+  std::vector<double> grid;
+  if (!o.durations.empty()) grid = normalised_grid(o.durations);
+  else if (!o.range.empty()) grid = parse_range(o.range);
+  if (!o.out.empty()) check_output_path(o.out, "--out");
+  if (!o.csv.empty()) check_output_path(o.csv, "--csv");
+#ifdef _OPENMP
+  const int threads = o.threads > 0 ? o.threads : omp_get_max_threads();
+#else
+  const int threads = 1;
+#endif
+  check_memory(problem.qubits, 10 * std::max(1, threads), 0, o.problem);
+
+  SimulationOptions sim;
+  sim.propagator = o.propagator;
+  sim.propagation.tolerance = o.tolerance;
+  const AnnealSetup setup(problem, schedule, sim);
+
+  std::optional<AnnealPredictions> predictions;
+  if (!o.no_predictions) predictions = predict_anneal(setup);
+  const bool grid_chosen = grid.empty();
+  if (grid_chosen) grid = default_duration_grid(predictions ? &*predictions : nullptr, o.target);
+
+  DurationStudyInputs in;
+  in.problem_file = o.problem;
+  in.schedule_file = o.schedule;
+  in.command_line = command_line();
+  in.propagator = o.propagator;
+  in.tolerance = o.tolerance;
+  in.target = o.target;
+  in.grid_ns = grid;
+  in.setup = &setup;
+  in.predictions = predictions ? &*predictions : nullptr;
+
+  // The journal lives beside the first output file; without one nothing is kept.
+  const std::string keep = !o.out.empty() ? o.out : o.csv;
+  std::unique_ptr<ResultJournal> journal;
+  if (!keep.empty()) {
+    const std::string jpath = journal_path_for(keep);
+    if (o.restart) std::filesystem::remove(jpath);
+    journal = std::make_unique<ResultJournal>(
+        jpath, duration_journal_layout(),
+        input_fingerprint({read_text(o.problem), read_text(o.schedule), o.propagator, fmt::format("{:a}", o.tolerance)}));
+    fmt::format_to_n(g_interrupt_message, sizeof g_interrupt_message - 1,
+                     "\ngapwise: interrupted; every finished duration is saved in {} (and {}). "
+                     "Run the same command again to continue.\n",
+                     jpath, keep);
+    std::signal(SIGINT, on_interrupt);
+    std::signal(SIGTERM, on_interrupt);
+  }
+  DurationEvaluator ev(setup, journal.get());
+  if (journal && journal->resumed() > 0 && !o.quiet)
+    std::cerr << fmt::format("gapwise: resuming from {}: {} finished duration(s) reused\n", journal->path(),
+                             journal->resumed());
+
+  // The bar grows as work is scheduled (grid first, then bisection probes).
+  ProgressBar bar("durations", 0, 0.0, o.quiet ? 0 : -1);
+  auto write_outputs = [&](const DurationStudy* finished) {
+    if (!o.out.empty()) write_duration_study_hdf5(o.out, in, ev.known(), finished);
+    if (!o.csv.empty()) write_file_atomically(o.csv, duration_points_table(in, ev.known()).csv());
+  };
+  ev.on_batch = [&](const std::vector<double>& todo) {
+    double cost = 0;
+    for (double t : todo) cost += t;  // the work of an anneal grows with its duration
+    bar.add_items(todo.size(), cost);
+  };
+  ev.on_finished = [&](const DurationPoint& p) {
+    write_outputs(nullptr);
+    bar.finished_item(p.duration_ns);
+  };
+
+  DurationStudyOptions so;
+  so.durations_ns = grid;
+  so.target = o.target;
+  so.search_needed = !o.no_search;
+  so.needed.relative_width = o.resolution;
+  so.needed.probes_per_round = o.probes;
+  so.needed.noise = std::max(10.0 * o.tolerance, 1e-9);
+  so.threads = threads;
+  const DurationStudy st = run_duration_study(ev, so);
+  bar.done();
+  write_outputs(&st);
+  std::signal(SIGINT, SIG_DFL);
+  std::signal(SIGTERM, SIG_DFL);
+
+  // ---- report
+  const auto& known = ev.known();
+  std::vector<double> t_all, p_all, lz_all, ad_all;
+  for (const auto& [t, pt] : known) {
+    t_all.push_back(t);
+    p_all.push_back(pt.ground_probability);
+    if (predictions) {
+      lz_all.push_back(predictions->lz.applicable ? predictions->lz.p_at(t) : std::nan(""));
+      ad_all.push_back(predictions->adiabatic.applicable ? predictions->adiabatic.p_at(t) : std::nan(""));
+    }
+  }
+  const auto grid_set = std::set<double>(grid.begin(), grid.end());
+  const double best_t = st.optimum.duration_ns;
+  auto reached_text = [&](const CrossingBracket& b) {
+    return fmt::format("{} ns (p = {}); bracket {} .. {} ns after {} bisection round(s){}", ns_text(b.upper_ns),
+                       p_text(b.p_upper), ns_text(b.lower_ns), ns_text(b.upper_ns), b.rounds,
+                       b.oscillation_inside ? ", p crossed the target more than once inside it" : "");
+  };
+  std::vector<AgreementRange> lz_ok, ad_ok;
+  if (predictions) {
+    if (predictions->lz.applicable) lz_ok = agreement_ranges(t_all, p_all, lz_all, o.agreement);
+    if (predictions->adiabatic.applicable) ad_ok = agreement_ranges(t_all, p_all, ad_all, o.agreement);
+  }
+  auto ranges_text = [&](const std::vector<AgreementRange>& r) {
+    if (r.empty()) return std::string("at none of the simulated durations");
+    std::string s;
+    for (const auto& x : r)
+      s += (s.empty() ? "" : ", ") +
+           (x.from_ns == x.to_ns ? fmt::format("{} ns", ns_text(x.from_ns))
+                                 : fmt::format("{} .. {} ns", ns_text(x.from_ns), ns_text(x.to_ns)));
+    return "for t_f in " + s;
+  };
+
+  if (o.json) {
+    toml::table j;
+    put(j, "problem_file", o.problem);
+    put(j, "schedule_file", o.schedule);
+    put(j, "target", o.target);
+    put(j, "propagator", o.propagator);
+    put(j, "tolerance", o.tolerance);
+    put(j, "ground_energy", setup.ground.energy);
+    put(j, "ground_degeneracy", static_cast<long long>(setup.ground.degeneracy()));
+    toml::array pts;
+    for (const auto& [t, pt] : known) {
+      toml::table e;
+      const auto tts = time_to_solution(t, std::clamp(pt.ground_probability, 0.0, 1.0), o.target);
+      put(e, "duration_ns", t);
+      put(e, "grid", grid_set.count(t) > 0);
+      put(e, "ground_probability", pt.ground_probability);
+      put(e, "tts_case", std::string(tts_case_name(tts.kind)));
+      if (std::isfinite(tts.tts_ns)) put(e, "tts_ns", tts.tts_ns);
+      if (predictions && predictions->lz.applicable) put(e, "p_landau_zener", predictions->lz.p_at(t));
+      if (predictions && predictions->adiabatic.applicable) put(e, "p_adiabatic", predictions->adiabatic.p_at(t));
+      pts.push_back(std::move(e));
+    }
+    j.insert_or_assign("points", std::move(pts));
+    toml::table best;
+    put(best, "duration_ns", best_t);
+    if (std::isfinite(st.optimum.tts_ns)) put(best, "tts_ns", st.optimum.tts_ns);
+    put(best, "at_range_edge", st.optimum.at_range_edge);
+    put(best, "lower_ns", st.optimum.lower_ns);
+    put(best, "upper_ns", st.optimum.upper_ns);
+    j.insert_or_assign("tts_optimum", std::move(best));
+    if (st.needed) {
+      toml::table n;
+      const auto& dn = *st.needed;
+      put(n, "status", std::string(dn.status == NeededStatus::Reached ? "reached"
+                                   : dn.status == NeededStatus::ReachedAtShortest ? "reached at the shortest duration"
+                                                                                  : "not reached"));
+      put(n, "lower_ns", dn.first.lower_ns);
+      put(n, "upper_ns", dn.first.upper_ns);
+      put(n, "p_lower", dn.first.p_lower);
+      put(n, "p_upper", dn.first.p_upper);
+      if (dn.stays_reached) {
+        put(n, "stays_reached_lower_ns", dn.stays_reached->lower_ns);
+        put(n, "stays_reached_upper_ns", dn.stays_reached->upper_ns);
+      }
+      put(n, "lost_at_longest", dn.lost_at_longest);
+      put(n, "decreasing_stretches", static_cast<long long>(dn.decreasing.size()));
+      j.insert_or_assign("duration_needed", std::move(n));
+    }
+    if (predictions) {
+      toml::table pr;
+      put(pr, "gap_ghz", predictions->gap_ghz);
+      put(pr, "s_star", predictions->s_star);
+      put(pr, "gap_definition", predictions->gap_definition);
+      put(pr, "landau_zener_applicable", predictions->lz.applicable);
+      if (predictions->lz.applicable) {
+        put(pr, "slope_difference_ghz", predictions->lz.slope_difference_ghz);
+        put(pr, "path_rate", predictions->lz.path_rate);
+        put(pr, "landau_zener_duration_ns", predictions->lz.duration_for(o.target));
+      }
+      put(pr, "adiabatic_applicable", predictions->adiabatic.applicable);
+      if (predictions->adiabatic.applicable) {
+        put(pr, "adiabatic_time_ns", predictions->adiabatic.time_ns);
+        put(pr, "adiabatic_duration_ns", predictions->adiabatic.duration_for(o.target));
+      }
+      j.insert_or_assign("predictions", std::move(pr));
+    }
+    std::cout << to_json(j) << "\n";
+    return;
+  }
+
+  std::cout << fmt::format("problem     {}: {} qubits; ground energy {:.10g}, degeneracy {}\n", o.problem,
+                           problem.qubits, setup.ground.energy, setup.ground.degeneracy());
+  std::cout << fmt::format("schedule    {}: {}; path shape of {} waypoints stretched to each t_f\n", o.schedule,
+                           schedule.scales.describe(), schedule.shape.points().size());
+  std::cout << fmt::format("numerics    propagator {} (tolerance {:.0e}), {} thread(s); {} duration(s) simulated now, {} reused\n",
+                           o.propagator, o.tolerance, threads, ev.simulated(), known.size() - ev.simulated());
+  if (predictions)
+    std::cout << fmt::format("gap         Delta_min = {:.6g} GHz at s* = {:.6g}  ({}; {}){}\n", predictions->gap_ghz,
+                             predictions->s_star, predictions->gap_definition, predictions->sector,
+                             predictions->gap_at_end_point ? "  [at an end of the path's s range]" : "");
+  std::cout << fmt::format("target      p* = {}\n", o.target);
+  std::cout << fmt::format("durations   {} grid point(s), {} .. {} ns{}\n\n", grid.size(), ns_text(grid.front()),
+                           ns_text(grid.back()),
+                           grid_chosen ? (predictions ? " (default: around the predicted durations; set --range to change)"
+                                                      : " (default; set --range to change)")
+                                       : "");
+
+  TextTable table({"t_f_ns", "p_ground", "TTS_ns", "runs", "p_LZ", "p_adiab", "note"});
+  for (const auto& [t, pt] : known) {
+    const double p = std::clamp(pt.ground_probability, 0.0, 1.0);
+    const auto tts = time_to_solution(t, p, o.target);
+    std::string note = grid_set.count(t) ? "" : "bisection";
+    if (t == best_t) note += std::string(note.empty() ? "" : ", ") + "TTS optimum";
+    if (p >= o.target) note += std::string(note.empty() ? "" : ", ") + ">= p*";
+    table.add({fmt_num(t, 6), p_text(p), ns_text(tts.tts_ns),
+               tts.kind == TtsCase::Never ? "inf" : fmt::format("{:.3g}", tts.repetitions),
+               predictions && predictions->lz.applicable ? p_text(predictions->lz.p_at(t)) : "-",
+               predictions && predictions->adiabatic.applicable ? p_text(predictions->adiabatic.p_at(t)) : "-", note});
+  }
+  std::cout << table.render() << "\n";
+
+  std::cout << fmt::format("duration needed for p >= {}\n", o.target);
+  if (st.needed) {
+    const auto& dn = *st.needed;
+    switch (dn.status) {
+      case NeededStatus::Reached:
+        std::cout << "  simulation           " << reached_text(dn.first) << "\n";
+        break;
+      case NeededStatus::ReachedAtShortest:
+        std::cout << fmt::format("  simulation           at most {} ns: already p = {} at the shortest duration simulated; "
+                                 "extend the range downwards for the answer\n",
+                                 ns_text(dn.first.upper_ns), p_text(dn.first.p_upper));
+        break;
+      case NeededStatus::NotReached:
+        std::cout << fmt::format("  simulation           more than {} ns: p = {} at the longest duration simulated; "
+                                 "extend the range upwards\n",
+                                 ns_text(dn.first.lower_ns), p_text(dn.first.p_lower));
+        break;
+    }
+    if (dn.stays_reached)
+      std::cout << "  stays reached from   " << reached_text(*dn.stays_reached)
+                << "\n                       (p falls below the target again between the first crossing and this one)\n";
+    if (dn.lost_at_longest)
+      std::cout << "  WARNING              p falls below the target again at the longest duration simulated: "
+                   "p(t_f) oscillates around p*\n";
+  } else {
+    std::cout << "  simulation           (search skipped: --no-search)\n";
+  }
+  std::cout << fmt::format("  TTS optimum          t_f = {} ns per run, TTS = {} ns{}\n", ns_text(best_t),
+                           ns_text(st.optimum.tts_ns),
+                           st.optimum.at_range_edge
+                               ? "  [at an end of the range: the optimum may lie outside it]"
+                               : fmt::format("  (sampled; the optimum lies between {} and {} ns)",
+                                             ns_text(st.optimum.lower_ns), ns_text(st.optimum.upper_ns)));
+  if (predictions) {
+    const auto& lz = predictions->lz;
+    if (lz.applicable)
+      std::cout << fmt::format("  Landau-Zener         {} ns  (Delta_min {:.4g} GHz, slope difference {:.4g} GHz, "
+                               "path rate ds/d(t/t_f) = {:.4g} at s*, fit misfit {:.1g});\n"
+                               "                       within {} of the simulation {}\n",
+                               ns_text(lz.duration_for(o.target)), lz.gap_ghz, lz.slope_difference_ghz, lz.path_rate,
+                               lz.fit_deviation, o.agreement, ranges_text(lz_ok));
+    else
+      std::cout << "  Landau-Zener         not applicable: " << lz.why_not << "\n";
+    const auto& ad = predictions->adiabatic;
+    if (ad.applicable)
+      std::cout << fmt::format("  adiabatic condition  {} ns  (t_ad = {:.4g} ns at s = {:.4g}; p ~ 1 - (t_ad/t_f)^2);\n"
+                               "                       within {} of the simulation {}\n",
+                               ns_text(ad.duration_for(o.target)), ad.time_ns, ad.s_at_max, o.agreement,
+                               ranges_text(ad_ok));
+    else
+      std::cout << "  adiabatic condition  not applicable: " << ad.why_not << "\n";
+  }
+  std::vector<std::string> notes;
+  if (st.needed)
+    for (const auto& d : st.needed->decreasing)
+      notes.push_back(fmt::format("p(t_f) falls from {} at {} ns to {} at {} ns: non-monotonic, do not interpolate there",
+                                  p_text(d.p_from), ns_text(d.from_ns), p_text(d.p_to), ns_text(d.to_ns)));
+  if (predictions)
+    for (const auto& n : predictions->notes) notes.push_back(n);
+  double worst_drift = 0;
+  for (const auto& [t, pt] : known) worst_drift = std::max(worst_drift, pt.norm_drift);
+  if (worst_drift > 10 * o.tolerance)
+    notes.push_back(fmt::format("largest norm drift {:.1e} exceeds 10 x tolerance: tighten --tolerance", worst_drift));
+  if (!notes.empty()) {
+    std::cout << "\nnotes\n";
+    for (const auto& n : notes) std::cout << "  - " << n << "\n";
+  }
+  if (!keep.empty()) {
+    std::cout << "\nwritten     ";
+    if (!o.out.empty()) std::cout << o.out << " ";
+    if (!o.csv.empty()) std::cout << o.csv << " ";
+    std::cout << "(journal " << journal->path() << ")\n";
+  }
+}
+
+}  // namespace
+
+void register_durations(CLI::App& app) {
+  auto o = std::make_shared<DurationsOptions>();
+  CLI::App* sub = app.add_subcommand("durations",
+      "How long must PROBLEM be annealed along SCHEDULE? Simulates the ground-state\n"
+      "probability p(t_f) for a range of durations t_f (the schedule's path shape\n"
+      "stretched to each), and reports:\n"
+      "  - time to solution TTS = t_f ln(1-p*)/ln(1-p) (t_f when p >= p*; infinite for p = 0)\n"
+      "    and the t_f that minimises it;\n"
+      "  - the shortest t_f with p >= p*, by bisection between sampled durations, with\n"
+      "    every stretch where p(t_f) falls (oscillations) reported;\n"
+      "  - beside the simulation: the Landau-Zener prediction at the minimum gap and the\n"
+      "    adiabatic-condition estimate, and the durations where each agrees.\n"
+      "Durations run in parallel (one anneal per thread); results equal a serial run.\n"
+      "With --out or --csv, each finished duration is journaled to <file>.journal and the\n"
+      "files are rewritten atomically; rerunning the same command skips finished points.\n"
+      "Example: gapwise durations data-samples/triangle.toml schedules/linear.toml --range 0.5:50:9 --out tri.h5");
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("schedule", o->schedule, "schedule file (TOML); its path shape is stretched to each duration")
+      ->required()->check(CLI::ExistingFile);
+  sub->add_option("--durations", o->durations, "durations in ns, comma separated (e.g. 5,10,20,40)")->delimiter(',');
+  sub->add_option("--range", o->range, "FIRST:LAST:COUNT, log-spaced durations in ns, both ends included (default: 10 points from a fifth of the\n"
+                  "smaller to 5 x the larger predicted duration; 1:300:10 with --no-predictions)");
+  sub->add_option("--target", o->target, "target success probability p* for TTS and the duration needed")->capture_default_str();
+  sub->add_option("--resolution", o->resolution, "bisection stops when the bracket's upper/lower - 1 is below this")
+      ->capture_default_str();
+  sub->add_option("--probes", o->probes, "durations probed per bisection round (run in parallel; fixed, so results do not depend on threads)")
+      ->capture_default_str();
+  sub->add_flag("--no-search", o->no_search, "skip the bisection for the duration needed");
+  sub->add_flag("--no-predictions", o->no_predictions, "skip the gap search and the Landau-Zener / adiabatic predictions");
+  sub->add_option("--agreement", o->agreement, "|p_sim - p_pred| counted as agreement in the summary")->capture_default_str();
+  sub->add_option("--tolerance", o->tolerance, "target accuracy of each simulated p")->capture_default_str();
+  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  sub->add_option("--threads", o->threads, "threads (one duration each); 0: all cores (OMP_NUM_THREADS)")->capture_default_str();
+  sub->add_option("--out", o->out, "HDF5 result file (all curves, predictions, inputs, tool version)");
+  sub->add_option("--csv", o->csv, "CSV with one row per simulated duration");
+  sub->add_flag("--restart", o->restart, "discard the journal of an earlier run and start afresh");
+  sub->add_flag("--quiet", o->quiet, "no progress bar or resume message on stderr");
+  sub->add_flag("--json", o->json, "print a JSON summary instead of text");
+  sub->callback([o] { run_durations(*o); });
+}
+
+}  // namespace gapwise::cli

@@ -1,0 +1,180 @@
+#include "io/duration_study_file.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <set>
+
+#include <fmt/format.h>
+
+#include "io/hdf5_output.hpp"
+
+namespace gapwise {
+namespace {
+
+const char* needed_status_name(NeededStatus s) {
+  switch (s) {
+    case NeededStatus::Reached: return "reached";
+    case NeededStatus::ReachedAtShortest: return "reached at the shortest duration";
+    case NeededStatus::NotReached: return "not reached";
+  }
+  return "?";
+}
+
+void write_bracket(Hdf5Output& h5, const std::string& g, const CrossingBracket& b) {
+  h5.attribute(g, "lower_ns", b.lower_ns);
+  h5.attribute(g, "upper_ns", b.upper_ns);
+  h5.attribute(g, "p_lower", b.p_lower);
+  h5.attribute(g, "p_upper", b.p_upper);
+  h5.attribute(g, "bisection_rounds", static_cast<long long>(b.rounds));
+  h5.attribute(g, "oscillation_inside", static_cast<long long>(b.oscillation_inside));
+}
+
+double clamp01(double p) { return std::clamp(p, 0.0, 1.0); }
+
+}  // namespace
+
+void write_duration_study_hdf5(const std::string& path, const DurationStudyInputs& in,
+                               const std::map<double, DurationPoint>& known, const DurationStudy* finished) {
+  Hdf5Output h5(path);
+  write_provenance(h5, in.command_line, {in.problem_file, in.schedule_file});
+  const std::string root = "/durations";
+  h5.group(root);
+  h5.attribute(root, "complete", static_cast<long long>(finished != nullptr));
+  h5.attribute(root, "target_probability", in.target);
+  h5.attribute(root, "propagator", in.propagator);
+  h5.attribute(root, "tolerance", in.tolerance);
+  h5.attribute(root, "grid_points", static_cast<long long>(in.grid_ns.size()));
+  if (in.setup) {
+    h5.attribute(root, "qubits", static_cast<long long>(in.setup->problem.qubits));
+    h5.attribute(root, "ground_energy", in.setup->ground.energy);
+    h5.attribute(root, "ground_degeneracy", static_cast<long long>(in.setup->ground.degeneracy()));
+    std::vector<long long> gs(in.setup->ground.states.begin(), in.setup->ground.states.end());
+    h5.write(root + "/ground_states", gs, "basis index (bit i = qubit i)");
+    std::vector<double> ps, pt;
+    for (const auto& w : in.setup->schedule.shape.points()) { pt.push_back(w.t_ns); ps.push_back(w.s); }
+    h5.write(root + "/path_shape/t", pt, in.setup->schedule.time_in_ns ? "ns (stretched to each duration)" : "fraction of t_f");
+    h5.write(root + "/path_shape/s", ps, "1");
+  }
+  h5.write(root + "/grid_ns", in.grid_ns, "ns");
+
+  // Every known point (grid and bisection probes), ascending.
+  const std::set<double> grid(in.grid_ns.begin(), in.grid_ns.end());
+  std::vector<double> t, p, tts, reps, drift, wall, lz, ad;
+  std::vector<long long> on_grid, kind, steps;
+  for (const auto& [d, pt] : known) {
+    const auto x = time_to_solution(d, clamp01(pt.ground_probability), in.target);
+    t.push_back(d);
+    p.push_back(pt.ground_probability);
+    tts.push_back(std::isfinite(x.tts_ns) ? x.tts_ns : -1.0);
+    reps.push_back(std::isfinite(x.repetitions) ? x.repetitions : -1.0);
+    kind.push_back(static_cast<long long>(x.kind));
+    on_grid.push_back(grid.count(d) ? 1 : 0);
+    drift.push_back(pt.norm_drift);
+    steps.push_back(pt.steps);
+    wall.push_back(pt.wall_seconds);
+    if (in.predictions) {
+      lz.push_back(in.predictions->lz.applicable ? in.predictions->lz.p_at(d) : -1.0);
+      ad.push_back(in.predictions->adiabatic.applicable ? in.predictions->adiabatic.p_at(d) : -1.0);
+    }
+  }
+  const std::string pts = root + "/points";
+  h5.write(pts + "/duration_ns", t, "ns");
+  h5.write(pts + "/ground_probability", p, "1");
+  h5.write(pts + "/tts_ns", tts, "ns (-1: infinite, p = 0)");
+  h5.write(pts + "/repetitions", reps, "1 (-1: infinite, p = 0)");
+  h5.write(pts + "/tts_case", kind, "0 never (p = 0), 1 repeated (0 < p < p*), 2 single run (p >= p*)");
+  h5.write(pts + "/on_grid", on_grid, "1 sampled grid point, 0 bisection probe");
+  h5.write(pts + "/norm_drift", drift, "1");
+  h5.write(pts + "/steps", steps, "accepted propagator steps");
+  h5.write(pts + "/wall_seconds", wall, "s");
+  if (in.predictions) {
+    h5.write(pts + "/p_landau_zener", lz, "1 (-1: not applicable)");
+    h5.write(pts + "/p_adiabatic", ad, "1 (-1: not applicable)");
+  }
+
+  if (finished) {
+    const std::string opt = root + "/tts_optimum";
+    h5.group(opt);
+    h5.attribute(opt, "duration_ns", finished->optimum.duration_ns);
+    h5.attribute(opt, "tts_ns", std::isfinite(finished->optimum.tts_ns) ? finished->optimum.tts_ns : -1.0);
+    h5.attribute(opt, "at_range_edge", static_cast<long long>(finished->optimum.at_range_edge));
+    h5.attribute(opt, "lower_ns", finished->optimum.lower_ns);
+    h5.attribute(opt, "upper_ns", finished->optimum.upper_ns);
+    if (finished->needed) {
+      const auto& dn = *finished->needed;
+      const std::string g = root + "/duration_needed";
+      h5.group(g);
+      h5.attribute(g, "status", std::string(needed_status_name(dn.status)));
+      h5.attribute(g, "lost_at_longest", static_cast<long long>(dn.lost_at_longest));
+      write_bracket(h5, g + "/first_crossing", dn.first);
+      if (dn.stays_reached) write_bracket(h5, g + "/stays_reached", *dn.stays_reached);
+      std::vector<double> m;
+      for (const auto& s : dn.decreasing) m.insert(m.end(), {s.from_ns, s.to_ns, s.p_from, s.p_to});
+      h5.write_matrix(g + "/decreasing_stretches", m, dn.decreasing.size(), 4, "columns: from_ns, to_ns, p_from, p_to");
+    }
+  }
+
+  if (in.predictions) {
+    const auto& pr = *in.predictions;
+    const std::string g = root + "/predictions";
+    h5.group(g);
+    h5.attribute(g, "gap_ghz", pr.gap_ghz);
+    h5.attribute(g, "gap_uncertainty_ghz", pr.gap_uncertainty_ghz);
+    h5.attribute(g, "s_star", pr.s_star);
+    h5.attribute(g, "s_star_uncertainty", pr.s_star_uncertainty);
+    h5.attribute(g, "gap_definition", pr.gap_definition);
+    h5.attribute(g, "sector", pr.sector);
+    h5.attribute(g, "gap_at_end_point", static_cast<long long>(pr.gap_at_end_point));
+    h5.write(g + "/gap_curve/s", pr.curve_s, "1");
+    h5.write(g + "/gap_curve/gap", pr.curve_gap_ghz, "GHz");
+    h5.write(g + "/gap_curve/matrix_element", pr.curve_matrix_element_ghz, "GHz (|<g|dH/ds|0>|)");
+    h5.write(g + "/gap_minima/s", pr.minima_s, "1");
+    h5.write(g + "/gap_minima/gap", pr.minima_gap_ghz, "GHz");
+    h5.write_strings(g + "/notes", pr.notes);
+    const std::string l = g + "/landau_zener";
+    h5.group(l);
+    h5.attribute(l, "applicable", static_cast<long long>(pr.lz.applicable));
+    if (!pr.lz.applicable) h5.attribute(l, "why_not", pr.lz.why_not);
+    else {
+      h5.attribute(l, "gap_ghz", pr.lz.gap_ghz);
+      h5.attribute(l, "slope_difference_ghz", pr.lz.slope_difference_ghz);
+      h5.attribute(l, "lower_slope_left_ghz", pr.lz.lower_slope_left);
+      h5.attribute(l, "lower_slope_right_ghz", pr.lz.lower_slope_right);
+      h5.attribute(l, "upper_slope_left_ghz", pr.lz.upper_slope_left);
+      h5.attribute(l, "upper_slope_right_ghz", pr.lz.upper_slope_right);
+      h5.attribute(l, "fit_half_width_s", pr.lz.fit_half_width_s);
+      h5.attribute(l, "fit_deviation", pr.lz.fit_deviation);
+      h5.attribute(l, "path_rate", pr.lz.path_rate);
+      h5.attribute(l, "duration_for_target_ns", pr.lz.duration_for(in.target));
+    }
+    const std::string a = g + "/adiabatic";
+    h5.group(a);
+    h5.attribute(a, "applicable", static_cast<long long>(pr.adiabatic.applicable));
+    if (!pr.adiabatic.applicable) h5.attribute(a, "why_not", pr.adiabatic.why_not);
+    else {
+      h5.attribute(a, "time_ns", pr.adiabatic.time_ns);
+      h5.attribute(a, "s_at_max", pr.adiabatic.s_at_max);
+      h5.attribute(a, "duration_for_target_ns", pr.adiabatic.duration_for(in.target));
+    }
+  }
+  h5.commit();
+}
+
+TextTable duration_points_table(const DurationStudyInputs& in, const std::map<double, DurationPoint>& known) {
+  TextTable t({"duration_ns", "kind", "ground_probability", "tts_ns", "repetitions", "tts_case", "p_landau_zener",
+               "p_adiabatic", "norm_drift", "steps", "wall_seconds"});
+  const std::set<double> grid(in.grid_ns.begin(), in.grid_ns.end());
+  auto num = [](double x) { return fmt::format("{:.17g}", x); };
+  for (const auto& [d, pt] : known) {
+    const auto x = time_to_solution(d, clamp01(pt.ground_probability), in.target);
+    const auto* pr = in.predictions;
+    t.add({num(d), grid.count(d) ? "grid" : "probe", num(pt.ground_probability),
+           std::isfinite(x.tts_ns) ? num(x.tts_ns) : "inf", std::isfinite(x.repetitions) ? num(x.repetitions) : "inf",
+           tts_case_name(x.kind), pr && pr->lz.applicable ? num(pr->lz.p_at(d)) : "",
+           pr && pr->adiabatic.applicable ? num(pr->adiabatic.p_at(d)) : "", num(pt.norm_drift),
+           std::to_string(pt.steps), fmt::format("{:.3f}", pt.wall_seconds)});
+  }
+  return t;
+}
+
+}  // namespace gapwise

@@ -1,0 +1,40 @@
+#pragma once
+// Result files of the anneal-time study (`gapwise durations`): HDF5 with every
+// curve, the inputs and the tool version, and CSV with one row per simulated
+// duration. Both are rewritten atomically after each finished point, so the
+// file on disk is always complete for the points done so far (attribute
+// `complete` = 0 until the study ends). Layout in notebooks-free-docs/user-guide.md.
+//
+//   DurationStudyInputs in{...};
+//   write_duration_study_hdf5("run.h5", in, evaluator.known(), nullptr);   // partial
+//   write_duration_study_hdf5("run.h5", in, evaluator.known(), &study);    // final
+//   write_file_atomically("run.csv", duration_points_table(in, evaluator.known(), &study).csv());
+#include <map>
+#include <string>
+#include <vector>
+
+#include "io/text_table.hpp"
+#include "studies/anneal_predictions.hpp"
+#include "studies/duration_study.hpp"
+
+namespace gapwise {
+
+struct DurationStudyInputs {
+  std::string problem_file, schedule_file, command_line;
+  std::string propagator;
+  double tolerance = 0;
+  double target = kDefaultTargetProbability;
+  std::vector<double> grid_ns;     ///< the sampled grid (ascending)
+  const AnnealSetup* setup = nullptr;
+  const AnnealPredictions* predictions = nullptr;  ///< null when not computed
+};
+
+void write_duration_study_hdf5(const std::string& path, const DurationStudyInputs& in,
+                               const std::map<double, DurationPoint>& known, const DurationStudy* finished);
+
+/// One row per known duration (grid points and bisection probes), ascending:
+/// duration_ns, kind (grid/probe), ground_probability, tts_ns, repetitions,
+/// tts_case, p_landau_zener, p_adiabatic, norm_drift, steps, wall_seconds.
+TextTable duration_points_table(const DurationStudyInputs& in, const std::map<double, DurationPoint>& known);
+
+}  // namespace gapwise
