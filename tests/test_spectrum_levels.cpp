@@ -11,8 +11,10 @@
 #include "hamiltonian/spin_flip_sector.hpp"
 #include "io/input_error.hpp"
 #include "spectrum/lowest_levels.hpp"
+#include "test_support.hpp"
 
 using namespace gapwise;
+using gapwise::testing::ferromagnetic_ring;
 
 namespace {
 
@@ -25,15 +27,6 @@ IsingProblem random_problem(int n, bool fields, unsigned seed) {
   for (int i = 0; i < n; ++i)
     for (int j = i + 1; j < n; ++j)
       if (u(rng) > -0.2) p.couplings.push_back({i, j, u(rng)});
-  return p;
-}
-
-IsingProblem ferromagnetic_ring(int n) {
-  IsingProblem p(n);
-  for (int i = 0; i < n; ++i) {
-    const int j = (i + 1) % n;
-    p.couplings.push_back({std::min(i, j), std::max(i, j), -1.0});
-  }
   return p;
 }
 

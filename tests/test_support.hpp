@@ -1,6 +1,7 @@
 #pragma once
 // Small helpers shared by the tests: where the sources and the built tool are,
 // temporary files, and running the command line.
+#include <algorithm>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -8,6 +9,8 @@
 #include <string>
 #include <sys/wait.h>
 #include <unistd.h>
+
+#include "problem/ising_problem.hpp"
 
 #include "io/input_error.hpp"
 
@@ -51,6 +54,16 @@ std::optional<gapwise::InputError> input_error_of(F&& f) {
   } catch (...) {
   }
   return std::nullopt;
+}
+
+/// Uniform ferromagnetic ring: J_{i,i+1} = -1 on every bond (periodic), no fields.
+inline IsingProblem ferromagnetic_ring(int n) {
+  IsingProblem p(n);
+  for (int i = 0; i < n; ++i) {
+    const int j = (i + 1) % n;
+    p.couplings.push_back({std::min(i, j), std::max(i, j), -1.0});
+  }
+  return p;
 }
 
 struct CommandResult { int exit_code; std::string out; std::string err; };

@@ -1,0 +1,163 @@
+// `gapwise durations` end to end: a sweep killed half-way (SIGKILL on a real
+// child process) leaves a valid HDF5 file, and the rerun of the same command
+// gives the same numbers as an uninterrupted run. Also the TTS edge cases in the
+// output and the input errors. Common practice (crash-consistent journaling),
+// no outside source; the HDF5 file is read back with the HDF5 library.
+#include <doctest/doctest.h>
+
+#include <chrono>
+#include <csignal>
+#include <fstream>
+#include <sstream>
+#include <thread>
+
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include "io/hdf5_input.hpp"
+#include "test_support.hpp"
+
+using gapwise::testing::run_gapwise;
+using gapwise::testing::source_dir;
+using gapwise::testing::TempDir;
+
+namespace {
+
+std::string sample(const char* rel) { return (source_dir() / rel).string(); }
+
+std::string slurp(const std::filesystem::path& p) {
+  std::ifstream f(p);
+  return std::string((std::istreambuf_iterator<char>(f)), {});
+}
+
+int journal_records(const std::filesystem::path& p) {
+  std::ifstream f(p);
+  std::string line;
+  int n = 0;
+  while (std::getline(f, line))
+    if (!line.empty() && line[0] != '#') ++n;
+  return n;
+}
+
+// CSV without the wall_seconds column (the only one that depends on the machine's load).
+std::string without_wall_time(const std::string& csv) {
+  std::istringstream in(csv);
+  std::string line, out;
+  while (std::getline(in, line)) out += line.substr(0, line.rfind(',')) + "\n";
+  return out;
+}
+
+const std::vector<std::string> kArgs = {"durations", sample("data-samples/triangle.toml"), sample("schedules/linear.toml"),
+                                        "--durations", "20,30,45,65,90,130,180,250", "--resolution", "0.05", "--threads", "1", "--quiet"};
+
+}  // namespace
+
+TEST_CASE("a sweep killed half-way and rerun equals an uninterrupted sweep") {
+  TempDir dir;
+  std::string args;
+  for (const auto& a : kArgs) args += "'" + a + "' ";
+  // Uninterrupted reference.
+  const auto ref = run_gapwise(args + "--csv '" + (dir.path / "ref.csv").string() + "'", dir);
+  REQUIRE(ref.exit_code == 0);
+  const std::string ref_csv = slurp(dir.path / "ref.csv");
+
+  // Child process, killed with SIGKILL once three durations are journaled.
+  const auto out = dir.path / "run.h5", csv = dir.path / "run.csv", journal = dir.path / "run.h5.journal";
+  std::vector<std::string> argv_s{gapwise::testing::gapwise_exe()};
+  argv_s.insert(argv_s.end(), kArgs.begin(), kArgs.end());
+  argv_s.insert(argv_s.end(), {"--out", out.string(), "--csv", csv.string()});
+  std::vector<char*> argv;
+  for (auto& a : argv_s) argv.push_back(a.data());
+  argv.push_back(nullptr);
+  const pid_t pid = ::fork();
+  REQUIRE(pid >= 0);
+  if (pid == 0) {
+    std::freopen("/dev/null", "w", stdout);
+    std::freopen("/dev/null", "w", stderr);
+    ::execv(argv[0], argv.data());
+    ::_exit(127);
+  }
+  bool finished_early = false;
+  const auto deadline = std::chrono::steady_clock::now() + std::chrono::minutes(5);
+  while (journal_records(journal) < 3 && std::chrono::steady_clock::now() < deadline) {
+    int st = 0;
+    if (::waitpid(pid, &st, WNOHANG) == pid) { finished_early = true; break; }
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  }
+  REQUIRE_FALSE(finished_early);
+  REQUIRE(::kill(pid, SIGKILL) == 0);
+  int status = 0;
+  REQUIRE(::waitpid(pid, &status, 0) == pid);
+  CHECK(WIFSIGNALED(status));
+  CHECK(WTERMSIG(status) == SIGKILL);
+  const int done_at_kill = journal_records(journal);
+  MESSAGE("killed with " << done_at_kill << " of 8 durations journaled");
+  CHECK(done_at_kill < 8);
+
+  // The result file left behind is a valid HDF5 file holding the finished points, marked incomplete.
+  {
+    gapwise::Hdf5Input h5(out.string());
+    CHECK(h5.attribute_double("/durations", "complete") == 0.0);
+    const auto t = h5.read("/durations/points/duration_ns");
+    CHECK(t.size() >= 2);
+    CHECK(static_cast<int>(t.size()) <= done_at_kill);
+  }
+
+  // Rerun: skips the journaled points, ends with the same numbers.
+  std::string again = args + "--out '" + out.string() + "' --csv '" + csv.string() + "'";
+  const auto rerun = run_gapwise(again, dir);
+  REQUIRE(rerun.exit_code == 0);
+  CHECK(rerun.out.find(std::to_string(done_at_kill) + " reused") != std::string::npos);
+  CHECK(without_wall_time(slurp(csv)) == without_wall_time(ref_csv));
+  gapwise::Hdf5Input h5(out.string());
+  CHECK(h5.attribute_double("/durations", "complete") == 1.0);
+  CHECK(h5.has("/durations/duration_needed/first_crossing"));
+  // A third run simulates nothing.
+  const auto third = run_gapwise(again, dir);
+  CHECK(third.out.find("0 duration(s) simulated now") != std::string::npos);
+}
+
+TEST_CASE("a journal written for other inputs is refused with a fix") {
+  TempDir dir;
+  const auto out = (dir.path / "a.csv").string();
+  const std::string base = "durations '" + sample("data-samples/triangle.toml") + "' '" + sample("schedules/linear.toml") +
+                           "' --durations 1,2 --no-search --no-predictions --quiet --csv '" + out + "'";
+  REQUIRE(run_gapwise(base, dir).exit_code == 0);
+  const auto r = run_gapwise(base + " --tolerance 1e-7", dir);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("other inputs") != std::string::npos);
+  CHECK(r.err.find("a.csv.journal") != std::string::npos);
+  CHECK(run_gapwise(base + " --tolerance 1e-7 --restart", dir).exit_code == 0);
+}
+
+TEST_CASE("input errors name the option and the fix") {
+  TempDir dir;
+  const std::string base =
+      "durations '" + sample("data-samples/triangle.toml") + "' '" + sample("schedules/linear.toml") + "' --quiet ";
+  auto r = run_gapwise(base + "--range 10:1:3", dir);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("FIRST <= LAST") != std::string::npos);
+  r = run_gapwise(base + "--range 1-10", dir);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("--range") != std::string::npos);
+  r = run_gapwise(base + "--target 1.0", dir);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("--target") != std::string::npos);
+  r = run_gapwise(base + "--durations 0,5", dir);
+  CHECK(r.exit_code == 2);
+}
+
+TEST_CASE("TTS edge cases in the output: p >= p* gives TTS = t_f, one run") {
+  // The triangle at 550 ns reaches p > 0.999 (simulated by hand: 0.99955 at 300 ns); with p* = 0.5
+  // every point from 5 ns on is a single run (Ronnow et al., Science 345, 420 (2014)).
+  TempDir dir;
+  const auto r = run_gapwise("durations '" + sample("data-samples/triangle.toml") + "' '" +
+                                 sample("schedules/linear.toml") +
+                                 "' --durations 5,550 --target 0.5 --no-predictions --quiet --csv '" +
+                                 (dir.path / "e.csv").string() + "'",
+                             dir);
+  REQUIRE(r.exit_code == 0);
+  const std::string csv = slurp(dir.path / "e.csv");
+  CHECK(csv.find("\n550,grid,") != std::string::npos);
+  CHECK(csv.find(",550,1,single run,") != std::string::npos);
+}
