@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
-# From a fresh clone: install what is missing, build, and run the main job on a
-# bundled sample (how likely one anneal of the frustrated triangle ends in its
-# ground state, at a few durations).
+# From a fresh clone: install what is missing, build, and run the main job on
+# bundled samples (how likely one anneal of the frustrated triangle ends in its
+# ground state; which duration the meeting-slots QUBO needs for 99 %).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 bash scripts/install-deps.sh
@@ -13,3 +13,6 @@ build/gapwise inspect data-samples/triangle.toml
 echo
 echo "== gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20"
 build/gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20
+echo
+echo "== gapwise durations data-samples/meeting-slots-qubo.toml schedules/linear.toml"
+build/gapwise durations data-samples/meeting-slots-qubo.toml schedules/linear.toml
