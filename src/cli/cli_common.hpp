@@ -33,10 +33,10 @@ void register_gap_path(CLI::App& app);
 void register_compare_paths(CLI::App& app);
 void register_pause_map(CLI::App& app);
 void register_reverse_map(CLI::App& app);
+void register_embed_cost(CLI::App& app);
+void register_durations(CLI::App& app);
 
 /// "20,50,100" or "0.3:0.7:9" (FIRST:LAST:COUNT, ends included); InputError naming `option`.
 std::vector<double> parse_value_list(const std::string& text, const std::string& option);
-void register_embed_cost(CLI::App& app);
-void register_durations(CLI::App& app);
 
 }  // namespace gapwise::cli
