@@ -12,10 +12,12 @@
 
 namespace gapwise::cli {
 
-/// Exit codes: 0 success, 2 bad input, 1 internal failure.
+/// Exit codes: 0 success, 2 bad input, 1 internal failure, 3 an accuracy check
+/// failed under --strict (the results were written but are not trustworthy).
 inline constexpr int kExitOk = 0;
 inline constexpr int kExitBadInput = 2;
 inline constexpr int kExitInternal = 1;
+inline constexpr int kExitAccuracy = 3;
 
 /// Set by a subcommand's callback; main() returns it.
 int& exit_code();

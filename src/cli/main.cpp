@@ -23,7 +23,8 @@ int main(int argc, char** argv) {
       "along a schedule s(t), with its spectrum and minimum gap.\n\n"
       "Start with:  gapwise inspect data-samples/triangle.toml\n"
       "             gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20\n"
-      "Every subcommand has its own --help. Exit codes: 0 ok, 2 bad input, 1 internal failure.",
+      "Every subcommand has its own --help. Exit codes: 0 ok, 2 bad input, 1 internal failure,\n"
+      "3 accuracy check failed with --strict.",
       kVersion)};
   app.set_version_flag("--version", std::string(kVersion));
   app.require_subcommand(1);
