@@ -24,6 +24,15 @@ int qubit_index(const TomlReader& r, const toml::node& node, const std::string& 
   return static_cast<int>(i);
 }
 
+// A problem coefficient: finite and at most kMaxProblemCoefficient in size.
+double coefficient(const TomlReader& r, const toml::node& node, const std::string& key) {
+  const double v = r.number(node, key);
+  if (std::abs(v) > kMaxProblemCoefficient)
+    r.fail(&node, key, fmt::format("the value {} is larger in size than {:g}", v, kMaxProblemCoefficient),
+           "rescale the problem: only the ratios of h, J and Q matter once the schedule's B(s) sets the energy");
+  return v;
+}
+
 const toml::array& entry_array(const TomlReader& r, const toml::node& node, const std::string& key,
                                std::size_t len, const char* form) {
   const toml::array* a = node.as_array();
@@ -39,7 +48,7 @@ void read_fields(const TomlReader& r, const toml::array& arr, IsingProblem& p) {
       r.fail(&arr, "fields", fmt::format("a dense field list needs {} numbers (one per qubit), found {}",
                                          p.qubits, arr.size()),
              "give one h per qubit, or pairs [[i, h_i], ...]");
-    p.h = r.number_list(arr, "fields");
+    for (std::size_t k = 0; k < arr.size(); ++k) p.h[k] = coefficient(r, *arr.get(k), fmt::format("fields[{}]", k));
     return;
   }
   std::set<int> seen;
@@ -49,7 +58,7 @@ void read_fields(const TomlReader& r, const toml::array& arr, IsingProblem& p) {
     const int i = qubit_index(r, *e.get(0), key, p.qubits);
     if (!seen.insert(i).second)
       r.fail(arr.get(k), key, fmt::format("field on qubit {} is given twice", i), "keep one entry per qubit");
-    p.h[static_cast<std::size_t>(i)] = r.number(*e.get(1), key);
+    p.h[static_cast<std::size_t>(i)] = coefficient(r, *e.get(1), key);
   }
 }
 
@@ -69,7 +78,7 @@ void read_pair_list(const TomlReader& r, const toml::array& arr, const char* nam
     if (!seen.insert({i, j}).second)
       r.fail(arr.get(k), key, fmt::format("duplicate entry for the pair ({}, {})", i, j),
              "give each pair once (i,j and j,i are the same pair); add the values if you meant their sum");
-    push(i, j, r.number(*e.get(2), key));
+    push(i, j, coefficient(r, *e.get(2), key));
   }
 }
 
@@ -99,7 +108,7 @@ ProblemFile parse_problem_text(std::string_view text, const std::string& name) {
   IsingProblem& p = out.ising;
   p = IsingProblem(static_cast<int>(n));
   p.description = r.get_string(t, "description", "").value_or("");
-  p.offset = r.get_double(t, "offset", "").value_or(0.0);
+  if (const toml::node* off = t.get("offset")) p.offset = coefficient(r, *off, "offset");
 
   if (const toml::array* labels = r.get_array(t, "labels", "")) {
     if (static_cast<long long>(labels->size()) != n)

@@ -11,6 +11,13 @@ namespace {
 
 constexpr const char* kFormat = "gapwise-schedule";
 
+void check_scale(const TomlReader& r, const toml::node* node, const std::string& key, double ghz) {
+  if (ghz < 0) r.fail(node, key, fmt::format("energy scale {} GHz is negative", ghz), "energy scales are >= 0 GHz");
+  if (ghz > kMaxEnergyScaleGhz)
+    r.fail(node, key, fmt::format("energy scale {} GHz is above {:g} GHz", ghz, kMaxEnergyScaleGhz),
+           "check the unit: energy scales are in GHz (energy / Planck's constant)");
+}
+
 EnergyScales read_scales(const TomlReader& r, const toml::table* t) {
   if (!t) return EnergyScales::linear(5.0, 5.0);
   const std::string kind = r.get_string(*t, "kind", "scales").value_or("linear");
@@ -18,8 +25,8 @@ EnergyScales read_scales(const TomlReader& r, const toml::table* t) {
     r.allow_keys(*t, "scales", {"kind", "a_max_ghz", "b_max_ghz"});
     const double a = r.require_double(*t, "a_max_ghz", "scales");
     const double b = r.require_double(*t, "b_max_ghz", "scales");
-    if (a < 0) r.fail(t->get("a_max_ghz"), "scales.a_max_ghz", "energy scale is negative", "give A >= 0 GHz");
-    if (b < 0) r.fail(t->get("b_max_ghz"), "scales.b_max_ghz", "energy scale is negative", "give B >= 0 GHz");
+    check_scale(r, t->get("a_max_ghz"), "scales.a_max_ghz", a);
+    check_scale(r, t->get("b_max_ghz"), "scales.b_max_ghz", b);
     return EnergyScales::linear(a, b);
   }
   if (kind != "table")
@@ -45,8 +52,7 @@ EnergyScales read_scales(const TomlReader& r, const toml::table* t) {
         r.fail(a->get(k), key, fmt::format("s = {} is outside [0, 1]", cols[0][k]), "use s between 0 and 1");
       if (c == 0 && k > 0 && !(cols[0][k] > cols[0][k - 1]))
         r.fail(a->get(k), key, "s values must increase strictly", "sort the table by s and remove repeats");
-      if (c > 0 && cols[c][k] < 0)
-        r.fail(a->get(k), key, fmt::format("energy scale {} GHz is negative", cols[c][k]), "energy scales are >= 0 GHz");
+      if (c > 0) check_scale(r, a->get(k), key, cols[c][k]);
     }
   }
   if (cols[0].size() < 2) r.fail(t->get("s"), "scales.s", "a table needs at least two points", "add points");
@@ -131,6 +137,10 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
   sch.time_in_ns = time == "ns";
   if (auto d = r.get_double(*p, "duration_ns", "path")) {
     if (!(*d > 0)) r.fail(p->get("duration_ns"), "path.duration_ns", "duration must be > 0 ns", "give a positive duration");
+    if (*d > kMaxDurationNs)
+      r.fail(p->get("duration_ns"), "path.duration_ns",
+             fmt::format("duration {} ns is longer than the {:g} ns (one second) gapwise simulates", *d, kMaxDurationNs),
+             "check the unit: durations are in ns");
     const bool forward_shape_in_ns = spec && !spec->is_reverse();
     if (sch.time_in_ns && !forward_shape_in_ns)
       r.fail(p->get("duration_ns"), "path.duration_ns",
@@ -151,6 +161,10 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
       if (k > 0 && !(w.t_ns > pts.back().t_ns))
         r.fail(e->get(0), key, fmt::format("time {} does not increase (previous {})", w.t_ns, pts.back().t_ns),
                "times must increase strictly; a quench is a short ramp, not a zero-length one");
+      if (sch.time_in_ns && w.t_ns > kMaxDurationNs)
+        r.fail(e->get(0), key,
+               fmt::format("time {} ns is beyond the {:g} ns (one second) gapwise simulates", w.t_ns, kMaxDurationNs),
+               "check the unit: times are in ns when time = \"ns\"");
       if (!sch.time_in_ns && w.t_ns > 1)
         r.fail(e->get(0), key, fmt::format("time fraction {} is above 1", w.t_ns),
                "fractions run from 0 to 1; use time = \"ns\" for absolute times");

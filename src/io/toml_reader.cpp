@@ -1,9 +1,14 @@
 #include "io/toml_reader.hpp"
 
+#include <cerrno>
 #include <cmath>
+#include <cstring>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
+
+#include <fcntl.h>
+#include <unistd.h>
 
 #include <fmt/format.h>
 
@@ -34,12 +39,34 @@ std::string read_text_file(const std::string& path) {
   std::error_code ec;
   if (std::filesystem::is_directory(path, ec))
     throw InputError({path, 0, 0, ""}, "this is a directory, not a file", "give the path of a file");
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError({path, 0, 0, ""}, "cannot open the file for reading",
-                            "check the path and the file's permissions");
-  std::ostringstream text;
-  text << in.rdbuf();
-  return text.str();
+  const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
+  if (fd < 0)
+    throw InputError({path, 0, 0, ""}, fmt::format("cannot open the file for reading ({})", std::strerror(errno)),
+                     "check the path and the file's permissions");
+  // Read errors must not pass for an empty or truncated file.
+  std::string text;
+  char buf[1 << 16];
+  for (;;) {
+    const ssize_t got = ::read(fd, buf, sizeof buf);
+    if (got == 0) break;
+    if (got < 0) {
+      if (errno == EINTR) continue;
+      const int err = errno;
+      ::close(fd);
+      throw InputError({path, 0, 0, ""}, fmt::format("reading the file failed ({})", std::strerror(err)),
+                       "check the disk or copy the file to a readable place");
+    }
+    text.append(buf, static_cast<std::size_t>(got));
+    if (text.size() > kMaxInputFileBytes) {
+      ::close(fd);
+      throw InputError({path, 0, 0, ""},
+                       fmt::format("the file is larger than {} MiB; gapwise input files are small text files",
+                                   kMaxInputFileBytes >> 20),
+                       "check that this is the intended file");
+    }
+  }
+  ::close(fd);
+  return text;
 }
 
 TomlReader TomlReader::open(const std::string& path) { return from_string(read_text_file(path), path); }

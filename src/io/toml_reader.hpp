@@ -22,7 +22,12 @@ namespace gapwise {
 /// (for the writers of problem and schedule files).
 std::string toml_quoted(std::string_view text);
 
-/// Whole file as text; an unreadable file is an InputError naming the path.
+/// Largest input file read_text_file accepts (problem files for 30 qubits are a
+/// few tens of KiB; anything far larger is the wrong file).
+inline constexpr std::size_t kMaxInputFileBytes = std::size_t{64} << 20;
+
+/// Whole file as text; an unreadable file, a read error or a file above
+/// kMaxInputFileBytes is an InputError naming the path and the reason.
 std::string read_text_file(const std::string& path);
 
 class TomlReader {

@@ -18,6 +18,13 @@ namespace gapwise {
 
 using BasisIndex = std::uint64_t;
 
+/// Largest |h|, |J|, |Q| or |offset| a problem may hold. Energies enter H as
+/// (B/2) E in GHz; a coefficient of 1e9 at B = 1 GHz already needs time steps of
+/// 1e-10 ns, and sums of larger values can overflow to infinity. Only the ratio
+/// of the coefficients to each other matters once B(s) sets the scale, so
+/// rescaling loses nothing.
+inline constexpr double kMaxProblemCoefficient = 1e9;
+
 struct Coupling {
   int i = 0;  ///< always i < j after validation
   int j = 0;

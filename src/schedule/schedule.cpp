@@ -13,6 +13,11 @@ AnnealPath Schedule::path_for(std::optional<double> d) const {
     if (!(*d > 0.0) || !std::isfinite(*d))
       throw InputError({source, 0, 0, "duration_ns"}, fmt::format("duration {} ns is not positive", *d),
                        "give a duration > 0 ns");
+    if (*d > kMaxDurationNs)
+      throw InputError({source, 0, 0, "duration_ns"},
+                       fmt::format("duration {} ns is longer than the {:g} ns (one second) gapwise simulates", *d,
+                                   kMaxDurationNs),
+                       "check the unit: durations are in ns");
     return shape.scaled_to(*d);
   }
   if (time_in_ns) return shape;

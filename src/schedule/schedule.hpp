@@ -17,6 +17,14 @@
 
 namespace gapwise {
 
+/// Largest energy scale (GHz) a schedule may give. Superconducting annealers
+/// work at a few to tens of GHz (common knowledge of the trade); 1000 GHz is far
+/// beyond and catches unit slips (Hz or MHz typed as GHz).
+inline constexpr double kMaxEnergyScaleGhz = 1000.0;
+/// Longest anneal (ns) gapwise accepts: one second. Longer runs would take
+/// ~1e10 integrator steps; a larger value is a unit slip.
+inline constexpr double kMaxDurationNs = 1e9;
+
 enum class StartKind {
   Ground,     ///< ground state of H(s) at the path's first s (|+>^n for a forward anneal)
   Classical,  ///< a computational basis state given by the user (reverse anneals)
