@@ -155,6 +155,11 @@ ProblemFile parse_problem_file(const std::string& path) {
 std::string format_problem_toml(const IsingProblem& p) {
   std::string s = fmt::format("format = \"{}\"\nformat_version = 1\nkind = \"ising\"\nqubits = {}\n", kFormat, p.qubits);
   if (!p.description.empty()) s += "description = " + toml_quoted(p.description) + "\n";
+  if (!p.labels.empty()) {
+    s += "labels = [";
+    for (std::size_t k = 0; k < p.labels.size(); ++k) s += (k ? ", " : "") + toml_quoted(p.labels[k]);
+    s += "]\n";
+  }
   if (p.offset != 0.0) s += fmt::format("offset = {:.17g}\n", p.offset);
   s += "fields = [";
   for (int i = 0; i < p.qubits; ++i) s += fmt::format("{}{:.17g}", i ? ", " : "", p.h[static_cast<std::size_t>(i)]);

@@ -30,9 +30,24 @@ std::string type_name(const toml::node& n) {
 }  // namespace
 
 std::string toml_quoted(std::string_view text) {
-  std::ostringstream os;
-  os << toml::value<std::string>(std::string(text));  // toml++ writes a valid, escaped string literal
-  return os.str();
+  // Always a basic string with escapes. toml++'s own writer picks a multi-line
+  // literal string for text with newlines, and TOML drops a newline right after
+  // the opening delimiter: a leading newline did not survive (found by fuzzing).
+  std::string out = "\"";
+  for (const char ch : text) {
+    const auto c = static_cast<unsigned char>(ch);
+    switch (c) {
+      case '"': out += "\\\""; break;
+      case '\\': out += "\\\\"; break;
+      case '\n': out += "\\n"; break;
+      case '\t': out += "\\t"; break;
+      case '\r': out += "\\r"; break;
+      default:
+        if (c < 0x20 || c == 0x7f) out += fmt::format("\\u{:04X}", c);
+        else out += ch;
+    }
+  }
+  return out + "\"";
 }
 
 std::string read_text_file(const std::string& path) {
