@@ -1,3 +1,4 @@
+// ctest-labels: slow
 // The reference integrator keeps its promise: tightening the tolerance tenfold
 // moves p by less than the stated tolerance, and the norm is kept (common
 // practice for checking an adaptive integrator).

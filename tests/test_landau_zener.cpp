@@ -1,3 +1,4 @@
+// ctest-labels: slow
 // Landau-Zener: one qubit, constant transverse scale A = Delta, z-field swept
 // linearly through zero. The many-body code path (schedule -> Hamiltonian ->
 // propagator -> ground-state probability) must reproduce the exact asymptotic

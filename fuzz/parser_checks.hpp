@@ -1,0 +1,153 @@
+#pragma once
+// What a fuzzed input must never do to a parser, shared by the libFuzzer
+// targets (fuzz/fuzz_*.cpp) and the regression tests (tests/test_fuzz_regressions.cpp).
+// A parser either returns a valid model or throws InputError; anything else
+// (another exception, a crash, a sanitizer report, a broken invariant) is a bug.
+// A broken contract throws std::logic_error: uncaught in a fuzz target it ends
+// the process (libFuzzer saves the input), in a doctest CHECK_NOTHROW it fails.
+// Accepted inputs must also survive a write/re-read round trip unchanged, since
+// gapwise writes these formats itself (derived problems, generated schedules).
+//
+//   gapwise::fuzzing::check_problem_input(text);   // throws std::logic_error on a bug
+//   gapwise::fuzzing::check_schedule_input(text);
+//   gapwise::fuzzing::check_embedding_input(text);
+#include <cmath>
+#include <stdexcept>
+#include <string>
+#include <string_view>
+
+#include "io/embedding_file.hpp"
+#include "io/input_error.hpp"
+#include "io/problem_file.hpp"
+#include "io/schedule_file.hpp"
+
+namespace gapwise::fuzzing {
+
+[[noreturn]] inline void fuzz_bug(const std::string& what) {
+  throw std::logic_error("parser contract broken: " + what);
+}
+
+/// Every InputError must name the file and say something.
+inline void check_error(const InputError& e, const std::string& name) {
+  if (e.place().file != name) fuzz_bug("InputError without the file name: " + std::string(e.what()));
+  if (e.problem().empty()) fuzz_bug("InputError without a problem text");
+}
+
+inline bool same_bits(double a, double b) { return a == b || (std::isnan(a) && std::isnan(b)); }
+
+inline void check_problem_model(const IsingProblem& p) {
+  if (p.qubits < 1 || p.qubits > 30) fuzz_bug("qubit count out of range accepted");
+  if (p.h.size() != static_cast<std::size_t>(p.qubits)) fuzz_bug("field vector of the wrong size");
+  if (!std::isfinite(p.offset)) fuzz_bug("non-finite offset accepted");
+  for (double x : p.h) if (!std::isfinite(x)) fuzz_bug("non-finite field accepted");
+  for (const auto& c : p.couplings) {
+    if (!(c.i >= 0 && c.i < c.j && c.j < p.qubits)) fuzz_bug("coupling indices out of order or range");
+    if (!std::isfinite(c.value)) fuzz_bug("non-finite coupling accepted");
+  }
+  if (!p.labels.empty() && p.labels.size() != p.h.size()) fuzz_bug("label count differs from qubit count");
+}
+
+inline void check_problem_input(std::string_view text) {
+  const std::string name = "fuzz-problem.toml";
+  ProblemFile pf;
+  try {
+    pf = parse_problem_text(text, name);
+  } catch (const InputError& e) {
+    check_error(e, name);
+    return;
+  }
+  const IsingProblem& p = pf.ising;
+  check_problem_model(p);
+  // Round trip: what we write we must read back identically.
+  const std::string again = format_problem_toml(p);
+  IsingProblem q;
+  try {
+    q = parse_problem_text(again, "round-trip.toml").ising;
+  } catch (const InputError& e) {
+    fuzz_bug("re-reading a written problem failed: " + std::string(e.what()) + "\n" + again);
+  }
+  bool same = q.qubits == p.qubits && q.couplings.size() == p.couplings.size() && same_bits(q.offset, p.offset) &&
+              q.description == p.description && q.labels == p.labels;
+  for (std::size_t k = 0; same && k < p.h.size(); ++k) same = same_bits(q.h[k], p.h[k]);
+  for (std::size_t k = 0; same && k < p.couplings.size(); ++k)
+    same = q.couplings[k].i == p.couplings[k].i && q.couplings[k].j == p.couplings[k].j &&
+           same_bits(q.couplings[k].value, p.couplings[k].value);
+  if (!same) fuzz_bug("problem changed in a write/re-read round trip:\n" + again);
+}
+
+inline void check_schedule_model(const Schedule& s) {
+  const auto& pts = s.shape.points();
+  if (pts.size() < 2) fuzz_bug("path with fewer than two waypoints accepted");
+  for (const auto& w : pts)
+    if (!std::isfinite(w.t_ns) || !(w.s >= 0.0 && w.s <= 1.0)) fuzz_bug("waypoint out of range accepted");
+  for (double x : {0.0, 0.25, 0.5, 0.75, 1.0}) {
+    const double a = s.scales.a_ghz(x), b = s.scales.b_ghz(x);
+    if (!std::isfinite(a) || !std::isfinite(b) || a < 0 || b < 0) fuzz_bug("energy scale non-finite or negative");
+  }
+  if (s.duration_ns && !(*s.duration_ns > 0 && std::isfinite(*s.duration_ns))) fuzz_bug("bad duration accepted");
+}
+
+inline void check_schedule_input(std::string_view text) {
+  const std::string name = "fuzz-schedule.toml";
+  Schedule s;
+  try {
+    s = parse_schedule_text(text, name);
+  } catch (const InputError& e) {
+    check_error(e, name);
+    return;
+  }
+  check_schedule_model(s);
+  const std::string again = format_schedule_toml(s);
+  Schedule q;
+  try {
+    q = parse_schedule_text(again, "round-trip.toml");
+  } catch (const InputError& e) {
+    fuzz_bug("re-reading a written schedule failed: " + std::string(e.what()) + "\n" + again);
+  }
+  bool same = q.description == s.description && q.time_in_ns == s.time_in_ns &&
+              q.shape.points().size() == s.shape.points().size() && q.start.kind == s.start.kind &&
+              q.start.bits == s.start.bits && q.duration_ns.has_value() == s.duration_ns.has_value();
+  if (same && s.duration_ns) same = same_bits(*q.duration_ns, *s.duration_ns);
+  for (std::size_t k = 0; same && k < s.shape.points().size(); ++k)
+    same = same_bits(q.shape.points()[k].t_ns, s.shape.points()[k].t_ns) &&
+           same_bits(q.shape.points()[k].s, s.shape.points()[k].s);
+  for (double x : {0.0, 0.3, 0.5, 1.0})
+    same = same && same_bits(q.scales.a_ghz(x), s.scales.a_ghz(x)) && same_bits(q.scales.b_ghz(x), s.scales.b_ghz(x));
+  if (!same) fuzz_bug("schedule changed in a write/re-read round trip:\n" + again);
+}
+
+/// An accepted embedding must pass its own validation again, and embedding a
+/// logical problem on it (one field per chain, a coupling between every pair
+/// of chains that a coupler serves) must give a valid physical problem.
+inline void check_embedding_input(std::string_view text) {
+  const std::string name = "fuzz-embedding.toml";
+  Embedding e;
+  try {
+    e = parse_embedding_text(text, name);
+  } catch (const InputError& err) {
+    check_error(err, name);
+    return;
+  }
+  try {
+    validate_embedding(e);
+  } catch (const InputError& err) {
+    fuzz_bug("an accepted embedding fails validate_embedding: " + std::string(err.what()));
+  }
+  if (e.logical_qubits() < 1 || e.physical_qubits < e.logical_qubits()) fuzz_bug("chain/qubit counts inconsistent");
+  if (e.physical_qubits > 30) return;  // a valid structure, but too large to simulate; embed_problem refuses it
+  IsingProblem logical(e.logical_qubits());
+  for (int v = 0; v < logical.qubits; ++v) logical.h[static_cast<std::size_t>(v)] = 0.5 + 0.25 * v;
+  for (int u = 0; u < logical.qubits; ++u)
+    for (int v = u + 1; v < logical.qubits; ++v)
+      if (!e.couplers_between(u, v).empty()) logical.couplings.push_back({u, v, -1.0});
+  try {
+    check_embedding_serves(e, logical, "logical.toml");
+    const EmbeddedProblem ep = embed_problem(logical, e, e.chain_strength.value_or(ChainStrength{}), e.term_limit);
+    if (ep.physical.qubits != e.physical_qubits) fuzz_bug("embedded problem has the wrong qubit count");
+    check_problem_model(ep.physical);
+  } catch (const InputError& err) {
+    if (err.problem().empty()) fuzz_bug("InputError without a problem text");  // e.g. an unusable chain strength
+  }
+}
+
+}  // namespace gapwise::fuzzing
