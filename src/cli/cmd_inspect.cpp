@@ -2,6 +2,7 @@
 // ground manifold, and the memory a simulation will need.
 #include <iostream>
 #include <memory>
+#include <optional>
 
 #include <fmt/format.h>
 
@@ -21,6 +22,10 @@ struct InspectOptions {
 
 void run_inspect(const InspectOptions& o) {
   const ProblemFile pf = parse_problem_file(o.problem);
+  // Every input is read before anything is printed: a bad schedule must not
+  // leave half a report on stdout.
+  std::optional<Schedule> schedule;
+  if (!o.schedule.empty()) schedule = read_schedule_file(o.schedule);
   const IsingProblem& p = pf.ising;
   check_memory(p.qubits, 0, 0, o.problem);
   const GroundManifold gm = find_ground_manifold(p);
@@ -66,7 +71,7 @@ void run_inspect(const InspectOptions& o) {
                            human_bytes(estimate_bytes(p.qubits, 1, 0) - std::ldexp(8.0, p.qubits)), human_bytes(dyn_bytes),
                            human_bytes(available_bytes()));
   if (!o.schedule.empty()) {
-    const Schedule s = read_schedule_file(o.schedule);
+    const Schedule& s = *schedule;
     std::cout << fmt::format("schedule     {}{}\n", o.schedule, s.description.empty() ? "" : "  (" + s.description + ")");
     std::cout << fmt::format("  scales     {}\n", s.scales.describe());
     std::cout << fmt::format("  path       {} waypoints, times in {}{}\n", s.shape.points().size(),
