@@ -24,6 +24,18 @@ void check_output_path(const std::string& path, const std::string& key) {
   if (!parent.empty() && !fs::is_directory(parent, ec))
     throw InputError({path, 0, 0, key}, fmt::format("the folder '{}' does not exist", parent.string()),
                      "create it first or choose another path");
+  // Probe now, before hours of work: can a file be created beside the target?
+  const std::string probe = fmt::format("{}.probe-{}", path, static_cast<long>(::getpid()));
+  const int fd = ::open(probe.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0644);
+  if (fd < 0) {
+    const int err = errno;
+    throw InputError({path, 0, 0, key},
+                     fmt::format("cannot create a file in '{}' ({})", parent.empty() ? "." : parent.string(),
+                                 std::strerror(err)),
+                     "choose a folder you can write to");
+  }
+  ::close(fd);
+  ::unlink(probe.c_str());
 }
 
 std::string temporary_path_for(const std::string& path) {
@@ -48,17 +60,25 @@ void commit_temporary(const std::string& temp, const std::string& final_path) {
   }
 }
 
-void write_file_atomically(const std::string& path, const std::string& content) {
-  const std::string tmp = temporary_path_for(path);
-  std::FILE* f = std::fopen(tmp.c_str(), "wb");
-  if (!f) throw std::runtime_error(fmt::format("cannot write '{}': {}", tmp, std::strerror(errno)));
+void write_whole_file(const std::string& path, const std::string& content, const std::string& shown_as) {
+  const std::string& name = shown_as.empty() ? path : shown_as;
+  std::FILE* f = std::fopen(path.c_str(), "wb");
+  if (!f) throw std::runtime_error(fmt::format("cannot write '{}': {}", name, std::strerror(errno)));
   const bool ok = std::fwrite(content.data(), 1, content.size(), f) == content.size();
   const int err = errno;
+  const bool flushed = std::fflush(f) == 0;
+  const int flush_err = errno;
   const bool closed = std::fclose(f) == 0;
-  if (!ok || !closed) {
-    std::remove(tmp.c_str());
-    throw std::runtime_error(fmt::format("cannot write '{}': {}", path, std::strerror(ok ? errno : err)));
+  if (!ok || !flushed || !closed) {
+    std::remove(path.c_str());
+    throw std::runtime_error(
+        fmt::format("cannot write '{}': {}", name, std::strerror(!ok ? err : !flushed ? flush_err : errno)));
   }
+}
+
+void write_file_atomically(const std::string& path, const std::string& content) {
+  const std::string tmp = temporary_path_for(path);
+  write_whole_file(tmp, content, path);
   commit_temporary(tmp, path);
 }
 
