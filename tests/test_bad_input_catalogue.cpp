@@ -1,0 +1,132 @@
+// The bad-input catalogue (notebooks-free-docs/bad-input-catalogue.md), end to
+// end: each row here feeds the real command line one class of bad input; the
+// test checks exit code 2, that nothing is printed on stdout, and that stderr is
+// exactly the message in the catalogue row of the same id (the temporary
+// folder shown as DIR), so the docs cannot drift from the tool.
+// GAPWISE_CATALOGUE_DUMP=1 prints the messages the tool gives (to update the docs).
+#include <doctest/doctest.h>
+
+#include <cstdlib>
+#include <fstream>
+#include <iostream>
+#include <string>
+#include <vector>
+
+#include "io/toml_reader.hpp"
+#include "test_support.hpp"
+
+using namespace gapwise;
+using testing::TempDir;
+
+namespace {
+
+struct Row {
+  std::string id;        ///< row id in the catalogue
+  std::string file;      ///< name of the bad file written into DIR ("" = none)
+  std::string text;      ///< its content
+  std::string command;   ///< arguments; DIR, TRIANGLE and LINEAR are replaced
+};
+
+std::string replace_all(std::string s, const std::string& from, const std::string& to) {
+  for (std::size_t k = s.find(from); k != std::string::npos; k = s.find(from, k + to.size())) s.replace(k, from.size(), to);
+  return s;
+}
+
+const std::string kScheduleHead = "format = \"gapwise-schedule\"\n[scales]\nkind = \"linear\"\n";
+
+// The last cell of the catalogue row "| id | ... | message |".
+std::string catalogued_message(const std::string& doc, const std::string& id) {
+  const std::size_t at = doc.find("\n| " + id + " |");
+  if (at == std::string::npos) return "<row " + id + " is missing from the catalogue>";
+  const std::size_t end = doc.find('\n', at + 1);
+  std::string line = doc.substr(at + 1, end - at - 1);
+  if (line.size() >= 2 && line.compare(line.size() - 2, 2, " |") == 0) line.resize(line.size() - 2);
+  const std::size_t cell = line.rfind(" | ");
+  return cell == std::string::npos ? line : line.substr(cell + 3);
+}
+
+std::vector<Row> rows() {
+  return {
+      // --- problem files ---
+      {"P1", "p.toml", "qubits = 3\ncouplings = [[0, 1, 1.0]\n", "inspect DIR/p.toml"},
+      {"P2", "p.toml", "qubits = \"three\"\n", "inspect DIR/p.toml"},
+      {"P3", "p.toml", "qubits = 3\nfields = [0.1, \"x\", 0.2]\n", "inspect DIR/p.toml"},
+      {"P4", "p.toml", "qubits = 3\ncouplings = [[0, 5, 1.0]]\n", "inspect DIR/p.toml"},
+      {"P5", "p.toml", "qubits = 0\n", "inspect DIR/p.toml"},
+      {"P6", "p.toml", "qubits = 2\nfields = [nan, 0.0]\n", "inspect DIR/p.toml"},
+      {"P7", "p.toml", "qubits = 2\ncouplings = [[0, 1, inf]]\n", "inspect DIR/p.toml"},
+      {"P8", "p.toml", "qubits = 3\nfields = [0.1, 0.2]\n", "inspect DIR/p.toml"},
+      {"P9", "p.toml", "qubits = 3\nlabels = [\"a\", \"b\"]\n", "inspect DIR/p.toml"},
+      {"P10", "p.toml", "qubits = 3\ncouplings = [[0, 1, 1.0], [1, 0, 0.5]]\n", "inspect DIR/p.toml"},
+      {"P11", "p.toml", "qubits = 3\ncoupling = [[0, 1, 1.0]]\n", "inspect DIR/p.toml"},
+      {"P12", "p.toml", "qubits = 40\n", "inspect DIR/p.toml"},
+      {"P13", "p.toml", "qubits = 2\nfields = [1e12, 0.0]\n", "inspect DIR/p.toml"},
+      {"P14", "p.toml", "", "inspect DIR/p.toml"},
+      {"P15", "p.toml", "kind = \"qubo\"\nqubits = 2\nfields = [1.0, 0.0]\n", "inspect DIR/p.toml"},
+      // --- schedule files ---
+      {"S1", "s.toml", "[path\n", "inspect TRIANGLE DIR/s.toml"},
+      {"S2", "s.toml", kScheduleHead + "a_max_ghz = \"5\"\nb_max_ghz = 5.0\n", "inspect TRIANGLE DIR/s.toml"},
+      {"S3", "s.toml", "[path]\nduration_ns = 10\npoints = [[0, 0], [1, 1.5]]\n", "inspect TRIANGLE DIR/s.toml"},
+      {"S4", "s.toml", kScheduleHead + "a_max_ghz = nan\nb_max_ghz = 5.0\n", "inspect TRIANGLE DIR/s.toml"},
+      {"S5", "s.toml", "[scales]\nkind = \"table\"\ns = [0, 0.5, 1]\na_ghz = [5, 2]\nb_ghz = [0, 2, 5]\n",
+       "inspect TRIANGLE DIR/s.toml"},
+      {"S6", "s.toml", "[path]\ntime = \"ns\"\npoints = [[0, 0], [20, 0.5], [10, 1]]\n", "inspect TRIANGLE DIR/s.toml"},
+      {"S7", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 5e6\n", "inspect TRIANGLE DIR/s.toml"},
+      {"S8", "s.toml", "[path]\nduration_ns = 1e12\n", "inspect TRIANGLE DIR/s.toml"},
+      {"S9", "s.toml", "[path]\nduration_ns = -3\n", "inspect TRIANGLE DIR/s.toml"},
+      {"S10", "s.toml", "[path]\nstart = \"classical\"\nstart_bits = [0, 1]\npoints = [[0, 1], [1, 0.5]]\nduration_ns = 5\n",
+       "anneal TRIANGLE DIR/s.toml"},
+      // --- paths ---
+      {"F1", "", "", "inspect DIR/missing.toml"},
+      {"F2", "", "", "inspect DIR"},
+      {"F3", "", "", "inspect /proc/self/mem"},
+      // --- outputs ---
+      {"O1", "", "", "anneal TRIANGLE LINEAR --out DIR"},
+      {"O2", "", "", "anneal TRIANGLE LINEAR --out DIR/no-such-folder/run.h5"},
+      {"O3", "", "", "anneal TRIANGLE LINEAR --out /proc/self/run.h5"},
+      {"O4", "", "", "anneal TRIANGLE LINEAR --csv DIR"},
+      // --- options ---
+      {"C1", "", "", "anneal TRIANGLE LINEAR --tolerance 0.5"},
+      {"C2", "", "", "anneal TRIANGLE LINEAR --duration-ns 0"},
+      {"C3", "", "", "anneal TRIANGLE LINEAR --duration-ns twenty"},
+  };
+}
+
+}  // namespace
+
+TEST_CASE("every row of the bad-input catalogue: exit code 2 and the catalogued message naming file, line and key") {
+  const auto src = testing::source_dir();
+  const std::string doc = read_text_file((src / "notebooks-free-docs/bad-input-catalogue.md").string());
+  const bool dump = std::getenv("GAPWISE_CATALOGUE_DUMP") != nullptr;
+  for (const Row& row : rows()) {
+    TempDir dir;
+    if (!row.file.empty()) dir.write(row.file, row.text);
+    std::string args = replace_all(row.command, "DIR", dir.path.string());
+    args = replace_all(args, "TRIANGLE", (src / "data-samples/triangle.toml").string());
+    args = replace_all(args, "LINEAR", (src / "schedules/linear.toml").string());
+    const auto r = testing::run_gapwise(args, dir);
+    std::string err = replace_all(r.err, dir.path.string(), "DIR");
+    err = replace_all(err, src.string(), "SRC");
+    err = err.substr(0, err.find('\n'));  // the message line (CLI11 adds a "Run with --help" line)
+    if (dump) std::cout << row.id << "\t" << err << "\n";
+    INFO("row " << row.id << ": gapwise " << row.command);
+    CHECK(r.exit_code == 2);
+    CHECK(r.out.empty());  // nothing that looks like a result
+    CHECK(err == catalogued_message(doc, row.id));
+    // The message names the place: the file (or option) it is about.
+    CHECK((err.find("DIR") != std::string::npos || err.find("/proc/self") != std::string::npos || err.find("SRC") != std::string::npos ||
+           err.find("--") != std::string::npos));
+  }
+}
+
+TEST_CASE("an oversized input file is refused before it is parsed") {
+  TempDir dir;
+  {
+    std::ofstream f(dir.path / "big.toml");
+    const std::string line(1023, '#');
+    for (int k = 0; k < 65 * 1024 + 1; ++k) f << line << '\n';
+  }
+  const auto r = testing::run_gapwise("inspect '" + (dir.path / "big.toml").string() + "'", dir);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("big.toml: the file is larger than 64 MiB") != std::string::npos);
+}
