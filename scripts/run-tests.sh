@@ -1,12 +1,58 @@
 #!/usr/bin/env bash
 # The whole test suite, exactly as CI runs it (.ci/run calls this script):
-# install what is missing, build (Release), run every test under CTest.
+#   1. install what is missing (scripts/install-deps.sh);
+#   2. Release build in build/ and every test under CTest;
+#   3. (GAPWISE_SANITIZE_TESTS=1) AddressSanitizer + UndefinedBehaviorSanitizer build in build-asan/
+#      (-DGAPWISE_SANITIZE=ON) and the unit tests again, except those labelled
+#      "slow" (a line "// ctest-labels: slow" in the test file);
+#   4. libFuzzer build in build-fuzz/ (clang, -DGAPWISE_FUZZ=ON) and a short
+#      run of every fuzz target, seeded from data-samples/, schedules/ and the
+#      saved crash regressions in tests/fuzz-regressions/.
+# Knobs (environment): GAPWISE_SANITIZE_TESTS=1, GAPWISE_SKIP_FUZZ=1,
+# GAPWISE_FUZZ_SECONDS (per target, default 45), GAPWISE_JOBS (default nproc, at most 2).
+# Timings of every stage are printed at the end.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 bash scripts/install-deps.sh
-jobs=$(nproc)
+jobs=${GAPWISE_JOBS:-$(nproc)}
+[ "$jobs" -gt 2 ] && jobs=2
+timings=()
+stage_start=$SECONDS
+stage_done() { timings+=("$(printf '%-34s %5d s' "$1" $((SECONDS - stage_start)))"); stage_start=$SECONDS; }
+
 echo "== build (Release)"
 cmake -S . -B build -DCMAKE_BUILD_TYPE=Release >/dev/null
 cmake --build build -j"$jobs"
+stage_done "build (Release)"
 echo "== tests"
 ctest --test-dir build --output-on-failure -j"$jobs" --timeout 900
+stage_done "tests (Release)"
+
+# Opt-in until a full sanitized run has been seen green (GAPWISE_SANITIZE_TESTS=1).
+if [ "${GAPWISE_SANITIZE_TESTS:-0}" = 1 ]; then
+  echo "== build (AddressSanitizer + UndefinedBehaviorSanitizer)"
+  cmake -S . -B build-asan -DCMAKE_BUILD_TYPE=RelWithDebInfo -DGAPWISE_SANITIZE=ON \
+        -DGAPWISE_BUILD_BENCH=OFF >/dev/null
+  cmake --build build-asan -j"$jobs"
+  stage_done "build (sanitizers)"
+  echo "== tests under the sanitizers (label 'slow' skipped)"
+  ASAN_OPTIONS="detect_leaks=1:abort_on_error=1:strict_string_checks=1" \
+  UBSAN_OPTIONS="print_stacktrace=1:halt_on_error=1" \
+    ctest --test-dir build-asan --output-on-failure -j"$jobs" --timeout 900 -LE slow
+  stage_done "tests (sanitizers)"
+fi
+
+if [ "${GAPWISE_SKIP_FUZZ:-0}" != 1 ]; then
+  echo "== build (libFuzzer)"
+  cmake -S . -B build-fuzz -DCMAKE_BUILD_TYPE=RelWithDebInfo -DCMAKE_C_COMPILER=clang \
+        -DCMAKE_CXX_COMPILER=clang++ -DGAPWISE_FUZZ=ON -DGAPWISE_BUILD_TESTS=OFF \
+        -DGAPWISE_BUILD_BENCH=OFF >/dev/null
+  cmake --build build-fuzz -j"$jobs" --target fuzz_all
+  stage_done "build (fuzz targets)"
+  bash scripts/fuzz.sh "${GAPWISE_FUZZ_SECONDS:-45}"
+  stage_done "fuzz runs"
+fi
+
+echo "== timings"
+printf '%s\n' "${timings[@]}"
+echo "all tests passed"

@@ -30,13 +30,7 @@ Hdf5Output::Hdf5Output(std::string final_path, std::string sealed_format) : impl
   try {
     H5::FileCreatPropList fcpl;
     if (!impl_->sealed_format.empty()) fcpl.setUserblock(kSealBytes);
-    // The file is built in memory (core driver, no backing store) and written
-    // by commit() with our own checked I/O: HDF5 1.10 crashes at exit after a
-    // failed write to a full disk (seen with ulimit -f), and a half-written
-    // file must never exist under any name but the temporary one.
-    H5::FileAccPropList fapl;
-    fapl.setCore(1 << 20, false);
-    impl_->file = std::make_unique<H5::H5File>(impl_->temp_path, H5F_ACC_TRUNC, fcpl, fapl);
+    impl_->file = std::make_unique<H5::H5File>(impl_->temp_path, H5F_ACC_TRUNC, fcpl);
   } catch (const H5::Exception& e) {
     throw std::runtime_error(fmt::format("cannot create '{}': {}", impl_->temp_path, e.getDetailMsg()));
   }
@@ -148,21 +142,15 @@ void Hdf5Output::attribute(const std::string& object, const std::string& name, l
 }
 
 void Hdf5Output::commit() {
-  std::string image;
   try {
     impl_->file->flush(H5F_SCOPE_GLOBAL);
-    const ssize_t size = H5Fget_file_image(impl_->file->getId(), nullptr, 0);
-    if (size < 0) throw std::runtime_error(fmt::format("cannot finish '{}': no file image", impl_->final_path));
-    image.resize(static_cast<std::size_t>(size));
-    if (H5Fget_file_image(impl_->file->getId(), image.data(), image.size()) != size)
-      throw std::runtime_error(fmt::format("cannot finish '{}': incomplete file image", impl_->final_path));
     impl_->file->close();
   } catch (const H5::Exception& e) {
+    std::remove(impl_->temp_path.c_str());
     impl_->committed = true;
     throw std::runtime_error(fmt::format("cannot finish '{}': {}", impl_->final_path, e.getDetailMsg()));
   }
   impl_->committed = true;
-  write_whole_file(impl_->temp_path, image, impl_->final_path);  // removes the partial temporary on failure
   if (!impl_->sealed_format.empty()) {
     try {
       seal_hdf5_file(impl_->temp_path, impl_->sealed_format);
