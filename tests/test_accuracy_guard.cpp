@@ -86,7 +86,7 @@ TEST_CASE("--strict exits 3 on a loose long run, warns, and still writes the mar
   // Without --strict the same run warns but exits 0.
   const auto lax = testing::run_gapwise(
       "anneal '" + (src / "data-samples/triangle.toml").string() + "' '" + (src / "schedules/linear.toml").string() +
-          "' --duration-ns 300 --tolerance 1e-2 --no-check",
+          "' --duration-ns 300 --tolerance 1e-2 --propagator odeint --no-check",
       dir);
   CHECK(lax.exit_code == 0);
   CHECK(lax.err.find("gapwise: warning:") != std::string::npos);
