@@ -107,6 +107,17 @@ TEST_CASE("bad shapes are refused with the field named") {
   CHECK(refused_key([] { reverse_anneal_path({.turn_s = 1.5, .down = 1, .dwell = 1, .up = 1}); }) == "reverse.turn_s");
   CHECK(refused_key([] { reverse_anneal_path({.turn_s = 0.5, .down = 0, .dwell = 1, .up = 1}); }) == "reverse.down");
   CHECK(refused_key([] { insert_pause(AnnealPath({{0, 0}, {1, 0.5}}), 0.8, 0.1); }) == "pause.s");
+  // Durations so unequal that their sum rounds back (found by fuzzing the schedule
+  // parser): refused as input, never a bare invalid_argument from AnnealPath.
+  CHECK(refused_key([] { reverse_anneal_path({.turn_s = 0.6, .down = 4, .dwell = 1e308, .up = 4}); }) ==
+        "reverse.dwell");
+  CHECK(refused_key([] { reverse_anneal_path({.turn_s = 0.6, .down = 4, .dwell = 1e-20, .up = 4}); }) ==
+        "reverse.dwell");
+  CHECK(refused_key([] { reverse_anneal_path({.turn_s = 0.6, .down = 4, .dwell = 0, .up = 1e-20}); }) == "reverse.up");
+  CHECK(refused_key([] { forward_shape(kRamp, {.quench = QuenchSpec{0.5, 1e-300}}, 1.0); }) == "quench.duration");
+  CHECK(refused_key([] { forward_shape(kRamp, {.pause = PauseSpec{0.5, 1e-300}}, 1.0); }) == "pause.duration");
+  CHECK(refused_key([] { path_from_shape({.forward = {.quench = QuenchSpec{0.5, 0.01}}}, 1e-310); }) ==
+        "quench.duration");
 }
 
 namespace {

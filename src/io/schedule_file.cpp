@@ -184,6 +184,11 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
         r.fail(p->get("reverse"), "path.reverse",
                fmt::format("down + dwell + up = {} but with time = \"fraction\" they must add up to 1", total),
                "make the three fractions add up to 1, or use time = \"ns\"");
+      if (sch.time_in_ns && !(total <= kMaxDurationNs))
+        r.fail(p->get("reverse"), "path.reverse",
+               fmt::format("down + dwell + up = {} ns is longer than the {:g} ns (one second) gapwise simulates", total,
+                           kMaxDurationNs),
+               "give the durations in ns (a value in seconds or ps is a unit slip)");
     } else if (sch.time_in_ns) {
       if (!sch.duration_ns)
         r.fail(p, "path.duration_ns", "a forward shape with time = \"ns\" needs its total duration",
@@ -192,8 +197,11 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
     }
     sch.shape = build_shape(r, *p, *spec, total);
     if (spec->is_reverse() && !sch.time_in_ns) {  // fractions end at exactly 1
-      std::vector<Waypoint> w = sch.shape.points();
+      std::vector<Waypoint> w = sch.shape.scaled_to(1.0).points();
       w.back().t_ns = 1.0;
+      if (!(w.back().t_ns > w[w.size() - 2].t_ns))
+        r.fail(p->get("reverse"), "path.reverse", "the last ramp is too short to resolve in double precision",
+               "give `up` a fraction above 1e-12");
       sch.shape = AnnealPath(std::move(w));
     }
     sch.shape_spec = spec;

@@ -1,6 +1,7 @@
 #include "schedule/path_shapes.hpp"
 
 #include <cmath>
+#include <stdexcept>
 
 #include <fmt/format.h>
 
@@ -40,6 +41,20 @@ Reach first_reach(const AnnealPath& base, double s) {
   return {};
 }
 
+/// The path through pts; times that fail to increase (durations so unequal that
+/// a sum rounds back to one of its parts) are refused under `key`, not thrown
+/// as a bare invalid_argument.
+AnnealPath checked_path(std::vector<Waypoint> pts, const std::string& key) {
+  for (std::size_t k = 1; k < pts.size(); ++k)
+    if (!(pts[k].t_ns > pts[k - 1].t_ns))
+      refuse(key,
+             fmt::format("the shape's times do not increase ({} then {}): its durations differ by more than "
+                         "double precision can add",
+                         pts[k - 1].t_ns, pts[k].t_ns),
+             "give durations within a factor of about 1e12 of each other");
+  return AnnealPath(std::move(pts));
+}
+
 /// Appends w unless it repeats the last point (same time), keeping times increasing.
 void push(std::vector<Waypoint>& v, Waypoint w) {
   if (!v.empty() && w.t_ns <= v.back().t_ns) {
@@ -69,7 +84,7 @@ AnnealPath insert_pause(const AnnealPath& base, double s, double duration) {
   out.push_back({r.t + duration, s});
   for (std::size_t k = r.piece + 1; k < p.size(); ++k)
     if (p[k].t_ns > r.t) push(out, {p[k].t_ns + duration, p[k].s});
-  return AnnealPath(std::move(out));
+  return checked_path(std::move(out), "pause.duration");
 }
 
 AnnealPath cut_and_quench(const AnnealPath& base, double s, double duration) {
@@ -87,7 +102,7 @@ AnnealPath cut_and_quench(const AnnealPath& base, double s, double duration) {
     if (base.points()[k].t_ns < r.t) out.push_back(base.points()[k]);
   out.push_back({r.t, s});
   out.push_back({r.t + duration, 1.0});
-  return AnnealPath(std::move(out));
+  return checked_path(std::move(out), "quench.duration");
 }
 
 AnnealPath forward_shape(const AnnealPath& base, const ForwardShapeSpec& spec, double total) {
@@ -121,14 +136,14 @@ AnnealPath forward_shape(const AnnealPath& base, const ForwardShapeSpec& spec, d
     const AnnealPath cut = cut_and_quench(base, spec.quench->s, 1.0);
     std::vector<Waypoint> head(cut.points().begin(), cut.points().end() - 1);
     if (head.size() < 2) refuse("quench.s", "the quench starts where the path starts", "give a quench point the path reaches later");
-    slow = AnnealPath(std::move(head));
+    slow = checked_path(std::move(head), "quench.s");
   }
   slow = slow.scaled_to(ramp);
   if (spec.pause) slow = insert_pause(slow, spec.pause->s, pause);
   std::vector<Waypoint> pts = slow.points();
   if (spec.quench) pts.push_back({pts.back().t_ns + quench, 1.0});
   pts.back().t_ns = total;  // exact total, whatever the sums round to
-  return AnnealPath(std::move(pts));
+  return checked_path(std::move(pts), spec.pause && pause > 0 ? "pause.duration" : "quench.duration");
 }
 
 AnnealPath reverse_anneal_path(const ReverseSpec& r) {
@@ -142,12 +157,18 @@ AnnealPath reverse_anneal_path(const ReverseSpec& r) {
   std::vector<Waypoint> pts{{0.0, 1.0}, {r.down, r.turn_s}};
   if (r.dwell > 0.0) pts.push_back({r.down + r.dwell, r.turn_s});
   pts.push_back({r.total(), 1.0});
-  return AnnealPath(std::move(pts));
+  return checked_path(std::move(pts), r.dwell > 0.0 ? "reverse.dwell" : "reverse.up");
 }
 
 AnnealPath path_from_shape(const PathShapeSpec& spec, double total) {
   if (spec.reverse) return reverse_anneal_path(*spec.reverse);
-  return forward_shape(AnnealPath({{0.0, 0.0}, {1.0, 1.0}}), spec.forward, total);
+  try {
+    return forward_shape(AnnealPath({{0.0, 0.0}, {1.0, 1.0}}), spec.forward, total);
+  } catch (const std::invalid_argument& e) {  // stretching to a subnormal ramp time, and the like
+    refuse(spec.forward.pause ? "pause.duration" : "quench.duration",
+           fmt::format("the shape cannot be built in double precision ({})", e.what()),
+           "give durations within a factor of about 1e12 of each other");
+  }
 }
 
 }  // namespace gapwise
