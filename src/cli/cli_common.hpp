@@ -10,6 +10,11 @@
 #include "io/problem_file.hpp"
 #include "io/schedule_file.hpp"
 
+namespace gapwise {
+struct EnsembleResult;
+class TextTable;
+}  // namespace gapwise
+
 namespace gapwise::cli {
 
 /// Exit codes: 0 success, 2 bad input, 1 internal failure, 3 an accuracy check
@@ -40,5 +45,13 @@ void register_durations(CLI::App& app);
 
 /// "20,50,100" or "0.3:0.7:9" (FIRST:LAST:COUNT, ends included); InputError naming `option`.
 std::vector<double> parse_value_list(const std::string& text, const std::string& option);
+
+void register_ensemble(CLI::App& app);
+void register_merge_shards(CLI::App& app);
+
+/// Shared by `ensemble` and `merge-shards`: the per-size table, and the summary
+/// they print (with the table also written as CSV when `csv` is given).
+TextTable ensemble_size_table(const EnsembleResult& result);
+void print_ensemble_summary(const EnsembleResult& result, const std::string& out, const std::string& csv);
 
 }  // namespace gapwise::cli

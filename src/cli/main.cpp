@@ -40,6 +40,8 @@ int main(int argc, char** argv) {
   cli::register_reverse_map(app);
   cli::register_embed_cost(app);
   cli::register_durations(app);
+  cli::register_ensemble(app);
+  cli::register_merge_shards(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

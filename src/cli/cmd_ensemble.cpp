@@ -1,0 +1,177 @@
+// `gapwise ensemble SET SCHEDULE`: minimum gap, p(t_f) and the optimal TTS for
+// every instance of a set, and per size the median and quantiles with bootstrap
+// intervals. Runs on threads, or under mpirun on every rank; resumable from its
+// journal; `--shard i/N` for job arrays, merged by `gapwise merge-shards`.
+#include <iostream>
+#include <memory>
+#include <thread>
+
+#include <fmt/format.h>
+
+#include "cli/cli_common.hpp"
+#include "io/atomic_file.hpp"
+#include "io/ensemble_result_file.hpp"
+#include "io/input_error.hpp"
+#include "io/result_journal.hpp"
+#include "io/text_table.hpp"
+#include "io/toml_reader.hpp"
+#include "studies/ensemble_study.hpp"
+#include "studies/work_distribution.hpp"
+
+namespace gapwise::cli {
+namespace {
+
+struct EnsembleOptions {
+  std::string set, schedule, out, csv, durations = "1,2,5,10,20,50,100,200,500,1000", shard = "0/1", quantiles = "0.25,0.5,0.75";
+  std::string propagator = SimulationOptions{}.propagator;
+  double target = kDefaultTargetProbability, tolerance = 1e-6, confidence = 0.95, gap_s_tolerance = 1e-6;
+  int threads = 0, resamples = 2000, gap_points = 101;
+  unsigned long long bootstrap_seed = 1;
+  bool fresh = false, quiet = false;
+};
+
+std::string interval_text(const QuantileEstimate& q, int digits) {
+  auto f = [&](double x) { return std::isinf(x) ? std::string("inf") : fmt_num(x, digits); };
+  return fmt::format("{} [{}, {}]", f(q.value), f(q.interval.low), f(q.interval.high));
+}
+
+}  // namespace
+
+/// The per-size table every ensemble command prints (and --csv writes).
+TextTable ensemble_size_table(const EnsembleResult& r) {
+  const auto& qs = r.settings.quantile_levels;
+  std::vector<std::string> head = {"qubits", "instances"};
+  const int ci = static_cast<int>(std::lround(100 * r.settings.confidence_level));
+  for (double q : qs) head.push_back(fmt::format("TTS_ns q{} [{}% CI]", fmt_num(q, 3), ci));
+  for (double q : qs) head.push_back(fmt::format("gap_GHz q{}", fmt_num(q, 3)));
+  head.push_back("TTS at range edge");
+  head.push_back("never solved");
+  TextTable t(head);
+  for (const auto& s : r.sizes) {
+    std::vector<std::string> row = {std::to_string(s.qubits), std::to_string(s.tts_ns.count)};
+    for (const auto& q : s.tts_ns.quantiles) row.push_back(interval_text(q, 4));
+    for (const auto& q : s.gap_ghz.quantiles) row.push_back(fmt_num(q.value, 4));
+    row.push_back(std::to_string(s.tts_at_range_edge));
+    row.push_back(std::to_string(s.never_solved));
+    t.add(row);
+  }
+  return t;
+}
+
+void print_ensemble_summary(const EnsembleResult& r, const std::string& out, const std::string& csv) {
+  std::cout << fmt::format("instance set  {} ({} instances, fingerprint {}){}\n", r.set_source, r.set_size, r.set_fingerprint,
+                           r.shard.count > 1 ? fmt::format(", shard {} holds {}", r.shard.text(), r.instances.size()) : "");
+  std::cout << fmt::format("durations     {} from {} to {} ns; TTS target p* = {}; propagator {} (tolerance {:.0e})\n",
+                           r.settings.durations_ns.size(), fmt_num(r.settings.durations_ns.front(), 6),
+                           fmt_num(r.settings.durations_ns.back(), 6), r.settings.target_probability,
+                           r.settings.simulation.propagator, r.settings.simulation.propagation.tolerance);
+  std::cout << fmt::format("work          {}: {} computed, {} from the journal, {:.1f} s\n", r.distribution, r.computed,
+                           r.resumed, r.wall_seconds);
+  int planted = 0, planted_ok = 0;
+  for (const auto& o : r.instances)
+    if (o.planted_check >= 0) { ++planted; planted_ok += o.planted_check; }
+  if (planted)
+    std::cout << fmt::format("planted       brute-force ground energy equals the planted one for {} of {} instances{}\n",
+                             planted_ok, planted, planted_ok == planted ? "" : "  (WARNING)");
+  std::cout << fmt::format("\noptimal time to solution and minimum gap per size (bootstrap {} resamples, seed {})\n",
+                           r.settings.bootstrap_resamples, r.settings.bootstrap_seed);
+  const TextTable t = ensemble_size_table(r);
+  std::cout << t.render();
+  if (!csv.empty()) write_file_atomically(csv, t.csv());
+  if (!out.empty()) std::cout << fmt::format("\nresult written to {}\n", out);
+}
+
+namespace {
+
+void run_ensemble(const EnsembleOptions& o) {
+  ProcessGroup& group = ProcessGroup::instance();
+  try {
+    const InstanceSet set = read_instance_set(o.set);
+    const std::string schedule_text = read_text_file(o.schedule);
+    const Schedule sch = read_schedule_file(o.schedule);
+    check_output_path(o.out, "--out");
+    if (!o.csv.empty()) check_output_path(o.csv, "--csv");
+    EnsembleSettings st;
+    st.durations_ns = parse_value_list(o.durations, "--durations-ns");
+    st.target_probability = o.target;
+    st.simulation.propagator = o.propagator;
+    st.simulation.propagation.tolerance = o.tolerance;
+    st.gap_coarse_points = o.gap_points;
+    st.gap_s_tolerance = o.gap_s_tolerance;
+    st.quantile_levels = parse_value_list(o.quantiles, "--quantiles");
+    st.confidence_level = o.confidence;
+    st.bootstrap_resamples = o.resamples;
+    if (o.bootstrap_seed > (1ULL << 63) - 1)
+      throw InputError({"--bootstrap-seed", 0, 0, "--bootstrap-seed"}, "the seed must fit in 63 bits", "use a smaller seed");
+    st.bootstrap_seed = o.bootstrap_seed;
+    st.validate();
+
+    EnsembleRun run{set, sch, schedule_text, st, ShardSpec{}, "", 1, {}};
+    run.shard = ShardSpec::parse(o.shard);
+    run.threads = o.threads > 0 ? o.threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+    run.journal_path = journal_path_for(o.out);
+    if (o.fresh && group.is_collector()) std::remove(run.journal_path.c_str());
+    if (!o.quiet)
+      run.progress = [](const EnsembleProgress& p) {
+        const double eta = p.done ? p.elapsed_seconds / static_cast<double>(p.done) * static_cast<double>(p.total - p.done) : 0;
+        std::cerr << fmt::format("[{}/{}] {} (n={}): gap {} GHz, best TTS {} ns  ({:.2f} s; {:.0f} s elapsed, ~{:.0f} s left)\n",
+                                 p.done, p.total, p.last->name, p.last->qubits, fmt_num(p.last->gap_ghz, 4),
+                                 std::isinf(p.last->tts_ns) ? std::string("inf") : fmt_num(p.last->tts_ns, 4),
+                                 p.last->wall_seconds, p.elapsed_seconds, eta);
+      };
+    const EnsembleResult r = run_ensemble_study(run);
+    if (!r.complete_here) return;  // other ranks: rank 0 writes and prints
+    write_ensemble_result(o.out, r, command_line(), {o.schedule});
+    print_ensemble_summary(r, o.out, o.csv);
+  } catch (const std::exception& e) {
+    if (group.size() <= 1) throw;
+    // Several ranks: report once per rank and end the whole job, so no rank
+    // waits forever for one that failed.
+    std::cerr << (group.is_collector() ? "gapwise: error: " : fmt::format("gapwise (rank {}): error: ", group.rank()))
+              << e.what() << "\n";
+    group.abort(dynamic_cast<const InputError*>(&e) ? kExitBadInput : kExitInternal);
+  }
+}
+
+}  // namespace
+
+void register_ensemble(CLI::App& app) {
+  auto o = std::make_shared<EnsembleOptions>();
+  CLI::App* sub = app.add_subcommand("ensemble",
+      "Study every instance of SET (an HDF5 set from `gapwise generate`, or a directory of\n"
+      "problem files) along SCHEDULE: the minimum gap, the ground-state probability p(t_f)\n"
+      "at each duration, and the best time to solution TTS = t_f ln(1-p*)/ln(1-p(t_f))\n"
+      "over those durations. Per size: quantiles of the best TTS and of the gap, each with\n"
+      "a seeded percentile-bootstrap confidence interval.\n"
+      "Runs on --threads; under mpirun it spreads the instances over all ranks (rank 0\n"
+      "writes). Finished instances go to OUT.journal at once: rerun the same command after\n"
+      "a crash or kill and it carries on. For job arrays, run --shard i/N per job and\n"
+      "join the results with `gapwise merge-shards`. Results are identical bit for bit\n"
+      "whatever the thread, rank or shard count.\n"
+      "Example: gapwise ensemble glasses.h5 schedules/linear.toml --durations-ns 1,3,10,30,100,300 --out study.h5\n"
+      "         mpirun -np 8 gapwise ensemble glasses.h5 schedules/linear.toml --out study.h5");
+  sub->add_option("set", o->set, "instance set: HDF5 file or directory of problem files")->required();
+  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("--out", o->out, "result file (HDF5); its journal is OUT.journal")->required();
+  sub->add_option("-d,--durations-ns", o->durations, "anneal durations in ns: a list 1,10,100 or an even range FIRST:LAST:COUNT")
+      ->capture_default_str();
+  sub->add_option("--target", o->target, "success probability p* the TTS aims at")->capture_default_str();
+  sub->add_option("--threads", o->threads, "compute threads without MPI (0: one per core)")->capture_default_str();
+  sub->add_option("--shard", o->shard, "compute only instances i with i % N == s: --shard s/N")->capture_default_str();
+  sub->add_flag("--fresh", o->fresh, "ignore and delete the journal of an earlier run of this study");
+  sub->add_option("--quantiles", o->quantiles, "quantile levels reported per size")->capture_default_str();
+  sub->add_option("--confidence", o->confidence, "confidence level of the bootstrap intervals")->capture_default_str();
+  sub->add_option("--resamples", o->resamples, "bootstrap resamples")->capture_default_str();
+  sub->add_option("--bootstrap-seed", o->bootstrap_seed, "seed of the bootstrap resampling (stored in the result)")
+      ->capture_default_str();
+  sub->add_option("--propagator", o->propagator, "which propagator runs the anneals")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  sub->add_option("--tolerance", o->tolerance, "target accuracy of each ground-state probability")->capture_default_str();
+  sub->add_option("--gap-points", o->gap_points, "gap search: uniform scan points before refinement")->capture_default_str();
+  sub->add_option("--gap-s-tolerance", o->gap_s_tolerance, "gap search: precision of s*")->capture_default_str();
+  sub->add_option("--csv", o->csv, "also write the per-size table as CSV");
+  sub->add_flag("-q,--quiet", o->quiet, "no progress lines on stderr");
+  sub->callback([o] { run_ensemble(*o); });
+}
+
+}  // namespace gapwise::cli

@@ -1,0 +1,207 @@
+#include "io/ensemble_result_file.hpp"
+
+#include <cmath>
+#include <limits>
+
+#include <fmt/format.h>
+
+#include "io/hdf5_input.hpp"
+#include "io/hdf5_output.hpp"
+
+namespace gapwise {
+namespace {
+
+constexpr const char* kFormat = "gapwise-ensemble-result";
+const double kInf = std::numeric_limits<double>::infinity();
+
+double finite_or_marker(double x) { return std::isinf(x) ? -1.0 : x; }
+
+template <class F>
+std::vector<double> column(const std::vector<InstanceOutcome>& v, F f) {
+  std::vector<double> c;
+  for (const auto& o : v) c.push_back(static_cast<double>(f(o)));
+  return c;
+}
+template <class F>
+std::vector<long long> int_column(const std::vector<InstanceOutcome>& v, F f) {
+  std::vector<long long> c;
+  for (const auto& o : v) c.push_back(static_cast<long long>(f(o)));
+  return c;
+}
+
+}  // namespace
+
+void write_ensemble_result(const std::string& path, const EnsembleResult& r, const std::string& command_line,
+                           const std::vector<std::string>& input_files) {
+  Hdf5Output out(path, kFormat);
+  write_provenance(out, command_line, input_files);
+  out.attribute("/", "format", std::string(kFormat));
+  out.attribute("/", "format_version", 1LL);
+  const std::string e = "/ensemble";
+  const EnsembleSettings& st = r.settings;
+  out.attribute(e, "instance_set", r.set_source);
+  out.attribute(e, "set_fingerprint", r.set_fingerprint);
+  out.attribute(e, "set_size", static_cast<long long>(r.set_size));
+  out.attribute(e, "numerics_fingerprint", r.numerics_fingerprint);
+  out.attribute(e, "schedule_text", r.schedule_text);
+  out.attribute(e, "target_probability", st.target_probability);
+  out.attribute(e, "propagator", st.simulation.propagator);
+  out.attribute(e, "tolerance", st.simulation.propagation.tolerance);
+  out.attribute(e, "gap_coarse_points", static_cast<long long>(st.gap_coarse_points));
+  out.attribute(e, "gap_s_tolerance", st.gap_s_tolerance);
+  out.attribute(e, "confidence_level", st.confidence_level);
+  out.attribute(e, "bootstrap_resamples", static_cast<long long>(st.bootstrap_resamples));
+  out.attribute(e, "bootstrap_seed", static_cast<long long>(st.bootstrap_seed));
+  out.attribute(e, "shard_index", static_cast<long long>(r.shard.index));
+  out.attribute(e, "shard_count", static_cast<long long>(r.shard.count));
+  out.write(e + "/durations_ns", st.durations_ns, "ns");
+  out.write(e + "/quantile_levels", st.quantile_levels, "1");
+
+  const auto& v = r.instances;
+  const std::string g = e + "/instances";
+  out.group(g);
+  out.write(g + "/set_index", int_column(v, [](auto& o) { return o.set_index; }), "index into the instance set");
+  std::vector<std::string> names;
+  for (const auto& o : v) names.push_back(o.name);
+  out.write_strings(g + "/name", names);
+  out.write(g + "/qubits", int_column(v, [](auto& o) { return o.qubits; }), "1");
+  out.write(g + "/ground_energy", column(v, [](auto& o) { return o.ground_energy; }), "1 (problem units)");
+  out.write(g + "/ground_states", int_column(v, [](auto& o) { return o.ground_states; }), "1");
+  out.write(g + "/planted_check", int_column(v, [](auto& o) { return o.planted_check; }),
+            "-1 not planted, 1 brute force equals planted energy, 0 it does not");
+  out.write(g + "/gap_ghz", column(v, [](auto& o) { return o.gap_ghz; }), "GHz");
+  out.write(g + "/gap_uncertainty_ghz", column(v, [](auto& o) { return o.gap_uncertainty_ghz; }), "GHz");
+  out.write(g + "/gap_s", column(v, [](auto& o) { return o.gap_s; }), "1");
+  out.write(g + "/gap_degeneracy", int_column(v, [](auto& o) { return o.gap_degeneracy; }), "1 (g of E_g - E_0)");
+  out.write(g + "/gap_at_end_point", int_column(v, [](auto& o) { return o.gap_at_end_point; }), "1 = yes");
+  out.write(g + "/max_norm_drift", column(v, [](auto& o) { return o.max_norm_drift; }), "1");
+  out.write(g + "/tts_ns", column(v, [](auto& o) { return finite_or_marker(o.tts_ns); }), "ns (-1: never, see tts_never)");
+  out.write(g + "/tts_never", int_column(v, [](auto& o) { return std::isinf(o.tts_ns); }), "1 = p was 0 at every duration");
+  out.write(g + "/tts_duration_ns", column(v, [](auto& o) { return o.tts_duration_ns; }), "ns");
+  out.write(g + "/tts_at_range_edge", int_column(v, [](auto& o) { return o.tts_at_range_edge; }), "1 = yes");
+  std::vector<double> p;
+  for (const auto& o : v) p.insert(p.end(), o.ground_probability.begin(), o.ground_probability.end());
+  out.write_matrix(g + "/ground_probability", p, v.size(), st.durations_ns.size(), "1");
+
+  const std::string b = e + "/by_size";
+  out.group(b);
+  std::vector<long long> qubits, count, edge, never;
+  for (const auto& s : r.sizes) {
+    qubits.push_back(s.qubits);
+    count.push_back(static_cast<long long>(s.tts_ns.count));
+    edge.push_back(static_cast<long long>(s.tts_at_range_edge));
+    never.push_back(static_cast<long long>(s.never_solved));
+  }
+  out.write(b + "/qubits", qubits, "1");
+  out.write(b + "/count", count, "instances");
+  out.write(b + "/tts_at_range_edge", edge, "instances");
+  out.write(b + "/never_solved", never, "instances");
+  const std::size_t rows = r.sizes.size(), cols = st.quantile_levels.size();
+  auto table = [&](const std::string& name, auto pick, auto value, const char* unit) {
+    std::vector<double> t;
+    for (const auto& s : r.sizes)
+      for (const auto& q : pick(s).quantiles) t.push_back(finite_or_marker(value(q)));
+    out.write_matrix(b + "/" + name, t, rows, cols, unit);
+  };
+  auto tts = [](const SizeSummary& s) -> const SampleSummary& { return s.tts_ns; };
+  auto gap = [](const SizeSummary& s) -> const SampleSummary& { return s.gap_ghz; };
+  auto val = [](const QuantileEstimate& q) { return q.value; };
+  auto low = [](const QuantileEstimate& q) { return q.interval.low; };
+  auto high = [](const QuantileEstimate& q) { return q.interval.high; };
+  table("tts_quantile_ns", tts, val, "ns (-1: infinite)");
+  table("tts_low_ns", tts, low, "ns (-1: infinite)");
+  table("tts_high_ns", tts, high, "ns (-1: infinite)");
+  table("gap_quantile_ghz", gap, val, "GHz");
+  table("gap_low_ghz", gap, low, "GHz");
+  table("gap_high_ghz", gap, high, "GHz");
+
+  out.write("/timing/wall_seconds", column(v, [](auto& o) { return o.wall_seconds; }), "s");
+  out.attribute("/timing", "distribution", r.distribution);
+  out.attribute("/timing", "total_wall_seconds", r.wall_seconds);
+  out.attribute("/timing", "resumed", static_cast<long long>(r.resumed));
+  out.attribute("/timing", "computed", static_cast<long long>(r.computed));
+  out.commit();
+}
+
+EnsembleResult read_ensemble_result(const std::string& path) {
+  const Hdf5Input in(path, kFormat);
+  const std::string e = "/ensemble";
+  if (in.attribute_int("/", "format_version") != 1)
+    in.fail("@format_version", "this ensemble result format version is not known", "write it with this gapwise");
+  EnsembleResult r;
+  EnsembleSettings& st = r.settings;
+  r.set_source = in.attribute_string(e, "instance_set");
+  r.set_fingerprint = in.attribute_string(e, "set_fingerprint");
+  r.set_size = static_cast<std::size_t>(in.attribute_int(e, "set_size"));
+  r.numerics_fingerprint = in.attribute_string(e, "numerics_fingerprint");
+  r.schedule_text = in.attribute_string(e, "schedule_text");
+  st.target_probability = in.attribute_double(e, "target_probability");
+  st.simulation.propagator = in.attribute_string(e, "propagator");
+  st.simulation.propagation.tolerance = in.attribute_double(e, "tolerance");
+  st.gap_coarse_points = static_cast<int>(in.attribute_int(e, "gap_coarse_points"));
+  st.gap_s_tolerance = in.attribute_double(e, "gap_s_tolerance");
+  st.confidence_level = in.attribute_double(e, "confidence_level");
+  st.bootstrap_resamples = static_cast<int>(in.attribute_int(e, "bootstrap_resamples"));
+  st.bootstrap_seed = static_cast<std::uint64_t>(in.attribute_int(e, "bootstrap_seed"));
+  r.shard.index = static_cast<int>(in.attribute_int(e, "shard_index"));
+  r.shard.count = static_cast<int>(in.attribute_int(e, "shard_count"));
+  if (r.shard.count < 1 || r.shard.index < 0 || r.shard.index >= r.shard.count)
+    in.fail(e + "@shard_index", "the shard numbers are inconsistent", "write the file with gapwise");
+  st.durations_ns = in.read_list(e + "/durations_ns");
+  st.quantile_levels = in.read_list(e + "/quantile_levels");
+  const std::size_t k = st.durations_ns.size();
+
+  const std::string g = e + "/instances";
+  const auto idx = in.read_int_list(g + "/set_index");
+  const std::size_t n = idx.size();
+  const auto names = in.read_strings(g + "/name", n);
+  const auto qubits = in.read_int_list(g + "/qubits", n);
+  const auto ge = in.read_list(g + "/ground_energy", n);
+  const auto gs = in.read_int_list(g + "/ground_states", n);
+  const auto pc = in.read_int_list(g + "/planted_check", n);
+  const auto gap = in.read_list(g + "/gap_ghz", n);
+  const auto gu = in.read_list(g + "/gap_uncertainty_ghz", n);
+  const auto gsx = in.read_list(g + "/gap_s", n);
+  const auto gd = in.read_int_list(g + "/gap_degeneracy", n);
+  const auto ge2 = in.read_int_list(g + "/gap_at_end_point", n);
+  const auto drift = in.read_list(g + "/max_norm_drift", n);
+  const auto tts = in.read_list(g + "/tts_ns", n);
+  const auto never = in.read_int_list(g + "/tts_never", n);
+  const auto td = in.read_list(g + "/tts_duration_ns", n);
+  const auto edge = in.read_int_list(g + "/tts_at_range_edge", n);
+  const auto p = in.read(g + "/ground_probability");
+  if (p.size() != n * k) in.fail(g + "/ground_probability", fmt::format("expected {} x {} values", n, k), "write the file with gapwise");
+  const auto wall = in.read_list("/timing/wall_seconds", n);
+  for (std::size_t i = 0; i < n; ++i) {
+    if (idx[i] < 0 || static_cast<std::size_t>(idx[i]) >= r.set_size || (i && idx[i] <= idx[i - 1]))
+      in.fail(fmt::format("{}/set_index[{}]", g, i), "set indices must be ascending and inside the set", "write the file with gapwise");
+    InstanceOutcome o;
+    o.set_index = static_cast<std::size_t>(idx[i]);
+    o.name = names[i];
+    o.qubits = static_cast<int>(qubits[i]);
+    o.ground_energy = ge[i];
+    o.ground_states = gs[i];
+    o.planted_check = static_cast<int>(pc[i]);
+    o.gap_ghz = gap[i];
+    o.gap_uncertainty_ghz = gu[i];
+    o.gap_s = gsx[i];
+    o.gap_degeneracy = static_cast<int>(gd[i]);
+    o.gap_at_end_point = ge2[i] != 0;
+    o.max_norm_drift = drift[i];
+    o.tts_ns = never[i] ? kInf : tts[i];
+    o.tts_duration_ns = td[i];
+    o.tts_at_range_edge = edge[i] != 0;
+    o.ground_probability.assign(p.begin() + static_cast<long>(i * k), p.begin() + static_cast<long>((i + 1) * k));
+    o.wall_seconds = wall[i];
+    r.instances.push_back(std::move(o));
+  }
+  r.sizes = summarize_by_size(r.instances, st);  // recomputed: identical by construction (seeded)
+  r.distribution = in.attribute_string("/timing", "distribution");
+  r.wall_seconds = in.attribute_double("/timing", "total_wall_seconds");
+  r.resumed = static_cast<std::size_t>(in.attribute_int("/timing", "resumed"));
+  r.computed = static_cast<std::size_t>(in.attribute_int("/timing", "computed"));
+  r.complete_here = true;
+  return r;
+}
+
+}  // namespace gapwise
