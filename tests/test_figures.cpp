@@ -91,3 +91,20 @@ TEST_CASE("figure: pause maps and path comparisons give heat-map and population 
   gapwise::testing::check_figure_file(dir.path / "figs" / "pm-pause-map.png");
   gapwise::testing::check_figure_file(dir.path / "figs" / "cmp-populations-linear-toml-0.png");
 }
+
+TEST_CASE("figure: an ensemble result gives the TTS-against-size and gap-against-size figures") {
+  TempDir dir;
+  const auto p = [&](const char* f) { return (dir.path / f).string(); };
+  REQUIRE(run_gapwise("generate --graph ring-chords --couplings gaussian --sizes 3-5 --count 3 --seed 4 -q --out " + p("set.h5"), dir)
+              .exit_code == 0);
+  auto e = run_gapwise("ensemble " + p("set.h5") + " '" + (source_dir() / "schedules/linear.toml").string() +
+                           "' -d 0.3,1,3 --gap-points 21 --resamples 200 -q --threads 1 --out " + p("study.h5"),
+                       dir);
+  INFO(e.err);
+  REQUIRE(e.exit_code == 0);
+  auto f = run_gapwise("figure " + p("study.h5") + " --out-dir '" + p("figs") + "'", dir);
+  INFO(f.err);
+  REQUIRE(f.exit_code == 0);
+  for (const char* name : {"study-ensemble-tts.svg", "study-ensemble-tts.png", "study-ensemble-gap.svg", "study-ensemble-gap.png"})
+    gapwise::testing::check_figure_file(dir.path / "figs" / name);
+}

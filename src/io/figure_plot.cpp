@@ -53,15 +53,53 @@ std::vector<double> transformed(const std::vector<double>& v, bool log) {
   return out;
 }
 
-std::pair<double, double> range_of(const std::vector<PlotSeries>& series, bool y, bool log) {
+// The finite data range of one axis (log10 when log), series, error bars and bands included.
+std::pair<double, double> range_of(const LinePlot& plot, bool y, bool log) {
   double lo = std::numeric_limits<double>::infinity(), hi = -lo;
-  for (const auto& s : series)
-    for (double v : transformed(y ? s.y : s.x, log))
-      if (std::isfinite(v)) { lo = std::min(lo, v); hi = std::max(hi, v); }
+  auto take = [&](const std::vector<double>& v) {
+    for (double t : transformed(v, log))
+      if (std::isfinite(t)) { lo = std::min(lo, t); hi = std::max(hi, t); }
+  };
+  for (const auto& s : plot.series) {
+    take(y ? s.y : s.x);
+    if (y) { take(s.y_low); take(s.y_high); }
+  }
+  for (const auto& b : plot.bands) {
+    if (y) { take(b.low); take(b.high); } else take(b.x);
+  }
   if (!std::isfinite(lo)) throw std::runtime_error("nothing to plot: no finite data");
   if (hi - lo < 1e-12 * std::max(1.0, std::abs(hi))) { lo -= 0.5; hi += 0.5; }
   const double pad = 0.04 * (hi - lo);
   return {lo - pad, hi + pad};
+}
+
+// A log axis spanning few decades gets labels and grid lines at 2 and 5 times
+// each power of ten too (PLplot labels the powers only).
+constexpr double kFewDecades = 2.5;
+
+std::string plain_number(double v) { return fmt::format("{:g}", v); }
+
+void label_log_axis_125(plstream& p, bool y_axis, double lo, double hi) {
+  for (int k = static_cast<int>(std::floor(lo)) - 1; k <= static_cast<int>(std::ceil(hi)); ++k)
+    for (double m : {2.0, 5.0}) {
+      const double v = k + std::log10(m);
+      if (v < lo || v > hi) continue;
+      const double pos = (v - lo) / (hi - lo);
+      const std::string text = plain_number(m * std::pow(10.0, k));
+      if (y_axis) p.mtex("lv", 0.5, pos, 1.0, text.c_str());
+      else p.mtex("b", 1.5, pos, 0.5, text.c_str());
+    }
+}
+
+void grid_log_axis_125(plstream& p, bool y_axis, double lo, double hi, double other_lo, double other_hi) {
+  for (int k = static_cast<int>(std::floor(lo)) - 1; k <= static_cast<int>(std::ceil(hi)); ++k)
+    for (double m : {2.0, 5.0}) {
+      const double v = k + std::log10(m);
+      if (v < lo || v > hi) continue;
+      const PLFLT a[2] = {v, v}, b[2] = {other_lo, other_hi};
+      if (y_axis) p.line(2, b, a);
+      else p.line(2, a, b);
+    }
 }
 
 // Splits a series at non-finite points so gaps stay gaps.
@@ -86,16 +124,16 @@ void render_figure(const LinePlot& requested, const std::string& path) {
   for (bool y : {false, true}) {
     bool& log = y ? plot.log_y : plot.log_x;
     if (log && !(y ? plot.y_range : plot.x_range)) {
-      auto [lo, hi] = range_of(plot.series, y, true);
+      auto [lo, hi] = range_of(plot, y, true);
       if (hi - lo < 1.5) log = false;
     }
   }
   auto [x0, x1] = plot.x_range ? std::pair{plot.log_x ? std::log10(plot.x_range->first) : plot.x_range->first,
                                            plot.log_x ? std::log10(plot.x_range->second) : plot.x_range->second}
-                               : range_of(plot.series, false, plot.log_x);
+                               : range_of(plot, false, plot.log_x);
   auto [y0, y1] = plot.y_range ? std::pair{plot.log_y ? std::log10(plot.y_range->first) : plot.y_range->first,
                                            plot.log_y ? std::log10(plot.y_range->second) : plot.y_range->second}
-                               : range_of(plot.series, true, plot.log_y);
+                               : range_of(plot, true, plot.log_y);
   {
     Stream s(path);
     plstream& p = s.pls;
@@ -103,12 +141,56 @@ void render_figure(const LinePlot& requested, const std::string& path) {
     p.vpor(0.1, 0.95, 0.12, 0.86);
     p.wind(x0, x1, y0, y1);
     p.width(1.0);
-    p.col0(kGridColour);  // light grid first, axes over it
-    p.box(plot.log_x ? "gl" : "g", 0, 0, plot.log_y ? "gl" : "g", 0, 0);
+    const bool few_x = plot.log_x && x1 - x0 <= kFewDecades, few_y = plot.log_y && y1 - y0 <= kFewDecades;
+    const double xtick = plot.log_x ? 0 : plot.x_tick;
+    p.col0(kGridColour);  // light grid first, then bands, axes over them
+    p.box(plot.log_x ? "gl" : "g", xtick, 0, plot.log_y ? "gl" : "g", 0, 0);
+    if (few_x) grid_log_axis_125(p, false, x0, x1, y0, y1);
+    if (few_y) grid_log_axis_125(p, true, y0, y1, x0, x1);
+
+    std::vector<PLINT> opt, lcol, lsty, scol, snum, bcol, bpat;
+    std::vector<PLFLT> lwid, sscale, bsc, blw;
+    std::vector<const char*> texts, syms;
+    int next = 0;
+    constexpr int kFirstBandColour = 13, kBandColours = 3;
+    for (std::size_t b = 0; b < plot.bands.size() && b < kBandColours; ++b) {
+      const auto& band = plot.bands[b];
+      const int pal = (band.color >= 0 ? band.color : next++) % kPaletteSize;
+      const int col = kFirstBandColour + static_cast<int>(b);
+      p.scol0a(col, kPalette[pal][0], kPalette[pal][1], kPalette[pal][2], 0.22);
+      const auto xs = transformed(band.x, plot.log_x), lo = transformed(band.low, plot.log_y),
+                 hi = transformed(band.high, plot.log_y);
+      std::vector<double> rx, rlo, rhi;
+      auto flush = [&] {
+        if (rx.size() >= 2) {
+          std::vector<PLFLT> px(rx), py(rlo);
+          for (std::size_t k = rx.size(); k-- > 0;) { px.push_back(rx[k]); py.push_back(rhi[k]); }
+          p.col0(col);
+          p.fill(static_cast<PLINT>(px.size()), px.data(), py.data());
+        }
+        rx.clear(); rlo.clear(); rhi.clear();
+      };
+      for (std::size_t k = 0; k < std::min({xs.size(), lo.size(), hi.size()}); ++k) {
+        if (std::isfinite(xs[k]) && std::isfinite(lo[k]) && std::isfinite(hi[k])) {
+          rx.push_back(xs[k]); rlo.push_back(lo[k]); rhi.push_back(hi[k]);
+        } else flush();
+      }
+      flush();
+      if (!band.label.empty()) {
+        opt.push_back(PL_LEGEND_COLOR_BOX);
+        lcol.push_back(col); lsty.push_back(1); lwid.push_back(1.0);
+        scol.push_back(col); sscale.push_back(1.0); snum.push_back(0);
+        bcol.push_back(col); bpat.push_back(0); bsc.push_back(1.0); blw.push_back(1.0);
+        texts.push_back(band.label.c_str()); syms.push_back("");
+      }
+    }
+
     p.col0(1);
-    const std::string xopt = plot.log_x ? "bcnstl" : "bcnst";
-    const std::string yopt = plot.log_y ? "bcnstvl" : "bcnstv";
-    p.box(xopt.c_str(), 0, 0, yopt.c_str(), 0, 0);
+    const std::string xopt = std::string(plot.log_x ? "bcstl" : "bcst") + (few_x ? "f" : "") + "n";
+    const std::string yopt = std::string(plot.log_y ? "bcstvl" : "bcstv") + (few_y ? "f" : "") + "n";
+    p.box(xopt.c_str(), xtick, 0, yopt.c_str(), 0, 0);
+    if (few_x) label_log_axis_125(p, false, x0, x1);
+    if (few_y) label_log_axis_125(p, true, y0, y1);
     p.lab(plot.x_label.c_str(), plot.y_label.c_str(), "");
     p.mtex("t", plot.note.empty() ? 1.2 : 2.4, 0.5, 0.5, plot.title.c_str());
     if (!plot.note.empty()) {
@@ -117,10 +199,6 @@ void render_figure(const LinePlot& requested, const std::string& path) {
       p.schr(0, 0.95);
     }
 
-    std::vector<PLINT> opt, lcol, lsty, scol, snum;
-    std::vector<PLFLT> lwid, sscale;
-    std::vector<const char*> texts, syms;
-    int next = 0;
     for (const auto& ser : plot.series) {
       bool any = false;  // a series with no finite point is left out, legend included
       for (std::size_t k = 0; k < std::min(ser.x.size(), ser.y.size()); ++k)
@@ -137,10 +215,22 @@ void render_figure(const LinePlot& requested, const std::string& path) {
         if (points) p.string(static_cast<PLINT>(rx.size()), rx.data(), ry.data(), "#(840)");
       });
       p.lsty(1);
+      if (!ser.y_low.empty() && ser.y_low.size() == ser.y.size() && ser.y_high.size() == ser.y.size()) {
+        const auto lo = transformed(ser.y_low, plot.log_y), hi = transformed(ser.y_high, plot.log_y);
+        std::vector<PLFLT> bx, blo, bhi;
+        for (std::size_t k = 0; k < std::min(xs.size(), lo.size()); ++k)
+          if (std::isfinite(xs[k]) && std::isfinite(lo[k]) && std::isfinite(hi[k])) {
+            bx.push_back(xs[k]); blo.push_back(lo[k]); bhi.push_back(hi[k]);
+          }
+        p.width(1.5);
+        if (!bx.empty()) p.erry(static_cast<PLINT>(bx.size()), bx.data(), blo.data(), bhi.data());
+        p.width(2.0);
+      }
       if (!ser.label.empty()) {
         opt.push_back((line ? PL_LEGEND_LINE : 0) | (points ? PL_LEGEND_SYMBOL : 0));
         lcol.push_back(col); lsty.push_back(ser.style == SeriesStyle::Dashed ? 2 : 1); lwid.push_back(2.0);
         scol.push_back(col); sscale.push_back(1.0); snum.push_back(points ? 1 : 0);
+        bcol.push_back(0); bpat.push_back(0); bsc.push_back(0); blw.push_back(0);
         texts.push_back(ser.label.c_str()); syms.push_back("#(840)");
       }
     }
@@ -158,13 +248,14 @@ void render_figure(const LinePlot& requested, const std::string& path) {
       p.col0(1);
       p.string(1, &mx, &my, "#(841)");
       p.schr(0, 0.8);
-      p.ptex(mx + 0.01 * (x1 - x0), my + 0.03 * (y1 - y0), 1, 0, 0, m.text.c_str());
+      const bool right_half = mx > x0 + 0.6 * (x1 - x0);  // text to the left there, so it stays inside the frame
+      p.ptex(mx + (right_half ? -0.01 : 0.01) * (x1 - x0), my + 0.03 * (y1 - y0), 1, 0, right_half ? 1.0 : 0.0,
+             m.text.c_str());
       p.schr(0, 0.95);
     }
     if (!texts.empty()) {
       PLFLT lw, lh;
-      std::vector<PLINT> tcol(texts.size(), 1), bcol(texts.size(), 0), bpat(texts.size(), 0);
-      std::vector<PLFLT> bsc(texts.size(), 0), blw(texts.size(), 0);
+      std::vector<PLINT> tcol(texts.size(), 1);
       PLINT where = PL_POSITION_INSIDE;
       switch (plot.legend) {
         case LinePlot::Legend::TopRight: where |= PL_POSITION_TOP | PL_POSITION_RIGHT; break;

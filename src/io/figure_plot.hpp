@@ -8,6 +8,10 @@
 //   fig.x_label = "anneal duration t_f (ns)"; fig.log_x = true;
 //   fig.series.push_back({"simulated", t, p, SeriesStyle::LinePoints});
 //   render_figure(fig, "p_vs_duration.svg");   // or .png
+//
+//   // quantiles against size: a shaded band and a median with error bars
+//   fig.bands.push_back({"q0.25 to q0.75", n, q25, q75});
+//   fig.series.push_back({"median", n, q50, SeriesStyle::LinePoints, 0, ci_low, ci_high});
 #include <optional>
 #include <string>
 #include <utility>
@@ -22,6 +26,14 @@ struct PlotSeries {
   std::vector<double> x, y;
   SeriesStyle style = SeriesStyle::Line;
   int color = -1;  ///< palette index; -1: next in order
+  std::vector<double> y_low, y_high;  ///< optional vertical error bars, one per point (NaN: none)
+};
+
+/// A shaded region between two curves (e.g. an interquantile range).
+struct PlotBand {
+  std::string label;  ///< empty: not in the legend
+  std::vector<double> x, low, high;
+  int color = -1;  ///< palette index of the (light, translucent) fill; -1: next in order
 };
 
 struct PlotMarker {
@@ -33,9 +45,11 @@ struct LinePlot {
   std::string title, x_label, y_label;
   bool log_x = false, log_y = false;
   std::vector<PlotSeries> series;
+  std::vector<PlotBand> bands;      ///< drawn first, under the series
   std::vector<PlotMarker> markers;  ///< a cross and a text label at (x, y)
   std::vector<double> vertical_lines;
-  std::optional<std::pair<double, double>> x_range, y_range;
+  std::optional<std::pair<double, double>> x_range, y_range;  ///< a given log range keeps the axis logarithmic
+  double x_tick = 0;  ///< major tick spacing of a linear x axis; 0: automatic
   std::string note;  ///< a line of small text under the title
   enum class Legend { TopRight, BottomRight, TopLeft, BottomLeft } legend = Legend::TopRight;
 };

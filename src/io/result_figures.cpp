@@ -1,12 +1,15 @@
 #include "io/result_figures.hpp"
 
+#include <algorithm>
 #include <cctype>
+#include <cmath>
 #include <filesystem>
 #include <functional>
 #include <limits>
 
 #include <fmt/format.h>
 
+#include "io/ensemble_result_file.hpp"
 #include "io/figure_plot.hpp"
 #include "io/hdf5_input.hpp"
 #include "io/input_error.hpp"
@@ -175,6 +178,90 @@ void level_populations(const Hdf5Input& in, const Emit& emit) {
   }
 }
 
+// Ensemble studies: the optimal TTS and the minimum gap against size, as the
+// median with its bootstrap interval (error bars) over the band between the
+// lowest and highest quantile levels of the study.
+void ensemble_scaling(const Hdf5Input& in, const Emit& emit) {
+  if (!in.has("/ensemble/by_size/qubits")) return;
+  const EnsembleResult r = read_ensemble_result(in.path());
+  const auto& levels = r.settings.quantile_levels;
+  if (r.sizes.empty() || levels.empty()) return;
+  std::size_t mid = 0, lo_q = 0, hi_q = 0;  // the level nearest 0.5, the lowest and the highest
+  for (std::size_t k = 0; k < levels.size(); ++k) {
+    if (std::abs(levels[k] - 0.5) < std::abs(levels[mid] - 0.5)) mid = k;
+    if (levels[k] < levels[lo_q]) lo_q = k;
+    if (levels[k] > levels[hi_q]) hi_q = k;
+  }
+  std::size_t instances = 0, edge = 0, never = 0;
+  for (const auto& s : r.sizes) {
+    instances += s.tts_ns.count;
+    edge += s.tts_at_range_edge;
+    never += s.never_solved;
+  }
+  auto finite = [](double v) { return std::isfinite(v) && v > 0 ? v : std::numeric_limits<double>::quiet_NaN(); };
+  auto draw = [&](const std::string& kind, auto pick, const std::string& title, const std::string& y_label,
+                  const std::string& what, const std::string& note) {
+    std::vector<double> n, q_lo, q_mid, q_hi, ci_lo, ci_hi;
+    for (const auto& s : r.sizes) {
+      const SampleSummary& sample = pick(s);
+      n.push_back(s.qubits);
+      q_lo.push_back(finite(sample.quantiles[lo_q].value));
+      q_hi.push_back(finite(sample.quantiles[hi_q].value));
+      q_mid.push_back(finite(sample.quantiles[mid].value));
+      ci_lo.push_back(finite(sample.quantiles[mid].interval.low));
+      ci_hi.push_back(finite(sample.quantiles[mid].interval.high));
+    }
+    LinePlot fig;
+    fig.title = title;
+    fig.note = note;
+    fig.x_label = "problem size n (qubits)";
+    fig.y_label = y_label;
+    fig.log_y = true;
+    double step = 0;  // label every size when there are not too many
+    for (std::size_t k = 1; k < n.size(); ++k) step = step > 0 ? std::min(step, n[k] - n[k - 1]) : n[k] - n[k - 1];
+    fig.x_tick = n.size() == 1 ? 1 : (n.back() - n.front()) / step <= 12 ? step : 0;
+    fig.x_range = std::pair{n.front() - 1.0, n.back() + 1.0};
+    // An explicit range keeps the axis logarithmic however few decades the data span:
+    // the nearest 1-2-5 values outside the data.
+    double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+    for (const auto* v : {&q_lo, &q_hi, &q_mid, &ci_lo, &ci_hi})
+      for (double x : *v) if (std::isfinite(x)) { lo = std::min(lo, x); hi = std::max(hi, x); }
+    if (!std::isfinite(lo)) return;
+    auto step_125 = [](double v, bool up) {
+      const double e = std::pow(10.0, std::floor(std::log10(v)));
+      const double steps[] = {1, 2, 5, 10};
+      if (up) { for (double m : steps) if (m * e >= v * (1 - 1e-12)) return m * e; return 10 * e; }
+      for (int k = 3; k >= 0; --k) if (steps[k] * e <= v * (1 + 1e-12)) return steps[k] * e;
+      return e;
+    };
+    fig.y_range = std::pair{step_125(lo / 1.05, false), step_125(hi * 1.05, true)};
+    // The legend goes where the curve is not: top left when it rises with n, bottom left when it falls.
+    const bool rising = !(std::isfinite(q_mid.front()) && std::isfinite(q_mid.back())) || q_mid.back() >= q_mid.front();
+    fig.legend = rising ? LinePlot::Legend::TopLeft : LinePlot::Legend::BottomLeft;
+    const std::string range_label = fmt::format("quantiles q{:g} to q{:g} over instances", levels[lo_q], levels[hi_q]);
+    if (n.size() > 1) {
+      fig.bands.push_back({range_label, n, q_lo, q_hi, 0});
+    } else {  // one size: no band to shade, the two quantiles as points
+      fig.series.push_back({range_label, n, q_lo, SeriesStyle::Points, 1});
+      fig.series.push_back({"", n, q_hi, SeriesStyle::Points, 1});
+    }
+    PlotSeries median{fmt::format("{} q{:g}; bars: {:g} % bootstrap CI", what, levels[mid], 100 * r.settings.confidence_level),
+                      n, q_mid, SeriesStyle::LinePoints, 0};
+    median.y_low = ci_lo;
+    median.y_high = ci_hi;
+    fig.series.push_back(std::move(median));
+    emit(kind, [&](const std::string& path) { render_figure(fig, path); });
+  };
+  const std::string counts = fmt::format("{} instances in {} size{}", instances, r.sizes.size(), r.sizes.size() == 1 ? "" : "s");
+  draw("ensemble-tts", [](const SizeSummary& s) -> const SampleSummary& { return s.tts_ns; },
+       fmt::format("Optimal time to solution against problem size (p* = {:g})", r.settings.target_probability),
+       "optimal TTS (ns)", "median",
+       fmt::format("{}; t_f = {:g} to {:g} ns; optimum at a range end: {} of {}; never solved: {}", counts,
+                   r.settings.durations_ns.front(), r.settings.durations_ns.back(), edge, instances, never));
+  draw("ensemble-gap", [](const SizeSummary& s) -> const SampleSummary& { return s.gap_ghz; },
+       "Minimum spectral gap against problem size", "minimum gap (GHz)", "median", counts);
+}
+
 }  // namespace
 
 std::vector<std::string> draw_result_figures(const std::string& result_file, const std::string& out_dir,
@@ -205,6 +292,7 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
   probability_map(in, emit, "/reverse_map", "turn_s", "dwell_ns", "reverse-map",
                   "Reverse anneal: ground-state probability", "turn point s_turn", "dwell (ns)");
   level_populations(in, emit);
+  ensemble_scaling(in, emit);
   if (written.empty())
     throw InputError({result_file, 0, 0, ""}, "this file holds no result that gapwise can draw",
                      "give a file written with --out by anneal or another study subcommand");
