@@ -6,6 +6,8 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <string>
+#include <vector>
 
 #include "test_support.hpp"
 
@@ -34,20 +36,95 @@ inline void check_figure_file(const std::filesystem::path& path) {
   }
 }
 
-}  // namespace gapwise::testing
-
-TEST_CASE("figure: an anneal result gives a valid SVG and PNG trace figure") {
-  TempDir dir;
-  const std::string h5 = (dir.path / "run.h5").string();
-  auto a = run_gapwise("anneal '" + (source_dir() / "data-samples/triangle.toml").string() + "' '" +
-                           (source_dir() / "schedules/pause.toml").string() + "' --duration-ns 5 --no-check --out '" + h5 + "'",
-                       dir);
-  REQUIRE(a.exit_code == 0);
-  auto f = run_gapwise("figure '" + h5 + "' --out-dir '" + (dir.path / "figs").string() + "'", dir);
+/// Runs `gapwise figure` on `h5` and checks <stem>-<kind>.svg and .png for every kind.
+inline void check_figures(const TempDir& dir, const std::string& h5, const std::vector<std::string>& kinds) {
+  const auto figs = dir.path / "figs";
+  auto f = run_gapwise("figure '" + h5 + "' --out-dir '" + figs.string() + "' --format svg,png", dir);
   INFO(f.err);
   REQUIRE(f.exit_code == 0);
-  gapwise::testing::check_figure_file(dir.path / "figs" / "run-anneal-trace.svg");
-  gapwise::testing::check_figure_file(dir.path / "figs" / "run-anneal-trace.png");
+  const std::string stem = std::filesystem::path(h5).stem().string();
+  for (const auto& kind : kinds)
+    for (const char* ext : {".svg", ".png"}) {
+      const auto path = figs / (stem + "-" + kind + ext);
+      CHECK(f.out.find(path.string()) != std::string::npos);  // named on stdout
+      check_figure_file(path);
+    }
+}
+
+/// Runs a study subcommand that writes `name`.h5 in `dir` and returns that path.
+inline std::string run_study(const TempDir& dir, const std::string& args, const std::string& name) {
+  const std::string h5 = (dir.path / (name + ".h5")).string();
+  auto r = run_gapwise(args + " --out '" + h5 + "'", dir);
+  INFO(args);
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  return h5;
+}
+
+}  // namespace gapwise::testing
+
+namespace {
+std::string src(const std::string& rel) { return "'" + (source_dir() / rel).string() + "'"; }
+}  // namespace
+
+using gapwise::testing::check_figures;
+using gapwise::testing::run_study;
+
+// One test per result kind that `figure` accepts: each gives every figure of its
+// kind as a valid SVG and PNG.
+TEST_CASE("figure: anneal results give the trace figure") {
+  TempDir dir;
+  const auto h5 = run_study(dir, "anneal " + src("data-samples/triangle.toml") + " " + src("schedules/pause.toml") +
+                                     " --duration-ns 5 --no-check", "run");
+  check_figures(dir, h5, {"anneal-trace"});
+}
+
+TEST_CASE("figure: gap results give the spectrum and gap figures") {
+  TempDir dir;
+  const auto h5 = run_study(dir, "gap " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
+                                     " --points 31", "gap");
+  check_figures(dir, h5, {"spectrum", "gap"});
+}
+
+TEST_CASE("figure: durations results give the probability and time-to-solution figures") {
+  TempDir dir;
+  const auto h5 = run_study(dir, "durations " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
+                                     " --range 1:30:4 --no-search --quiet", "dur");
+  check_figures(dir, h5, {"probability", "tts"});
+}
+
+TEST_CASE("figure: pause-map and reverse-map results give heat maps") {
+  TempDir dir;
+  const auto pm = run_study(dir, "pause-map " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
+                                     " --duration-ns 2 --at 0.3,0.6 --pause-ns 0,0.5,1.5", "pm");
+  check_figures(dir, pm, {"pause-map"});
+  const auto rm = run_study(dir, "reverse-map " + src("data-samples/meeting-slots-qubo.toml") + " " +
+                                     src("schedules/reverse-dwell.toml") + " --turn 0.4,0.7 --dwell-ns 0,5", "rm");
+  check_figures(dir, rm, {"reverse-map"});
+}
+
+TEST_CASE("figure: compare-paths results give one population figure per path and duration") {
+  TempDir dir;
+  const auto h5 = run_study(dir, "compare-paths " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
+                                     " --pause 0.5:0.2 --duration-ns 2,4", "cmp");
+  check_figures(dir, h5, {"populations-linear-toml-0", "populations-linear-toml-1", "populations-pause-s-0-5-for-20--0",
+                          "populations-pause-s-0-5-for-20--1"});
+}
+
+TEST_CASE("figure: embed-cost results give p, duration needed and minimum gap against chain strength") {
+  TempDir dir;
+  const auto h5 = run_study(dir, "embed-cost " + src("data-samples/garden-beds-qubo.toml") + " " +
+                                     src("data-samples/garden-beds-square-embedding.toml") + " " +
+                                     src("schedules/linear.toml") + " --absolute --strengths 0.05,0.3 --range 1:100:5 -q",
+                            "emb");
+  check_figures(dir, h5, {"chain-probability", "chain-duration", "chain-gap"});
+}
+
+TEST_CASE("figure: diagnose results give the gap with its crossings and the ground-manifold weights") {
+  TempDir dir;
+  const auto h5 = run_study(dir, "diagnose " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
+                                     " -d 5 --samples 0 -q", "why");
+  check_figures(dir, h5, {"diagnosis-gap", "diagnosis-ground-weight"});
 }
 
 TEST_CASE("figure: a file that is not a result is refused with exit code 2") {
@@ -56,40 +133,6 @@ TEST_CASE("figure: a file that is not a result is refused with exit code 2") {
   auto f = run_gapwise("figure '" + junk.string() + "' --out-dir '" + (dir.path / "figs").string() + "'", dir);
   CHECK(f.exit_code == 2);
   CHECK(f.err.find("junk.h5") != std::string::npos);
-}
-
-TEST_CASE("figure: a gap result gives the spectrum and gap figures") {
-  TempDir dir;
-  const std::string h5 = (dir.path / "gap.h5").string();
-  auto g = run_gapwise("gap '" + (source_dir() / "data-samples/triangle.toml").string() + "' '" +
-                           (source_dir() / "schedules/linear.toml").string() + "' --points 31 --out '" + h5 + "'",
-                       dir);
-  INFO(g.err);
-  REQUIRE(g.exit_code == 0);
-  auto f = run_gapwise("figure '" + h5 + "' --out-dir '" + (dir.path / "figs").string() + "'", dir);
-  INFO(f.err);
-  REQUIRE(f.exit_code == 0);
-  for (const char* name : {"gap-spectrum.svg", "gap-spectrum.png", "gap-gap.svg", "gap-gap.png"})
-    gapwise::testing::check_figure_file(dir.path / "figs" / name);
-}
-
-TEST_CASE("figure: pause maps and path comparisons give heat-map and population figures") {
-  TempDir dir;
-  const std::string tri = "'" + (source_dir() / "data-samples/triangle.toml").string() + "'";
-  const std::string lin = "'" + (source_dir() / "schedules/linear.toml").string() + "'";
-  const std::string pm = (dir.path / "pm.h5").string(), cmp = (dir.path / "cmp.h5").string();
-  auto a = run_gapwise("pause-map " + tri + " " + lin + " --duration-ns 2 --at 0.3,0.6 --pause-ns 0,0.5,1.5 --out '" + pm + "'", dir);
-  INFO(a.err);
-  REQUIRE(a.exit_code == 0);
-  auto b = run_gapwise("compare-paths " + tri + " " + lin + " --pause 0.5:0.2 --duration-ns 2 --out '" + cmp + "'", dir);
-  INFO(b.err);
-  REQUIRE(b.exit_code == 0);
-  auto f = run_gapwise("figure '" + pm + "' '" + cmp + "' --out-dir '" + (dir.path / "figs").string() + "'", dir);
-  INFO(f.err);
-  REQUIRE(f.exit_code == 0);
-  gapwise::testing::check_figure_file(dir.path / "figs" / "pm-pause-map.svg");
-  gapwise::testing::check_figure_file(dir.path / "figs" / "pm-pause-map.png");
-  gapwise::testing::check_figure_file(dir.path / "figs" / "cmp-populations-linear-toml-0.png");
 }
 
 TEST_CASE("figure: an ensemble result gives the TTS-against-size and gap-against-size figures") {

@@ -2,6 +2,8 @@
 // writes a schedule the other commands run, pause-map resumes.
 #include <doctest/doctest.h>
 
+#include <cstdlib>
+
 #include "test_support.hpp"
 
 using namespace gapwise::testing;
@@ -65,4 +67,33 @@ TEST_CASE("gap-path writes a schedule that anneal and compare-paths run; pause-m
   REQUIRE(r.exit_code == 0);
   CHECK(has(r.out, "0 simulated, 3 read back"));
   CHECK(r.out.substr(r.out.find("ground-state probability")) == first);  // same numbers
+}
+
+TEST_CASE("pause-map --json: the grid, the references and the best cell; a pause in an eigenstate changes nothing") {
+  // At s = 0 the start state (all spins along x) is the ground state of H(0), so
+  // a pause there only multiplies it by a global phase (textbook quantum
+  // mechanics: an eigenstate of a constant H is stationary). With --cost added
+  // the ramp is the same as without a pause, so p must equal the pause-0 column.
+  const TempDir dir;
+  const std::string map = (dir.path / "map.h5").string();
+  auto r = run_gapwise("pause-map " + src("data-samples/weak-field-ring.toml") + " " + src("schedules/linear.toml") +
+                           " --duration-ns 3 --at 0,0.55 --pause-ns 0,0.7,2 --cost added --json --out '" + map + "'",
+                       dir);
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  const auto json = dir.write("map.json", r.out);
+  const std::string check =
+      "import json, sys\n"
+      "j = json.load(open(sys.argv[1]))\n"
+      "p, ref = j['ground_probability'], j['reference_ground_probability']\n"
+      "assert len(p) == 2 and all(len(row) == 3 for row in p), 'grid shape'\n"
+      "assert all(abs(x - p[0][0]) < 1e-6 for x in p[0]), ('pause at s = 0 changed p', p[0])\n"
+      "assert all(abs(row[0] - ref[0]) < 1e-12 for row in p), 'a pause of 0 ns is no pause'\n"
+      "gains = [(p[i][k] - ref[k], i, k) for i in range(2) for k in range(3)]\n"
+      "g, i, k = max(gains)\n"
+      "b = j['best']\n"
+      "assert abs(b['gain'] - g) < 1e-15 and b['pause_s'] == j['pause_s'][i] and b['pause_ns'] == j['pause_ns'][k], b\n"
+      "assert j['cost'] == 'added-time' and j['simulated'] == 7, j['simulated']\n";
+  const auto script = dir.write("check.py", check);
+  CHECK(std::system(("/usr/bin/python3 '" + script.string() + "' '" + json.string() + "'").c_str()) == 0);
 }

@@ -67,6 +67,16 @@ std::string needed_text(const NeededDuration& n) {
   return s;
 }
 
+// How a needed duration bounds the answer, as stored in the HDF5 result.
+long long needed_bound_code(const NeededDuration& n) {
+  switch (n.kind) {
+    case NeededDuration::Kind::Bracketed: return 0;
+    case NeededDuration::Kind::AtMost: return -1;
+    case NeededDuration::Kind::MoreThan: return 1;
+  }
+  return 0;
+}
+
 void check_options(const EmbedCostOptions& o) {
   if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
     throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
@@ -246,6 +256,16 @@ void run_embed_cost(const EmbedCostOptions& o) {
     h5.write("/embedding/scan/p_physical", pp, "1");
     h5.write("/embedding/scan/chain_break_fraction", broken, "1");
     h5.write("/embedding/scan/needed_duration", needed, "ns");
+    std::vector<long long> bound, intact;
+    for (const auto& p : r.points) {
+      bound.push_back(needed_bound_code(p.m.needed));
+      intact.push_back(p.ground_intact ? 1 : 0);
+    }
+    h5.write("/embedding/scan/needed_bound", bound,
+             "0: bracketed, -1: at most needed_duration (reached at the shortest), 1: more than needed_duration");
+    h5.write("/embedding/scan/ground_intact", intact, "1: every physical ground state has intact chains");
+    h5.attribute("/embedding", "best_index", static_cast<long long>(r.best));
+    h5.attribute("/embedding/logical", "needed_bound", needed_bound_code(r.logical_m.needed));
     h5.commit();
   }
 }

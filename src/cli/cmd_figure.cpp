@@ -17,10 +17,16 @@ struct FigureOptions {
 void register_figure(CLI::App& app) {
   auto o = std::make_shared<FigureOptions>();
   CLI::App* sub = app.add_subcommand("figure",
-      "Draw the figures for one or more HDF5 result files (from --out of any study\n"
-      "subcommand): anneal traces, spectra with the minimum gap marked, probability and\n"
-      "time-to-solution against duration, level populations, pause maps, ensemble scaling.\n"
-      "Files are named <result-stem>-<kind>.<svg|png> in the output folder.\n"
+      "Draw the figures for one or more HDF5 result files (from --out of a study subcommand).\n"
+      "Files are named <result-stem>-<kind>.<svg|png> in the output folder; the kinds are\n"
+      "  anneal         anneal-trace (p and s along t)\n"
+      "  gap            spectrum (lowest levels, s* marked), gap (log scale, minimum marked)\n"
+      "  durations      probability (p(t_f) with Landau-Zener and adiabatic predictions), tts\n"
+      "  pause-map      pause-map, reverse-map: heat maps of p, the best cell marked\n"
+      "  reverse-map\n"
+      "  compare-paths  populations-<path>-<k>: lowest-level populations along t\n"
+      "  embed-cost     chain-probability, chain-duration, chain-gap against chain coupling\n"
+      "  diagnose       diagnosis-gap (crossings marked), diagnosis-ground-weight\n"
       "Example: gapwise figure run.h5 --out-dir figs --format png");
   sub->add_option("results", o->files, "HDF5 result files")->required()->check(CLI::ExistingFile);
   sub->add_option("--out-dir", o->out_dir, "folder for the figures (created if missing)")->capture_default_str();

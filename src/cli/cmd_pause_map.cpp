@@ -1,5 +1,7 @@
 // `gapwise pause-map PROBLEM SCHEDULE --duration-ns T --at S-LIST --pause-ns D-LIST --out map.h5`:
 // p over pause location x pause duration, at equal cost; threaded, resumable.
+#include <algorithm>
+#include <cmath>
 #include <iostream>
 #include <memory>
 #include <unistd.h>
@@ -12,6 +14,7 @@
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
+#include "io/json_summary.hpp"
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
 #include "studies/shape_maps.hpp"
@@ -23,7 +26,49 @@ struct PauseMapCli {
   std::string problem, schedule, out, at = "0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = SimulationOptions{}.propagator;
   double duration_ns = 0, tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0;
+  bool json = false;
 };
+
+// Infinite TTS (p = 0) has no JSON number: the key is left out.
+void put_finite(toml::table& t, std::string_view key, double v) {
+  if (std::isfinite(v)) put(t, key, v);
+}
+
+void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const PauseMap& m, std::size_t bi,
+                          std::size_t bj, double reference_tts) {
+  toml::table j;
+  put(j, "problem_file", o.problem);
+  put(j, "schedule_file", o.schedule);
+  put(j, "duration_ns", o.duration_ns);
+  put(j, "cost", std::string(mo.cost == PauseCost::EqualTotal ? "equal-total" : "added-time"));
+  put(j, "target", o.target);
+  put(j, "out", o.out);
+  put(j, "simulated", static_cast<long long>(m.simulated));
+  put(j, "resumed", static_cast<long long>(m.resumed));
+  toml::array at, ns, ref, rows;
+  for (double v : mo.pause_s) at.push_back(v);
+  for (double v : mo.pause_ns) ns.push_back(v);
+  for (const auto& r : m.reference) ref.push_back(r.ground_probability);
+  for (std::size_t i = 0; i < mo.pause_s.size(); ++i) {
+    toml::array row;
+    for (std::size_t k = 0; k < mo.pause_ns.size(); ++k) row.push_back(m.at(i, k).ground_probability);
+    rows.push_back(std::move(row));
+  }
+  j.insert_or_assign("pause_s", std::move(at));
+  j.insert_or_assign("pause_ns", std::move(ns));
+  j.insert_or_assign("reference_ground_probability", std::move(ref));
+  j.insert_or_assign("ground_probability", std::move(rows));
+  toml::table b;
+  put(b, "pause_s", mo.pause_s[bi]);
+  put(b, "pause_ns", mo.pause_ns[bj]);
+  put(b, "ground_probability", m.at(bi, bj).ground_probability);
+  put(b, "reference_ground_probability", m.reference[bj].ground_probability);
+  put(b, "gain", m.at(bi, bj).ground_probability - m.reference[bj].ground_probability);
+  put_finite(b, "tts_ns", m.tts_ns(bi, bj));
+  put_finite(b, "reference_tts_ns", reference_tts);
+  j.insert_or_assign("best", std::move(b));
+  std::cout << to_json(j) << "\n";
+}
 
 void run_pause_map(const PauseMapCli& o) {
   const IsingProblem p = read_problem_file(o.problem);
@@ -50,35 +95,41 @@ void run_pause_map(const PauseMapCli& o) {
   });
   if (tty) std::cerr << "\n";
 
-  std::cout << fmt::format("problem   {} ({} qubits); schedule {}\n", o.problem, p.qubits, o.schedule);
-  std::cout << fmt::format("cost      {}\n", mo.cost == PauseCost::EqualTotal
-                                                ? fmt::format("equal total: every run takes {} ns, the pause eats into the ramp", o.duration_ns)
-                                                : fmt::format("added time: the ramp takes {} ns, the run {} ns + pause", o.duration_ns, o.duration_ns));
-  std::cout << fmt::format("points    {} simulated, {} read back from {}\n\n", m.simulated, m.resumed, journal.path());
-  std::vector<std::string> head{"pause at s \\ pause ns"};
-  for (double d : mo.pause_ns) head.push_back(fmt_num(d, 6));
-  TextTable t(head);
-  std::vector<std::string> ref{"no pause (same cost)"};
-  for (const auto& r : m.reference) ref.push_back(fmt_num(r.ground_probability, 6));
-  t.add(ref);
-  std::size_t bi = 0, bj = 0;
+  std::size_t bi = 0, bj = 0;  // the largest gain over the unpaused run of the same cost
   double best = -1;
-  for (std::size_t i = 0; i < mo.pause_s.size(); ++i) {
-    std::vector<std::string> row{fmt_num(mo.pause_s[i], 6)};
+  for (std::size_t i = 0; i < mo.pause_s.size(); ++i)
     for (std::size_t j = 0; j < mo.pause_ns.size(); ++j) {
-      row.push_back(fmt_num(m.at(i, j).ground_probability, 6));
       const double gain = m.at(i, j).ground_probability - m.reference[j].ground_probability;
       if (gain > best) { best = gain; bi = i; bj = j; }
     }
-    t.add(row);
-  }
-  std::cout << "ground-state probability p\n" << t.render();
   const MapPoint& b = m.at(bi, bj);
-  std::cout << fmt::format("\nbest pause: s = {}, {} ns: p = {:.6f} against {:.6f} without a pause at the same cost ({:+.6f}); "
-                           "TTS {} ns against {} ns\n",
-                           fmt_num(mo.pause_s[bi], 6), fmt_num(mo.pause_ns[bj], 6), b.ground_probability, m.reference[bj].ground_probability, best,
-                           fmt_num(m.tts_ns(bi, bj), 6),
-                           fmt_num(time_to_solution(m.reference[bj].total_ns, std::clamp(m.reference[bj].ground_probability, 0.0, 1.0), o.target).tts_ns, 6));
+  const double reference_tts =
+      time_to_solution(m.reference[bj].total_ns, std::clamp(m.reference[bj].ground_probability, 0.0, 1.0), o.target).tts_ns;
+  if (o.json) {
+    print_pause_map_json(o, mo, m, bi, bj, reference_tts);
+  } else {
+    std::cout << fmt::format("problem   {} ({} qubits); schedule {}\n", o.problem, p.qubits, o.schedule);
+    std::cout << fmt::format("cost      {}\n", mo.cost == PauseCost::EqualTotal
+                                                  ? fmt::format("equal total: every run takes {} ns, the pause eats into the ramp", o.duration_ns)
+                                                  : fmt::format("added time: the ramp takes {} ns, the run {} ns + pause", o.duration_ns, o.duration_ns));
+    std::cout << fmt::format("points    {} simulated, {} read back from {}\n\n", m.simulated, m.resumed, journal.path());
+    std::vector<std::string> head{"pause at s \\ pause ns"};
+    for (double d : mo.pause_ns) head.push_back(fmt_num(d, 6));
+    TextTable t(head);
+    std::vector<std::string> ref{"no pause (same cost)"};
+    for (const auto& r : m.reference) ref.push_back(fmt_num(r.ground_probability, 6));
+    t.add(ref);
+    for (std::size_t i = 0; i < mo.pause_s.size(); ++i) {
+      std::vector<std::string> row{fmt_num(mo.pause_s[i], 6)};
+      for (std::size_t j = 0; j < mo.pause_ns.size(); ++j) row.push_back(fmt_num(m.at(i, j).ground_probability, 6));
+      t.add(row);
+    }
+    std::cout << "ground-state probability p\n" << t.render();
+    std::cout << fmt::format("\nbest pause: s = {}, {} ns: p = {:.6f} against {:.6f} without a pause at the same cost ({:+.6f}); "
+                             "TTS {} ns against {} ns\n",
+                             fmt_num(mo.pause_s[bi], 6), fmt_num(mo.pause_ns[bj], 6), b.ground_probability, m.reference[bj].ground_probability, best,
+                             fmt_num(m.tts_ns(bi, bj), 6), fmt_num(reference_tts, 6));
+  }
 
   Hdf5Output h5(o.out);
   write_provenance(h5, command_line(), {o.problem, o.schedule});
@@ -106,7 +157,7 @@ void run_pause_map(const PauseMapCli& o) {
   h5.attribute("/pause_map", "target_probability", o.target);
   h5.attribute("/pause_map", "tolerance", o.tolerance);
   h5.commit();
-  std::cout << fmt::format("wrote {}\n", o.out);
+  if (!o.json) std::cout << fmt::format("wrote {}\n", o.out);
 }
 
 }  // namespace
@@ -136,6 +187,9 @@ void register_pause_map(CLI::App& app) {
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default)")->capture_default_str();
   sub->add_option("-o,--out", o->out, "HDF5 result (heat-map ready); the journal is <out>.journal")->required();
+  sub->add_flag("--json", o->json,
+                "print a JSON summary instead of the table: the grid, p per cell (rows: --at), the unpaused\n"
+                "reference per pause duration, and the best cell (largest gain over its reference)");
   sub->callback([o] { run_pause_map(*o); });
 }
 

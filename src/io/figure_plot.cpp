@@ -46,6 +46,15 @@ struct Stream {
   }
 };
 
+// The title above the frame, with an optional line of small text under it.
+void draw_title(plstream& p, const std::string& title, const std::string& note) {
+  p.mtex("t", note.empty() ? 1.2 : 2.4, 0.5, 0.5, title.c_str());
+  if (note.empty()) return;
+  p.schr(0, 0.75);
+  p.mtex("t", 1.0, 0.5, 0.5, note.c_str());
+  p.schr(0, 0.95);
+}
+
 std::vector<double> transformed(const std::vector<double>& v, bool log) {
   std::vector<double> out;
   out.reserve(v.size());
@@ -192,12 +201,7 @@ void render_figure(const LinePlot& requested, const std::string& path) {
     if (few_x) label_log_axis_125(p, false, x0, x1);
     if (few_y) label_log_axis_125(p, true, y0, y1);
     p.lab(plot.x_label.c_str(), plot.y_label.c_str(), "");
-    p.mtex("t", plot.note.empty() ? 1.2 : 2.4, 0.5, 0.5, plot.title.c_str());
-    if (!plot.note.empty()) {
-      p.schr(0, 0.75);
-      p.mtex("t", 1.0, 0.5, 0.5, plot.note.c_str());
-      p.schr(0, 0.95);
-    }
+    draw_title(p, plot.title, plot.note);
 
     for (const auto& ser : plot.series) {
       bool any = false;  // a series with no finite point is left out, legend included
@@ -287,6 +291,9 @@ void render_figure(const HeatMap& map, const std::string& path) {
     const double h0 = c.size() > 1 ? c[1] - c[0] : 1.0, h1 = c.size() > 1 ? c.back() - c[c.size() - 2] : 1.0;
     e.front() = c.front() - 0.5 * h0;
     e.back() = c.back() + 0.5 * h1;
+    // Durations and anneal fractions are never negative: a first cell centred
+    // on 0 is drawn as its upper half instead of reaching below the axis.
+    if (c.front() >= 0.0 && e.front() < 0.0) e.front() = 0.0;
     return e;
   };
   const auto ex = edges(map.x), ey = edges(map.y);
@@ -311,7 +318,22 @@ void render_figure(const HeatMap& map, const std::string& path) {
       }
     p.col0(1);
     p.box("bcnst", 0, 0, "bcnstv", 0, 0);
-    p.lab(map.x_label.c_str(), map.y_label.c_str(), map.title.c_str());
+    p.lab(map.x_label.c_str(), map.y_label.c_str(), "");
+    draw_title(p, map.title, map.note);
+    for (const auto& m : map.markers) {  // white under black, readable on dark and light cells
+      const PLFLT mx = m.x, my = m.y;
+      p.col0(0);
+      p.width(4.0);
+      p.string(1, &mx, &my, "#(841)");
+      p.width(1.0);
+      p.col0(1);
+      p.string(1, &mx, &my, "#(841)");
+      p.schr(0, 0.8);
+      const bool right_half = mx > 0.5 * (x0 + x1);
+      p.ptex(mx + (right_half ? -0.02 : 0.02) * (x1 - x0), my + 0.03 * (y1 - y0), 1, 0, right_half ? 1.0 : 0.0,
+             m.text.c_str());
+      p.schr(0, 0.95);
+    }
     // Colour bar as a narrow second image with its own axis.
     p.vpor(0.86, 0.89, 0.12, 0.88);
     p.wind(0, 1, zmin, zmax);

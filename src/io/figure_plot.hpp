@@ -58,6 +58,8 @@ struct HeatMap {
   std::string title, x_label, y_label, value_label;
   std::vector<double> x, y;  ///< cell centres, ascending
   std::vector<double> values;  ///< x-major: values[ix * y.size() + iy]
+  std::string note;            ///< a line of small text under the title
+  std::vector<PlotMarker> markers;  ///< a cross and a text label at (x, y)
 };
 
 /// Writes the figure; the format follows the extension (.svg or .png).

@@ -19,6 +19,20 @@ namespace {
 
 using Emit = std::function<void(const std::string& kind, const std::function<void(const std::string&)>& draw)>;
 
+// One series per level from a rows x levels matrix (row-major, as written by
+// Hdf5Output::write_matrix); negative entries mark "not available" and become gaps.
+void add_level_series(LinePlot& fig, const std::vector<double>& x, const std::vector<double>& matrix, std::size_t levels) {
+  const std::size_t n = x.size();
+  for (std::size_t l = 0; l < levels; ++l) {
+    PlotSeries ser{fmt::format("level {}", l), x, std::vector<double>(n), SeriesStyle::Line, static_cast<int>(l)};
+    for (std::size_t r = 0; r < n; ++r) {
+      const double v = matrix[r * levels + l];
+      ser.y[r] = v < 0 ? std::numeric_limits<double>::quiet_NaN() : v;
+    }
+    fig.series.push_back(std::move(ser));
+  }
+}
+
 void anneal_trace(const Hdf5Input& in, const Emit& emit) {
   if (!in.has("/anneal/trace/t")) return;
   const auto t = in.read("/anneal/trace/t"), s = in.read("/anneal/trace/s"), p = in.read("/anneal/trace/ground_probability");
@@ -94,8 +108,8 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   fp.x_label = "anneal duration t_f (ns)";
   fp.y_label = "ground-state probability p";
   fp.log_x = true;
-  fp.y_range = std::pair{0.0, 1.05};
-  fp.legend = LinePlot::Legend::BottomRight;
+  fp.y_range = std::pair{0.0, 1.5};  // room above p = 1 for the legend
+  fp.legend = LinePlot::Legend::TopRight;
   fp.series.push_back({"simulated", t, p, SeriesStyle::LinePoints, 0});
   if (in.has(P + "/p_landau_zener"))
     fp.series.push_back({"Landau-Zener at the minimum gap", t, applicable(in.read(P + "/p_landau_zener")), SeriesStyle::Dashed, 1});
@@ -139,6 +153,28 @@ void probability_map(const Hdf5Input& in, const Emit& emit, const std::string& r
   m.y = in.read(root + "/" + yname);
   m.values = in.read(root + "/ground_probability");
   if (m.values.size() != m.x.size() * m.y.size() || m.x.empty() || m.y.empty()) return;
+  // The best cell against the unpaused (or unreversed) reference of the same cost, when the file has one.
+  const std::string ref = root + "/reference_ground_probability";
+  std::vector<double> reference = in.has(ref) ? in.read(ref) : std::vector<double>{};
+  if (reference.size() != m.y.size()) reference.clear();
+  std::size_t bi = 0, bj = 0;
+  double best = -std::numeric_limits<double>::infinity();
+  for (std::size_t i = 0; i < m.x.size(); ++i)
+    for (std::size_t j = 0; j < m.y.size(); ++j) {
+      const double v = m.values[i * m.y.size() + j] - (reference.empty() ? 0.0 : reference[j]);
+      if (v > best) { best = v; bi = i; bj = j; }
+    }
+  const double pb = m.values[bi * m.y.size() + bj];
+  if (!reference.empty()) {
+    const std::string cost = in.has_attribute(root, "cost") ? in.attribute_string(root, "cost") : "";
+    m.note = fmt::format("best {:.4f} against {:.4f} without a pause at the same cost ({}{})", pb, reference[bj],
+                         cost.empty() ? "" : cost + ", ",
+                         in.has_attribute(root, "duration_ns") ? fmt::format("T = {:g} ns", in.attribute_double(root, "duration_ns")) : "");
+    m.markers.push_back({m.x[bi], m.y[bj], fmt::format("best p = {:.4f}", pb)});
+  } else {
+    m.note = fmt::format("best p = {:.4f} at ({:.4g}, {:.4g})", pb, m.x[bi], m.y[bj]);
+    m.markers.push_back({m.x[bi], m.y[bj], fmt::format("best p = {:.4f}", pb)});
+  }
   emit(kind, [&](const std::string& path) { render_figure(m, path); });
 }
 
@@ -166,11 +202,7 @@ void level_populations(const Hdf5Input& in, const Emit& emit) {
       fig.y_label = "population";
       fig.y_range = std::pair{0.0, 1.05};
       fig.legend = LinePlot::Legend::BottomLeft;
-      for (std::size_t l = 0; l < k; ++l) {
-        PlotSeries ser{fmt::format("level {}", l), t, std::vector<double>(n), SeriesStyle::Line, static_cast<int>(l)};
-        for (std::size_t r = 0; r < n; ++r) ser.y[r] = pop[r * k + l];
-        fig.series.push_back(std::move(ser));
-      }
+      add_level_series(fig, t, pop, k);
       std::string safe;
       for (char c : name) safe += std::isalnum(static_cast<unsigned char>(c)) ? c : '-';
       emit(fmt::format("populations-{}-{}", safe, j), [&](const std::string& path) { render_figure(fig, path); });
@@ -262,6 +294,130 @@ void ensemble_scaling(const Hdf5Input& in, const Emit& emit) {
        "Minimum spectral gap against problem size", "minimum gap (GHz)", "median", counts);
 }
 
+// embed-cost results: what the chain strength does to p, to the duration needed and to the gap.
+void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
+  const std::string E = "/embedding", S = E + "/scan";
+  if (!in.has(S + "/chain_coupling")) return;
+  const auto c = in.read(S + "/chain_coupling");
+  if (c.empty()) return;
+  const double best = in.attribute_double(E, "best_chain_coupling");
+  const double bound = in.attribute_double(E, "chain_coupling_bound");
+  const double t_f = in.attribute_double(E, "duration_ns"), target = in.attribute_double(E, "target");
+  const std::pair<double, double> c_span{c.front(), c.back()};
+  auto constant = [&](double v) { return std::vector<double>{v, v}; };
+  const std::vector<double> c_ends{c_span.first, c_span.second};
+  const std::string bound_text =
+      fmt::format("vertical line: chain coupling {:.3g}; above it every physical ground state has intact chains", bound);
+
+  LinePlot fp;
+  fp.title = fmt::format("Chain strength and success at t_f = {:.4g} ns", t_f);
+  fp.note = bound_text;
+  fp.x_label = "chain coupling |J_chain| (problem units)";
+  fp.y_label = "probability / fraction";
+  fp.y_range = std::pair{0.0, 1.5};  // room above p = 1 for the legend
+  fp.legend = LinePlot::Legend::TopRight;
+  fp.series.push_back({"p_logical (majority vote per chain)", c, in.read(S + "/p_logical"), SeriesStyle::LinePoints, 0});
+  fp.series.push_back({"p_physical (physical ground states)", c, in.read(S + "/p_physical"), SeriesStyle::Dashed, 1});
+  fp.series.push_back({"expected fraction of broken chains", c, in.read(S + "/chain_break_fraction"), SeriesStyle::LinePoints, 2});
+  fp.series.push_back({fmt::format("logical problem, unembedded: p = {:.4f}",
+                                   in.attribute_double(E + "/logical", "ground_probability")),
+                       c_ends, constant(in.attribute_double(E + "/logical", "ground_probability")), SeriesStyle::Dashed, 6});
+  if (bound >= c_span.first && bound <= c_span.second) fp.vertical_lines.push_back(bound);
+  emit("chain-probability", [&](const std::string& path) { render_figure(fp, path); });
+
+  // The needed duration, split by what the search established (bounds apart).
+  const auto needed = in.read(S + "/needed_duration");
+  const std::vector<double> kind = in.has(S + "/needed_bound") ? in.read(S + "/needed_bound")
+                                                               : std::vector<double>(c.size(), 0.0);
+  const double nan = std::numeric_limits<double>::quiet_NaN();
+  std::vector<double> bracketed(c.size(), nan), above(c.size(), nan), below(c.size(), nan);
+  for (std::size_t k = 0; k < c.size() && k < needed.size() && k < kind.size(); ++k)
+    (kind[k] > 0 ? above : kind[k] < 0 ? below : bracketed)[k] = needed[k];
+  LinePlot fd;
+  fd.title = fmt::format("Anneal duration needed for p_logical >= {}", target);
+  fd.note = bound_text;
+  fd.x_label = "chain coupling |J_chain| (problem units)";
+  fd.y_label = "duration needed (ns)";
+  fd.log_y = true;
+  fd.legend = LinePlot::Legend::BottomRight;
+  fd.series.push_back({"embedded problem", c, bracketed, SeriesStyle::LinePoints, 0});
+  fd.series.push_back({"not reached: longer than this", c, above, SeriesStyle::Points, 1});
+  fd.series.push_back({"reached at the shortest duration tried", c, below, SeriesStyle::Points, 2});
+  const double logical_ns = in.attribute_double(E + "/logical", "needed_ns");
+  if (logical_ns > 0)
+    fd.series.push_back({fmt::format("logical problem, unembedded: {}", in.attribute_string(E + "/logical", "needed")),
+                         c_ends, constant(logical_ns), SeriesStyle::Dashed, 6});
+  for (std::size_t k = 0; k < c.size() && k < needed.size(); ++k)
+    if (c[k] == best && needed[k] > 0)
+      fd.markers.push_back({c[k], needed[k], fmt::format("best: {:.4g} ns", needed[k])});
+  if (bound >= c_span.first && bound <= c_span.second) fd.vertical_lines.push_back(bound);
+  emit("chain-duration", [&](const std::string& path) { render_figure(fd, path); });
+
+  LinePlot fg;
+  fg.title = "Minimum gap of the embedded problem";
+  fg.note = bound_text;
+  fg.x_label = "chain coupling |J_chain| (problem units)";
+  fg.y_label = "minimum gap (GHz)";
+  const auto gaps = in.read(S + "/min_gap");
+  const double logical_gap = in.attribute_double(E + "/logical", "min_gap_ghz");
+  double top = logical_gap;
+  for (double g : gaps) if (std::isfinite(g)) top = std::max(top, g);
+  fg.y_range = std::pair{0.0, 1.3 * top};  // linear from zero: a closing gap reads as one; room for the legend
+  fg.legend = LinePlot::Legend::TopRight;
+  fg.series.push_back({"embedded problem", c, gaps, SeriesStyle::LinePoints, 0});
+  fg.series.push_back({fmt::format("logical problem, unembedded: {:.4g} GHz", logical_gap), c_ends, constant(logical_gap),
+                       SeriesStyle::Dashed, 6});
+  if (bound >= c_span.first && bound <= c_span.second) fg.vertical_lines.push_back(bound);
+  emit("chain-gap", [&](const std::string& path) { render_figure(fg, path); });
+}
+
+// diagnose results: the gap along s with each crossing marked, and how much of
+// each instantaneous level lies on the classical ground manifold.
+void diagnosis(const Hdf5Input& in, const Emit& emit) {
+  const std::string D = "/diagnosis";
+  if (!in.has(D + "/spectrum/gap")) return;
+  const auto s = in.read(D + "/spectrum/s");
+  auto gap = in.read(D + "/spectrum/gap");
+  for (double& x : gap) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
+  LinePlot fg;
+  fg.title = "Diagnosis: the gap that governs success, crossings marked";
+  fg.note = fmt::format("minimum {:.4g} GHz at s* = {:.4f}", in.attribute_double(D, "gap_ghz"), in.attribute_double(D, "s_star"));
+  fg.x_label = "anneal fraction s";
+  fg.y_label = "gap (GHz)";
+  fg.log_y = true;
+  fg.legend = LinePlot::Legend::BottomLeft;
+  fg.series.push_back({in.attribute_string(D, "gap_definition").substr(0, in.attribute_string(D, "gap_definition").find(" (")),
+                       s, gap, SeriesStyle::Line, 0});
+  if (in.has(D + "/crossings/s_star")) {
+    const auto xs = in.read(D + "/crossings/s_star"), xd = in.read(D + "/crossings/delta_min");
+    const auto late = in.read(D + "/crossings/late_crossing_index"), end = in.read(D + "/crossings/end_gap");
+    for (std::size_t k = 0; k < xs.size() && k < xd.size(); ++k) {
+      if (!(xd[k] > 0)) continue;
+      const char* what = k < end.size() && end[k] != 0 ? "end gap" : k < late.size() && late[k] >= 0 ? "late crossing" : "crossing";
+      fg.markers.push_back({xs[k], xd[k], fmt::format("{} {}: {:.3g} GHz", what, k + 1, xd[k])});
+    }
+  }
+  if (in.has(D + "/overlap/late_crossing_s")) fg.vertical_lines = in.read(D + "/overlap/late_crossing_s");
+  if (!fg.vertical_lines.empty()) fg.note += "; dotted: where the ground level switches classical level (late crossing)";
+  emit("diagnosis-gap", [&](const std::string& path) { render_figure(fg, path); });
+
+  if (!in.has(D + "/overlap/ground_weight")) return;
+  const auto os = in.read(D + "/overlap/s");
+  const auto w = in.read(D + "/overlap/ground_weight");
+  const std::size_t n = os.size(), k = n ? w.size() / n : 0;
+  if (!n || !k || w.size() != n * k) return;
+  LinePlot fw;
+  fw.title = "Diagnosis: weight of each instantaneous level on the classical ground states";
+  fw.note = "a level that ends in the ground manifold rises to 1 at s = 1; a late switch shows as a step";
+  fw.x_label = "anneal fraction s";
+  fw.y_label = "weight on the ground manifold";
+  fw.y_range = std::pair{0.0, 1.05};
+  fw.legend = LinePlot::Legend::TopLeft;
+  add_level_series(fw, os, w, k);  // -1: level not tracked there
+  fw.vertical_lines = fg.vertical_lines;
+  emit("diagnosis-ground-weight", [&](const std::string& path) { render_figure(fw, path); });
+}
+
 }  // namespace
 
 std::vector<std::string> draw_result_figures(const std::string& result_file, const std::string& out_dir,
@@ -293,6 +449,8 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
                   "Reverse anneal: ground-state probability", "turn point s_turn", "dwell (ns)");
   level_populations(in, emit);
   ensemble_scaling(in, emit);
+  chain_strength_scan(in, emit);
+  diagnosis(in, emit);
   if (written.empty())
     throw InputError({result_file, 0, 0, ""}, "this file holds no result that gapwise can draw",
                      "give a file written with --out by anneal or another study subcommand");
