@@ -27,6 +27,7 @@ void register_figure(CLI::App& app) {
       "  compare-paths  populations-<path>-<k>: lowest-level populations along t\n"
       "  embed-cost     chain-probability, chain-duration, chain-gap against chain coupling\n"
       "  diagnose       diagnosis-gap (crossings marked), diagnosis-ground-weight\n"
+      "  ensemble       ensemble-tts, ensemble-gap: median and quantile band against size\n"
       "Example: gapwise figure run.h5 --out-dir figs --format png");
   sub->add_option("results", o->files, "HDF5 result files")->required()->check(CLI::ExistingFile);
   sub->add_option("--out-dir", o->out_dir, "folder for the figures (created if missing)")->capture_default_str();
