@@ -188,6 +188,12 @@ TEST_CASE("command line: shards merged equal the whole run") {
   CHECK(merged.out.find("TTS_ns q0.5") != std::string::npos);
   CHECK(ensemble_difference(p("whole.h5"), p("merged.h5")) == "");
   CHECK(ensemble_difference(p("whole.h5"), p("s0.h5")) != "");  // the comparison can fail
+  const auto json = run_gapwise("merge-shards " + p("s1.h5") + " " + p("s0.h5") + " --json --out " + p("merged-j.h5"), dir);
+  REQUIRE(json.exit_code == 0);
+  CHECK(json.out.rfind("{", 0) == 0);  // JSON only on stdout, no table
+  CHECK(json.out.find("TTS_ns q0.5") == std::string::npos);
+  CHECK(json.out.find("\"tts_ns\"") != std::string::npos);
+  CHECK(json.out.find("\"set_size\" : 6") != std::string::npos);
   const auto missing = run_gapwise("merge-shards " + p("s1.h5") + " --out " + p("m2.h5"), dir);
   CHECK(missing.exit_code == 2);
   CHECK(missing.err.find("shard 0/2 is missing") != std::string::npos);

@@ -53,5 +53,7 @@ void register_merge_shards(CLI::App& app);
 /// they print (with the table also written as CSV when `csv` is given).
 TextTable ensemble_size_table(const EnsembleResult& result);
 void print_ensemble_summary(const EnsembleResult& result, const std::string& out, const std::string& csv);
+/// The same as JSON on stdout (`--json` of ensemble and merge-shards); writes csv too when given.
+void print_ensemble_json(const EnsembleResult& result, const std::string& csv);
 
 }  // namespace gapwise::cli

@@ -12,6 +12,7 @@
 #include "io/atomic_file.hpp"
 #include "io/ensemble_result_file.hpp"
 #include "io/input_error.hpp"
+#include "io/json_summary.hpp"
 #include "io/result_journal.hpp"
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
@@ -27,7 +28,7 @@ struct EnsembleOptions {
   double target = kDefaultTargetProbability, tolerance = 1e-6, confidence = 0.95, gap_s_tolerance = 1e-6;
   int threads = 0, resamples = 2000, gap_points = 101;
   unsigned long long bootstrap_seed = 1;
-  bool fresh = false, quiet = false;
+  bool fresh = false, quiet = false, json = false;
 };
 
 std::string interval_text(const QuantileEstimate& q, int digits) {
@@ -81,6 +82,62 @@ void print_ensemble_summary(const EnsembleResult& r, const std::string& out, con
   if (!out.empty()) std::cout << fmt::format("\nresult written to {}\n", out);
 }
 
+void print_ensemble_json(const EnsembleResult& r, const std::string& csv) {
+  toml::table j;
+  put(j, "instance_set", r.set_source);
+  put(j, "set_fingerprint", r.set_fingerprint);
+  put(j, "set_size", static_cast<long long>(r.set_size));
+  put(j, "instances", static_cast<long long>(r.instances.size()));
+  put(j, "shard", r.shard.text());
+  put(j, "target", r.settings.target_probability);
+  put(j, "propagator", r.settings.simulation.propagator);
+  put(j, "tolerance", r.settings.simulation.propagation.tolerance);
+  toml::array durations;
+  for (double d : r.settings.durations_ns) durations.push_back(d);
+  j.insert_or_assign("durations_ns", std::move(durations));
+  put(j, "confidence_level", r.settings.confidence_level);
+  put(j, "bootstrap_resamples", static_cast<long long>(r.settings.bootstrap_resamples));
+  put(j, "bootstrap_seed", static_cast<long long>(r.settings.bootstrap_seed));
+  put(j, "computed", static_cast<long long>(r.computed));
+  put(j, "resumed", static_cast<long long>(r.resumed));
+  long long planted = 0, planted_ok = 0, edge = 0, never = 0;
+  for (const auto& o : r.instances)
+    if (o.planted_check >= 0) { ++planted; planted_ok += o.planted_check; }
+  auto quantiles = [](const SampleSummary& s) {
+    toml::array a;
+    for (const auto& q : s.quantiles) {
+      toml::table e;
+      put(e, "q", q.q);
+      put(e, "infinite", std::isinf(q.value));  // finite numbers only in JSON: an infinite bound is left out
+      if (std::isfinite(q.value)) put(e, "value", q.value);
+      if (std::isfinite(q.interval.low)) put(e, "ci_low", q.interval.low);
+      if (std::isfinite(q.interval.high)) put(e, "ci_high", q.interval.high);
+      a.push_back(std::move(e));
+    }
+    return a;
+  };
+  toml::array sizes;
+  for (const auto& s : r.sizes) {
+    toml::table e;
+    put(e, "qubits", static_cast<long long>(s.qubits));
+    put(e, "instances", static_cast<long long>(s.tts_ns.count));
+    put(e, "tts_at_range_edge", static_cast<long long>(s.tts_at_range_edge));
+    put(e, "never_solved", static_cast<long long>(s.never_solved));
+    e.insert_or_assign("tts_ns", quantiles(s.tts_ns));
+    e.insert_or_assign("gap_ghz", quantiles(s.gap_ghz));
+    edge += static_cast<long long>(s.tts_at_range_edge);
+    never += static_cast<long long>(s.never_solved);
+    sizes.push_back(std::move(e));
+  }
+  put(j, "tts_at_range_edge", edge);
+  put(j, "never_solved", never);
+  put(j, "planted_instances", planted);
+  put(j, "planted_ground_energy_confirmed", planted_ok);
+  j.insert_or_assign("sizes", std::move(sizes));
+  if (!csv.empty()) write_file_atomically(csv, ensemble_size_table(r).csv());
+  std::cout << to_json(j) << "\n";
+}
+
 namespace {
 
 void run_ensemble(const EnsembleOptions& o) {
@@ -122,7 +179,8 @@ void run_ensemble(const EnsembleOptions& o) {
     const EnsembleResult r = run_ensemble_study(run);
     if (!r.complete_here) return;  // other ranks: rank 0 writes and prints
     write_ensemble_result(o.out, r, command_line(), {o.schedule});
-    print_ensemble_summary(r, o.out, o.csv);
+    if (o.json) print_ensemble_json(r, o.csv);
+    else print_ensemble_summary(r, o.out, o.csv);
   } catch (const std::exception& e) {
     if (group.size() <= 1) throw;
     // Several ranks: report once per rank and end the whole job, so no rank
@@ -171,6 +229,9 @@ void register_ensemble(CLI::App& app) {
   sub->add_option("--gap-s-tolerance", o->gap_s_tolerance, "gap search: precision of s*")->capture_default_str();
   sub->add_option("--csv", o->csv, "also write the per-size table as CSV");
   sub->add_flag("-q,--quiet", o->quiet, "no progress lines on stderr");
+  sub->add_flag("--json", o->json,
+                "print a JSON summary instead of the table: settings, and per size (`sizes`) the instance count, "
+                "`tts_ns` and `gap_ghz` as lists of {q, value, ci_low, ci_high}, `tts_at_range_edge`, `never_solved`");
   sub->callback([o] { run_ensemble(*o); });
 }
 

@@ -13,6 +13,7 @@ namespace {
 struct MergeOptions {
   std::vector<std::string> shards;
   std::string out, csv;
+  bool json = false;
 };
 
 void run_merge(const MergeOptions& o) {
@@ -21,7 +22,8 @@ void run_merge(const MergeOptions& o) {
   for (const auto& f : o.shards) parts.push_back(read_ensemble_result(f));
   const EnsembleResult whole = merge_shards(parts, o.shards);
   write_ensemble_result(o.out, whole, command_line(), o.shards);
-  print_ensemble_summary(whole, o.out, o.csv);
+  if (o.json) print_ensemble_json(whole, o.csv);
+  else print_ensemble_summary(whole, o.out, o.csv);
 }
 
 }  // namespace
@@ -36,6 +38,7 @@ void register_merge_shards(CLI::App& app) {
   sub->add_option("shards", o->shards, "shard result files")->required()->check(CLI::ExistingFile);
   sub->add_option("--out", o->out, "merged result file (HDF5)")->required();
   sub->add_option("--csv", o->csv, "also write the per-size table as CSV");
+  sub->add_flag("--json", o->json, "print the JSON summary of `gapwise ensemble --json` instead of the table");
   sub->callback([o] { run_merge(*o); });
 }
 
