@@ -13,7 +13,10 @@ comment block:
 
 `run` is a gapwise command line (run from the repository root) that prints
 JSON; each further line is a dotted key path into that JSON, the quoted value,
-and for numbers an absolute tolerance. Exit status 0 when every check holds.
+and for numbers an absolute tolerance. `{tmp}` in a `run` line stands for a
+fresh temporary folder (for commands that must write a file, such as
+`pause-map --out {tmp}/map.h5`), so checks leave nothing in the source tree and
+never resume from an earlier run's journal. Exit status 0 when every check holds.
 Usage: check_worked_examples.py GAPWISE_EXE REPO_ROOT
 """
 import json
@@ -22,6 +25,7 @@ import re
 import shlex
 import subprocess
 import sys
+import tempfile
 
 BLOCK = re.compile(r"<!--\s*gapwise-check\s*\n(.*?)-->", re.S)
 
@@ -43,8 +47,9 @@ def main():
                 print(f"{doc.name}: a check block must start with 'run:'")
                 failures += 1
                 continue
-            cmd = [exe] + shlex.split(lines[0][4:].strip())
-            proc = subprocess.run(cmd, cwd=root, capture_output=True, text=True)
+            with tempfile.TemporaryDirectory() as tmp:
+                cmd = [exe] + [w.replace("{tmp}", tmp) for w in shlex.split(lines[0][4:].strip())]
+                proc = subprocess.run(cmd, cwd=root, capture_output=True, text=True)
             if proc.returncode != 0:
                 print(f"{doc.name}: command failed ({proc.returncode}): {' '.join(cmd)}\n{proc.stderr}")
                 failures += 1

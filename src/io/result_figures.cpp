@@ -81,7 +81,6 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
   gaps.x_label = "anneal fraction s";
   gaps.y_label = "gap (GHz)";
   gaps.log_y = true;
-  gaps.legend = LinePlot::Legend::BottomLeft;
   auto positive = [](std::vector<double> v) {
     for (double& x : v) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
     return v;
@@ -90,6 +89,13 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
   if (in.has(G + "/curve/gap_e1_e0"))
     gaps.series.push_back({"E1 - E0", s, positive(in.read(G + "/curve/gap_e1_e0")), SeriesStyle::Dashed, 1});
   if (gap > 0) gaps.markers.push_back({s_star, gap, fmt::format("min {:.3g} GHz", gap)});
+  // Always logarithmic, however few decades the gap spans: the minimum is what
+  // the figure is for, and a linear axis squashes it against zero.
+  double lo = std::numeric_limits<double>::infinity(), hi = 0;
+  for (const auto& ser : gaps.series)
+    for (double v : ser.y) if (v > 0 && std::isfinite(v)) { lo = std::min(lo, v); hi = std::max(hi, v); }
+  if (hi > 0) gaps.y_range = std::pair{lo / 1.6, hi * 2.5};  // room above the curve for the legend
+  gaps.legend = LinePlot::Legend::TopRight;
   emit("gap", [&](const std::string& path) { render_figure(gaps, path); });
 }
 
