@@ -53,6 +53,12 @@ int main(int argc, char** argv) {
   } catch (const std::exception& e) {
     std::cerr << "gapwise: internal failure: " << e.what() << "\n";
     return cli::kExitInternal;
+  } catch (...) {
+    // The library turns HDF5's exceptions (not std::exceptions) into messages
+    // naming the file; this is the last line, so nothing ever reaches terminate().
+    std::cerr << "gapwise: internal failure: an unexpected error (not a standard exception) in `"
+              << cli::command_line() << "`\n";
+    return cli::kExitInternal;
   }
   return cli::exit_code();
 }

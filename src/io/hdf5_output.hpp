@@ -1,5 +1,10 @@
 #pragma once
-// An HDF5 result file written atomically (temporary file, renamed on commit()).
+// An HDF5 result file written atomically: built in memory, written by commit()
+// to a temporary file beside the target with checked I/O, then renamed over it.
+// A failure (full disk, HDF5 error) throws std::runtime_error naming the file
+// and what failed, and leaves the previous file (if any) untouched; nothing of
+// HDF5's own error stack is printed. Results are held in memory until commit()
+// (they are small: traces, maps and at most 2^n outcome probabilities).
 // Datasets carry a "unit" attribute; every file carries the tool version and the
 // inputs for provenance (write_provenance). Readable by any HDF5 client (h5py, h5dump).
 //

@@ -19,20 +19,11 @@ std::uint64_t fnv1a64(std::string_view bytes, std::uint64_t h) {
   return h;
 }
 
-void seal_hdf5_file(const std::string& path, const std::string& format) {
-  std::FILE* f = std::fopen(path.c_str(), "r+b");
-  if (!f) throw std::runtime_error(fmt::format("cannot reopen '{}' to seal it: {}", path, std::strerror(errno)));
-  std::string body;
-  char buf[1 << 16];
-  std::fseek(f, static_cast<long>(kSealBytes), SEEK_SET);
-  for (std::size_t got; (got = std::fread(buf, 1, sizeof buf, f)) > 0;) body.append(buf, got);
+std::string hdf5_seal_header(std::string_view body, const std::string& format) {
   std::string header = fmt::format("{}format={}\nbytes={}\nfnv1a64={:016x}\n", kMagic, format, body.size(), fnv1a64(body));
-  if (header.size() > kSealBytes) { std::fclose(f); throw std::runtime_error("seal header too long"); }
+  if (header.size() > kSealBytes) throw std::logic_error("seal header too long (format name too long)");
   header.resize(kSealBytes, '\0');
-  std::fseek(f, 0, SEEK_SET);
-  const bool ok = std::fwrite(header.data(), 1, header.size(), f) == header.size();
-  const bool closed = std::fclose(f) == 0;
-  if (!ok || !closed) throw std::runtime_error(fmt::format("cannot seal '{}': {}", path, std::strerror(errno)));
+  return header;
 }
 
 void check_hdf5_seal(std::string_view bytes, const std::string& name, const std::string& format) {

@@ -1,7 +1,7 @@
 #pragma once
 // A seal on gapwise's HDF5 data files (instance sets, ensemble results): the
-// file is created with a 512-byte HDF5 user block, and after the HDF5 library
-// has closed it, the user block receives a short text header with the format
+// file is created with a 512-byte HDF5 user block, which holds a short text
+// header (written by Hdf5Output::commit() with the finished image) with the format
 // name, the length and an FNV-1a checksum of everything after it. Readers check
 // the seal before the HDF5 library sees a byte, so a damaged, truncated or edited
 // file is refused with a clear message instead of reaching the HDF5 parser
@@ -27,9 +27,9 @@ inline constexpr std::size_t kSealBytes = 512;
 /// FNV-1a, 64 bit (Fowler, Noll and Vo), over raw bytes.
 std::uint64_t fnv1a64(std::string_view bytes, std::uint64_t h = 1469598103934665603ULL);
 
-/// Writes the header into the user block of a closed HDF5 file made with a
-/// 512-byte user block. Throws std::runtime_error on I/O failure.
-void seal_hdf5_file(const std::string& path, const std::string& format);
+/// The 512-byte header (text, zero-padded) that seals `body`, the HDF5 image
+/// that follows the user block. Hdf5Output puts it in front of the image.
+std::string hdf5_seal_header(std::string_view body, const std::string& format);
 
 /// Throws InputError (file `name`) when the bytes carry no seal, a seal for another
 /// format, or a length/checksum that does not match.
