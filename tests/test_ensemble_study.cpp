@@ -85,9 +85,17 @@ TEST_CASE("per-instance TTS follows the time-to-solution formula; per-size media
   const Schedule sch = read_schedule_file(schedule_path());
   EnsembleRun run{set, sch, read_text_file(schedule_path()), quick_settings()};
   run.threads = 2;
+  std::vector<EnsembleProgress> seen;
+  run.progress = [&](const EnsembleProgress& p) { seen.push_back(p); };
   const EnsembleResult r = run_ensemble_study(run);
   REQUIRE(r.complete_here);
   REQUIRE(r.instances.size() == 6);
+  // Progress: one report per instance; the work estimate n 2^n sums to 3 (3 * 8 + 4 * 16) = 264.
+  REQUIRE(seen.size() == 6);
+  CHECK(seen.back().cost_total == doctest::Approx(264));
+  CHECK(seen.back().cost_done == doctest::Approx(264));
+  CHECK(seen.back().seconds_left() == 0);
+  for (std::size_t k = 1; k < seen.size(); ++k) CHECK(seen[k].cost_done > seen[k - 1].cost_done);
   const double target = r.settings.target_probability;
   for (const auto& o : r.instances) {
     CAPTURE(o.name);

@@ -23,7 +23,7 @@ namespace gapwise::cli {
 namespace {
 
 struct EnsembleOptions {
-  std::string set, schedule, out, csv, durations = "1,2,5,10,20,50,100,200,500,1000", shard = "0/1", quantiles = "0.25,0.5,0.75";
+  std::string set, schedule, out, csv, durations = "0.1,0.2,0.5,1,2,5,10,20,50,100", shard = "0/1", quantiles = "0.25,0.5,0.75";
   std::string propagator = SimulationOptions{}.propagator;
   double target = kDefaultTargetProbability, tolerance = 1e-6, confidence = 0.95, gap_s_tolerance = 1e-6;
   int threads = 0, resamples = 2000, gap_points = 101;
@@ -170,7 +170,7 @@ void run_ensemble(const EnsembleOptions& o) {
     if (o.fresh && group.is_collector()) std::remove(run.journal_path.c_str());
     if (!o.quiet)
       run.progress = [](const EnsembleProgress& p) {
-        const double eta = p.done ? p.elapsed_seconds / static_cast<double>(p.done) * static_cast<double>(p.total - p.done) : 0;
+        const double eta = p.seconds_left();
         std::cerr << fmt::format("[{}/{}] {} (n={}): gap {} GHz, best TTS {} ns  ({:.2f} s; {:.0f} s elapsed, ~{:.0f} s left)\n",
                                  p.done, p.total, p.last->name, p.last->qubits, fmt_num(p.last->gap_ghz, 4),
                                  std::isinf(p.last->tts_ns) ? std::string("inf") : fmt_num(p.last->tts_ns, 4),
@@ -206,7 +206,11 @@ void register_ensemble(CLI::App& app) {
       "a crash or kill and it carries on. For job arrays, run --shard i/N per job and\n"
       "join the results with `gapwise merge-shards`. Results are identical bit for bit\n"
       "whatever the thread, rank or shard count.\n"
-      "Example: gapwise ensemble glasses.h5 schedules/linear.toml --durations-ns 1,3,10,30,100,300 --out study.h5\n"
+      "The TTS optimum is only bracketed when the durations reach below it: with GHz\n"
+      "energy scales that means well below 1 ns (column `TTS at range edge`). As t_f -> 0,\n"
+      "p tends to the random-guess value g/2^n and TTS to 0, so the shortest duration\n"
+      "acts as the minimum anneal time.\n"
+      "Example: gapwise ensemble glasses.h5 schedules/linear.toml --durations-ns 0.1,0.2,0.5,1,2,5,10,30 --out study.h5\n"
       "         mpirun -np 8 gapwise ensemble glasses.h5 schedules/linear.toml --out study.h5");
   sub->add_option("set", o->set, "instance set: HDF5 file or directory of problem files")->required();
   sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(CLI::ExistingFile);

@@ -141,6 +141,8 @@ InstanceOutcome InstanceOutcome::from_values(std::size_t set_index, const std::v
   return o;
 }
 
+double instance_cost(int qubits) { return qubits * std::ldexp(1.0, qubits); }
+
 InstanceOutcome evaluate_instance(const Instance& instance, std::size_t set_index, const Schedule& schedule,
                                   const EnsembleSettings& settings) {
   const auto t0 = std::chrono::steady_clock::now();
@@ -248,6 +250,8 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
   });
 
   std::size_t done = known.size();
+  double cost_total = 0, cost_done = 0;
+  for (std::size_t i : pending) cost_total += instance_cost(run.set.instances[i].problem.qubits);
   auto task = [&](std::size_t i) {
     return bytes_of(evaluate_instance(run.set.instances.at(i), i, run.schedule, run.settings).to_values());
   };
@@ -258,12 +262,15 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
     auto it = known.insert_or_assign(i, std::move(o)).first;
     ++done;
     ++r.computed;
+    cost_done += instance_cost(run.set.instances.at(i).problem.qubits);
     if (run.progress) {
       EnsembleProgress p;
       p.done = done;
       p.total = mine.size();
       p.last = &it->second;
       p.elapsed_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+      p.cost_done = cost_done;
+      p.cost_total = cost_total;
       run.progress(p);
     }
   };

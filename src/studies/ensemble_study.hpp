@@ -119,7 +119,17 @@ struct EnsembleProgress {
   std::size_t done = 0, total = 0;  ///< this run's instances (resumed ones count as done)
   const InstanceOutcome* last = nullptr;
   double elapsed_seconds = 0;
+  /// Estimated work (n 2^n per instance) computed so far and to compute in this run,
+  /// resumed instances left out: the time left is about
+  /// elapsed_seconds * (cost_total - cost_done) / cost_done, which a plain count
+  /// overestimates many times since the largest instances go first.
+  double cost_done = 0, cost_total = 0;
+  double seconds_left() const { return cost_done > 0 ? elapsed_seconds * (cost_total - cost_done) / cost_done : 0; }
 };
+
+/// The relative cost the work order and the progress estimate use: n 2^n (one
+/// sweep of the transverse-field term touches n 2^n amplitudes).
+double instance_cost(int qubits);
 
 struct EnsembleRun {
   const InstanceSet& set;
