@@ -25,36 +25,40 @@ std::vector<fs::path> inputs_in(const std::string& parser) {
   std::sort(out.begin(), out.end());
   return out;
 }
+
+// Every saved input of `parser` through its contract check.
+template <class Check>
+void replay(const std::string& parser, Check check) {
+  const auto files = inputs_in(parser);
+  CHECK(!files.empty());
+  for (const auto& f : files) {
+    INFO("input: " << f.string());
+    const std::string bytes = read_text_file(f.string());
+    CHECK_NOTHROW(check(bytes));
+  }
+}
 }  // namespace
 
 TEST_CASE("saved fuzz inputs for the problem parser keep the parser contract") {
-  const auto files = inputs_in("problem");
-  CHECK(!files.empty());
-  for (const auto& f : files) {
-    INFO("input: " << f.string());
-    const std::string text = read_text_file(f.string());
-    CHECK_NOTHROW(fuzzing::check_problem_input(text));
-  }
+  replay("problem", [](const std::string& b) { fuzzing::check_problem_input(b); });
 }
 
 TEST_CASE("saved fuzz inputs for the schedule parser keep the parser contract") {
-  const auto files = inputs_in("schedule");
-  CHECK(!files.empty());
-  for (const auto& f : files) {
-    INFO("input: " << f.string());
-    const std::string text = read_text_file(f.string());
-    CHECK_NOTHROW(fuzzing::check_schedule_input(text));
-  }
+  replay("schedule", [](const std::string& b) { fuzzing::check_schedule_input(b); });
 }
 
 TEST_CASE("saved fuzz inputs for the embedding parser keep the parser contract") {
-  const auto files = inputs_in("embedding");
-  CHECK(!files.empty());
-  for (const auto& f : files) {
-    INFO("input: " << f.string());
-    const std::string text = read_text_file(f.string());
-    CHECK_NOTHROW(fuzzing::check_embedding_input(text));
-  }
+  replay("embedding", [](const std::string& b) { fuzzing::check_embedding_input(b); });
+}
+
+TEST_CASE("saved fuzz inputs for the instance-set reader keep the reader contract") {
+  // Each file is a fuzz input: its first byte picks raw (even) or re-sealed (odd).
+  replay("instance-set", [](const std::string& b) { fuzzing::check_instance_set_input(b); });
+}
+
+TEST_CASE("saved fuzz inputs for the result journal reader keep the reader contract") {
+  // First byte: 0 mod 3 raw, 1 header + recomputed checksums, 2 header + raw lines.
+  replay("journal", [](const std::string& b) { fuzzing::check_journal_input(b); });
 }
 
 TEST_CASE("the contract check itself catches a broken round trip and a foreign exception") {

@@ -84,3 +84,25 @@ TEST_CASE("journals of other inputs or other studies are refused, and a journal 
   const std::string notj = dir.write("plain.txt", "hello\n").string();
   CHECK_THROWS_AS(ResultJournal(notj, layout(), input_fingerprint({"p"})), InputError);
 }
+
+TEST_CASE("parse_journal_text: records from text, NaN refused, a damaged middle line named by its line") {
+  const auto fp = input_fingerprint({"p"});
+  const std::string head = journal_header(layout(), fp);
+  const std::string a = journal_record_line({1, 2}, {0.5, std::numeric_limits<double>::infinity()});
+  const std::string b = journal_record_line({3, 4}, {0.25, 7});
+  const JournalContents c = parse_journal_text(head + a + b, "x.journal", layout(), fp);
+  REQUIRE(c.records.size() == 2);
+  CHECK(c.valid_bytes == head.size() + a.size() + b.size());
+  CHECK(std::isinf(c.records.at({1, 2}).at(1)));  // an infinite time-to-solution (p = 0) is a value
+  // A NaN is no value any study journals: a NaN line with a good checksum is
+  // damaged (dropped at the end, refused in the middle).
+  const std::string nan_line = journal_record_line({5, 6}, {std::nan(""), 1});
+  CHECK(parse_journal_text(head + a + nan_line, "x.journal", layout(), fp).records.size() == 1);
+  try {
+    (void)parse_journal_text(head + nan_line + b, "x.journal", layout(), fp);
+    FAIL("a NaN record in the middle was accepted");
+  } catch (const InputError& e) {
+    CHECK(e.place().file == "x.journal");
+    CHECK(e.place().line == 3);
+  }
+}

@@ -1,6 +1,7 @@
 #include "io/result_journal.hpp"
 
 #include <cerrno>
+#include <cmath>
 #include <cstdint>
 #include <cstdlib>
 #include <cstring>
@@ -29,19 +30,25 @@ std::string join(const std::vector<std::string>& v) {
   return s;
 }
 
-std::string header_line(const JournalLayout& l, const std::string& fp) {
+}  // namespace
+
+std::string journal_header(const JournalLayout& l, const std::string& fp) {
   return fmt::format("# gapwise-journal 1 kind={} fingerprint={}\n# keys: {}  values: {}\n", l.kind, fp,
                      join(l.key_columns), join(l.value_columns));
 }
 
-std::string record_line(const std::vector<double>& key, const std::vector<double>& values) {
+std::string journal_record_line(const std::vector<double>& key, const std::vector<double>& values) {
   std::string body;
   for (double x : key) body += fmt::format("{}{:a}", body.empty() ? "" : " ", x);
   for (double x : values) body += fmt::format(" {:a}", x);
   return fmt::format("{} *{:016x}\n", body, fnv1a(body));
 }
 
-// Parses one record line (without its newline); false when malformed.
+namespace {
+
+// Parses one record line (without its newline); false when malformed. A NaN is
+// malformed: no study journals one, and a NaN key would break the ordering of
+// the record map.
 bool parse_record(const std::string& line, std::size_t nkeys, std::size_t nvalues, std::vector<double>& key,
                   std::vector<double>& values) {
   const auto star = line.rfind(" *");
@@ -53,7 +60,7 @@ bool parse_record(const std::string& line, std::size_t nkeys, std::size_t nvalue
   while (*p) {
     char* end = nullptr;
     const double x = std::strtod(p, &end);
-    if (end == p) return false;
+    if (end == p || std::isnan(x)) return false;
     nums.push_back(x);
     p = end;
     while (*p == ' ') ++p;
@@ -88,6 +95,44 @@ std::string input_fingerprint(const std::vector<std::string>& parts) {
 
 std::string journal_path_for(const std::string& result_path) { return result_path + ".journal"; }
 
+JournalContents parse_journal_text(std::string_view text, const std::string& path, const JournalLayout& layout,
+                                   const std::string& fingerprint) {
+  JournalContents out;
+  const std::string header = journal_header(layout, fingerprint);
+  if (text.empty() || (text.size() < header.size() && header.compare(0, text.size(), text) == 0))
+    return out;  // new journal (or one killed while writing its header)
+  if (text.compare(0, 17, "# gapwise-journal") != 0)
+    throw InputError({path, 1, 1, "journal"}, "this file is not a gapwise journal",
+                     "remove it or choose another output file; gapwise keeps its journal beside the result file");
+  const std::string first(text.substr(0, text.find('\n')));
+  if (first.find(fmt::format("kind={} ", layout.kind)) == std::string::npos)
+    throw InputError({path, 1, 1, "journal"}, fmt::format("this journal belongs to another kind of study ({})", first),
+                     "choose another output file, or delete the journal to start afresh");
+  if (text.compare(0, header.size(), header) != 0)
+    throw InputError({path, 1, 1, "journal"},
+                     "this journal was written for other inputs (problem, schedule or numerical options "
+                     "changed since), so its points cannot be reused",
+                     fmt::format("delete '{}' to start afresh, or write to another output file", path));
+  std::size_t keep = header.size();
+  int line_no = 3;
+  std::vector<double> key, values;
+  while (keep < text.size()) {
+    const auto end = text.find('\n', keep);
+    if (end == std::string_view::npos) break;  // torn last line: dropped
+    if (!parse_record(std::string(text.substr(keep, end - keep)), layout.key_columns.size(),
+                      layout.value_columns.size(), key, values)) {
+      if (end + 1 >= text.size()) break;  // damaged last line (killed mid-write): dropped
+      throw InputError({path, line_no, 1, "journal"}, "a record in the middle of the journal is damaged",
+                       fmt::format("delete '{}' to start afresh", path));
+    }
+    out.records[key] = values;
+    keep = end + 1;
+    ++line_no;
+  }
+  out.valid_bytes = keep;
+  return out;
+}
+
 ResultJournal::ResultJournal(std::string path, JournalLayout layout, std::string fingerprint)
     : path_(std::move(path)), layout_(std::move(layout)), fingerprint_(std::move(fingerprint)) {
   fd_ = ::open(path_.c_str(), O_RDWR | O_CREAT | O_CLOEXEC, 0644);
@@ -112,42 +157,9 @@ ResultJournal::ResultJournal(std::string path, JournalLayout layout, std::string
       if (r == 0) break;
       text.append(buf, static_cast<std::size_t>(r));
     }
-    const std::string header = header_line(layout_, fingerprint_);
-    std::size_t keep = 0;  // bytes of valid content
-    if (text.empty() || (text.size() < header.size() && header.compare(0, text.size(), text) == 0)) {
-      keep = 0;  // new journal (or one killed while writing its header)
-    } else {
-      if (text.compare(0, 17, "# gapwise-journal") != 0)
-        throw InputError({path_, 1, 1, "journal"}, "this file is not a gapwise journal",
-                         "remove it or choose another output file; gapwise keeps its journal beside the result file");
-      const auto nl = text.find('\n');
-      const std::string first = text.substr(0, nl);
-      if (first.find(fmt::format("kind={} ", layout_.kind)) == std::string::npos)
-        throw InputError({path_, 1, 1, "journal"},
-                         fmt::format("this journal belongs to another kind of study ({})", first),
-                         "choose another output file, or delete the journal to start afresh");
-      if (text.compare(0, header.size(), header) != 0)
-        throw InputError({path_, 1, 1, "journal"},
-                         "this journal was written for other inputs (problem, schedule or numerical options "
-                         "changed since), so its points cannot be reused",
-                         fmt::format("delete '{}' to start afresh, or write to another output file", path_));
-      keep = header.size();
-      int line_no = 3;
-      std::vector<double> key, values;
-      while (keep < text.size()) {
-        const auto end = text.find('\n', keep);
-        if (end == std::string::npos) break;  // torn last line: dropped
-        if (!parse_record(text.substr(keep, end - keep), layout_.key_columns.size(), layout_.value_columns.size(), key,
-                          values)) {
-          if (text.find('\n', end + 1) == std::string::npos && end + 1 >= text.size()) break;  // damaged last line
-          throw InputError({path_, line_no, 1, "journal"}, "a record in the middle of the journal is damaged",
-                           fmt::format("delete '{}' to start afresh", path_));
-        }
-        records_[key] = values;
-        keep = end + 1;
-        ++line_no;
-      }
-    }
+    JournalContents contents = parse_journal_text(text, path_, layout_, fingerprint_);
+    records_ = std::move(contents.records);
+    const std::size_t keep = contents.valid_bytes;
     resumed_ = records_.size();
     if (keep < text.size() || keep == 0) {
       if (::ftruncate(fd_, static_cast<off_t>(keep)) != 0)
@@ -155,7 +167,7 @@ ResultJournal::ResultJournal(std::string path, JournalLayout layout, std::string
     }
     if (::lseek(fd_, static_cast<off_t>(keep), SEEK_SET) < 0)
       throw std::runtime_error(fmt::format("cannot seek in the journal '{}': {}", path_, std::strerror(errno)));
-    if (keep == 0) write_all(fd_, header, path_);
+    if (keep == 0) write_all(fd_, journal_header(layout_, fingerprint_), path_);
   } catch (...) {
     ::close(fd_);
     fd_ = -1;
@@ -188,7 +200,7 @@ void ResultJournal::append(const std::vector<double>& key, const std::vector<dou
   if (key.size() != layout_.key_columns.size() || values.size() != layout_.value_columns.size())
     throw std::invalid_argument(fmt::format("journal record has {} keys and {} values, the layout {} and {}", key.size(),
                                             values.size(), layout_.key_columns.size(), layout_.value_columns.size()));
-  const std::string line = record_line(key, values);
+  const std::string line = journal_record_line(key, values);
   std::lock_guard<std::mutex> lock(mutex_);
   write_all(fd_, line, path_);
   records_[key] = values;

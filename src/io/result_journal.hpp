@@ -34,6 +34,7 @@
 #include <mutex>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 namespace gapwise {
@@ -76,6 +77,25 @@ class ResultJournal {
   mutable std::mutex mutex_;
   std::map<std::vector<double>, std::vector<double>> records_;
 };
+
+/// What a journal's text holds for a study with this layout and fingerprint:
+/// the records of every whole, intact line (a torn or damaged last line is
+/// dropped) and how many leading bytes are valid (0 for a new journal). Throws
+/// InputError (the path, line and what to do) for a file that is no journal,
+/// belongs to another study or other inputs, or is damaged in the middle.
+/// ResultJournal reads its file with it; the fuzz target calls it directly.
+///
+///   JournalContents c = parse_journal_text(text, "sweep.h5.journal", layout, fingerprint);
+struct JournalContents {
+  std::map<std::vector<double>, std::vector<double>> records;
+  std::size_t valid_bytes = 0;
+};
+JournalContents parse_journal_text(std::string_view text, const std::string& path, const JournalLayout& layout,
+                                   const std::string& fingerprint);
+/// The two header lines a journal opens with.
+std::string journal_header(const JournalLayout& layout, const std::string& fingerprint);
+/// One record line (hexadecimal floats, checksum, newline).
+std::string journal_record_line(const std::vector<double>& key, const std::vector<double>& values);
 
 /// 16 hex digits (FNV-1a, 64 bit) over the parts, each length-prefixed, so that
 /// ("ab", "c") and ("a", "bc") differ. Not cryptographic: it detects changed

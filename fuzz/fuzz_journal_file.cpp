@@ -1,0 +1,14 @@
+// libFuzzer target for the result journal reader (parse_journal_text).
+// Build with -DGAPWISE_FUZZ=ON and clang; run with scripts/fuzz.sh (see DEVELOPERS.md):
+//
+//   bash scripts/fuzz.sh 60 journal
+#include <cstddef>
+#include <cstdint>
+#include <string_view>
+
+#include "parser_checks.hpp"
+
+extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
+  gapwise::fuzzing::check_journal_input(std::string_view(reinterpret_cast<const char*>(data), size));
+  return 0;
+}
