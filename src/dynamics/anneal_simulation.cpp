@@ -61,7 +61,9 @@ AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundMa
                              const EnergyScales& scales, const AnnealPath& path, QuantumState psi,
                              const SimulationOptions& options, const std::vector<AnnealObserver*>& observers) {
   const auto t_start = std::chrono::steady_clock::now();
-  auto prop = make_propagator(options.propagator, h, options.propagation);
+  PropagatorOptions popt = options.propagation;
+  if (popt.watched_states.empty()) popt.watched_states.assign(ground.states.begin(), ground.states.end());
+  auto prop = make_propagator(options.propagator, h, popt);
   AnnealDrive drive{&scales, path};
   AnnealResult r;
   r.duration_ns = path.duration_ns();

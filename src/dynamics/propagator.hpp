@@ -21,6 +21,13 @@ struct PropagatorOptions {
   /// probabilities) at the end. Each propagator maps it to its own step control
   /// and the anneal driver checks it by a re-run at tolerance/10.
   double tolerance = 1e-6;
+  /// The outcome set whose summed probability the step control holds to
+  /// `tolerance` (simulate_anneal passes the ground manifold, so this is p).
+  /// Every other outcome probability, and that of any set of outcomes, is held
+  /// to `others_factor` x tolerance. Empty: every outcome set to the tolerance.
+  /// Propagators without a probability control (odeint) ignore both.
+  std::vector<std::size_t> watched_states;
+  double others_factor = 100.0;
 };
 
 struct PropagationStats {

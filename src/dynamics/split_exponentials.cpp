@@ -189,6 +189,13 @@ double SplitState::probability_distance(const SplitState& other) const {
   return 0.5 * sum;
 }
 
+double SplitState::probability_of(const std::vector<std::size_t>& states) const {
+  const double *r = re.data(), *i = im.data();
+  double sum = 0.0;
+  for (const std::size_t b : states) sum += r[b] * r[b] + i[b] * i[b];
+  return sum;
+}
+
 SplitExponentials::SplitExponentials(const TransverseIsingHamiltonian& h)
     : h_(&h), n_(h.qubits()), dim_(h.dim()) {
   const std::vector<double>& d = h.diagonal();

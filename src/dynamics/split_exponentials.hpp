@@ -71,6 +71,8 @@ struct SplitState {
   /// the outcome distributions, the largest difference of the probability of any
   /// set of basis states (the ground manifold among them).
   double probability_distance(const SplitState& other) const;
+  /// Summed probability of the given basis states (indices < dim()).
+  double probability_of(const std::vector<std::size_t>& states) const;
 };
 
 /// Not to be shared between threads (it keeps per-call scratch tables); each

@@ -23,20 +23,25 @@
 // sees. A local amplitude-error control would therefore take several times the
 // steps the probabilities need. Instead, at the first call the propagator
 // runs the rest of the path twice, with N and N/2 uniform steps per piece
-// (lockstep, from one start), and estimates the error of the finer run as
+// (pieces: the path's linear pieces cut at the energy-scale table's knots, so
+// no step straddles a kink of A or B), from one start, and estimates the
+// error of the finer run from two differences of the finals,
 //
-//   err = TV(fine, coarse) / (r - 1),   TV = (1/2) sum_b | p_fine(b) - p_coarse(b) |
+//   d_p = | p_fine(W) - p_coarse(W) |   (W: PropagatorOptions::watched_states,
+//                                        the ground manifold in simulate_anneal)
+//   TV  = (1/2) sum_b | p_fine(b) - p_coarse(b) |
 //
-// (TV bounds the difference of the probability of any set of outcomes, so err
-// is an estimate for the ground-state probability and every other one). r is
-// the measured ratio of successive differences, capped at 2^p (Richardson);
-// while only one difference exists r = 2, i.e. err = TV. N is doubled until
-// err <= tolerance / 2. The run the caller sees then replays the
+// as err = d / (r - 1) each (TV bounds the difference of the probability of
+// any set of outcomes). r is the measured ratio of successive differences,
+// capped at 2^p (Richardson); while only one difference exists r = 2, i.e.
+// err = d. Accepted when err_p <= tolerance/2 and err_TV <= others_factor x
+// tolerance/2 (nothing watched: err_TV <= tolerance/2); else N doubles. The
+// run the caller sees then replays the
 // accepted fine run on the same grid (bit for bit, so the estimate is its
 // own); states at the path's waypoints are kept from the pilot, so a run
 // without interior observations costs the pilot only, and an observation off
 // the grid is a side branch that does not perturb the main trajectory.
-// PropagationStats::error_estimate receives err.
+// PropagationStats::error_estimate receives err_p (err_TV when nothing is watched).
 //
 //   auto prop = make_propagator("split4", H, {.tolerance = 1e-6});
 //   prop->advance(drive, 0.0, 100.0, psi, stats);   // stats.error_estimate <= 5e-7
@@ -75,6 +80,9 @@ class SplitOperatorPropagator final : public Propagator {
   double flip_energy_max() const { return flip_max_; }
   /// Uniform steps per ns of the accepted grid (0 before the first advance()).
   double accepted_steps_per_ns() const;
+  /// Error estimate of the last accepted grid for any set of outcomes (from
+  /// TV); the watched set's estimate goes to PropagationStats::error_estimate.
+  double others_error_estimate() const { return others_error_; }
 
  private:
   struct Piece {
@@ -93,6 +101,7 @@ class SplitOperatorPropagator final : public Propagator {
   SplitComposition composition_;
   std::vector<double> weights_;
   double flip_max_ = 0.0;
+  double others_error_ = 0.0;
   // The accepted grid and the main trajectory on it.
   bool ready_ = false;
   std::vector<Piece> pieces_;
