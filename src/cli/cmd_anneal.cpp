@@ -116,7 +116,7 @@ void run_anneal(const AnnealOptions& o) {
                              o.tolerance, r.stats.steps, r.stats.hamiltonian_applications, r.wall_seconds);
     std::cout << fmt::format("error est.   {:.1e} ({})\n", r.stats.error_estimate,
                              r.propagator == "odeint" ? "sum of local error estimates, amplitudes"
-                                                      : "largest error of any outcome probability, step doubling");
+                                                      : "of p, step doubling; other outcome probabilities to 100x the tolerance");
     std::cout << fmt::format("\nground-state probability  {:.8f}\n", r.ground_probability);
     if (delta_p)
       std::cout << fmt::format("convergence               |dp| = {:.1e} when the tolerance is tightened tenfold{}\n", *delta_p,
