@@ -135,7 +135,10 @@ void run_compare(const CompareOptions& o) {
     for (std::size_t i = 0; i < ni; ++i) {
       // Each path's waypoints (fractions of the duration), so the file says what ran.
       std::vector<double> wt, ws;
-      for (const auto& w : cands[i].schedule.shape.scaled_to(1.0).points()) { wt.push_back(w.t_ns); ws.push_back(w.s); }
+      // The scaled path is kept in a variable: a range-for over points() of the
+      // temporary would read it after its lifetime ended (found by ASan).
+      const AnnealPath unit = cands[i].schedule.shape.scaled_to(1.0);
+      for (const auto& w : unit.points()) { wt.push_back(w.t_ns); ws.push_back(w.s); }
       h5.write(fmt::format("/compare/path_{}/waypoint_time_fraction", i), wt, "1");
       h5.write(fmt::format("/compare/path_{}/waypoint_s", i), ws, "1");
       h5.attribute(fmt::format("/compare/path_{}", i), "name", r.names[i]);
