@@ -20,6 +20,7 @@
 #include "io/hdf5_input.hpp"
 #include "test_support.hpp"
 
+using gapwise::testing::journal_records;
 using gapwise::testing::run_gapwise;
 using gapwise::testing::source_dir;
 using gapwise::testing::TempDir;
@@ -27,15 +28,6 @@ using gapwise::testing::TempDir;
 namespace {
 
 std::string sample(const char* rel) { return (source_dir() / rel).string(); }
-
-int journal_records(const std::filesystem::path& p) {
-  std::ifstream f(p);
-  std::string line;
-  int n = 0;
-  while (std::getline(f, line))
-    if (!line.empty() && line[0] != '#') ++n;
-  return n;
-}
 
 std::string quoted(const std::vector<std::string>& args) {
   std::string s;
@@ -59,33 +51,15 @@ void check_kill_and_resume(const std::vector<std::string>& args, const std::vect
   REQUIRE(total >= 6);
   const int kill_after = total / 2;
 
-  std::vector<std::string> argv_s{gapwise::testing::gapwise_exe()};
-  argv_s.insert(argv_s.end(), args.begin(), args.end());
-  argv_s.insert(argv_s.end(), {"--out", out.string()});
-  std::vector<char*> argv;
-  for (auto& a : argv_s) argv.push_back(a.data());
-  argv.push_back(nullptr);
-  const pid_t pid = ::fork();
-  REQUIRE(pid >= 0);
-  if (pid == 0) {
-    std::freopen("/dev/null", "w", stdout);
-    std::freopen("/dev/null", "w", stderr);
-    ::execv(argv[0], argv.data());
-    ::_exit(127);
-  }
-  bool finished_early = false;
-  const auto deadline = std::chrono::steady_clock::now() + std::chrono::minutes(5);
-  while (journal_records(journal) < kill_after && std::chrono::steady_clock::now() < deadline) {
-    int st = 0;
-    if (::waitpid(pid, &st, WNOHANG) == pid) { finished_early = true; break; }
-    std::this_thread::sleep_for(std::chrono::milliseconds(2));
-  }
-  REQUIRE_FALSE(finished_early);
-  REQUIRE(::kill(pid, SIGKILL) == 0);
-  int status = 0;
-  REQUIRE(::waitpid(pid, &status, 0) == pid);
-  CHECK(WIFSIGNALED(status));
-  CHECK(WTERMSIG(status) == SIGKILL);
+  std::vector<std::string> child_args = args;
+  child_args.insert(child_args.end(), {"--out", out.string()});
+  const auto killed =
+      gapwise::testing::run_and_kill_when_journaled(child_args, journal, kill_after, std::chrono::milliseconds(2));
+  REQUIRE_FALSE(killed.finished_early);
+  REQUIRE(killed.kill_sent);
+  REQUIRE(killed.reaped);
+  CHECK(WIFSIGNALED(killed.status));
+  CHECK(WTERMSIG(killed.status) == SIGKILL);
   const int done_at_kill = journal_records(journal);
   MESSAGE("killed with " << done_at_kill << " of " << total << " points journaled");
   REQUIRE(done_at_kill >= kill_after);
