@@ -52,6 +52,11 @@ EnergyScales read_scales(const TomlReader& r, const toml::table* t) {
         r.fail(a->get(k), key, fmt::format("s = {} is outside [0, 1]", cols[0][k]), "use s between 0 and 1");
       if (c == 0 && k > 0 && !(cols[0][k] > cols[0][k - 1]))
         r.fail(a->get(k), key, "s values must increase strictly", "sort the table by s and remove repeats");
+      // Closer points make the interpolant's slopes overflow (found by fuzzing: s = 0 then 5e-324).
+      if (c == 0 && k > 0 && cols[0][k] - cols[0][k - 1] < 1e-9)
+        r.fail(a->get(k), key,
+               fmt::format("s = {} lies within 1e-9 of the previous point {}", cols[0][k], cols[0][k - 1]),
+               "table points must be at least 1e-9 apart in s: merge or remove the near-duplicate");
       if (c > 0) check_scale(r, a->get(k), key, cols[c][k]);
     }
   }
