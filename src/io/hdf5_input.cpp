@@ -8,6 +8,7 @@
 #include <unistd.h>
 
 #include "io/hdf5_seal.hpp"
+#include "io/hdf5_transfer.hpp"
 #include "io/input_error.hpp"
 #include "io/toml_reader.hpp"
 
@@ -187,7 +188,7 @@ std::vector<std::string> Hdf5Input::read_strings(const std::string& dataset, std
       fail(dataset, "expected variable-length strings", kRewrite);
     std::vector<char*> raw(n, nullptr);
     H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
-    if (n) ds.read(raw.data(), st);
+    if (n) ds.read(raw.data(), st, H5::DataSpace::ALL, H5::DataSpace::ALL, small_conversion_buffer());
     std::vector<std::string> out;
     for (char* c : raw) out.emplace_back(c ? c : "");
     if (n) H5Dvlen_reclaim(st.getId(), ds.getSpace().getId(), H5P_DEFAULT, raw.data());

@@ -14,6 +14,7 @@
 #include "gapwise_version.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_seal.hpp"
+#include "io/hdf5_transfer.hpp"
 
 namespace gapwise {
 
@@ -28,6 +29,7 @@ struct Hdf5Output::Impl {
   std::string final_path, image_name, sealed_format;
   std::unique_ptr<H5::H5File> file;
   bool committed = false;
+  bool permit_non_finite = false;
 
   // Runs fn; an HDF5 failure becomes a std::runtime_error naming the file and
   // what was being written (H5::Exception is not a std::exception).
@@ -102,7 +104,7 @@ void Hdf5Output::write(const std::string& path, const std::vector<double>& v, co
 
 void Hdf5Output::write_matrix(const std::string& path, const std::vector<double>& v, std::size_t rows,
                               std::size_t cols, const std::string& unit) {
-  check_finite(path, v);
+  if (!impl_->permit_non_finite) check_finite(path, v);
   group(parent_of(path));
   if (rows * cols != v.size())
     throw std::logic_error(fmt::format("'{}': {} values for a {} x {} matrix", path, v.size(), rows, cols));
@@ -135,7 +137,7 @@ void Hdf5Output::write_strings(const std::string& path, const std::vector<std::s
     H5::DataSpace space(1, dims);
     H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
     H5::DataSet ds = impl_->file->createDataSet(path, st, space);
-    if (!v.empty()) ds.write(ptrs.data(), st);
+    if (!v.empty()) ds.write(ptrs.data(), st, H5::DataSpace::ALL, H5::DataSpace::ALL, small_conversion_buffer());
   });
 }
 
@@ -161,7 +163,7 @@ void Hdf5Output::attribute(const std::string& object, const std::string& name, c
 }
 
 void Hdf5Output::attribute(const std::string& object, const std::string& name, double value) {
-  if (!std::isfinite(value))
+  if (!std::isfinite(value) && !impl_->permit_non_finite)
     throw std::runtime_error(fmt::format("refusing to write a non-finite number into '{}@{}'", object, name));
   if (object != "/") group(object);  // creates missing parents too
   impl_->guarded("attribute '" + object + "@" + name + "'", [&] { with_object(*impl_->file, object, [&](H5::H5Object& o) {
@@ -176,7 +178,9 @@ void Hdf5Output::attribute(const std::string& object, const std::string& name, l
   }); });
 }
 
-void Hdf5Output::commit() {
+void Hdf5Output::permit_non_finite() { impl_->permit_non_finite = true; }
+
+std::string Hdf5Output::finish_image() {
   std::string image = impl_->guarded("the file image", [&] {
     impl_->file->flush(H5F_SCOPE_GLOBAL);
     const ssize_t size = H5Fget_file_image(impl_->file->getId(), nullptr, 0);
@@ -190,7 +194,11 @@ void Hdf5Output::commit() {
   impl_->file.reset();
   impl_->committed = true;
   if (!impl_->sealed_format.empty()) image.insert(0, hdf5_seal_header(image, impl_->sealed_format));
-  write_file_atomically(impl_->final_path, image);  // temporary, fsync, rename; nothing partial is left
+  return image;
+}
+
+void Hdf5Output::commit() {
+  write_file_atomically(impl_->final_path, finish_image());  // temporary, fsync, rename; nothing partial is left
 }
 
 void write_provenance(Hdf5Output& out, const std::string& command_line, const std::vector<std::string>& inputs) {

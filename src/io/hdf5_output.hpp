@@ -39,6 +39,14 @@ class Hdf5Output {
   void attribute(const std::string& object, const std::string& name, double value);
   void attribute(const std::string& object, const std::string& name, long long value);
   void commit();
+  /// Closes the file and returns its bytes (sealed when a format was given)
+  /// instead of writing them; the target is left untouched. For tests and
+  /// fuzzing, which need a file image in memory.
+  std::string finish_image();
+  /// Lets NaN and infinities through (refused by default: gapwise never writes
+  /// them). Only for tests and fuzzing that must build the files another HDF5
+  /// client could write, to check that gapwise's readers refuse them.
+  void permit_non_finite();
 
  private:
   struct Impl;
