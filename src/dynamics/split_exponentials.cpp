@@ -1,6 +1,7 @@
 #include "dynamics/split_exponentials.hpp"
 
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <cstdlib>
 #include <new>
@@ -12,8 +13,14 @@ namespace {
 // States this large are shared between OpenMP threads (2^18 amplitudes = 4 MiB
 // as two double arrays); below, thread start-up and the barriers between
 // passes (which stall when the cores are shared with other work) cost more
-// than they save.
-constexpr std::size_t kParallelDim = std::size_t{1} << 18;
+// than they save. Settable (SplitExponentials::set_parallel_threshold) so tests
+// reach the threaded code with small states.
+std::atomic<std::size_t> g_parallel_dim{std::size_t{1} << 18};
+
+// Sums are taken over fixed blocks of this many amplitudes, then added in block
+// order, so they have the same bits whatever the number of threads (an OpenMP
+// reduction's order depends on it).
+constexpr std::size_t kSumBlock = std::size_t{1} << 12;
 
 // Exact rotation cos(theta) + i sin(theta) sigma^x on the pairs (lo[k], hi[k]),
 // k < len; lo and hi are disjoint contiguous ranges.
@@ -100,7 +107,30 @@ inline void for_each_index(std::size_t count, bool parallel, const F& f) {
   }
 }
 
+// sum_k term(k) for k < n in kSumBlock blocks added in order (see kSumBlock).
+template <class F>
+double ordered_sum(std::size_t n, const F& term) {
+  const std::size_t blocks = (n + kSumBlock - 1) / kSumBlock;
+  std::vector<double> partial(blocks, 0.0);
+  for_each_index(blocks, n >= g_parallel_dim.load(std::memory_order_relaxed), [&](std::size_t b) {
+    const std::size_t end = std::min(n, (b + 1) * kSumBlock);
+    double sum = 0.0;
+#pragma omp simd reduction(+ : sum)
+    for (std::size_t k = b * kSumBlock; k < end; ++k) sum += term(k);
+    partial[b] = sum;
+  });
+  double total = 0.0;
+  for (const double x : partial) total += x;
+  return total;
+}
+
 }  // namespace
+
+void SplitExponentials::set_parallel_threshold(std::size_t dim) {
+  g_parallel_dim.store(std::max<std::size_t>(dim, 1), std::memory_order_relaxed);
+}
+
+std::size_t SplitExponentials::parallel_threshold() { return g_parallel_dim.load(std::memory_order_relaxed); }
 
 AlignedBuffer::AlignedBuffer(std::size_t n) : n_(n) {
   if (n == 0) return;
@@ -148,45 +178,32 @@ void SplitState::copy_from(const SplitState& other) {
 
 double SplitState::distance(const SplitState& other) const {
   const double *ar = re.data(), *ai = im.data(), *br = other.re.data(), *bi = other.im.data();
-  double sum = 0.0;
-  const std::size_t n = dim();
-#pragma omp parallel for simd reduction(+ : sum) if (n >= kParallelDim) schedule(static)
-  for (std::size_t k = 0; k < n; ++k) {
+  return std::sqrt(ordered_sum(dim(), [=](std::size_t k) {
     const double dr = ar[k] - br[k], di = ai[k] - bi[k];
-    sum += dr * dr + di * di;
-  }
-  return std::sqrt(sum);
+    return dr * dr + di * di;
+  }));
 }
 
 double SplitState::distance_up_to_phase(const SplitState& other) const {
   const double *ar = re.data(), *ai = im.data(), *br = other.re.data(), *bi = other.im.data();
   const std::size_t n = dim();
   // z = <other|this>; the best phase is z / |z|.
-  double zr = 0.0, zi = 0.0;
-#pragma omp parallel for simd reduction(+ : zr, zi) if (n >= kParallelDim) schedule(static)
-  for (std::size_t k = 0; k < n; ++k) {
-    zr += br[k] * ar[k] + bi[k] * ai[k];
-    zi += br[k] * ai[k] - bi[k] * ar[k];
-  }
+  const double zr = ordered_sum(n, [=](std::size_t k) { return br[k] * ar[k] + bi[k] * ai[k]; });
+  const double zi = ordered_sum(n, [=](std::size_t k) { return br[k] * ai[k] - bi[k] * ar[k]; });
   const double mod = std::hypot(zr, zi);
   const double cr = mod > 0.0 ? zr / mod : 1.0, ci = mod > 0.0 ? zi / mod : 0.0;
-  double sum = 0.0;
-#pragma omp parallel for simd reduction(+ : sum) if (n >= kParallelDim) schedule(static)
-  for (std::size_t k = 0; k < n; ++k) {
+  return std::sqrt(ordered_sum(n, [=](std::size_t k) {
     const double dr = ar[k] - (cr * br[k] - ci * bi[k]);
     const double di = ai[k] - (cr * bi[k] + ci * br[k]);
-    sum += dr * dr + di * di;
-  }
-  return std::sqrt(sum);
+    return dr * dr + di * di;
+  }));
 }
 
 double SplitState::probability_distance(const SplitState& other) const {
   const double *ar = re.data(), *ai = im.data(), *br = other.re.data(), *bi = other.im.data();
-  const std::size_t n = dim();
-  double sum = 0.0;
-#pragma omp parallel for simd reduction(+ : sum) if (n >= kParallelDim) schedule(static)
-  for (std::size_t k = 0; k < n; ++k) sum += std::abs(ar[k] * ar[k] + ai[k] * ai[k] - br[k] * br[k] - bi[k] * bi[k]);
-  return 0.5 * sum;
+  return 0.5 * ordered_sum(dim(), [=](std::size_t k) {
+    return std::abs(ar[k] * ar[k] + ai[k] * ai[k] - br[k] * br[k] - bi[k] * bi[k]);
+  });
 }
 
 double SplitState::probability_of(const std::vector<std::size_t>& states) const {
@@ -263,7 +280,7 @@ void SplitExponentials::phase(SplitState& psi, double phi) const {
   const std::size_t chunks = dim_ / chunk;
   double* re = psi.re.data();
   double* im = psi.im.data();
-  for_each_index(chunks, dim_ >= kParallelDim,
+  for_each_index(chunks, dim_ >= parallel_threshold(),
                  [&](std::size_t c) { phase_block(re, im, c * chunk, chunk, cs, sn, phi); });
 }
 
@@ -283,7 +300,7 @@ void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi,
   const std::size_t blocks = dim_ / block;
   double* re = psi.re.data();
   double* im = psi.im.data();
-  const bool parallel = dim_ >= kParallelDim;
+  const bool parallel = dim_ >= parallel_threshold();
   // Low qubits: each block is rotated while it is in L1 (after its phase).
   for_each_index(blocks, parallel, [&](std::size_t bk) {
     if (with_phase) phase_block(re, im, bk * block, block, cs, sn, phi);

@@ -84,6 +84,13 @@ class SplitExponentials {
 
   explicit SplitExponentials(const TransverseIsingHamiltonian& h);
 
+  /// States of at least this many amplitudes are shared among OpenMP threads
+  /// (default 2^18). Results have the same bits for any thread count: sweeps
+  /// write disjoint amplitudes, and SplitState's sums add fixed blocks in order.
+  /// Process-wide; for tests and benchmarks.
+  static void set_parallel_threshold(std::size_t dim);
+  static std::size_t parallel_threshold();
+
   int qubits() const { return n_; }
   std::size_t dim() const { return dim_; }
   /// Distinct values of the problem diagonal (0 when the per-state fallback is used).
