@@ -85,7 +85,6 @@ TEST_CASE("gap-adapted path on the two-level problem: beats linear at equal dura
 
   SimulationOptions sim;
   sim.propagation.tolerance = 1e-9;
-  double previous_bound = 1.0;
   for (double T : {5.0, 10.0, 20.0, 40.0}) {
     const AnnealPath lin = base.path_for(T), ga = g.schedule.path_for(T);
     CHECK(ga.duration_ns() == T);  // equal durations, exactly
@@ -100,13 +99,12 @@ TEST_CASE("gap-adapted path on the two-level problem: beats linear at equal dura
     // Local adiabatic analysis: with ds/dt M/Delta^2 = eps = I/T everywhere, the
     // first-order amplitude is (eps/2 pi i)(e^{i theta} - 1), so
     // 1 - p <= (eps/pi)^2 (up to O(eps^3)); and the first-order integral on the
-    // actual path gives the value itself.
+    // actual path gives the value itself. Together the two checks hold the
+    // simulated excitation to the 1/T^2 law at every T.
     const double bound = std::pow(I / T / std::numbers::pi, 2);
     CHECK(1 - p_ga <= 1.15 * bound);
     const double predicted = first_order_excitation(ga);
     CHECK(std::abs((1 - p_ga) - predicted) < 0.15 * bound);
-    if (T > 5.0) CHECK(bound == doctest::Approx(previous_bound / 4));  // the 1/T^2 law
-    previous_bound = bound;
   }
 }
 

@@ -104,7 +104,7 @@ void run_compare(const CompareOptions& o) {
   for (std::size_t j = 0; j < r.durations_ns.size(); ++j)
     for (std::size_t i = 0; i < r.names.size(); ++i) {
       const ShapeRun& x = r.at(i, j);
-      t.add({x.name, fmt_num(x.duration_ns, 8), fmt_num(x.end_time_ns, 17), fmt_num(x.ground_probability, 8),
+      t.add({x.name, fmt_num(x.duration_ns, 8), fmt_num(x.end_time_ns, 12), fmt_num(x.ground_probability, 8),
              std::isfinite(x.tts.tts_ns) ? fmt_num(x.tts.tts_ns, 6) : "never",
              x.leak.drop > 0 ? fmt::format("{:.3f}-{:.3f}", x.leak.s_from, x.leak.s_to) : "-", fmt_num(x.leak.drop, 4),
              fmt_num(x.leak.final_ground_level, 6)});

@@ -24,7 +24,8 @@ struct DiagnoseOptions {
   std::string problem, schedule, out, propagator = SimulationOptions{}.propagator;
   std::vector<double> durations_ns;
   std::optional<double> control_tolerance;
-  double tolerance = 1e-6, sigma_h = 0.03, sigma_j = 0.03, window = 5.0, target_loss = 0.01;
+  double tolerance = 1e-6, sigma_h = 0.03, sigma_j = 0.03, window = 5.0, target_loss = 0.01, check_max_ns = 10000.0;
+  bool sigma_h_given = false, sigma_j_given = false;
   bool relative = false, json = false, quiet = false, no_control_gaps = false;
   int levels = 4, threads = 0;
   long long samples = 100;
@@ -45,6 +46,9 @@ void run_diagnose(const DiagnoseOptions& o) {
   if (!(o.target_loss > 0 && o.target_loss < 1))
     throw InputError({"--target-loss", 0, 0, "--target-loss"}, fmt::format("target loss {} is outside (0, 1)", o.target_loss),
                      "e.g. --target-loss 0.01");
+  if (!(o.check_max_ns >= 0))
+    throw InputError({"--check-max-ns", 0, 0, "--check-max-ns"}, fmt::format("{} ns is negative", o.check_max_ns),
+                     "give a duration in ns, or 0 to skip the simulated checks");
   if (!o.out.empty()) check_output_path(o.out, "--out");
   check_memory(p.qubits, 12, 0, o.problem);
 
@@ -56,6 +60,9 @@ void run_diagnose(const DiagnoseOptions& o) {
   d.overlap.levels = o.levels;
   d.window_factor = o.window;
   d.target_loss = o.target_loss;
+  d.check_max_ns = o.check_max_ns;
+  d.control_sigma_h_given = o.sigma_h_given;
+  d.control_sigma_j_given = o.sigma_j_given;
   d.control_gaps = !o.no_control_gaps;
   d.control_tolerance = o.control_tolerance;
   if (o.samples > 0) {
@@ -94,10 +101,18 @@ void register_diagnose(CLI::App& app) {
       "  late crossing     a crossing where the ground level switches from an excited\n"
       "                    classical level to the ground manifold (faster anneals end\n"
       "                    on the excited level);\n"
-      "  elsewhere         loss not at a gap minimum;\n"
+      "  end gap           the smallest gap sits at an end of the path (a small final\n"
+      "                    classical gap): population lost where it has not opened;\n"
+      "  elsewhere         loss not at a gap minimum (or population regained outside\n"
+      "                    the crossing windows, shown as a gain: the rows add up to 1 - p);\n"
       "  unfair sampling   a degenerate ground manifold shared unevenly (costs no p);\n"
       "  control errors    Monte Carlo over Gaussian errors on h and J: how often the\n"
-      "                    programmed problem has another ground state, and the p left.\n"
+      "                    programmed problem has another ground state, and the further\n"
+      "                    loss of mean p on top of 1 - p (default sigmas are illustrative).\n"
+      "Each crossing's verdict gives the duration a Landau-Zener extrapolation needs for\n"
+      "--target-loss there, and the loss and p of one anneal simulated at it.\n"
+      "A crossing window wider than half the path is flagged broad: not an isolated\n"
+      "two-level crossing, so Landau-Zener is only indicative there.\n"
       "Also where the lost probability goes (excited states, energies, spin flips to\n"
       "the nearest ground state). Forward anneals only (s never decreasing).\n"
       "Example: gapwise diagnose data-samples/weak-field-ring.toml schedules/linear.toml -d 20 -d 200 --out why.h5");
@@ -112,8 +127,15 @@ void register_diagnose(CLI::App& app) {
                   "populations around a crossing are read where the gap is this many times Delta_min")->capture_default_str();
   sub->add_option("--target-loss", o->target_loss,
                   "loss per crossing the verdicts size the duration for (Landau-Zener)")->capture_default_str();
-  sub->add_option("--sigma-h", o->sigma_h, "control error on each field h_i (standard deviation)")->capture_default_str();
-  sub->add_option("--sigma-j", o->sigma_j, "control error on each programmed coupling J_ij")->capture_default_str();
+  sub->add_option("--check-max-ns", o->check_max_ns,
+                  "simulate the Landau-Zener duration of each crossing only up to this many ns (0: never)")
+      ->capture_default_str();
+  sub->add_option("--sigma-h", o->sigma_h,
+                  "control error on each field h_i (standard deviation; the default is illustrative, give your device's)")
+      ->capture_default_str();
+  sub->add_option("--sigma-j", o->sigma_j,
+                  "control error on each programmed coupling J_ij (default illustrative, give your device's)")
+      ->capture_default_str();
   sub->add_flag("--relative", o->relative, "sigmas are fractions of |h_i| and |J_ij| instead of absolute values");
   sub->add_option("--samples", o->samples, "Monte Carlo samples of control errors (0: skip)")->capture_default_str();
   sub->add_option("--seed", o->seed, "seed of the Monte Carlo (stored in the output)")->capture_default_str();
@@ -125,7 +147,11 @@ void register_diagnose(CLI::App& app) {
   sub->add_option("--out", o->out, "write an HDF5 file (curves, crossings, per-duration results, every sample)");
   sub->add_flag("--json", o->json, "print JSON instead of the text report");
   sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
-  sub->callback([o] { run_diagnose(*o); });
+  sub->callback([o, sub] {
+    o->sigma_h_given = sub->count("--sigma-h") > 0;
+    o->sigma_j_given = sub->count("--sigma-j") > 0;
+    run_diagnose(*o);
+  });
 }
 
 }  // namespace gapwise::cli

@@ -34,7 +34,7 @@ std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c)
     const AvoidedCrossing& x = d.crossings[i];
     std::vector<std::string> row{std::to_string(i + 1), x.at_end_point ? "end gap" : x.late_crossing ? "late" : "avoided", fmt_num(x.minimum.s, 6),
                                  fmt_num(x.minimum.gap_ghz, 5), fmt_num(x.diabatic_slope_ghz, 4),
-                                 fmt::format("{:.3f}-{:.3f}", x.window_s_before, x.window_s_after)};
+                                 fmt::format("{:.3f}-{:.3f}{}", x.window_s_before, x.window_s_after, x.broad ? "*" : "")};
     if (x.late_crossing) {
       const LateCrossing& l = d.overlap.late_crossings[*x.late_crossing];
       row.insert(row.end(), {fmt_num(l.s_switch, 6), fmt_num(l.excited_energy, 6), std::to_string(l.excited_degeneracy)});
@@ -45,6 +45,35 @@ std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c)
   }
   out += fmt::format("\ngap minima on the path ({})\n", d.crossings.size());
   out += d.crossings.empty() ? std::string("  none\n") : xs.render();
+  for (std::size_t i = 0; i < d.crossings.size(); ++i) {
+    const AvoidedCrossing& x = d.crossings[i];
+    if (x.broad)
+      out += fmt::format("  * crossing {}: broad minimum, the gap stays below {:g} x Delta_min over s in [{:.3f}, {:.3f}] "
+                         "(more than {:g} of the path): not an isolated crossing; its loss is all that leaves over that "
+                         "stretch, and Landau-Zener is only indicative\n",
+                         i + 1, d.window_factor, x.window_s_before, x.window_s_after, d.broad_window_fraction);
+  }
+  bool any_lz = false;
+  for (const AvoidedCrossing& x : d.crossings) any_lz = any_lz || std::isfinite(x.landau_zener_duration_ns);
+  if (any_lz) {
+    TextTable lz({"crossing", "LZ_duration_ns", "simulated_loss_there", "simulated_p", "target_loss", "verdict"});
+    for (std::size_t i = 0; i < d.crossings.size(); ++i) {
+      const AvoidedCrossing& x = d.crossings[i];
+      if (!std::isfinite(x.landau_zener_duration_ns)) continue;
+      if (x.check)
+        lz.add({std::to_string(i + 1), fmt_num(x.landau_zener_duration_ns, 4), fmt_num(x.check->transferred, 4),
+                fmt_num(x.check_ground_probability, 4), fmt::format("{:g}", d.target_loss),
+                x.check->transferred <= d.target_loss         ? "meets target"
+                : x.check->transferred <= 1.5 * d.target_loss ? "slightly short"
+                                                              : "short of target"});
+      else
+        lz.add({std::to_string(i + 1), fmt_num(x.landau_zener_duration_ns, 4), "-", "-", fmt::format("{:g}", d.target_loss),
+                d.check_max_ns > 0 ? fmt::format("not simulated (> {:g} ns)", d.check_max_ns)
+                                    : std::string("not simulated (--check-max-ns 0)")});
+    }
+    out += "Landau-Zener extrapolation (duration for the target loss at each crossing) and one anneal simulated there\n" +
+           lz.render();
+  }
   if (!d.overlap.late_crossings.empty()) {
     out += "late crossings (ground level leaves an excited classical level for the ground manifold)\n";
     for (const LateCrossing& l : d.overlap.late_crossings)
@@ -59,15 +88,52 @@ std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c)
     out += fmt::format("\n== t_f = {:g} ns: p = {:.6f} (ground manifold), lost {:.6f}\n", run.duration_ns,
                        run.anneal.ground_probability, 1 - run.anneal.ground_probability);
     const double lost = 1 - run.anneal.ground_probability;
-    if (!run.channels.empty() && run.channels.front().loss >= 1e-3)
-      out += fmt::format("limited by: {} (loss {:.4f} of the {:.4f} lost)\n", channel_kind_name(run.channels.front().kind),
-                         run.channels.front().loss, lost);
-    else
+    // The headline compares like with like: a channel of the anneal against the
+    // 1 - p it explains; control errors as the further loss they add to it.
+    const Channel* own = nullptr;
+    for (const Channel& k : run.channels)
+      if (k.kind != ChannelKind::ControlErrors && k.kind != ChannelKind::UnfairSampling) {
+        own = &k;
+        break;
+      }
+    auto own_line = [&](const Channel& k) {
+      return fmt::format("{} (loss {:.4f} of the {:.4f} lost)", channel_kind_name(k.kind), k.loss, lost);
+    };
+    if (!run.channels.empty() && run.channels.front().kind == ChannelKind::ControlErrors &&
+        run.channels.front().loss >= 1e-3) {
+      const double further = run.channels.front().loss;
+      out += fmt::format("limited by: control errors (they lower the mean p from {:.4f} to {:.4f}: a further {:.4f} "
+                         "lost, {:.4f} in all with them; {})\n",
+                         run.anneal.ground_probability, run.anneal.ground_probability - further, further,
+                         lost + further, control_sigma_phrase(d));
+      out += own && own->loss >= 1e-3 ? fmt::format("without control errors: {}\n", own_line(*own))
+                                      : fmt::format("without control errors no channel costs 1e-3 or more (lost {:.2g} "
+                                                    "in all)\n", lost);
+    } else if (!run.channels.empty() && run.channels.front().loss >= 1e-3) {
+      out += fmt::format("limited by: {}\n", own_line(run.channels.front()));
+    } else {
       out += fmt::format("no channel costs 1e-3 or more (lost {:.2g} in all)\n", lost);
+    }
     for (std::size_t k = 0; k < run.channels.size(); ++k) {
-      const double loss = std::abs(run.channels[k].loss) < 5e-5 ? 0.0 : run.channels[k].loss;
-      out += fmt::format("{:>2}. {:<17} loss {:>7.4f}  {}\n", k + 1, channel_kind_name(run.channels[k].kind), loss,
-                         run.channels[k].verdict);
+      const Channel& ch = run.channels[k];
+      const bool gain = ch.regained >= 5e-5;  // smaller remainders print as loss 0.0000
+      out += fmt::format("{:>2}. {:<17} {} {:>7.4f}  {}\n", k + 1, channel_kind_name(ch.kind), gain ? "gain" : "loss",
+                         gain ? ch.regained : ch.loss, ch.verdict);
+    }
+    if (!d.crossings.empty()) {
+      // Crossings and elsewhere add up to 1 - p (the control-error loss is on top of it).
+      std::string sum;
+      double total = 0;
+      for (const Channel& ch : run.channels) {
+        if (ch.kind == ChannelKind::ControlErrors || ch.kind == ChannelKind::UnfairSampling) continue;
+        const double v = ch.loss - ch.regained;
+        total += v;
+        if (std::abs(v) < 5e-5) continue;  // shown as 0.0000 anyway
+        sum += fmt::format("{}{:.4f} ({})", sum.empty() ? (v < 0 ? "-" : "") : (v < 0 ? " - " : " + "), std::abs(v),
+                           channel_kind_name(ch.kind));
+      }
+      if (sum.empty()) sum = "0";
+      out += fmt::format("    the losses add up: {} = {:.4f} = 1 - p\n", sum, total);
     }
     if (!d.crossings.empty()) {
       TextTable ps({"crossing", "s_before", "s_after", "pop_before", "pop_after", "transferred", "LZ_predicted",
@@ -108,6 +174,8 @@ std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c)
     out += fmt::format("\ncontrol errors: {} samples, seed {}, sigma_h = {:g}, sigma_J = {:g} ({})\n", e.samples.size(),
                        e.options.seed, e.options.model.sigma_h, e.options.model.sigma_j,
                        e.options.model.relative ? "relative to each term" : "absolute, problem units");
+    if (!d.control_sigma_h_given || !d.control_sigma_j_given)
+      out += fmt::format("  ({})\n", control_sigma_phrase(d));
     out += fmt::format("ground state changed in {:.4f} +- {:.4f} of the samples\n", e.ground_change_rate,
                        e.ground_change_stderr);
     TextTable q({"quantity", "q05", "q25", "median", "q75", "q95", "unperturbed"});
@@ -137,6 +205,7 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
   put(j, "s_star", d.gap.s_star);
   put(j, "gap_definition", d.gap.definition);
   put(j, "sector", sector_name(d.gap.sector));
+  put(j, "target_loss", d.target_loss);
   toml::array xs;
   for (const AvoidedCrossing& x : d.crossings) {
     toml::table t;
@@ -147,6 +216,16 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
     put(t, "window_s_after", x.window_s_after);
     put(t, "late", x.late_crossing.has_value());
     put(t, "end_gap", x.at_end_point);
+    put(t, "broad", x.broad);
+    if (std::isfinite(x.landau_zener_duration_ns)) put(t, "landau_zener_duration_ns", x.landau_zener_duration_ns);
+    if (x.check) {
+      toml::table ct;
+      put(ct, "duration_ns", x.check->duration_ns);
+      put(ct, "ground_probability", x.check_ground_probability);
+      put(ct, "transferred", x.check->transferred);
+      put(ct, "meets_target", x.check->transferred <= d.target_loss);
+      t.insert_or_assign("check", std::move(ct));
+    }
     toml::array ps;
     for (const CrossingPassage& p : x.passages) {
       toml::table pt;
@@ -185,6 +264,7 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
       toml::table ct;
       put(ct, "channel", std::string(channel_kind_name(k.kind)));
       put(ct, "loss", k.loss);
+      put(ct, "regained", k.regained);
       put(ct, "verdict", k.verdict);
       ch.push_back(std::move(ct));
     }
@@ -221,6 +301,7 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
     put(t, "sigma_h", e.options.model.sigma_h);
     put(t, "sigma_j", e.options.model.sigma_j);
     put(t, "relative", e.options.model.relative);
+    put(t, "sigmas_are_defaults", !d.control_sigma_h_given || !d.control_sigma_j_given);
     put(t, "ground_change_rate", e.ground_change_rate);
     put(t, "ground_change_stderr", e.ground_change_stderr);
     auto quant = [&](const std::vector<double>& v) {
@@ -310,6 +391,20 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
     std::vector<long long> end;
     for (const AvoidedCrossing& x : d.crossings) end.push_back(x.at_end_point);
     h5.write(root + "/crossings/end_gap", end, "1 (1: smallest gap at an end of the path)");
+    std::vector<long long> broad, check_run;
+    std::vector<double> lz_t, check_p, check_loss;
+    for (const AvoidedCrossing& x : d.crossings) {
+      broad.push_back(x.broad);
+      check_run.push_back(x.check.has_value());
+      lz_t.push_back(std::isfinite(x.landau_zener_duration_ns) ? x.landau_zener_duration_ns : -1.0);
+      check_p.push_back(x.check ? x.check_ground_probability : -1.0);
+      check_loss.push_back(x.check ? x.check->transferred : 0.0);
+    }
+    h5.write(root + "/crossings/broad", broad, "1 (1: window narrowed, not an isolated crossing)");
+    h5.write(root + "/crossings/landau_zener_duration", lz_t, "ns (-1: not applicable, end gap)");
+    h5.write(root + "/crossings/check_run", check_run, "1 (1: an anneal was simulated at landau_zener_duration)");
+    h5.write(root + "/crossings/check_ground_probability", check_p, "1 (p simulated at landau_zener_duration; -1: not run)");
+    h5.write(root + "/crossings/check_transferred", check_loss, "1 (loss at this crossing there; 0 when check_run is 0)");
   }
   for (std::size_t r = 0; r < d.runs.size(); ++r) {
     const DurationDiagnosis& run = d.runs[r];
@@ -329,6 +424,9 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
     h5.write_strings(g + "/channel_kind", kinds);
     h5.write_strings(g + "/channel_verdict", verdicts);
     h5.write(g + "/channel_loss", losses, "1");
+    std::vector<double> regained;
+    for (const Channel& k : run.channels) regained.push_back(k.regained);
+    h5.write(g + "/channel_regained", regained, "1");
   }
   if (d.control) {
     const ControlEnsemble& e = *d.control;
@@ -339,6 +437,7 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
     h5.attribute(g, "sigma_j", e.options.model.sigma_j);
     h5.attribute(g, "relative", static_cast<long long>(e.options.model.relative));
     h5.attribute(g, "ground_change_rate", e.ground_change_rate);
+    h5.attribute(g, "sigmas_are_defaults", static_cast<long long>(!d.control_sigma_h_given || !d.control_sigma_j_given));
     std::vector<long long> idx, changed;
     std::vector<double> p;
     for (const ControlSample& s : e.samples) {

@@ -219,6 +219,18 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
                        sch.scales.s_last(), shape.s_min(), shape.s_max()),
            "extend the table to cover every s the path visits");
 
+  if (p->get("points"))
+    sch.path_place = r.place(p->get("points"), "path.points");
+  else if (spec)
+    for (const char* k : {"reverse", "pause", "quench"})
+      if (p->get(k)) {
+        sch.path_place = r.place(p->get(k), std::string("path.") + k);
+        break;
+      }
+  if (p->get("start"))
+    sch.start_place = r.place(p->get("start"), "path.start");
+  else if (p->get("start_bits"))
+    sch.start_place = r.place(p->get("start_bits"), "path.start_bits");
   const std::string start = r.get_string(*p, "start", "path").value_or(p->get("start_bits") ? "classical" : "ground");
   if (start != "ground" && start != "classical")
     r.fail(p->get("start"), "path.start", fmt::format("unknown start \"{}\"", start), "use \"ground\" or \"classical\"");

@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "io/input_error.hpp"
 #include "problem/ising_problem.hpp"
 #include "schedule/anneal_path.hpp"
 #include "schedule/energy_scales.hpp"
@@ -47,6 +48,11 @@ struct Schedule {
   std::optional<PathShapeSpec> shape_spec;
   std::string description;
   std::string source;  ///< file name it came from, for messages
+  /// Where the file describes the path (`path.points` or the shape table, e.g.
+  /// `path.reverse`) and the start state (`path.start`/`path.start_bits`), with
+  /// lines, so that commands refusing a schedule can point at the right key.
+  /// Empty keys when the schedule was not read from a file.
+  SourcePlace path_place, start_place;
 
   /// Path for a run; `duration_ns` overrides the schedule's own. Throws InputError
   /// when no duration is known.

@@ -18,12 +18,21 @@
 //                      (studies/ground_overlap_track.hpp);
 //   elsewhere          what the crossings do not account for: 1 - p minus the
 //                      population moved at the crossings;
+// Bookkeeping: a channel's `loss` is never negative. Population that returns to
+// the levels ending in the ground manifold (across a crossing window, or outside
+// every window) is its `regained` instead, so that for every duration
+//   sum over crossing and elsewhere channels of (loss - regained) = 1 - p.
 //   unfair sampling    a degenerate ground manifold shared unevenly
 //                      (studies/outcome_analysis.hpp; costs no p, ranked by
 //                      its distance from fair sampling);
 //   control errors     Gaussian errors on h and J (studies/control_error_ensemble.hpp):
 //                      the rate at which the perturbed problem's ground state is
-//                      not the intended one, and the p it keeps.
+//                      not the intended one, and the p it keeps; its loss is
+//                      p without errors minus the mean p with them (a further
+//                      loss on top of 1 - p, not a share of it).
+// Each interior crossing also gets the duration a Landau-Zener extrapolation
+// gives for a loss of target_loss there, and (when not longer than
+// check_max_ns) one simulated anneal at that duration to check it.
 // Where the lost probability goes (excited classical states, energies, Hamming
 // distances) is part of each duration's result.
 //
@@ -34,6 +43,7 @@
 //   d.runs[0].channels[0].verdict;     // the channel that limits p at 20 ns
 //   d.crossings[0].passages[1].transferred;
 #include <functional>
+#include <limits>
 #include <optional>
 #include <string>
 #include <vector>
@@ -69,12 +79,23 @@ struct AvoidedCrossing {
   std::optional<std::size_t> late_crossing;       ///< index into the overlap track's late crossings
   bool at_end_point = false;                      ///< an end gap, not an interior minimum
   std::vector<CrossingPassage> passages;          ///< one per duration
+  /// The window (gap below window_factor * Delta_min) covers more than
+  /// broad_window_fraction of the path's s range: not an isolated two-level
+  /// crossing; the loss across it is all that leaves over that stretch.
+  bool broad = false;
+  /// Landau-Zener extrapolation: the duration of this path shape for which the
+  /// predicted loss here is target_loss (NaN for an end gap).
+  double landau_zener_duration_ns = std::numeric_limits<double>::quiet_NaN();
+  /// One anneal simulated at landau_zener_duration_ns (unset when not run).
+  std::optional<CrossingPassage> check;
+  double check_ground_probability = std::numeric_limits<double>::quiet_NaN();
 };
 
 struct Channel {
   ChannelKind kind = ChannelKind::Elsewhere;
   std::size_t index = 0;   ///< which crossing (for crossing kinds)
-  double loss = 0;         ///< probability this channel costs at this duration (rank key)
+  double loss = 0;         ///< probability this channel costs at this duration (rank key; >= 0)
+  double regained = 0;     ///< population it returns to the ground-manifold levels instead (>= 0)
   std::string verdict;     ///< one line, with the numbers to act on
 };
 
@@ -101,6 +122,13 @@ struct DiagnosisOptions {
   /// many times Delta_min (or at the gap maximum towards a neighbouring minimum).
   double window_factor = 5.0;
   double target_loss = 0.01;         ///< the loss per crossing the verdicts size durations for
+  /// A crossing window wider than this fraction of the path's s range is "broad".
+  double broad_window_fraction = 0.5;
+  /// Longest Landau-Zener duration that is checked by simulation (0: no checks).
+  double check_max_ns = 10000.0;
+  /// Whether the user chose sigma_h and sigma_J (false: illustrative defaults;
+  /// the verdicts say so).
+  bool control_sigma_h_given = true, control_sigma_j_given = true;
   std::optional<ControlEnsembleOptions> control;  ///< Monte Carlo over control errors, when set
   bool control_gaps = true;          ///< also locate Delta_min, s* of every perturbed problem
   /// Propagator tolerance of the perturbed anneals (unset: the same as the
@@ -116,9 +144,15 @@ struct Diagnosis {
   std::vector<AvoidedCrossing> crossings;  ///< interior gap minima by s, then an end gap when the smallest gap sits at an end
   std::vector<DurationDiagnosis> runs;     ///< one per duration, in the order given
   std::optional<ControlEnsemble> control;
+  bool control_sigma_h_given = true, control_sigma_j_given = true;
+  double target_loss = 0.01, check_max_ns = 0, broad_window_fraction = 0.5, window_factor = 5.0;
   /// p and gap of the unperturbed problem in the ensemble's own terms (for comparison).
   std::vector<double> durations_ns;
 };
+
+/// "sigma_h = 0.03, sigma_J = 0.03 (absolute), the illustrative defaults, ..."
+/// as the verdicts and the report say it (names the defaults as such).
+std::string control_sigma_phrase(const Diagnosis& d);
 
 /// Landau-Zener sweep rate of a crossing passed with ds/dt (1/ns): v = alpha |ds/dt|,
 /// with alpha = sqrt(Delta_min * curvature) the diabatic slope of the hyperbola
