@@ -135,3 +135,32 @@ TEST_CASE("TTS edge cases in the output: p >= p* gives TTS = t_f, one run") {
   CHECK(csv.find("\n550,grid,") != std::string::npos);
   CHECK(csv.find(",550,1,single run,") != std::string::npos);
 }
+
+TEST_CASE("the triangle's TTS falls toward the shortest durations: the random-guess limit is said, not hidden") {
+  // The frustrated triangle has one ground state of 2^3 (data-samples/triangle.toml), so
+  // p -> 1/8 as t_f -> 0 (sudden limit of |+>^3; common practice) and TTS -> 0. The
+  // default grid is extended downwards until p at its shortest point is within a factor 2
+  // (in repetitions) of guessing, then the report says why no optimum can be bracketed.
+  TempDir dir;
+  const auto out = (dir.path / "tri.h5").string();
+  const auto r = run_gapwise("durations '" + sample("data-samples/triangle.toml") + "' '" +
+                                 sample("schedules/linear.toml") + "' --no-search --quiet --json --threads 1 --out '" +
+                                 out + "'",
+                             dir);
+  REQUIRE(r.exit_code == 0);
+  CHECK(r.out.find("\"random_guess_limited\" : true") != std::string::npos);
+  CHECK(r.out.find("\"random_guess_probability\" : 0.125") != std::string::npos);  // 0.12500000000000003
+  CHECK(r.out.find("minimum anneal time") != std::string::npos);
+  CHECK(r.out.find("\"near_from_ns\"") != std::string::npos);
+  gapwise::Hdf5Input h5(out);
+  CHECK(h5.attribute_double("/durations/tts_optimum", "random_guess_limited") == 1.0);
+  CHECK(h5.attribute_double("/durations/tts_optimum", "random_guess_probability") == doctest::Approx(0.125));
+  CHECK(h5.attribute_double("/durations/tts_optimum", "grid_extended_below") > 0);
+  CHECK(h5.attribute_double("/durations/tts_optimum", "near_count") >= 1);
+  // The text report says it in words.
+  const auto text = run_gapwise("durations '" + sample("data-samples/triangle.toml") + "' '" +
+                                    sample("schedules/linear.toml") + "' --no-search --quiet --threads 1",
+                                dir);
+  CHECK(text.out.find("TTS keeps falling toward the shortest durations") != std::string::npos);
+  CHECK(text.out.find("within 5 % of the best TTS") != std::string::npos);
+}

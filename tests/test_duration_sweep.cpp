@@ -9,6 +9,7 @@
 #include "io/problem_file.hpp"
 #include "io/schedule_file.hpp"
 #include "studies/duration_needed.hpp"
+#include "studies/duration_study.hpp"
 #include "studies/duration_sweep.hpp"
 #include "test_support.hpp"
 
@@ -135,4 +136,60 @@ TEST_CASE("an oscillating curve: first crossing and the duration beyond which p 
   cut[12.5] = p1(12.5);
   REQUIRE(p1(12.5) < 0.99);
   CHECK(find_duration_needed(p_of, cut, o).lost_at_longest);
+}
+
+TEST_CASE("the grid is extended until the TTS optimum is bracketed, and not past the random-guess limit") {
+  // p = 1 - exp(-(t/tau)^2): TTS = t ln(1-p*)/ln(1-p) = -ln(1-p*) tau^2 / t falls until p
+  // reaches p* at t* = tau sqrt(-ln(1-p*)), where TTS = t_f takes over and rises: the
+  // optimum is t* (TTS formula: Ronnow et al., Science 345, 420 (2014)).
+  const double tau = 10.0, tstar = tau * std::sqrt(std::log(100.0));  // 21.46 ns
+  int calls = 0;
+  auto p_of_model = [&](double p0) {
+    return [&calls, tau, p0](const std::vector<double>& t) {
+      ++calls;
+      std::vector<double> p;
+      for (double x : t) p.push_back(p0 + (1 - p0) * -std::expm1(-std::pow(x / tau, 2)));
+      return p;
+    };
+  };
+  DurationStudyOptions o;
+  o.extend_to_bracket = true;
+  o.random_guess_probability = 0.0;
+  // A grid far below t*: the optimum sits at its long end; extended upwards.
+  const GridExtension up = extend_grid_to_bracket(p_of_model(0.0), log_spaced_durations(0.5, 2.0, 4), o);
+  CHECK_FALSE(up.optimum.at_range_edge);
+  CHECK(up.optimum.lower_ns <= tstar);
+  CHECK(up.optimum.upper_ns >= tstar);
+  CHECK(up.below == 0);
+  CHECK(up.above == 6);  // ratio 4^(1/3) per point: 2 ns -> 32 ns in six points, two per round
+  CHECK(up.stop.empty());
+  CHECK(up.grid.size() == 10);
+  // Every point already reaching p*: TTS = t_f, optimum at the short end; extended downwards.
+  const GridExtension down = extend_grid_to_bracket(p_of_model(0.0), log_spaced_durations(40.0, 100.0, 4), o);
+  CHECK_FALSE(down.optimum.at_range_edge);
+  CHECK(down.optimum.lower_ns <= tstar);
+  CHECK(down.optimum.upper_ns >= tstar);
+  CHECK(down.below == 4);
+  // Bounds are honoured and the reason is given.
+  DurationStudyOptions bounded = o;
+  bounded.extend_max_ns = 5.0;
+  const GridExtension capped = extend_grid_to_bracket(p_of_model(0.0), log_spaced_durations(0.5, 2.0, 4), bounded);
+  CHECK(capped.optimum.at_range_edge);
+  CHECK(capped.grid.back() <= 5.0);
+  CHECK(capped.stop.find("upper bound of 5 ns") != std::string::npos);
+  // Without the request, the grid stays as given.
+  DurationStudyOptions keep = o;
+  keep.extend_to_bracket = false;
+  CHECK(extend_grid_to_bracket(p_of_model(0.0), {0.5, 1.0, 2.0}, keep).grid.size() == 3);
+  // The random-guess limit (p -> p0 = g/2^n as t_f -> 0, so TTS -> 0; sudden limit, common
+  // practice): extending downwards cannot bracket anything, so the grid stays and says why.
+  DurationStudyOptions guess = o;
+  guess.random_guess_probability = 0.75;
+  calls = 0;
+  const GridExtension rg = extend_grid_to_bracket(p_of_model(0.75), log_spaced_durations(0.5, 2.0, 4), guess);
+  CHECK(rg.optimum.random_guess_limited);
+  CHECK(rg.below == 0);
+  CHECK(rg.above == 0);
+  CHECK(calls == 1);
+  CHECK(rg.stop.find("random-guess") != std::string::npos);
 }

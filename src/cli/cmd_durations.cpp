@@ -42,7 +42,7 @@ namespace {
 struct DurationsOptions {
   std::string problem, schedule, out, csv, range, propagator = SimulationOptions{}.propagator;
   std::vector<double> durations;
-  double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3, agreement = 0.02;
+  double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3, agreement = kDefaultAgreementFactor;
   int threads = 0, probes = 2;
   bool json = false, no_search = false, no_predictions = false, restart = false, quiet = false;
 };
@@ -90,6 +90,9 @@ void run_durations(const DurationsOptions& o) {
   if (!(o.resolution > 0.0 && o.resolution < 1.0))
     throw InputError({"--resolution", 0, 0, "--resolution"}, fmt::format("resolution {} is not inside (0, 1)", o.resolution),
                      "give the relative width at which bisection stops, e.g. 0.005");
+  if (!(o.agreement > 1.0) || !std::isfinite(o.agreement))
+    throw InputError({"--agreement", 0, 0, "--agreement"}, fmt::format("agreement factor {} is not above 1", o.agreement),
+                     "give the factor within which 1 - p of a prediction and of the simulation must agree, e.g. 2");
   if (o.probes < 1 || o.probes > 64)
     throw InputError({"--probes", 0, 0, "--probes"}, fmt::format("{} probes per round", o.probes), "use 1 to 64");
   if (!o.range.empty() && !o.durations.empty())
@@ -126,6 +129,10 @@ void run_durations(const DurationsOptions& o) {
   in.grid_ns = grid;
   in.setup = &setup;
   in.predictions = predictions ? &*predictions : nullptr;
+  in.agreement_factor = o.agreement;
+  // 1 - p is known to about the noise level the duration search uses.
+  const double p_noise = std::max(10.0 * o.tolerance, 1e-9);
+  in.agreement_floor = p_noise;
 
   // The journal lives beside the first output file; without one nothing is kept.
   const std::string keep = !o.out.empty() ? o.out : o.csv;
@@ -170,9 +177,14 @@ void run_durations(const DurationsOptions& o) {
   so.search_needed = !o.no_search;
   so.needed.relative_width = o.resolution;
   so.needed.probes_per_round = o.probes;
-  so.needed.noise = std::max(10.0 * o.tolerance, 1e-9);
+  so.needed.noise = p_noise;
   so.threads = threads;
+  so.random_guess_probability = sudden_limit_probability(setup);
+  so.extend_to_bracket = grid_chosen;  // a grid the user chose is kept as given
   const DurationStudy st = run_duration_study(ev, so);
+  grid.clear();
+  for (const auto& pt : st.grid) grid.push_back(pt.duration_ns);
+  in.grid_ns = grid;
   bar.done();
   write_outputs(&st);
   std::signal(SIGINT, SIG_DFL);
@@ -180,15 +192,6 @@ void run_durations(const DurationsOptions& o) {
 
   // ---- report
   const auto& known = ev.known();
-  std::vector<double> t_all, p_all, lz_all, ad_all;
-  for (const auto& [t, pt] : known) {
-    t_all.push_back(t);
-    p_all.push_back(pt.ground_probability);
-    if (predictions) {
-      lz_all.push_back(predictions->lz.applicable ? predictions->lz.p_at(t) : std::nan(""));
-      ad_all.push_back(predictions->adiabatic.applicable ? predictions->adiabatic.p_at(t) : std::nan(""));
-    }
-  }
   const auto grid_set = std::set<double>(grid.begin(), grid.end());
   const double best_t = st.optimum.duration_ns;
   auto reached_text = [&](const CrossingBracket& b) {
@@ -196,11 +199,10 @@ void run_durations(const DurationsOptions& o) {
                        p_text(b.p_upper), ns_text(b.lower_ns), ns_text(b.upper_ns), b.rounds,
                        b.oscillation_inside ? ", p crossed the target more than once inside it" : "");
   };
-  std::vector<AgreementRange> lz_ok, ad_ok;
-  if (predictions) {
-    if (predictions->lz.applicable) lz_ok = agreement_ranges(t_all, p_all, lz_all, o.agreement);
-    if (predictions->adiabatic.applicable) ad_ok = agreement_ranges(t_all, p_all, ad_all, o.agreement);
-  }
+  PredictionVerdicts verdicts;
+  if (predictions) verdicts = judge_predictions(*predictions, known, st, o.agreement, p_noise);
+  const TtsOptimum& opt = st.optimum;
+  const int g = static_cast<int>(setup.ground.degeneracy());
   auto ranges_text = [&](const std::vector<AgreementRange>& r) {
     if (r.empty()) return std::string("at none of the simulated durations");
     std::string s;
@@ -240,6 +242,25 @@ void run_durations(const DurationsOptions& o) {
     put(best, "at_range_edge", st.optimum.at_range_edge);
     put(best, "lower_ns", st.optimum.lower_ns);
     put(best, "upper_ns", st.optimum.upper_ns);
+    put(best, "near_fraction", opt.near_fraction);
+    put(best, "near_from_ns", opt.near_from_ns);
+    put(best, "near_to_ns", opt.near_to_ns);
+    put(best, "near_count", static_cast<long long>(opt.near_count));
+    put(best, "near_contiguous", opt.near_contiguous);
+    if (std::isfinite(opt.random_guess_probability)) put(best, "random_guess_probability", opt.random_guess_probability);
+    put(best, "random_guess_limited", opt.random_guess_limited);
+    if (opt.random_guess_limited) put(best, "random_guess_note", std::string(kRandomGuessLimitText));
+    if (opt.local) {
+      toml::table l;
+      put(l, "duration_ns", opt.local->duration_ns);
+      put(l, "tts_ns", opt.local->tts_ns);
+      put(l, "lower_ns", opt.local->lower_ns);
+      put(l, "upper_ns", opt.local->upper_ns);
+      best.insert_or_assign("local", std::move(l));
+    }
+    put(best, "grid_extended_below", static_cast<long long>(st.extended_below));
+    put(best, "grid_extended_above", static_cast<long long>(st.extended_above));
+    put(best, "extension_stop", st.extension_stop);
     j.insert_or_assign("tts_optimum", std::move(best));
     if (st.needed) {
       toml::table n;
@@ -265,6 +286,27 @@ void run_durations(const DurationsOptions& o) {
       put(pr, "s_star", predictions->s_star);
       put(pr, "gap_definition", predictions->gap_definition);
       put(pr, "landau_zener_applicable", predictions->lz.applicable);
+      if (!predictions->lz.applicable) put(pr, "landau_zener_why_not", predictions->lz.why_not);
+      if (std::isfinite(predictions->lz.pause_s)) {
+        put(pr, "landau_zener_pause_s", predictions->lz.pause_s);
+        put(pr, "landau_zener_pause_distance_widths", predictions->lz.pause_distance_widths);
+      }
+      put(pr, "agreement_factor", o.agreement);
+      auto put_verdict = [&](const std::string& key, const std::optional<PredictionVerdict>& v) {
+        if (!v) return;
+        toml::array a;
+        for (const auto& r : v->ranges) {
+          toml::table e;
+          put(e, "from_ns", r.from_ns);
+          put(e, "to_ns", r.to_ns);
+          a.push_back(std::move(e));
+        }
+        pr.insert_or_assign(key + "_agreement", std::move(a));
+        if (std::isfinite(v->duration_ratio)) put(pr, key + "_duration_ratio", v->duration_ratio);
+        put(pr, key + "_duration_agrees", v->duration_agrees);
+      };
+      put_verdict("landau_zener", verdicts.lz);
+      put_verdict("adiabatic", verdicts.adiabatic);
       if (predictions->lz.applicable) {
         put(pr, "slope_difference_ghz", predictions->lz.slope_difference_ghz);
         put(pr, "path_rate", predictions->lz.path_rate);
@@ -339,28 +381,72 @@ void run_durations(const DurationsOptions& o) {
   } else {
     std::cout << "  simulation           (search skipped: --no-search)\n";
   }
-  std::cout << fmt::format("  TTS optimum          t_f = {} ns per run, TTS = {} ns{}\n", ns_text(best_t),
-                           ns_text(st.optimum.tts_ns),
-                           st.optimum.at_range_edge
-                               ? "  [at an end of the range: the optimum may lie outside it]"
-                               : fmt::format("  (sampled; the optimum lies between {} and {} ns)",
-                                             ns_text(st.optimum.lower_ns), ns_text(st.optimum.upper_ns)));
+  const std::string pad = "                       ";
+  std::cout << fmt::format("  TTS optimum          t_f = {} ns per run, TTS = {} ns{}\n", ns_text(best_t), ns_text(opt.tts_ns),
+                           !opt.at_range_edge ? fmt::format("  (sampled; the optimum lies between {} and {} ns)",
+                                                            ns_text(opt.lower_ns), ns_text(opt.upper_ns))
+                           : opt.index == 0   ? "  [the shortest duration simulated]"
+                                              : "  [the longest duration simulated]");
+  if (st.extended_below + st.extended_above > 0)
+    std::cout << fmt::format("{}the default grid was extended by {} point(s) below and {} above while the optimum sat "
+                             "at an end: {}\n",
+                             pad, st.extended_below, st.extended_above,
+                             st.extension_stop.empty() ? "now bracketed" : "stopped, " + st.extension_stop);
+  if (opt.random_guess_limited) {
+    std::cout << fmt::format("{}TTS keeps falling toward the shortest durations: p = {} at {} ns, close to the\n"
+                             "{}random-guess value g/2^n = {}/2^{} = {:.4g}.\n",
+                             pad, p_text(known.begin()->second.ground_probability), ns_text(known.begin()->first), pad, g,
+                             problem.qubits, opt.random_guess_probability);
+    std::cout << pad << kRandomGuessLimitText << "\n";
+    if (opt.local)
+      std::cout << fmt::format("{}local optimum: t_f = {} ns, TTS = {} ns (between {} and {} ns)\n", pad,
+                               ns_text(opt.local->duration_ns), ns_text(opt.local->tts_ns), ns_text(opt.local->lower_ns),
+                               ns_text(opt.local->upper_ns));
+    else
+      std::cout << pad << "no interior local optimum on the grid: TTS rises all the way from the shortest duration\n";
+  } else if (opt.at_range_edge) {
+    std::cout << fmt::format("{}the optimum may lie beyond this end of the range: {}\n", pad,
+                             grid_chosen ? "the grid could not be extended further (" + st.extension_stop + ")"
+                                         : std::string("widen --range / --durations, or leave both out for a grid that is "
+                                                       "extended until the optimum is bracketed"));
+    if (opt.local)
+      std::cout << fmt::format("{}local optimum inside the range: t_f = {} ns, TTS = {} ns\n", pad,
+                               ns_text(opt.local->duration_ns), ns_text(opt.local->tts_ns));
+  }
+  if (std::isfinite(opt.tts_ns))
+    std::cout << fmt::format("{}within {:g} % of the best TTS: t_f = {} .. {} ns ({} of {} grid durations{}){}\n", pad,
+                             100 * opt.near_fraction, ns_text(opt.near_from_ns), ns_text(opt.near_to_ns), opt.near_count,
+                             st.grid.size(), opt.near_contiguous ? "" : ", not contiguous",
+                             opt.near_count > 1 && opt.near_to_ns > 2 * opt.near_from_ns
+                                 ? ": TTS is flat there, any of these durations does as well"
+                                 : "");
+  auto verdict_text = [&](const PredictionVerdict& v) {
+    std::string s = fmt::format("{}p and 1 - p within a factor {:g} of the simulation {}\n", pad, o.agreement, ranges_text(v.ranges));
+    if (std::isfinite(v.duration_ratio))
+      s += fmt::format("{}duration for p*: predicted {} ns vs simulated {} ns, {:.3g} x ({})\n", pad, ns_text(v.predicted_ns),
+                       ns_text(v.simulated_ns), v.duration_ratio,
+                       v.duration_agrees ? fmt::format("agrees within a factor {:g}", o.agreement)
+                                         : fmt::format("does NOT agree within a factor {:g}", o.agreement));
+    else
+      s += fmt::format("{}duration for p*: predicted {} ns; the simulated one is only bounded, so no ratio\n", pad,
+                       ns_text(v.predicted_ns));
+    return s;
+  };
   if (predictions) {
     const auto& lz = predictions->lz;
     if (lz.applicable)
       std::cout << fmt::format("  Landau-Zener         {} ns  (Delta_min {:.4g} GHz, slope difference {:.4g} GHz, "
-                               "path rate ds/d(t/t_f) = {:.4g} at s*, fit misfit {:.1g});\n"
-                               "                       within {} of the simulation {}\n",
+                               "path rate ds/d(t/t_f) = {:.4g} at s*, fit misfit {:.1g})\n",
                                ns_text(lz.duration_for(o.target)), lz.gap_ghz, lz.slope_difference_ghz, lz.path_rate,
-                               lz.fit_deviation, o.agreement, ranges_text(lz_ok));
+                               lz.fit_deviation)
+                << verdict_text(*verdicts.lz);
     else
       std::cout << "  Landau-Zener         not applicable: " << lz.why_not << "\n";
     const auto& ad = predictions->adiabatic;
     if (ad.applicable)
-      std::cout << fmt::format("  adiabatic condition  {} ns  (t_ad = {:.4g} ns at s = {:.4g}; p ~ 1 - (t_ad/t_f)^2);\n"
-                               "                       within {} of the simulation {}\n",
-                               ns_text(ad.duration_for(o.target)), ad.time_ns, ad.s_at_max, o.agreement,
-                               ranges_text(ad_ok));
+      std::cout << fmt::format("  adiabatic condition  {} ns  (t_ad = {:.4g} ns at s = {:.4g}; p ~ 1 - (t_ad/t_f)^2)\n",
+                               ns_text(ad.duration_for(o.target)), ad.time_ns, ad.s_at_max)
+                << verdict_text(*verdicts.adiabatic);
     else
       std::cout << "  adiabatic condition  not applicable: " << ad.why_not << "\n";
   }
@@ -400,7 +486,12 @@ void register_durations(CLI::App& app) {
       "  - the shortest t_f with p >= p*, by bisection between sampled durations, with\n"
       "    every stretch where p(t_f) falls (oscillations) reported;\n"
       "  - beside the simulation: the Landau-Zener prediction at the minimum gap and the\n"
-      "    adiabatic-condition estimate, and the durations where each agrees.\n"
+      "    adiabatic-condition estimate, judged on p and 1 - p (within --agreement, a factor)\n"
+      "    and on the duration each predicts for p* against the simulated one.\n"
+      "Without --durations/--range the grid is chosen around the predictions and extended\n"
+      "(within 0.05 .. 10000 ns) until the TTS optimum is bracketed. The durations whose TTS\n"
+      "is within 5 % of the best are reported (a flat TTS makes the optimum grid-dependent).\n" +
+      std::string(kRandomGuessLimitText) + "\n"
       "Durations run in parallel (one anneal per thread); results equal a serial run.\n"
       "With --out or --csv, each finished duration is journaled to <file>.journal and the\n"
       "files are rewritten atomically; rerunning the same command skips finished points.\n"
@@ -418,7 +509,11 @@ void register_durations(CLI::App& app) {
       ->capture_default_str();
   sub->add_flag("--no-search", o->no_search, "skip the bisection for the duration needed");
   sub->add_flag("--no-predictions", o->no_predictions, "skip the gap search and the Landau-Zener / adiabatic predictions");
-  sub->add_option("--agreement", o->agreement, "|p_sim - p_pred| counted as agreement in the summary")->capture_default_str();
+  sub->add_option("--agreement", o->agreement,
+                  "factor F: a prediction agrees at t_f when p and 1 - p of prediction and simulation each\n"
+                  "differ by at most F (either way; values below the accuracy of p count as equal; 1 - p\n"
+                  "decides near p = 1), and its duration for p* when\n"
+                  "it is within F of the simulated one")->capture_default_str();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of each simulated p")->capture_default_str();
   sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();

@@ -207,9 +207,8 @@ void register_ensemble(CLI::App& app) {
       "join the results with `gapwise merge-shards`. Results are identical bit for bit\n"
       "whatever the thread, rank or shard count.\n"
       "The TTS optimum is only bracketed when the durations reach below it: with GHz\n"
-      "energy scales that means well below 1 ns (column `TTS at range edge`). As t_f -> 0,\n"
-      "p tends to the random-guess value g/2^n and TTS to 0, so the shortest duration\n"
-      "acts as the minimum anneal time.\n"
+      "energy scales that means well below 1 ns (column `TTS at range edge`).\n" +
+      std::string(kRandomGuessLimitText) + "\n"
       "Example: gapwise ensemble glasses.h5 schedules/linear.toml --durations-ns 0.1,0.2,0.5,1,2,5,10,30 --out study.h5\n"
       "         mpirun -np 8 gapwise ensemble glasses.h5 schedules/linear.toml --out study.h5");
   sub->add_option("set", o->set, "instance set: HDF5 file or directory of problem files")->required();

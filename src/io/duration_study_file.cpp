@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <optional>
 #include <set>
 
 #include <fmt/format.h>
@@ -100,6 +101,25 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     h5.attribute(opt, "at_range_edge", static_cast<long long>(finished->optimum.at_range_edge));
     h5.attribute(opt, "lower_ns", finished->optimum.lower_ns);
     h5.attribute(opt, "upper_ns", finished->optimum.upper_ns);
+    const TtsOptimum& o = finished->optimum;
+    h5.attribute(opt, "near_fraction", o.near_fraction);
+    h5.attribute(opt, "near_from_ns", o.near_from_ns);
+    h5.attribute(opt, "near_to_ns", o.near_to_ns);
+    h5.attribute(opt, "near_count", static_cast<long long>(o.near_count));
+    h5.attribute(opt, "near_contiguous", static_cast<long long>(o.near_contiguous));
+    h5.attribute(opt, "random_guess_probability", std::isfinite(o.random_guess_probability) ? o.random_guess_probability : -1.0);
+    h5.attribute(opt, "random_guess_limited", static_cast<long long>(o.random_guess_limited));
+    if (o.random_guess_limited) h5.attribute(opt, "random_guess_note", std::string(kRandomGuessLimitText));
+    h5.attribute(opt, "has_local_optimum", static_cast<long long>(o.local.has_value()));
+    if (o.local) {
+      h5.attribute(opt, "local_duration_ns", o.local->duration_ns);
+      h5.attribute(opt, "local_tts_ns", o.local->tts_ns);
+      h5.attribute(opt, "local_lower_ns", o.local->lower_ns);
+      h5.attribute(opt, "local_upper_ns", o.local->upper_ns);
+    }
+    h5.attribute(opt, "grid_extended_below", static_cast<long long>(finished->extended_below));
+    h5.attribute(opt, "grid_extended_above", static_cast<long long>(finished->extended_above));
+    h5.attribute(opt, "extension_stop", finished->extension_stop);
     if (finished->needed) {
       const auto& dn = *finished->needed;
       const std::string g = root + "/duration_needed";
@@ -118,6 +138,19 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     const auto& pr = *in.predictions;
     const std::string g = root + "/predictions";
     h5.group(g);
+    PredictionVerdicts verdicts;
+    if (finished) verdicts = judge_predictions(pr, known, *finished, in.agreement_factor, in.agreement_floor);
+    auto write_verdict = [&](const std::string& grp, const std::optional<PredictionVerdict>& v) {
+      if (!v) return;
+      std::vector<double> from, to;
+      for (const auto& r : v->ranges) { from.push_back(r.from_ns); to.push_back(r.to_ns); }
+      h5.write(grp + "/agreement_from_ns", from, "ns (ranges of simulated durations where 1 - p agrees within the factor)");
+      h5.write(grp + "/agreement_to_ns", to, "ns");
+      h5.attribute(grp, "duration_ratio", std::isfinite(v->duration_ratio) ? v->duration_ratio : -1.0);
+      h5.attribute(grp, "duration_agrees", static_cast<long long>(v->duration_agrees));
+    };
+    h5.attribute(g, "agreement_factor", in.agreement_factor);
+    h5.attribute(g, "agreement_floor", in.agreement_floor);
     h5.attribute(g, "gap_ghz", pr.gap_ghz);
     h5.attribute(g, "gap_uncertainty_ghz", pr.gap_uncertainty_ghz);
     h5.attribute(g, "s_star", pr.s_star);
@@ -134,6 +167,10 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     const std::string l = g + "/landau_zener";
     h5.group(l);
     h5.attribute(l, "applicable", static_cast<long long>(pr.lz.applicable));
+    if (std::isfinite(pr.lz.pause_s)) {
+      h5.attribute(l, "pause_s", pr.lz.pause_s);
+      h5.attribute(l, "pause_distance_widths", pr.lz.pause_distance_widths);
+    }
     if (!pr.lz.applicable) h5.attribute(l, "why_not", pr.lz.why_not);
     else {
       h5.attribute(l, "gap_ghz", pr.lz.gap_ghz);
@@ -146,6 +183,7 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
       h5.attribute(l, "fit_deviation", pr.lz.fit_deviation);
       h5.attribute(l, "path_rate", pr.lz.path_rate);
       h5.attribute(l, "duration_for_target_ns", pr.lz.duration_for(in.target));
+      write_verdict(l, verdicts.lz);
     }
     const std::string a = g + "/adiabatic";
     h5.group(a);
@@ -155,6 +193,7 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
       h5.attribute(a, "time_ns", pr.adiabatic.time_ns);
       h5.attribute(a, "s_at_max", pr.adiabatic.s_at_max);
       h5.attribute(a, "duration_for_target_ns", pr.adiabatic.duration_for(in.target));
+      write_verdict(a, verdicts.adiabatic);
     }
   }
   h5.commit();

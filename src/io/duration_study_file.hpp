@@ -27,6 +27,8 @@ struct DurationStudyInputs {
   std::vector<double> grid_ns;     ///< the sampled grid (ascending)
   const AnnealSetup* setup = nullptr;
   const AnnealPredictions* predictions = nullptr;  ///< null when not computed
+  double agreement_factor = kDefaultAgreementFactor;  ///< see judge_prediction
+  double agreement_floor = 1e-5;                      ///< accuracy of the simulated 1 - p
 };
 
 void write_duration_study_hdf5(const std::string& path, const DurationStudyInputs& in,

@@ -78,6 +78,7 @@ std::string ProgressBar::line_locked() const {
   const int fill = static_cast<int>(std::lround(frac * kWidth));
   std::string bar(static_cast<std::size_t>(fill), '=');
   if (fill < kWidth) bar += '>' + std::string(static_cast<std::size_t>(kWidth - fill - 1), ' ');
+  if (total_ == 0) return fmt::format("{} preparing, {} elapsed", label_, format_duration_seconds(elapsed));
   std::string eta = "estimating time left";
   if (finished_ == total_) eta = "done";
   else if (finished_cost_ > 0 && frac > 0)
@@ -87,7 +88,8 @@ std::string ProgressBar::line_locked() const {
 }
 
 void ProgressBar::draw(bool force) {
-  if (!enabled_) return;
+  // Nothing scheduled yet (a bar sized as work is discovered): no "0/0 ... done" line.
+  if (!enabled_ || total_ == 0) return;
   const auto now = std::chrono::steady_clock::now();
   if (!force && now - last_draw_ < std::chrono::milliseconds(200)) return;
   last_draw_ = now;

@@ -33,6 +33,7 @@ class ProgressBar {
   void done();
   bool enabled() const { return enabled_; }
   /// The line the bar shows, e.g. "durations  7/13 [=====>    ] 1m05s elapsed, about 40s left".
+  /// With nothing scheduled yet it reads "durations preparing, 0s elapsed" and is not drawn.
   std::string line() const;
 
  private:

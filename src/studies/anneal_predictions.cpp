@@ -25,12 +25,13 @@ std::optional<AnnealPath> forward_shape(const Schedule& schedule) {
   return unit;
 }
 
-/// True when a pause (piece of constant s) lies within [lo, hi].
-bool pause_within(const AnnealPath& unit, double lo, double hi) {
+/// The pause (piece of constant s) nearest to s_star, if the path has one.
+std::optional<double> nearest_pause(const AnnealPath& unit, double s_star) {
+  std::optional<double> best;
   const auto& pts = unit.points();
   for (std::size_t k = 0; k + 1 < pts.size(); ++k)
-    if (pts[k].s == pts[k + 1].s && pts[k].s >= lo && pts[k].s <= hi) return true;
-  return false;
+    if (pts[k].s == pts[k + 1].s && (!best || std::abs(pts[k].s - s_star) < std::abs(*best - s_star))) best = pts[k].s;
+  return best;
 }
 
 /// ds/d(t/t_f) where the unit path passes s: 0 on a pause at s; the slower piece at a kink.
@@ -181,11 +182,19 @@ AnnealPredictions predict_anneal(const AnnealSetup& setup, const PredictionOptio
   // a few Delta/alpha in s: a pause within 4 widths voids the model, a change of
   // speed within 10 widths is noted.
   const double width = std::max(rep.gap_ghz / lz.slope_difference_ghz, rep.s_star_uncertainty);
-  if (pause_within(*unit, rep.s_star - 4 * width, rep.s_star + 4 * width)) {
-    lz.why_not = fmt::format("the path pauses inside the crossing region around s* = {:.6g}: the crossing is not "
-                             "swept at one finite rate",
-                             rep.s_star);
-    return pr;
+  if (const auto pause = nearest_pause(*unit, rep.s_star)) {
+    lz.pause_s = *pause;
+    lz.pause_distance_widths = std::abs(*pause - rep.s_star) / width;
+    if (lz.pause_distance_widths <= kPauseWidthsVoidingLz) {
+      lz.why_not = fmt::format(
+          "the path pauses at s = {:.4g}, {:.2g} crossing widths from s* = {:.6g} (one width Delta_min/alpha = {:.3g} "
+          "in s; the fitted hyperbola puts the gap at the pause at {:.3g} GHz, {:.2g} x Delta_min): a pause within "
+          "{:g} widths means the crossing is not swept at one finite rate",
+          *pause, lz.pause_distance_widths, rep.s_star, width,
+          rep.gap_ghz * std::sqrt(1.0 + lz.pause_distance_widths * lz.pause_distance_widths),
+          std::sqrt(1.0 + lz.pause_distance_widths * lz.pause_distance_widths), kPauseWidthsVoidingLz);
+      return pr;
+    }
   }
   lz.path_rate = rate_at(*unit, rep.s_star);
   const double s_lo = std::max(unit->s_min(), rep.s_star - 10 * width);
@@ -212,17 +221,45 @@ AnnealPredictions predict_anneal(const AnnealSetup& setup, const PredictionOptio
   return pr;
 }
 
+double failure_ratio(double p_sim, double p_pred, double floor) {
+  if (!std::isfinite(p_sim) || !std::isfinite(p_pred)) return std::nan("");
+  const double qs = std::max(1.0 - p_sim, floor), qp = std::max(1.0 - p_pred, floor);
+  return std::max(qs / qp, qp / qs);
+}
+
+double disagreement_factor(double p_sim, double p_pred, double floor) {
+  const double q = failure_ratio(p_sim, p_pred, floor);
+  if (std::isnan(q)) return q;
+  const double a = std::max(p_sim, floor), b = std::max(p_pred, floor);
+  return std::max(q, std::max(a / b, b / a));
+}
+
 std::vector<AgreementRange> agreement_ranges(const std::vector<double>& t, const std::vector<double>& ps,
-                                             const std::vector<double>& pp, double tol) {
+                                             const std::vector<double>& pp, double factor, double floor) {
   std::vector<AgreementRange> out;
   bool open = false;
   for (std::size_t k = 0; k < t.size() && k < ps.size() && k < pp.size(); ++k) {
-    const bool ok = std::isfinite(pp[k]) && std::abs(ps[k] - pp[k]) <= tol;
+    const double r = disagreement_factor(ps[k], pp[k], floor);
+    const bool ok = std::isfinite(r) && r <= factor;
     if (ok && open) out.back().to_ns = t[k];
     else if (ok) out.push_back({t[k], t[k]});
     open = ok;
   }
   return out;
+}
+
+PredictionVerdict judge_prediction(const std::vector<double>& t, const std::vector<double>& ps,
+                                   const std::vector<double>& pp, double predicted_ns, double simulated_ns,
+                                   double factor, double floor) {
+  PredictionVerdict v;
+  v.ranges = agreement_ranges(t, ps, pp, factor, floor);
+  v.predicted_ns = predicted_ns;
+  v.simulated_ns = simulated_ns;
+  v.duration_ratio = predicted_ns > 0 && simulated_ns > 0 && std::isfinite(predicted_ns) && std::isfinite(simulated_ns)
+                         ? predicted_ns / simulated_ns
+                         : std::nan("");
+  v.duration_agrees = std::isfinite(v.duration_ratio) && v.duration_ratio <= factor && v.duration_ratio >= 1.0 / factor;
+  return v;
 }
 
 }  // namespace gapwise

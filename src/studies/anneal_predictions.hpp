@@ -30,12 +30,18 @@
 //   AnnealPredictions pr = predict_anneal(setup, {});
 //   if (pr.lz.applicable) pr.lz.p_at(50.0);
 //   pr.adiabatic.duration_for(0.99);
+#include <limits>
 #include <string>
 #include <vector>
 
 #include "studies/duration_sweep.hpp"
 
 namespace gapwise {
+
+/// A pause this many crossing widths (Delta_min/alpha in s) or closer to s* voids
+/// the Landau-Zener model: at p ~ 1/2 the transition is spread over |eps| of a few
+/// sqrt(v) ~ 4 Delta, i.e. about 4 widths, and a pause there is no finite sweep rate.
+inline constexpr double kPauseWidthsVoidingLz = 4.0;
 
 struct LandauZenerModel {
   bool applicable = false;
@@ -49,6 +55,10 @@ struct LandauZenerModel {
   double fit_half_width_s = 0.0;         ///< largest |s - s*| used in the fit
   double fit_deviation = 0.0;            ///< largest relative misfit of the gap to the hyperbola
   double path_rate = 0.0;                ///< r = ds/d(t/t_f) where the path passes s*
+  /// The path's pause nearest to s* (NaN: none), and its distance from s* in
+  /// crossing widths Delta_min/alpha; within kPauseWidthsVoidingLz the model is refused.
+  double pause_s = std::numeric_limits<double>::quiet_NaN();
+  double pause_distance_widths = std::numeric_limits<double>::quiet_NaN();
   double p_at(double duration_ns) const;
   double duration_for(double target) const;
 };
@@ -85,12 +95,40 @@ struct PredictionOptions {
 /// Throws InputError when the problem is too large for the spectrum tools.
 AnnealPredictions predict_anneal(const AnnealSetup& setup, const PredictionOptions& options = {});
 
-/// Where a prediction agrees with the simulation: the sampled durations where
-/// |p_sim - p_pred| <= tolerance, as contiguous ranges of the grid.
+/// Where a prediction agrees with the simulation, judged on the failure
+/// probability 1 - p (the quantity that sets the number of repetitions, and the
+/// one the predictions are formulas for), and on p itself:
+///     disagreement = max(q_sim/q_pred, q_pred/q_sim, p_sim/p_pred, p_pred/p_sim) <= factor,
+/// every probability first raised to `floor`, the accuracy of the simulated p (below
+/// it a value is not known, so two values under the floor count as equal). 1 - p
+/// decides near p = 1, p near p = 0 (where 1 - p ~ 1 for both would make any two
+/// small p agree). Judging |p_sim - p_pred| instead would call 1 - p = 4e-5 and
+/// 1.5e-2 (a 400-fold difference in repetitions) agreement.
+inline constexpr double kDefaultAgreementFactor = 2.0;
+
+/// max(q_sim/q_pred, q_pred/q_sim) for q = max(1 - p, floor) (>= 1; NaN when either p is NaN).
+double failure_ratio(double p_sim, double p_pred, double floor);
+/// The larger of failure_ratio and the same ratio of the probabilities themselves.
+double disagreement_factor(double p_sim, double p_pred, double floor);
+
 struct AgreementRange {
   double from_ns = 0, to_ns = 0;
 };
+/// The sampled durations where disagreement_factor <= factor, as contiguous ranges of the grid.
 std::vector<AgreementRange> agreement_ranges(const std::vector<double>& durations_ns, const std::vector<double>& p_sim,
-                                             const std::vector<double>& p_pred, double tolerance);
+                                             const std::vector<double>& p_pred, double factor, double floor);
+
+/// A prediction judged twice: on 1 - p at the sampled durations, and on the
+/// duration it predicts for the target against the simulated one.
+struct PredictionVerdict {
+  std::vector<AgreementRange> ranges;
+  double predicted_ns = 0;   ///< the prediction's duration for p*
+  double simulated_ns = 0;   ///< the simulated duration needed (NaN when only bounded)
+  double duration_ratio = 0; ///< predicted / simulated (NaN when either is unknown)
+  bool duration_agrees = false;  ///< ratio within [1/factor, factor]
+};
+PredictionVerdict judge_prediction(const std::vector<double>& durations_ns, const std::vector<double>& p_sim,
+                                   const std::vector<double>& p_pred, double predicted_ns, double simulated_ns,
+                                   double factor, double floor);
 
 }  // namespace gapwise
