@@ -114,16 +114,23 @@ void run_anneal(const AnnealOptions& o) {
                              r.duration_ns, sch.start.kind == StartKind::Ground ? "ground state of H(s0)" : "classical state");
     std::cout << fmt::format("propagator   {} (tolerance {:.0e}): {} steps, {} H applications, {:.3f} s\n", r.propagator,
                              o.tolerance, r.stats.steps, r.stats.hamiltonian_applications, r.wall_seconds);
-    std::cout << fmt::format("error est.   {:.1e} ({})\n", r.stats.error_estimate,
-                             r.propagator == "odeint" ? "sum of local error estimates, amplitudes"
-                                                      : "of p, step doubling; other outcome probabilities to 100x the tolerance");
     std::cout << fmt::format("\nground-state probability  {:.8f}\n", r.ground_probability);
     if (delta_p)
       std::cout << fmt::format("convergence               |dp| = {:.1e} when the tolerance is tightened tenfold{}\n", *delta_p,
                                *delta_p > o.tolerance ? "  (WARNING: larger than expected)" : "");
     std::cout << fmt::format("norm drift                {:.1e}\n", r.norm_drift);
-    std::cout << fmt::format("integrator error est.     {:.1e} (sum of accepted local errors){}\n\n", r.stats.error_estimate,
-                             accuracy.empty() ? "" : "\naccuracy                  NOT within the tolerance (see warnings)");
+    // One error estimate per run; what it measures depends on the propagator.
+    if (r.propagator == "odeint")
+      std::cout << fmt::format("integrator error est.     {:.1e} (sum of the accepted steps' local error estimates of the\n"
+                               "                          amplitudes; a bound-like figure, not the error of p itself)\n",
+                               r.stats.error_estimate);
+    else
+      std::cout << fmt::format("error estimate of p       {:.1e} (step doubling: the accepted grid against one with half\n"
+                               "                          the steps, Richardson-scaled; any other set of outcomes within\n"
+                               "                          100x the tolerance)\n",
+                               r.stats.error_estimate);
+    if (!accuracy.empty()) std::cout << "accuracy                  NOT within the tolerance (see warnings)\n";
+    std::cout << "\n";
     std::cout << "most probable outcomes\n" << outcomes.render();
   }
 
