@@ -32,7 +32,8 @@ struct DiagnoseOptions {
 };
 
 void run_diagnose(const DiagnoseOptions& o) {
-  const IsingProblem p = read_problem_file(o.problem);
+  const ProblemFile p_file = parse_problem_file(o.problem);
+  const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);
   if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
     throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
@@ -46,7 +47,7 @@ void run_diagnose(const DiagnoseOptions& o) {
     throw InputError({"--target-loss", 0, 0, "--target-loss"}, fmt::format("target loss {} is outside (0, 1)", o.target_loss),
                      "e.g. --target-loss 0.01");
   if (!o.out.empty()) check_output_path(o.out, "--out");
-  check_memory(p.qubits, 12, 0, o.problem);
+  check_memory(p.qubits, 12, 0, p_file.qubits_place);
 
   DiagnosisOptions d;
   d.durations_ns = o.durations_ns;
