@@ -12,6 +12,7 @@
 #include <fstream>
 #include <vector>
 
+#include "hamiltonian/memory_budget.hpp"
 #include "test_support.hpp"
 
 using gapwise::testing::run_gapwise;
@@ -107,4 +108,52 @@ TEST_CASE("exit codes: 2 for bad input with the place named, 0 for --help") {
   auto h = run_gapwise("anneal --help", dir);
   CHECK(h.exit_code == 0);
   CHECK(h.out.find("--duration-ns") != std::string::npos);
+}
+
+TEST_CASE("memory refusals of every subcommand name the line of `qubits` in the problem file") {
+  // The file parser accepts a problem whose state fits (24 bytes per amplitude);
+  // each dynamics subcommand then needs about 10 complex states (168 bytes per
+  // amplitude, memory_budget.hpp) and refuses. Pick n so that, on this machine,
+  // the parser passes and the commands refuse, each with a factor 1.5 to spare
+  // (the two bounds are a factor 7 apart, so such an n always exists).
+  const double have = gapwise::available_bytes();
+  if (!(have > 0)) {
+    MESSAGE("MemAvailable unknown on this machine: no memory refusal to provoke");
+    return;
+  }
+  int n = 0;
+  for (int q = 2; q <= gapwise::kMaxQubits; ++q)
+    if (gapwise::estimate_bytes(q, 1, 0) <= 0.9 * have / 1.5 && gapwise::estimate_bytes(q, 10, 0) >= 1.5 * 0.9 * have)
+      n = q;
+  if (n == 0) {
+    MESSAGE("this machine has more memory than " << gapwise::kMaxQubits << " qubits can use: nothing to refuse");
+    return;
+  }
+  TempDir dir;
+  std::string text = "format = \"gapwise-problem\"\nformat_version = 1\n# a chain too large for this machine\nkind = \"ising\"\n"
+                     "qubits = " + std::to_string(n) + "\ncouplings = [[0, 1, -1.0]]\n";  // qubits on line 5, value in column 10
+  const auto big = dir.write("big-chain.toml", text);
+  const std::string p = "'" + big.string() + "' ", s = sample("schedules/linear.toml") + " ";
+  const std::string o = " --out '" + (dir.path / "r.h5").string() + "'";
+  for (const std::string& args : {"anneal " + p + s, "compare-paths " + p + s + "-d 10", "pause-map " + p + s + "-d 10" + o,
+                                  "reverse-map " + p + s + o, "durations " + p + s, "diagnose " + p + s + "-d 10"}) {
+    const auto r = run_gapwise(args, dir);
+    INFO(args);
+    INFO(r.err);
+    CHECK(r.exit_code == 2);
+    CHECK(r.err.find("big-chain.toml:5:10: key 'qubits'") != std::string::npos);
+    CHECK(r.err.find("need about") != std::string::npos);  // the estimate is shown
+    CHECK(r.err.find("Fix:") != std::string::npos);
+  }
+  // The spectrum commands refuse above 20 qubits whatever the memory.
+  text = "format = \"gapwise-problem\"\nformat_version = 1\nkind = \"ising\"\n\nqubits = 21\ncouplings = [[0, 1, -1.0]]\n";
+  const auto b21 = dir.write("chain-21.toml", text);
+  for (const std::string& args : {"gap '" + b21.string() + "'", "gap-path '" + b21.string() + "' " + s + o}) {
+    const auto r = run_gapwise(args, dir);
+    INFO(args);
+    INFO(r.err);
+    CHECK(r.exit_code == 2);
+    CHECK(r.err.find("chain-21.toml:5:10: key 'qubits'") != std::string::npos);
+    CHECK(r.err.find("at most 20") != std::string::npos);
+  }
 }

@@ -11,8 +11,11 @@
 #include <fstream>
 #include <map>
 #include <sstream>
+#include <vector>
 
+#include "io/problem_file.hpp"
 #include "io/result_journal.hpp"
+#include "schedule/schedule.hpp"
 #include "spectrum/gap_search.hpp"
 #include "test_support.hpp"
 
@@ -122,4 +125,122 @@ TEST_CASE("a search resumed from recorded points gives the same answer without r
   CHECK(second.resumed_points == first.evaluations);
   CHECK(second.gap_ghz == first.gap_ghz);
   CHECK(second.s_star == first.s_star);
+}
+
+namespace {
+// One point of /gap/eigenvectors: s, A, B, energies and the levels x 2^n matrix.
+struct StoredVectors {
+  double s = 0, a = 0, b = 0;
+  std::vector<double> energies, vectors;
+  hsize_t rows = 0, cols = 0;
+};
+
+StoredVectors read_vectors(const H5::H5File& f, int i) {
+  StoredVectors v;
+  const std::string P = "/gap/eigenvectors/" + std::to_string(i);
+  const H5::Group g = f.openGroup(P);
+  g.openAttribute("s").read(H5::PredType::NATIVE_DOUBLE, &v.s);
+  g.openAttribute("a_ghz").read(H5::PredType::NATIVE_DOUBLE, &v.a);
+  g.openAttribute("b_ghz").read(H5::PredType::NATIVE_DOUBLE, &v.b);
+  const H5::DataSet e = f.openDataSet(P + "/energies");
+  hsize_t n = 0;
+  e.getSpace().getSimpleExtentDims(&n);
+  v.energies.resize(n);
+  e.read(v.energies.data(), H5::PredType::NATIVE_DOUBLE);
+  const H5::DataSet m = f.openDataSet(P + "/vectors");
+  hsize_t dims[2] = {0, 0};
+  m.getSpace().getSimpleExtentDims(dims);
+  v.rows = dims[0];
+  v.cols = dims[1];
+  v.vectors.resize(dims[0] * dims[1]);
+  m.read(v.vectors.data(), H5::PredType::NATIVE_DOUBLE);
+  return v;
+}
+
+// Checks each stored row against the definition of an eigenvector: with the
+// library's full-space kernel (TransverseIsingHamiltonian::apply, not the sector
+// operator the vectors were computed with), ||H v - E v|| <= 1e-9 (1 + |E|) and
+// ||v|| = 1 to 1e-12. Returns the rows for further checks.
+StoredVectors check_eigenpairs(const H5::H5File& f, int i, const TransverseIsingHamiltonian& H) {
+  const StoredVectors v = read_vectors(f, i);
+  REQUIRE(v.cols == H.dim());
+  REQUIRE(v.rows == v.energies.size());
+  std::vector<double> y(H.dim());
+  for (hsize_t j = 0; j < v.rows; ++j) {
+    const double* x = v.vectors.data() + j * v.cols;
+    H.apply(v.a, v.b, x, y.data());
+    double res = 0, norm = 0;
+    for (std::size_t k = 0; k < H.dim(); ++k) {
+      res += (y[k] - v.energies[j] * x[k]) * (y[k] - v.energies[j] * x[k]);
+      norm += x[k] * x[k];
+    }
+    INFO("point " << i << ", level " << j << ", s = " << v.s);
+    CHECK(std::sqrt(res) <= 1e-9 * (1.0 + std::abs(v.energies[j])));
+    CHECK(std::abs(std::sqrt(norm) - 1.0) <= 1e-12);
+  }
+  return v;
+}
+}  // namespace
+
+TEST_CASE("gap --vectors-at: written eigenvectors satisfy H v = E v in the full basis and are normalised") {
+  TempDir dir;
+  const auto h5 = dir.path / "v.h5";
+  SUBCASE("no fields: even sector, expanded to the full basis") {
+    const std::string prob = (source_dir() / "data-samples/spin-glass-8.toml").string();
+    const auto r = run_gapwise("gap '" + prob + "' --points 41 --vectors-at star,0.2,0.9 --vector-levels 3 --out '" +
+                                   h5.string() + "' --json",
+                               dir);
+    INFO(r.err);
+    REQUIRE(r.exit_code == 0);
+    const IsingProblem p = read_problem_file(prob);
+    const TransverseIsingHamiltonian H(p);
+    H5::H5File f(h5.string(), H5F_ACC_RDONLY);
+    double s_star = 0;
+    f.openGroup("/gap").openAttribute("s_star").read(H5::PredType::NATIVE_DOUBLE, &s_star);
+    std::string sector;
+    const H5::Attribute sa = f.openGroup("/gap/eigenvectors").openAttribute("sector");
+    sa.read(sa.getStrType(), sector);
+    CHECK(sector == "even");
+    const double want_s[3] = {s_star, 0.2, 0.9};
+    for (int i = 0; i < 3; ++i) {
+      const StoredVectors v = check_eigenpairs(f, i, H);
+      CHECK(v.s == want_s[i]);
+      CHECK(v.rows == 3);
+      // Default scales (linear, 5 GHz): A = 5 (1 - s), B = 5 s.
+      CHECK(std::abs(v.a - 5.0 * (1.0 - v.s)) <= 1e-12);
+      CHECK(std::abs(v.b - 5.0 * v.s) <= 1e-12);
+      // Even under the global spin flip: v[b] = v[~b] (the documented expansion).
+      const std::size_t top = H.dim() - 1;
+      double asym = 0;
+      for (hsize_t j = 0; j < v.rows; ++j)
+        for (std::size_t b = 0; b < H.dim(); ++b)
+          asym = std::max(asym, std::abs(v.vectors[j * v.cols + b] - v.vectors[j * v.cols + (top - b)]));
+      CHECK(asym <= 1e-14);
+    }
+  }
+  SUBCASE("fields: full space; the ground vector at s = 1 is the classical ground state") {
+    const std::string prob = (source_dir() / "data-samples/weak-field-ring.toml").string();
+    const auto r = run_gapwise("gap '" + prob + "' --points 41 --vectors-at 0.5,1 --out '" + h5.string() + "' --json", dir);
+    INFO(r.err);
+    REQUIRE(r.exit_code == 0);
+    const IsingProblem p = read_problem_file(prob);
+    const TransverseIsingHamiltonian H(p);
+    H5::H5File f(h5.string(), H5F_ACC_RDONLY);
+    check_eigenpairs(f, 0, H);
+    const StoredVectors end = check_eigenpairs(f, 1, H);
+    // At s = 1 (A = 0) H is diagonal; the field h_0 = -0.05 favours spin +1 on
+    // qubit 0, so the ground state is all bits 0 (basis index 0), weight 1.
+    CHECK(std::abs(std::abs(end.vectors[0]) - 1.0) <= 1e-12);
+  }
+}
+
+TEST_CASE("gap --vectors-at: refused without --out and outside the s range") {
+  TempDir dir;
+  const auto prob = dir.write("one.toml", kOneQubit);
+  auto r = run_gapwise("gap '" + prob.string() + "' --vectors-at star", dir);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("--out") != std::string::npos);
+  r = run_gapwise("gap '" + prob.string() + "' --vectors-at 1.5 --out '" + (dir.path / "x.h5").string() + "'", dir);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("outside [0, 1]") != std::string::npos);
 }

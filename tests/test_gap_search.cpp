@@ -143,3 +143,73 @@ TEST_CASE("more than 20 qubits are refused with the memory estimate") {
   CHECK(estimate_gap_search_bytes(20, SpinFlipSector::Full, 4, EigenMethod::Auto) >
         estimate_gap_search_bytes(20, SpinFlipSector::Even, 4, EigenMethod::Auto));
 }
+
+TEST_CASE("near-degeneracy flag: fires for a narrow avoided crossing, stays quiet for a wide one") {
+  // The two-level form of the test above (Zener, Proc. R. Soc. A 137, 696 (1932)):
+  // the spacing E_1 - E_0 = sqrt(Delta^2 + eps(s)^2) has its only interior minimum,
+  // Delta, at s0. The search calls two levels close when an interior minimum of
+  // their spacing is below 1e-3 of the largest energy scale (here max B = k s0 =
+  // 5.04 GHz, so 5.04e-3 GHz; the threshold is this project's choice, see
+  // gap_search.cpp). Delta = 1e-3 GHz is below it: the flag must fire, as "come
+  // close" (the levels do not touch: Delta is far above the eigenvalue error).
+  // Delta = 0.1 GHz is twenty times above it: no flag, since by the closed form
+  // no spacing anywhere is smaller than Delta.
+  IsingProblem p(1);
+  p.h = {1.0};
+  const TransverseIsingHamiltonian H(p);
+  const double s0 = 0.503731, k = 10.0;
+  auto search = [&](double delta) {
+    const EnergyScales sc = EnergyScales::table({0.0, s0, 1.0}, {delta, delta, delta},
+                                                {k * s0, 0.0, k * (1.0 - s0)}, ScaleInterpolation::Linear);
+    GapSearchOptions o;
+    o.coarse_points = 21;
+    o.s_tolerance = 1e-8;
+    return find_minimum_gap(H, sc, o);
+  };
+  const MinimumGapReport narrow = search(1e-3);
+  INFO("narrow: " << (narrow.flags.empty() ? std::string("no flags") : narrow.flags.front()));
+  CHECK(any_flag_contains(narrow, "levels 0 and 1 come close at s = 0.5037"));
+  CHECK(any_flag_contains(narrow, "this enters the governing gap"));
+  CHECK_FALSE(any_flag_contains(narrow, "touch"));
+  const MinimumGapReport wide = search(0.1);
+  std::string wide_flags;
+  for (const auto& f : wide.flags) wide_flags += f + "\n";
+  INFO("wide: " << wide_flags);
+  CHECK_FALSE(any_flag_contains(wide, "come close"));
+  CHECK_FALSE(any_flag_contains(wide, "touch"));
+  CHECK_FALSE(any_flag_contains(wide, "levels 0 and 1"));  // other notes (A(s_last) > 0) may remain
+  CHECK(wide.gap_ghz == doctest::Approx(0.1).epsilon(1e-9));  // the closed form the "no flag" rests on
+}
+
+TEST_CASE("crossing flag: fires for an exact crossing of decoupled subsystems, not for the single qubit") {
+  // Qubit 0 alone with field h, decoupled from a ferromagnetic pair (qubits 1, 2,
+  // J = -1, no fields). H is a sum of commuting parts, so its levels are sums of
+  // the parts' levels and cross exactly (no avoided crossing between product
+  // states of decoupled systems). Qubit 0: +-(1/2) g1, g1 = sqrt(A^2 + (B h)^2)
+  // (two-level formula). Pair (worked out here in the basis (|00>+|11>)/sqrt2,
+  // (|01>+|10>)/sqrt2 and the two odd states): +-P with P = sqrt(A^2 + B^2/4),
+  // and +-B/2. The top pair level of the lower qubit-0 level, -g1/2 + P, meets
+  // the bottom one of the upper, g1/2 - P, where g1 = 2P, i.e. B^2 (h^2 - 1) =
+  // 3 A^2. With h = 2 and A = 5 (1 - s), B = 5 s that is s = 1/2, where the
+  // sorted levels are -5.59, -4.05, -1.55, 0, 0 (levels 3 and 4 cross at 0).
+  IsingProblem p(3);
+  p.h = {2.0, 0.0, 0.0};
+  p.couplings = {{1, 2, -1.0}};
+  const TransverseIsingHamiltonian H(p);
+  GapSearchOptions o;
+  o.levels = 5;
+  o.coarse_points = 101;  // s = 0.5 is a grid point
+  const MinimumGapReport r = find_minimum_gap(H, EnergyScales::linear(5.0, 5.0), o);
+  std::string all;
+  for (const auto& f : r.flags) all += f + "\n";
+  INFO(all);
+  CHECK(any_flag_contains(r, "levels 3 and 4 touch (crossing or exact degeneracy) at s = 0.500000"));
+  // Single qubit, h = 0.35: one spacing, sqrt(A^2 + (B h)^2) >= 1.65 GHz for all
+  // s (closed form, first test case): nothing to flag.
+  IsingProblem q(1);
+  q.h = {0.35};
+  const TransverseIsingHamiltonian Hq(q);
+  const MinimumGapReport rq = find_minimum_gap(Hq, EnergyScales::linear(5.0, 5.0), GapSearchOptions{});
+  CHECK_FALSE(any_flag_contains(rq, "come close"));
+  CHECK_FALSE(any_flag_contains(rq, "touch"));
+}

@@ -1,6 +1,7 @@
 // `gapwise anneal PROBLEM SCHEDULE`: one anneal of a given duration; the
 // ground-state probability, the most probable outcomes, and the checks that
 // make the number trustworthy (norm drift, convergence under a tighter tolerance).
+#include <algorithm>
 #include <cmath>
 #include <iostream>
 #include <memory>
@@ -11,6 +12,7 @@
 #include "cli/cli_common.hpp"
 #include "dynamics/accuracy_guard.hpp"
 #include "dynamics/anneal_simulation.hpp"
+#include "dynamics/level_population_observer.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
@@ -22,34 +24,69 @@ namespace gapwise::cli {
 namespace {
 
 struct AnnealOptions {
-  std::string problem, schedule, out, csv, propagator = "split4";
+  std::string problem, schedule, out, csv, propagator = "split4", observe_s;
   std::optional<double> duration_ns;
   double tolerance = 1e-6;
-  int samples = 20, top = 8;
+  int samples = 20, top = 8, levels = 0;
   bool json = false, no_check = false, strict = false;
 };
 
 void run_anneal(const AnnealOptions& o) {
-  const IsingProblem p = read_problem_file(o.problem);
+  const ProblemFile p_file = parse_problem_file(o.problem);
+  const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);
   if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
     throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
                      "use a value between 1e-12 and 1e-2 (default 1e-6)");
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
-  check_memory(p.qubits, 10, 0, o.problem);
+  check_memory(p.qubits, 10, 0, p_file.qubits_place);
   const TransverseIsingHamiltonian H(p);
   const GroundManifold gm = find_ground_manifold(p, H.diagonal());
   const AnnealPath path = sch.path_for(o.duration_ns);
   const QuantumState psi0 = initial_state(H, sch, path);
+
+  // Observations at chosen s: every passage of the path through each value.
+  std::vector<double> observe_s;
+  if (!o.observe_s.empty()) {
+    observe_s = parse_value_list(o.observe_s, "--observe-s");
+    std::sort(observe_s.begin(), observe_s.end());
+    observe_s.erase(std::unique(observe_s.begin(), observe_s.end()), observe_s.end());
+    for (double s : observe_s)
+      if (times_at_s(path, s).empty())
+        throw InputError({"--observe-s", 0, 0, "--observe-s"},
+                         fmt::format("the path of {} never reaches s = {} (it covers s from {} to {})", o.schedule, s,
+                                     path.s_min(), path.s_max()),
+                         fmt::format("give s values between {} and {}", path.s_min(), path.s_max()));
+  }
+  if (o.levels < 0 || o.levels > 16)
+    throw InputError({"--levels", 0, 0, "--levels"}, fmt::format("{} levels", o.levels), "give 1 to 16 levels (0: none)");
+  if (o.levels > 0 && observe_s.empty())
+    throw InputError({"--levels", 0, 0, "--levels"}, "level populations are recorded at the --observe-s points, and none were given",
+                     "add --observe-s, e.g. --observe-s 0.3,0.5,0.7");
 
   SimulationOptions sim;
   sim.propagator = o.propagator;
   sim.propagation.tolerance = o.tolerance;
   sim.samples_per_piece = std::max(0, o.samples);
   sim.top_outcomes = o.top;
+  sim.observe_s = observe_s;
   TraceObserver trace(H, gm);
-  const AnnealResult r = simulate_anneal(H, gm, sch.scales, path, psi0, sim, {&trace});
+  // Populations of the lowest levels of H(s), at the requested s only (one
+  // eigenproblem each). Without fields a forward anneal from the ground state
+  // stays in the even spin-flip sector; its levels are the ones that matter.
+  LevelPopulationOptions lpo;
+  lpo.levels = std::max(o.levels, 1);
+  lpo.requested_only = true;
+  const bool even = !p.has_fields() && sch.start.kind == StartKind::Ground;
+  lpo.sector = even ? SpinFlipSector::Even : SpinFlipSector::Full;
+  std::optional<LevelPopulationObserver> pops;
+  std::vector<AnnealObserver*> observers{&trace};
+  if (o.levels > 0) observers.push_back(&pops.emplace(H, lpo));
+  const AnnealResult r = simulate_anneal(H, gm, sch.scales, path, psi0, sim, observers);
+  std::vector<TraceObserver::Row> requested_rows;
+  for (const auto& row : trace.rows())
+    if (row.requested) requested_rows.push_back(row);
   std::optional<double> delta_p;
   if (!o.no_check) {
     SimulationOptions tight = sim;
@@ -71,10 +108,26 @@ void run_anneal(const AnnealOptions& o) {
     outcomes.add({std::to_string(k + 1), bits_string(oc.state, p.qubits), spins_string(oc.state, p.qubits),
                   fmt_num(oc.energy, 8), fmt_num(oc.probability, 6), oc.in_ground_manifold ? "yes" : ""});
   }
-  TextTable tr({"t_ns", "s", "p_ground", "energy_ghz", "norm"});
-  for (const auto& row : trace.rows())
-    tr.add({fmt_num(row.t_ns, 8), fmt_num(row.s, 8), fmt_num(row.ground_probability, 10), fmt_num(row.energy_ghz, 10),
-            fmt_num(row.norm, 14)});
+  std::vector<std::string> trace_head{"t_ns", "s", "p_ground", "energy_ghz", "norm"};
+  if (!observe_s.empty()) trace_head.push_back("requested");
+  TextTable tr(trace_head);
+  for (const auto& row : trace.rows()) {
+    std::vector<std::string> cells{fmt_num(row.t_ns, 8), fmt::format("{:.12g}", row.s), fmt_num(row.ground_probability, 10),
+                                   fmt_num(row.energy_ghz, 10), fmt_num(row.norm, 14)};
+    if (!observe_s.empty()) cells.push_back(row.requested ? "1" : "0");
+    tr.add(std::move(cells));
+  }
+  // The requested observations on their own (terminal and JSON).
+  std::vector<std::string> obs_head{"t_ns", "s", "p_ground", "energy_ghz", "norm"};
+  for (int j = 0; j < o.levels; ++j) obs_head.push_back(fmt::format("pop_level{}", j));
+  TextTable obs(obs_head);
+  for (std::size_t i = 0; i < requested_rows.size(); ++i) {
+    const auto& row = requested_rows[i];
+    std::vector<std::string> cells{fmt_num(row.t_ns, 8), fmt::format("{:.12g}", row.s), fmt_num(row.ground_probability, 10),
+                                   fmt_num(row.energy_ghz, 10), fmt_num(row.norm, 14)};
+    for (int j = 0; j < o.levels; ++j) cells.push_back(fmt_num(pops->rows().at(i).levels.populations.at(j), 8));
+    obs.add(std::move(cells));
+  }
 
   if (o.json) {
     toml::table j;
@@ -105,6 +158,29 @@ void run_anneal(const AnnealOptions& o) {
       arr.push_back(std::move(e));
     }
     j.insert_or_assign("outcomes", std::move(arr));
+    if (!observe_s.empty()) {
+      toml::array oa;
+      for (std::size_t i = 0; i < requested_rows.size(); ++i) {
+        const auto& row = requested_rows[i];
+        toml::table e;
+        put(e, "t_ns", row.t_ns);
+        put(e, "s", row.s);
+        put(e, "ground_probability", row.ground_probability);
+        put(e, "energy_ghz", row.energy_ghz);
+        put(e, "norm", row.norm);
+        if (o.levels > 0) {
+          toml::array pe, pp;
+          for (int k = 0; k < o.levels; ++k) {
+            pe.push_back(pops->rows().at(i).levels.energies_ghz.at(k));
+            pp.push_back(pops->rows().at(i).levels.populations.at(k));
+          }
+          e.insert_or_assign("level_energies_ghz", std::move(pe));
+          e.insert_or_assign("level_populations", std::move(pp));
+        }
+        oa.push_back(std::move(e));
+      }
+      j.insert_or_assign("observations", std::move(oa));
+    }
     std::cout << to_json(j) << "\n";
   } else {
     std::cout << fmt::format("problem      {}: {} qubits, {} couplings; ground energy {:.10g}, degeneracy {}\n", o.problem,
@@ -114,17 +190,32 @@ void run_anneal(const AnnealOptions& o) {
                              r.duration_ns, sch.start.kind == StartKind::Ground ? "ground state of H(s0)" : "classical state");
     std::cout << fmt::format("propagator   {} (tolerance {:.0e}): {} steps, {} H applications, {:.3f} s\n", r.propagator,
                              o.tolerance, r.stats.steps, r.stats.hamiltonian_applications, r.wall_seconds);
-    std::cout << fmt::format("error est.   {:.1e} ({})\n", r.stats.error_estimate,
-                             r.propagator == "odeint" ? "sum of local error estimates, amplitudes"
-                                                      : "of p, step doubling; other outcome probabilities to 100x the tolerance");
     std::cout << fmt::format("\nground-state probability  {:.8f}\n", r.ground_probability);
     if (delta_p)
       std::cout << fmt::format("convergence               |dp| = {:.1e} when the tolerance is tightened tenfold{}\n", *delta_p,
                                *delta_p > o.tolerance ? "  (WARNING: larger than expected)" : "");
     std::cout << fmt::format("norm drift                {:.1e}\n", r.norm_drift);
-    std::cout << fmt::format("integrator error est.     {:.1e} (sum of accepted local errors){}\n\n", r.stats.error_estimate,
-                             accuracy.empty() ? "" : "\naccuracy                  NOT within the tolerance (see warnings)");
+    // One error estimate per run; what it measures depends on the propagator.
+    if (r.propagator == "odeint")
+      std::cout << fmt::format("integrator error est.     {:.1e} (sum of the accepted steps' local error estimates of the\n"
+                               "                          amplitudes; a bound-like figure, not the error of p itself)\n",
+                               r.stats.error_estimate);
+    else
+      std::cout << fmt::format("error estimate of p       {:.1e} (step doubling: the accepted grid against one with half\n"
+                               "                          the steps, Richardson-scaled; any other set of outcomes within\n"
+                               "                          100x the tolerance)\n",
+                               r.stats.error_estimate);
+    if (!accuracy.empty()) std::cout << "accuracy                  NOT within the tolerance (see warnings)\n";
+    std::cout << "\n";
     std::cout << "most probable outcomes\n" << outcomes.render();
+    if (!requested_rows.empty()) {
+      std::cout << "\nobservations at the requested s"
+                << (o.levels > 0 ? fmt::format(" (pop_levelJ: weight on the J-th lowest distinct level of H(s), {})",
+                                               describe_sector(lpo.sector))
+                                 : std::string())
+                << "\n"
+                << obs.render();
+    }
   }
 
   if (!o.csv.empty()) write_file_atomically(o.csv, tr.csv());
@@ -154,6 +245,32 @@ void run_anneal(const AnnealOptions& o) {
     h5.write("/anneal/trace/ground_probability", pg, "1");
     h5.write("/anneal/trace/energy", e, "GHz");
     h5.write("/anneal/trace/norm", nrm, "1");
+    if (!observe_s.empty()) {
+      std::vector<long long> req;
+      for (const auto& row : trace.rows()) req.push_back(row.requested ? 1 : 0);
+      h5.write("/anneal/trace/requested", req, "1 at an --observe-s value, 0 otherwise");
+      std::vector<double> ot, os, op, oe, on, le, lp;
+      for (std::size_t i = 0; i < requested_rows.size(); ++i) {
+        const auto& row = requested_rows[i];
+        ot.push_back(row.t_ns); os.push_back(row.s); op.push_back(row.ground_probability);
+        oe.push_back(row.energy_ghz); on.push_back(row.norm);
+        for (int k = 0; k < o.levels; ++k) {
+          le.push_back(pops->rows().at(i).levels.energies_ghz.at(k));
+          lp.push_back(pops->rows().at(i).levels.populations.at(k));
+        }
+      }
+      h5.write("/anneal/observations/t", ot, "ns");
+      h5.write("/anneal/observations/s", os, "1");
+      h5.write("/anneal/observations/ground_probability", op, "1");
+      h5.write("/anneal/observations/energy", oe, "GHz");
+      h5.write("/anneal/observations/norm", on, "1");
+      if (o.levels > 0) {
+        const std::size_t m = requested_rows.size(), kk = static_cast<std::size_t>(o.levels);
+        h5.write_matrix("/anneal/observations/level_energies", le, m, kk, "GHz");
+        h5.write_matrix("/anneal/observations/level_populations", lp, m, kk, "1");
+        h5.attribute("/anneal/observations/level_populations", "sector", sector_name(lpo.sector));
+      }
+    }
     const auto probs = probabilities(r.final_state);
     h5.write("/anneal/final_probabilities", probs, "1");
     h5.commit();
@@ -179,7 +296,17 @@ void register_anneal(CLI::App& app) {
                   "which propagator runs the dynamics: split4 (fast, fourth order, default), split2 (second\n"
                   "order), split4-yoshida (fourth order, triple jump), odeint (the generic reference)")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
-  sub->add_option("--samples", o->samples, "observations inside each piece of the path (trace)")->capture_default_str();
+  sub->add_option("--samples", o->samples, "evenly spaced observations inside each piece of the path (trace)")->capture_default_str();
+  sub->add_option("--observe-s", o->observe_s,
+                  "also observe where the path passes these s values: a list 0.3,0.5,0.62 or a range\n"
+                  "FIRST:LAST:COUNT. Recorded in the trace (marked requested) and listed on their own\n"
+                  "(terminal, JSON `observations`, HDF5 /anneal/observations). A reverse anneal passes\n"
+                  "most s twice: both passages are recorded. With a split propagator they do not change\n"
+                  "the result (side branches off the step grid)");
+  sub->add_option("--levels", o->levels,
+                  "at the --observe-s points also record the populations of the K lowest distinct levels\n"
+                  "of H(s) (one eigenproblem each; even spin-flip sector when the problem has no fields\n"
+                  "and the anneal starts in the ground state)")->capture_default_str();
   sub->add_option("--top", o->top, "how many most probable outcomes to list")->capture_default_str();
   sub->add_flag("--no-check", o->no_check, "skip the convergence re-run at tolerance/10");
   sub->add_flag("--strict", o->strict,

@@ -57,8 +57,9 @@ Schedule with_shape(const Schedule& base, const ForwardShapeSpec& spec, const st
 }
 
 void run_compare(const CompareOptions& o) {
-  const IsingProblem p = read_problem_file(o.problem);
-  check_memory(p.qubits, 10, 0, o.problem);
+  const ProblemFile p_file = parse_problem_file(o.problem);
+  const IsingProblem& p = p_file.ising;
+  check_memory(p.qubits, 10, 0, p_file.qubits_place);
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
   if (!(o.target > 0 && o.target < 1))

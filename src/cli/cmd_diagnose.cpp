@@ -33,7 +33,8 @@ struct DiagnoseOptions {
 };
 
 void run_diagnose(const DiagnoseOptions& o) {
-  const IsingProblem p = read_problem_file(o.problem);
+  const ProblemFile p_file = parse_problem_file(o.problem);
+  const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);
   if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
     throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
@@ -50,7 +51,7 @@ void run_diagnose(const DiagnoseOptions& o) {
     throw InputError({"--check-max-ns", 0, 0, "--check-max-ns"}, fmt::format("{} ns is negative", o.check_max_ns),
                      "give a duration in ns, or 0 to skip the simulated checks");
   if (!o.out.empty()) check_output_path(o.out, "--out");
-  check_memory(p.qubits, 12, 0, o.problem);
+  check_memory(p.qubits, 12, 0, p_file.qubits_place);
 
   DiagnosisOptions d;
   d.durations_ns = o.durations_ns;

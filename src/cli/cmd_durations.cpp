@@ -79,7 +79,8 @@ std::string p_text(double p) { return fmt::format("{:.6f}", std::clamp(p, 0.0, 1
 std::string ns_text(double t) { return std::isinf(t) ? "inf" : fmt_num(t, 5); }
 
 void run_durations(const DurationsOptions& o) {
-  const IsingProblem problem = read_problem_file(o.problem);
+  const ProblemFile problem_file = parse_problem_file(o.problem);
+  const IsingProblem& problem = problem_file.ising;
   const Schedule schedule = read_schedule_file(o.schedule);
   if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
     throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
@@ -107,7 +108,7 @@ void run_durations(const DurationsOptions& o) {
 #else
   const int threads = 1;
 #endif
-  check_memory(problem.qubits, 10 * std::max(1, threads), 0, o.problem);
+  check_memory(problem.qubits, 10 * std::max(1, threads), 0, problem_file.qubits_place);
 
   SimulationOptions sim;
   sim.propagator = o.propagator;

@@ -26,8 +26,8 @@ namespace gapwise::cli {
 namespace {
 
 struct GapOptions {
-  std::string problem, schedule, out, csv, sector = "auto", solver = "auto";
-  int levels = 4, points = 101, max_points = 3000;
+  std::string problem, schedule, out, csv, sector = "auto", solver = "auto", vectors_at;
+  int levels = 4, points = 101, max_points = 3000, vector_levels = 0;
   double s_tolerance = 1e-6;
   std::optional<double> s_first, s_last;
   bool json = false, other_sector = false, progress = false, quiet = false, no_level_check = false, fresh = false;
@@ -72,12 +72,55 @@ std::string states_text(const FinalLevel& fl, int qubits) {
   return s;
 }
 
+/// --vectors-at: "star" (the s* found) and numbers or ranges, comma-separated.
+struct VectorRequest {
+  bool star = false;
+  std::vector<double> s;
+};
+
+VectorRequest parse_vectors_at(const std::string& text) {
+  VectorRequest v;
+  std::size_t pos = 0;
+  while (pos <= text.size()) {
+    const std::size_t comma = text.find(',', pos);
+    std::string tok = text.substr(pos, comma == std::string::npos ? std::string::npos : comma - pos);
+    tok.erase(0, tok.find_first_not_of(' '));
+    tok.erase(tok.find_last_not_of(' ') + 1);
+    if (tok == "star" || tok == "s*") {
+      v.star = true;
+    } else {
+      for (double s : parse_value_list(tok, "--vectors-at")) {
+        if (!(s >= 0.0 && s <= 1.0))
+          throw InputError({"--vectors-at", 0, 0, "--vectors-at"}, fmt::format("s = {} is outside [0, 1]", s),
+                           "give s values in [0, 1] or `star` for the minimum-gap location, e.g. --vectors-at star,0.5");
+        v.s.push_back(s);
+      }
+    }
+    if (comma == std::string::npos) break;
+    pos = comma + 1;
+  }
+  return v;
+}
+
 void run_gap(const GapOptions& o) {
   const ProblemFile pf = parse_problem_file(o.problem);
   const IsingProblem& p = pf.ising;
   const Schedule sch = o.schedule.empty() ? Schedule{} : read_schedule_file(o.schedule);
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
+  VectorRequest vreq;
+  if (!o.vectors_at.empty()) {
+    vreq = parse_vectors_at(o.vectors_at);
+    if (o.out.empty())
+      throw InputError({"--vectors-at", 0, 0, "--vectors-at"}, "eigenvectors are written to the HDF5 result only",
+                       "add --out FILE.h5");
+    if (vreq.s.size() + (vreq.star ? 1 : 0) > 64)
+      throw InputError({"--vectors-at", 0, 0, "--vectors-at"}, "more than 64 points asked for",
+                       "ask for at most 64 s values (each stores levels x 2^n numbers)");
+  }
+  if (o.vector_levels < 0 || o.vector_levels > 64)
+    throw InputError({"--vector-levels", 0, 0, "--vector-levels"}, fmt::format("{} levels", o.vector_levels),
+                     "give 1 to 64 (0: the levels followed by the search)");
   if (o.levels < 2 || o.levels > 64)
     throw InputError({"--levels", 0, 0, "--levels"}, fmt::format("{} levels", o.levels),
                      "follow between 2 and 64 levels (default 4)");
@@ -101,7 +144,7 @@ void run_gap(const GapOptions& o) {
   opt.check_missed_levels = !o.no_level_check;
 
   // Refuse a too-large problem before building anything of size 2^n.
-  check_gap_search_size(p.qubits, opt.sector.value_or(default_sector(p)), o.levels, opt.method, o.problem);
+  check_gap_search_size(p.qubits, opt.sector.value_or(default_sector(p)), o.levels, opt.method, pf.qubits_place);
   const TransverseIsingHamiltonian H(p);
   const GapSearchPlan plan = plan_gap_search(H, opt);
   if (!o.json && !o.quiet)
@@ -137,6 +180,20 @@ void run_gap(const GapOptions& o) {
   if (!o.quiet) opt.progress = [&progress](const GapSearchProgress& g) { progress(g); };
   const MinimumGapReport r = find_minimum_gap(H, sch.scales, opt);
   progress.done();
+
+  // Eigenvectors on request: at s* and/or the given s, in the sector searched.
+  std::vector<double> vector_s;
+  if (vreq.star) vector_s.push_back(r.s_star);
+  for (double s : vreq.s) {
+    if (s < r.s_first - 1e-12 || s > r.s_last + 1e-12)
+      throw InputError({"--vectors-at", 0, 0, "--vectors-at"},
+                       fmt::format("s = {} is outside the searched range {} to {}", s, r.s_first, r.s_last),
+                       fmt::format("give s values between {} and {}", r.s_first, r.s_last));
+    vector_s.push_back(s);
+  }
+  std::vector<EigenvectorsAt> vectors;
+  const int vk = o.vector_levels > 0 ? o.vector_levels : r.levels;
+  for (double s : vector_s) vectors.push_back(eigenvectors_at(H, sch.scales, s, vk, r.sector, r.method));
 
   const int k = r.levels, g = r.ground_degeneracy;
   std::vector<std::string> head{"s", "a_ghz", "b_ghz"};
@@ -305,6 +362,38 @@ void run_gap(const GapOptions& o) {
     h5.write(G + "/final_levels/dominant_state", fstate, "basis index (bit i = qubit i)");
     h5.write(G + "/final_levels/in_ground_manifold", fground, "1 yes, 0 no");
     h5.write_strings(G + "/notes", r.flags.empty() ? std::vector<std::string>{"none"} : r.flags);
+    if (!vectors.empty()) {
+      // Layout documented in the user guide (gap, "Eigenvectors").
+      const std::string V = G + "/eigenvectors";
+      h5.group(V);
+      h5.attribute(V, "basis",
+                   "full computational basis: column b is the amplitude of |b>, bit i of b is qubit i (z_i; spin "
+                   "s_i = 1 - 2 z_i); qubit 0 = bit 0");
+      h5.attribute(V, "sector", sector_name(r.sector));
+      h5.attribute(V, "sector_handling",
+                   r.sector == SpinFlipSector::Full
+                       ? std::string("computed in the full space")
+                       : fmt::format("computed in the {} in sector coordinates, stored expanded to the full basis: "
+                                     "v[b] = x_b/sqrt(2), v[~b] = {}x_b/sqrt(2) for representatives b < 2^(n-1); norm 1",
+                                     describe_sector(r.sector), r.sector == SpinFlipSector::Even ? "+" : "-"));
+      h5.attribute(V, "count", static_cast<long long>(vectors.size()));
+      std::vector<double> vs;
+      for (const auto& v : vectors) vs.push_back(v.s);
+      h5.write(V + "/s", vs, "1");
+      for (std::size_t i = 0; i < vectors.size(); ++i) {
+        const auto& v = vectors[i];
+        const std::string P = fmt::format("{}/{}", V, i);
+        h5.group(P);
+        h5.attribute(P, "s", v.s);
+        h5.attribute(P, "a_ghz", v.a_ghz);
+        h5.attribute(P, "b_ghz", v.b_ghz);
+        h5.attribute(P, "at", vreq.star && i == 0 ? std::string("s_star") : std::string("requested s"));
+        h5.write(P + "/energies", v.energies_ghz, "GHz");
+        h5.write(P + "/residuals", v.residuals_ghz, "GHz");
+        h5.write_matrix(P + "/vectors", v.vectors, v.energies_ghz.size(), v.dimension, "1");
+        h5.attribute(P + "/vectors", "layout", "row j = level j (ascending energy), column b = basis state b");
+      }
+    }
     h5.commit();
     journal.reset();
     std::filesystem::remove(journal_path_for(o.out));  // the result file now holds everything
@@ -346,6 +435,14 @@ void register_gap(CLI::App& app) {
                 "skip the Lanczos deflation check for missed degenerate levels (faster; only safe without exact degeneracies)");
   sub->add_option("--out", o->out, "HDF5 result file; points are journaled beside it, so a killed run resumes");
   sub->add_flag("--fresh", o->fresh, "ignore an existing journal of an interrupted run and start over");
+  sub->add_option("--vectors-at", o->vectors_at,
+                  "write eigenvectors of the lowest levels to the --out file at these s: `star` (the s* found),\n"
+                  "numbers, or ranges FIRST:LAST:COUNT, e.g. --vectors-at star,0.5,0.9. Stored in the full\n"
+                  "2^n basis (bit i of the index = qubit i) under /gap/eigenvectors/<i>/vectors, levels x 2^n;\n"
+                  "even-sector vectors are expanded to the full basis (see the user guide)");
+  sub->add_option("--vector-levels", o->vector_levels,
+                  "how many of the lowest levels --vectors-at writes (default: the levels followed)")
+      ->capture_default_str();
   sub->add_option("--csv", o->csv, "CSV of the curve: s, A, B, E_0..E_k-1, gaps, matrix elements");
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   sub->add_flag("--progress", o->progress, "report progress on stderr even when it is not a terminal");

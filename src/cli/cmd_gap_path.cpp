@@ -23,15 +23,16 @@ struct GapPathOptions {
 };
 
 void run_gap_path(const GapPathOptions& o) {
-  const IsingProblem p = read_problem_file(o.problem);
+  const ProblemFile p_file = parse_problem_file(o.problem);
+  const IsingProblem& p = p_file.ising;
   Schedule base = read_schedule_file(o.schedule);
   check_output_path(o.out, "--out");
   if (o.duration_ns) base.duration_ns = *o.duration_ns;
+  check_gap_search_size(p.qubits, default_sector(p), o.levels, EigenMethod::Auto, p_file.qubits_place);
   const TransverseIsingHamiltonian H(p);
   GapSearchOptions search;
   search.levels = o.levels;
   search.coarse_points = o.coarse;
-  check_gap_search_size(p.qubits, default_sector(p), o.levels, EigenMethod::Auto, o.problem);
   GapAdaptedSchedule g;
   try {
     g = gap_adapted_schedule(H, base, search, {.waypoints = o.waypoints, .matrix_element_floor = o.floor});

@@ -27,7 +27,7 @@ void run_inspect(const InspectOptions& o) {
   std::optional<Schedule> schedule;
   if (!o.schedule.empty()) schedule = read_schedule_file(o.schedule);
   const IsingProblem& p = pf.ising;
-  check_memory(p.qubits, 0, 0, o.problem);
+  check_memory(p.qubits, 0, 0, pf.qubits_place);
   const GroundManifold gm = find_ground_manifold(p);
   int nfields = 0;
   for (double x : p.h) nfields += x != 0.0;

@@ -71,10 +71,11 @@ void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const
 }
 
 void run_pause_map(const PauseMapCli& o) {
-  const IsingProblem p = read_problem_file(o.problem);
+  const ProblemFile p_file = parse_problem_file(o.problem);
+  const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);
   check_output_path(o.out, "--out");
-  check_memory(p.qubits, 10, 0, o.problem);
+  check_memory(p.qubits, 10, 0, p_file.qubits_place);
   PauseMapOptions mo;
   mo.pause_s = parse_value_list(o.at, "--at");
   mo.pause_ns = parse_value_list(o.pause_ns, "--pause-ns");

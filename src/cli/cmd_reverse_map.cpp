@@ -26,10 +26,11 @@ struct ReverseMapCli {
 };
 
 void run_reverse_map(const ReverseMapCli& o) {
-  const IsingProblem p = read_problem_file(o.problem);
+  const ProblemFile p_file = parse_problem_file(o.problem);
+  const IsingProblem& p = p_file.ising;
   Schedule sch = read_schedule_file(o.schedule);
   check_output_path(o.out, "--out");
-  check_memory(p.qubits, 10, 0, o.problem);
+  check_memory(p.qubits, 10, 0, p_file.qubits_place);
   if (!o.start_bits.empty()) {
     sch.start.kind = StartKind::Classical;
     sch.start.bits.clear();

@@ -18,7 +18,7 @@ double energy_expectation_ghz(const TransverseIsingHamiltonian& h, double a, dou
 
 void TraceObserver::observe(const ObservationPoint& at, const QuantumState& psi) {
   rows_.push_back({at.t_ns, at.s, ground_probability(psi, ground_), energy_expectation_ghz(h_, at.a_ghz, at.b_ghz, psi),
-                   norm_squared(psi)});
+                   norm_squared(psi), at.requested});
 }
 
 }  // namespace gapwise

@@ -19,6 +19,9 @@ struct ObservationPoint {
   double s = 0;
   double a_ghz = 0;
   double b_ghz = 0;
+  /// True at the s values asked for by SimulationOptions::observe_s (s is then
+  /// exactly the requested value); false at waypoints and evenly spaced samples.
+  bool requested = false;
 };
 
 class AnnealObserver {
@@ -40,6 +43,7 @@ class TraceObserver final : public AnnealObserver {
  public:
   struct Row {
     double t_ns, s, ground_probability, energy_ghz, norm;
+    bool requested;  ///< at an s of SimulationOptions::observe_s
   };
   TraceObserver(const TransverseIsingHamiltonian& h, const GroundManifold& ground) : h_(h), ground_(ground) {}
   void observe(const ObservationPoint& at, const QuantumState& psi) override;

@@ -51,6 +51,23 @@ std::vector<Outcome> most_probable_outcomes(const QuantumState& psi, const Trans
   return out;
 }
 
+std::vector<double> times_at_s(const AnnealPath& path, double s) {
+  std::vector<double> out;
+  const auto& pts = path.points();
+  constexpr double kSame = 1e-12;  // s values this close are the waypoint's own
+  for (std::size_t k = 0; k < pts.size(); ++k) {
+    const bool at_waypoint = std::abs(pts[k].s - s) <= kSame;
+    // A waypoint at s counts once per passage: not again when the previous
+    // waypoint was at s too (a pause at s is observed at its start).
+    if (at_waypoint && !(k > 0 && std::abs(pts[k - 1].s - s) <= kSame)) out.push_back(pts[k].t_ns);
+    if (k + 1 == pts.size()) break;
+    const double s0 = pts[k].s, s1 = pts[k + 1].s;
+    if (std::min(s0, s1) + kSame < s && s < std::max(s0, s1) - kSame)
+      out.push_back(pts[k].t_ns + (s - s0) / (s1 - s0) * (pts[k + 1].t_ns - pts[k].t_ns));
+  }
+  return out;
+}
+
 void apply_diagonal_phases(const TransverseIsingHamiltonian& h, double b_ghz, double dt_ns, QuantumState& psi) {
   const double w = -2.0 * std::numbers::pi * 0.5 * b_ghz * dt_ns;
   const auto& d = h.diagonal();
@@ -68,30 +85,65 @@ AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundMa
   AnnealResult r;
   r.duration_ns = path.duration_ns();
   r.propagator = prop->name();
-  auto observe = [&](double t) {
-    if (observers.empty()) return;
-    const double s = path.s_at(t);
-    ObservationPoint at{t, s, scales.a_ghz(s), scales.b_ghz(s)};
-    for (auto* o : observers) o->observe(at, psi);
+  // Where to stop and observe: waypoints, evenly spaced samples inside each
+  // piece, and every passage through a requested s (exact s kept for those).
+  struct Stop {
+    double t;
+    double s;
+    bool requested;
   };
   const auto& pts = path.points();
-  observe(pts.front().t_ns);
+  const double eps = 1e-12 * std::max(1.0, path.duration_ns());
+  std::vector<Stop> requested;
+  if (!observers.empty())
+    for (double s : options.observe_s) {
+      const std::vector<double> ts = times_at_s(path, s);
+      if (ts.empty())
+        throw std::invalid_argument(fmt::format("observation at s = {}: the path covers s from {} to {} only", s,
+                                                path.s_min(), path.s_max()));
+      for (double t : ts) requested.push_back({t, s, true});
+    }
+  auto observe = [&](const Stop& stop) {
+    if (observers.empty()) return;
+    const double s = stop.requested ? stop.s : path.s_at(stop.t);
+    ObservationPoint at{stop.t, s, scales.a_ghz(s), scales.b_ghz(s), stop.requested};
+    for (auto* o : observers) o->observe(at, psi);
+  };
+  // The stop at time t: requested when a requested s is passed there.
+  auto stop_at = [&](double t) {
+    for (const Stop& q : requested)
+      if (std::abs(q.t - t) <= eps) return Stop{t, q.s, true};
+    return Stop{t, 0.0, false};
+  };
+  observe(stop_at(pts.front().t_ns));
   for (std::size_t k = 0; k + 1 < pts.size(); ++k) {
     const double t0 = pts[k].t_ns, t1 = pts[k + 1].t_ns;
     const int m = observers.empty() ? 0 : std::max(options.samples_per_piece, 0);
+    std::vector<Stop> stops;
+    for (int j = 1; j <= m; ++j) stops.push_back(stop_at(t0 + (t1 - t0) * j / (m + 1)));
+    for (const Stop& q : requested)
+      if (q.t > t0 + eps && q.t < t1 - eps) {
+        bool merged = false;  // one observation per time (a sample there is already marked requested)
+        for (const Stop& st : stops) merged = merged || std::abs(st.t - q.t) <= eps;
+        if (!merged) stops.push_back(q);
+      }
+    std::sort(stops.begin(), stops.end(), [](const Stop& a, const Stop& b) { return a.t < b.t; });
+    stops.push_back(stop_at(t1));
     // A piece at constant s where A(s) = 0 (a pause or dwell with the transverse
     // term off) has the diagonal Hamiltonian (B/2) D: its propagator is exactly
     // the phase exp(-i 2 pi (B/2) D_b dt) on each basis state, applied as such.
     const bool diagonal_pause = pts[k].s == pts[k + 1].s && scales.a_ghz(pts[k].s) == 0.0;
     double t = t0;
-    for (int j = 1; j <= m + 1; ++j) {
-      const double tn = j == m + 1 ? t1 : t0 + (t1 - t0) * j / (m + 1);
-      if (diagonal_pause)
-        apply_diagonal_phases(h, scales.b_ghz(pts[k].s), tn - t, psi);
-      else
-        prop->advance(drive, t, tn, psi, r.stats);
-      t = tn;
-      observe(t);
+    for (const Stop& st : stops) {
+      const double tn = st.t;
+      if (tn > t) {
+        if (diagonal_pause)
+          apply_diagonal_phases(h, scales.b_ghz(pts[k].s), tn - t, psi);
+        else
+          prop->advance(drive, t, tn, psi, r.stats);
+        t = tn;
+      }
+      observe(st);
     }
   }
   r.norm_drift = std::abs(norm_squared(psi) - 1.0);

@@ -21,6 +21,14 @@ struct SimulationOptions {
   std::string propagator = "split4";  // the fast split-operator propagator; "odeint" is the reference
   PropagatorOptions propagation;
   int samples_per_piece = 0;  ///< observations inside each piece, besides the waypoints
+  /// Further observations wherever the path passes these s values (every
+  /// passage: a reverse anneal passes most s twice; a pause at s is observed at
+  /// its start). Observers see them with ObservationPoint::requested = true and
+  /// s exactly as given. With a split propagator they are side branches off the
+  /// step grid and leave the final state bit for bit unchanged; odeint stops
+  /// there, which changes its adaptive steps within the tolerance.
+  /// std::invalid_argument for an s the path never reaches (observe_s_times).
+  std::vector<double> observe_s;
   int top_outcomes = 8;
 };
 
@@ -50,6 +58,10 @@ QuantumState initial_state(const TransverseIsingHamiltonian& h, const Schedule& 
 AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundManifold& ground,
                              const EnergyScales& scales, const AnnealPath& path, QuantumState psi,
                              const SimulationOptions& options, const std::vector<AnnealObserver*>& observers = {});
+
+/// Where the path passes s: every time t with s(t) == s (the first time of a
+/// constant-s piece at s), ascending. Empty when the path never reaches s.
+std::vector<double> times_at_s(const AnnealPath& path, double s);
 
 /// psi <- exp(-i 2 pi (b/2) D dt) psi: the exact propagator of H = (b/2) D (A = 0)
 /// over dt ns. simulate_anneal uses it on constant-s pieces where A(s) = 0.

@@ -72,8 +72,9 @@ LevelPopulations level_populations(const SectorHamiltonian& h, double a, double 
 }
 
 void LevelPopulationObserver::observe(const ObservationPoint& at, const QuantumState& psi) {
+  if (opt_.requested_only && !at.requested) return;
   const bool last = opt_.final_time_ns > 0 && at.t_ns >= opt_.final_time_ns;
-  if (!rows_.empty() && !last && at.t_ns - rows_.back().t_ns < opt_.min_interval_ns * (1 - 1e-9) &&
+  if (!rows_.empty() && !last && !at.requested && at.t_ns - rows_.back().t_ns < opt_.min_interval_ns * (1 - 1e-9) &&
       std::abs(at.s - rows_.back().s) < opt_.min_interval_s * (1 - 1e-9))
     return;
   rows_.push_back({at.t_ns, at.s, level_populations(h_, at.a_ghz, at.b_ghz, psi, opt_)});

@@ -36,6 +36,10 @@ struct LevelPopulationOptions {
   double min_interval_ns = 0.0;
   double min_interval_s = 0.0;
   double final_time_ns = 0.0;
+  /// Record only the observations at requested s values (SimulationOptions::
+  /// observe_s), e.g. to pay for eigenproblems only where the user asked.
+  /// Requested observations are always recorded, whatever the intervals above.
+  bool requested_only = false;
 };
 
 /// Populations of the lowest distinct levels of H = H(a, b) in psi.

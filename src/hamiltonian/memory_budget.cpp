@@ -33,18 +33,24 @@ std::string human_bytes(double bytes) {
 }
 
 void check_memory(int qubits, int complex_vectors, int real_vectors, const std::string& what) {
+  check_memory(qubits, complex_vectors, real_vectors, SourcePlace{what, 0, 0, "qubits"});
+}
+
+void check_memory(int qubits, int complex_vectors, int real_vectors, const SourcePlace& where_in) {
+  SourcePlace where = where_in;
+  if (where.key.empty()) where.key = "qubits";
   const double need = estimate_bytes(qubits, complex_vectors, real_vectors);
   if (qubits > kMaxQubits)
-    throw InputError({what, 0, 0, "qubits"},
+    throw InputError(where,
                      fmt::format("{} qubits need about {} of memory (2^{} amplitudes); gapwise accepts at most {} qubits",
                                  qubits, human_bytes(need), qubits, kMaxQubits),
                      "split the problem or fix the qubit count");
   const double have = available_bytes();
   if (have > 0 && need > 0.9 * have)
-    throw InputError({what, 0, 0, "qubits"},
+    throw InputError(where,
                      fmt::format("{} qubits need about {} but only {} is available", qubits,
                                  human_bytes(need), human_bytes(have)),
-                     "use fewer qubits or a machine with more memory");
+                     "use fewer qubits (split the problem) or a machine with more memory; each qubit doubles the need");
 }
 
 }  // namespace gapwise

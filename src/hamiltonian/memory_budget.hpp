@@ -5,6 +5,8 @@
 #include <cstddef>
 #include <string>
 
+#include "io/input_error.hpp"
+
 namespace gapwise {
 
 /// Largest qubit count any gapwise computation accepts (2^n amplitudes).
@@ -23,5 +25,9 @@ std::string human_bytes(double bytes);
 /// Throws InputError (place: `what`) when the estimate exceeds the available memory
 /// or n > kMaxQubits; the message shows the estimate.
 void check_memory(int qubits, int complex_vectors, int real_vectors, const std::string& what);
+
+/// The same, with the refusal placed at `where` (e.g. file, line and column of
+/// the `qubits` key; an empty key becomes "qubits").
+void check_memory(int qubits, int complex_vectors, int real_vectors, const SourcePlace& where);
 
 }  // namespace gapwise

@@ -107,6 +107,8 @@ ProblemFile parse_problem_text(std::string_view text, const std::string& name) {
   }
   IsingProblem& p = out.ising;
   p = IsingProblem(static_cast<int>(n));
+  out.qubits_place = SourcePlace{name, static_cast<int>(qn->source().begin.line),
+                                 static_cast<int>(qn->source().begin.column), "qubits"};
   p.description = r.get_string(t, "description", "").value_or("");
   if (const toml::node* off = t.get("offset")) p.offset = coefficient(r, *off, "offset");
 

@@ -15,6 +15,7 @@
 #include <string>
 #include <string_view>
 
+#include "io/input_error.hpp"
 #include "problem/ising_problem.hpp"
 
 namespace gapwise {
@@ -23,6 +24,10 @@ struct ProblemFile {
   IsingProblem ising;            ///< always filled (QUBO converted exactly)
   std::string kind;              ///< "ising" or "qubo", as written
   QuboProblem qubo;              ///< filled when kind == "qubo"
+  /// Where `qubits` is written (file, line, column), for refusals that depend on
+  /// the qubit count, e.g. a command's memory check:
+  ///   check_memory(pf.ising.qubits, 10, 0, pf.qubits_place);  // "file:5:10: key 'qubits': ..."
+  SourcePlace qubits_place;
 };
 
 ProblemFile parse_problem_file(const std::string& path);

@@ -124,16 +124,20 @@ double estimate_gap_search_bytes(int qubits, SpinFlipSector sector, int levels, 
 }
 
 void check_gap_search_size(int qubits, SpinFlipSector sector, int levels, EigenMethod method, const std::string& what) {
+  check_gap_search_size(qubits, sector, levels, method, SourcePlace{what, 0, 0, "qubits"});
+}
+
+void check_gap_search_size(int qubits, SpinFlipSector sector, int levels, EigenMethod method, const SourcePlace& where) {
   const double need = estimate_gap_search_bytes(qubits, sector, levels, method);
   if (qubits > kMaxSpectrumQubits)
-    throw InputError({what, 0, 0, "qubits"},
+    throw InputError(where,
                      fmt::format("{} qubits: the spectrum search works on at most {} qubits (it would need about {} "
                                  "and many hours on 2^{} amplitudes)",
                                  qubits, kMaxSpectrumQubits, human_bytes(need), qubits),
                      fmt::format("use a problem with at most {} qubits", kMaxSpectrumQubits));
   const double have = available_bytes();
   if (have > 0 && need > 0.9 * have)
-    throw InputError({what, 0, 0, "qubits"},
+    throw InputError(where,
                      fmt::format("the spectrum search on {} qubits needs about {} but only {} is available", qubits,
                                  human_bytes(need), human_bytes(have)),
                      "use fewer qubits, fewer levels, or a machine with more memory");
@@ -564,6 +568,32 @@ GapSearchPlan plan_gap_search(const TransverseIsingHamiltonian& h, const GapSear
   plan.memory_bytes = estimate_gap_search_bytes(h.qubits(), plan.sector, plan.levels, m);
   if (plan.levels > o.levels) check_gap_search_size(h.qubits(), plan.sector, plan.levels, m, "problem");
   return plan;
+}
+
+EigenvectorsAt eigenvectors_at(const TransverseIsingHamiltonian& h, const EnergyScales& scales, double s, int levels,
+                               SpinFlipSector sector, EigenMethod method) {
+  const SectorHamiltonian sh(h, sector);
+  EigenvectorsAt out;
+  out.s = s;
+  out.a_ghz = scales.a_ghz(s);
+  out.b_ghz = scales.b_ghz(s);
+  out.sector = sector;
+  out.dimension = h.dim();
+  LevelOptions lo;
+  lo.levels = levels;
+  lo.vectors = true;
+  lo.method = method;
+  const Levels lv = lowest_levels(sh, out.a_ghz, out.b_ghz, lo);
+  out.energies_ghz = lv.energies_ghz;
+  out.residuals_ghz = lv.residuals_ghz;
+  const std::size_t k = lv.energies_ghz.size();
+  out.vectors.reserve(k * h.dim());
+  for (std::size_t j = 0; j < k; ++j) {
+    const Eigen::VectorXd col = lv.vectors.col(static_cast<Eigen::Index>(j));
+    const std::vector<double> full = sh.to_full(col.data());
+    out.vectors.insert(out.vectors.end(), full.begin(), full.end());
+  }
+  return out;
 }
 
 MinimumGapReport find_minimum_gap(const TransverseIsingHamiltonian& h, const EnergyScales& scales,

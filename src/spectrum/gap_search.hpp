@@ -40,6 +40,7 @@
 #include <vector>
 
 #include "hamiltonian/spin_flip_sector.hpp"
+#include "io/input_error.hpp"
 #include "hamiltonian/transverse_ising.hpp"
 #include "problem/classical_spectrum.hpp"
 #include "schedule/energy_scales.hpp"
@@ -161,6 +162,8 @@ double estimate_gap_search_bytes(int qubits, SpinFlipSector sector, int levels, 
 /// Refuses (InputError naming `what`) more than kMaxSpectrumQubits qubits or more
 /// memory than is available; the message gives the estimate.
 void check_gap_search_size(int qubits, SpinFlipSector sector, int levels, EigenMethod method, const std::string& what);
+/// The same, with the refusal placed at `where` (e.g. the `qubits` line of the problem file).
+void check_gap_search_size(int qubits, SpinFlipSector sector, int levels, EigenMethod method, const SourcePlace& where);
 
 /// The sector the search uses for this problem when none is requested.
 SpinFlipSector default_sector(const IsingProblem& problem);
@@ -178,6 +181,27 @@ struct GapSearchPlan {
 };
 /// Throws InputError for an impossible request (see find_minimum_gap).
 GapSearchPlan plan_gap_search(const TransverseIsingHamiltonian& h, const GapSearchOptions& options);
+
+/// Eigenvectors of the lowest levels at one s, written in the full 2^n
+/// computational basis whatever sector they were computed in.
+struct EigenvectorsAt {
+  double s = 0.0, a_ghz = 0.0, b_ghz = 0.0;
+  SpinFlipSector sector = SpinFlipSector::Full;  ///< where they were computed
+  std::vector<double> energies_ghz;   ///< ascending
+  std::vector<double> residuals_ghz;  ///< ||H v - E v|| in the sector (error bound on E)
+  /// Row-major, levels x 2^n: entry (j, b) is the amplitude of basis state b
+  /// (bit i of b = qubit i) in level j. A sector vector x (representatives b <
+  /// 2^(n-1)) is expanded as v[b] = x_b / sqrt(2), v[~b] = +-x_b / sqrt(2)
+  /// (+ even, - odd), so every row has norm 1 in the full basis. Real (H(s) is
+  /// real symmetric); overall sign arbitrary; a degenerate level's rows are one
+  /// orthonormal basis of its eigenspace.
+  std::vector<double> vectors;
+  std::size_t dimension = 0;  ///< 2^n
+};
+
+/// The lowest `levels` eigenpairs of H(s) in `sector`, expanded to the full basis.
+EigenvectorsAt eigenvectors_at(const TransverseIsingHamiltonian& h, const EnergyScales& scales, double s, int levels,
+                               SpinFlipSector sector, EigenMethod method = EigenMethod::Auto);
 
 /// The full search. Throws InputError for an impossible request (sector with fields,
 /// no level outside the ground manifold, too many qubits), std::runtime_error when an
