@@ -8,8 +8,9 @@
 #                                        # instance-set, journal)
 # GAPWISE_FUZZ_SEED picks libFuzzer's random seed: unset or 0, a new one each
 # run (exploration: what a long session wants); any other number repeats the
-# same mutations on the same build and corpus (CI sets 1, so a CI failure can
-# be replayed and a green run here predicts CI's).
+# same mutations on the same build and starting corpus (CI sets 1, so a CI
+# failure can be replayed, and a run here at least as long as CI's, from an
+# empty build-fuzz/corpus/, has already tried what CI's will).
 # The growing corpus is kept in build-fuzz/corpus/<target>/; crashing inputs
 # land in build-fuzz/artifacts/ and must become regression inputs under
 # tests/fuzz-regressions/<parser>/ (checked by tests/test_fuzz_regressions.cpp).
