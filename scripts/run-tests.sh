@@ -15,8 +15,10 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 bash scripts/install-deps.sh
 # ccache (when installed) keys objects on paths relative to the checkout, so a
-# fresh clone in another folder reuses what an earlier build compiled.
-export CCACHE_BASEDIR="$PWD"
+# fresh clone in another folder reuses what an earlier build compiled; also the
+# sanitizer and fuzz builds, which carry debug information (NOHASHDIR: their
+# debug paths may then name the folder that first compiled an object).
+export CCACHE_BASEDIR="$PWD" CCACHE_NOHASHDIR=true
 jobs=${GAPWISE_JOBS:-$(nproc)}
 [ "$jobs" -gt 2 ] && jobs=2
 timings=()
