@@ -97,7 +97,7 @@ TEST_CASE("blocked and paired rotation kernels match a plain per-qubit loop for 
     std::normal_distribution<double> g;
     QuantumState psi(H.dim());
     for (auto& c : psi) c = Complex(g(rng), g(rng));
-    const double theta = 0.37;
+    for (const double theta : {0.37, 1.3}) {  // tangent form, plain form (|cos theta| < 1/2)
     SplitState s = SplitState::from(psi);
     ex.rotate(s, theta);
     // Reference: exp(i theta sigma^x) = cos theta + i sin theta sigma^x, qubit by qubit.
@@ -112,7 +112,60 @@ TEST_CASE("blocked and paired rotation kernels match a plain per-qubit loop for 
     double worst = 0;
     for (std::size_t b = 0; b < ref.size(); ++b) worst = std::max(worst, std::abs(got[b] - ref[b]));
     CAPTURE(n);
+    CAPTURE(theta);
     CHECK(worst < 1e-12);
+    }
+  }
+}
+
+TEST_CASE("fused phase + rotation: tangent and plain rotation forms, permute, gather and per-state phases") {
+  // Reference: exp(-i phi D_b) per amplitude, then cos theta + i sin theta
+  // sigma^x qubit by qubit (the definition). The kernels use the form
+  // cos^n theta prod (1 + i tan theta sigma^x) while |cos theta| >= 1/2 and the
+  // plain form beyond (theta = 1.3, 2.0: |cos| < 1/2); the phase looks its
+  // factors up by permutes (<= 32 distinct levels, AVX-512 builds), from a
+  // table (more levels) or computes them per state (> 65536 levels).
+  struct Case { int n; unsigned seed; bool integer; double scale; };
+  // +-1 couplings: at most 32 levels at 12 qubits; couplings scaled by 1/16 of
+  // random integers give more than 32 table levels; real random couplings at
+  // 17 qubits give more than 65536 (per-state).
+  for (const Case c : {Case{12, 3, true, 1.0}, Case{11, 4, false, 0.0}, Case{17, 11, false, -1.0}}) {
+    IsingProblem p = random_problem(c.n, c.seed, c.integer);
+    if (c.scale == 0.0)  // integer multiples of 1/16 (exactly representable) in [-2, 2]
+      for (auto& k : p.couplings) k.value = std::round(k.value * 32.0) / 16.0;
+    TransverseIsingHamiltonian H(p);
+    SplitExponentials ex(H);
+    const std::size_t levels = ex.distinct_levels();
+    CAPTURE(c.n);
+    CAPTURE(levels);
+    if (c.integer) CHECK((levels > 0 && levels <= 32));
+    if (c.scale == 0.0) CHECK((levels > 32 && levels <= 65536));
+    if (c.scale < 0.0) CHECK(levels == 0);
+    std::mt19937_64 rng(c.seed);
+    std::normal_distribution<double> g;
+    QuantumState psi(H.dim());
+    for (auto& z : psi) z = Complex(g(rng), g(rng));
+    for (const double theta : {0.37, -0.9, 1.3, 2.0}) {
+      const double phi = 0.913;
+      QuantumState ref(psi.size());
+      for (std::size_t b = 0; b < ref.size(); ++b) ref[b] = psi[b] * std::exp(Complex(0, -phi * H.diagonal()[b]));
+      for (int q = 0; q < c.n; ++q) {
+        QuantumState next(ref.size());
+        for (std::size_t b = 0; b < ref.size(); ++b)
+          next[b] = std::cos(theta) * ref[b] + Complex(0, std::sin(theta)) * ref[b ^ (std::size_t{1} << q)];
+        ref = next;
+      }
+      SplitState s = SplitState::from(psi);
+      ex.phase_then_rotate(s, phi, theta);
+      QuantumState got = s.to_complex();
+      double worst = 0, norm = 0;
+      for (std::size_t b = 0; b < ref.size(); ++b) {
+        worst = std::max(worst, std::abs(got[b] - ref[b]));
+        norm = std::max(norm, std::abs(ref[b]));
+      }
+      CAPTURE(theta);
+      CHECK(worst < 1e-12 * std::max(1.0, norm));
+    }
   }
 }
 

@@ -7,6 +7,10 @@
 #include <new>
 #include <stdexcept>
 
+#if defined(__AVX512F__)
+#include <immintrin.h>
+#endif
+
 namespace gapwise {
 namespace {
 
@@ -22,10 +26,18 @@ std::atomic<std::size_t> g_parallel_dim{std::size_t{1} << 18};
 // reduction's order depends on it).
 constexpr std::size_t kSumBlock = std::size_t{1} << 12;
 
-// Exact rotation cos(theta) + i sin(theta) sigma^x on the pairs (lo[k], hi[k]),
-// k < len; lo and hi are disjoint contiguous ranges.
+// The kernels apply the rotation cos(theta) + i sin(theta) sigma^x in the form
+// u (1 + i t sigma^x) with u = cos(theta), t = tan(theta) when |cos(theta)| is
+// not small (see rotate_all): the factor u per qubit commutes with everything
+// and is applied once for all qubits (u^n, folded into the phase table or one
+// scaling), so each output is one fused multiply-add, a + t*b, instead of a
+// product and a multiply-add. Kernels take (c, s) and a flag kUnit meaning c == 1.
+
+// Rotation on the pairs (lo[k], hi[k]), k < len; lo and hi are disjoint contiguous ranges.
+template <bool kUnit>
 inline void rotate_pairs(double* __restrict lr, double* __restrict li, double* __restrict hr,
                          double* __restrict hi, std::size_t len, double c, double s) {
+  if constexpr (kUnit) c = 1.0;
 #pragma omp simd
   for (std::size_t k = 0; k < len; ++k) {
     const double a = lr[k], b = li[k], x = hr[k], y = hi[k];
@@ -37,9 +49,11 @@ inline void rotate_pairs(double* __restrict lr, double* __restrict li, double* _
 }
 
 // The same rotation on qubits q and q+1 at once: quads (k, k+s1, k+2 s1, k+3 s1).
+template <bool kUnit>
 inline void rotate_quads(double* __restrict r0, double* __restrict i0, double* __restrict r1,
                          double* __restrict i1, double* __restrict r2, double* __restrict i2,
                          double* __restrict r3, double* __restrict i3, std::size_t len, double c, double s) {
+  if constexpr (kUnit) c = 1.0;
 #pragma omp simd
   for (std::size_t k = 0; k < len; ++k) {
     // qubit q: pairs (0,1), (2,3)
@@ -56,7 +70,9 @@ inline void rotate_quads(double* __restrict r0, double* __restrict i0, double* _
 }
 
 // Qubits 0 and 1 on consecutive groups of four amplitudes.
+template <bool kUnit>
 inline void rotate_low2(double* __restrict re, double* __restrict im, std::size_t count, double c, double s) {
+  if constexpr (kUnit) c = 1.0;
 #pragma omp simd
   for (std::size_t g = 0; g < count; g += 4) {
     const double r0 = re[g], r1 = re[g + 1], r2 = re[g + 2], r3 = re[g + 3];
@@ -73,23 +89,32 @@ inline void rotate_low2(double* __restrict re, double* __restrict im, std::size_
 }
 
 // Qubits 0 .. qubits-1 on one contiguous block of 2^qubits amplitudes.
+template <bool kUnit>
 inline void rotate_block(double* re, double* im, int qubits, double c, double s) {
   const std::size_t count = std::size_t{1} << qubits;
   int q = 0;
   if (qubits >= 2) {
-    rotate_low2(re, im, count, c, s);
+    rotate_low2<kUnit>(re, im, count, c, s);
     q = 2;
   }
   for (; q + 1 < qubits; q += 2) {
     const std::size_t s1 = std::size_t{1} << q;
     for (std::size_t base = 0; base < count; base += 4 * s1)
-      rotate_quads(re + base, im + base, re + base + s1, im + base + s1, re + base + 2 * s1, im + base + 2 * s1,
-                   re + base + 3 * s1, im + base + 3 * s1, s1, c, s);
+      rotate_quads<kUnit>(re + base, im + base, re + base + s1, im + base + s1, re + base + 2 * s1, im + base + 2 * s1,
+                          re + base + 3 * s1, im + base + 3 * s1, s1, c, s);
   }
   for (; q < qubits; ++q) {
     const std::size_t s1 = std::size_t{1} << q;
     for (std::size_t base = 0; base < count; base += 2 * s1)
-      rotate_pairs(re + base, im + base, re + base + s1, im + base + s1, s1, c, s);
+      rotate_pairs<kUnit>(re + base, im + base, re + base + s1, im + base + s1, s1, c, s);
+  }
+}
+
+inline void scale_block(double* __restrict re, double* __restrict im, std::size_t count, double f) {
+#pragma omp simd
+  for (std::size_t k = 0; k < count; ++k) {
+    re[k] *= f;
+    im[k] *= f;
   }
 }
 
@@ -236,22 +261,44 @@ int SplitExponentials::rotate_passes() const {
 }
 
 void SplitExponentials::phase_block(double* re, double* im, std::size_t begin, std::size_t count, const double* cs,
-                                    const double* sn, double phi) const {
+                                    const double* sn, double phi, double scale) const {
   double* __restrict r = re + begin;
   double* __restrict i = im + begin;
   if (!index_.empty()) {
     const std::uint16_t* __restrict idx = index_.data() + begin;
+    std::size_t k = 0;
+#if defined(__AVX512F__)
+    // Up to 32 levels: the tables sit in four registers and each group of eight
+    // amplitudes looks its factors up by permutes (no memory gathers). The
+    // tables are padded to 32 entries (fill_tables).
+    if (levels_.size() <= 32) {
+      const __m512d c0 = _mm512_loadu_pd(cs), c1 = _mm512_loadu_pd(cs + 8), c2 = _mm512_loadu_pd(cs + 16),
+                    c3 = _mm512_loadu_pd(cs + 24);
+      const __m512d s0 = _mm512_loadu_pd(sn), s1 = _mm512_loadu_pd(sn + 8), s2 = _mm512_loadu_pd(sn + 16),
+                    s3 = _mm512_loadu_pd(sn + 24);
+      const __m512i bit4 = _mm512_set1_epi64(16);
+      for (; k + 8 <= count; k += 8) {
+        const __m512i j = _mm512_cvtepu16_epi64(_mm_loadu_si128(reinterpret_cast<const __m128i*>(idx + k)));
+        const __mmask8 high = _mm512_test_epi64_mask(j, bit4);
+        const __m512d c = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(c0, j, c1), _mm512_permutex2var_pd(c2, j, c3));
+        const __m512d sv = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(s0, j, s1), _mm512_permutex2var_pd(s2, j, s3));
+        const __m512d a = _mm512_loadu_pd(r + k), b = _mm512_loadu_pd(i + k);
+        _mm512_storeu_pd(r + k, _mm512_fmsub_pd(a, c, _mm512_mul_pd(b, sv)));
+        _mm512_storeu_pd(i + k, _mm512_fmadd_pd(a, sv, _mm512_mul_pd(b, c)));
+      }
+    }
+#endif
 #pragma omp simd
-    for (std::size_t k = 0; k < count; ++k) {
-      const double c = cs[idx[k]], s = sn[idx[k]];  // exp(-i phi D) = c + i s
-      const double a = r[k], b = i[k];
-      r[k] = a * c - b * s;
-      i[k] = a * s + b * c;
+    for (std::size_t m = k; m < count; ++m) {
+      const double c = cs[idx[m]], s = sn[idx[m]];  // scale * exp(-i phi D) = c + i s
+      const double a = r[m], b = i[m];
+      r[m] = a * c - b * s;
+      i[m] = a * s + b * c;
     }
   } else {
     const double* __restrict d = h_->diagonal().data() + begin;
     for (std::size_t k = 0; k < count; ++k) {
-      const double c = std::cos(phi * d[k]), s = -std::sin(phi * d[k]);
+      const double c = scale * std::cos(phi * d[k]), s = -scale * std::sin(phi * d[k]);
       const double a = r[k], b = i[k];
       r[k] = a * c - b * s;
       i[k] = a * s + b * c;
@@ -259,21 +306,22 @@ void SplitExponentials::phase_block(double* re, double* im, std::size_t begin, s
   }
 }
 
-void SplitExponentials::fill_tables(double phi) const {
-  cs_.resize(levels_.size());
-  sn_.resize(levels_.size());
+void SplitExponentials::fill_tables(double phi, double scale) const {
+  // At least 32 entries (the permute lookup reads 32; the padding is never indexed).
+  cs_.assign(std::max<std::size_t>(levels_.size(), 32), 0.0);
+  sn_.assign(cs_.size(), 0.0);
   // One sincos per level: on small problems (a few dozen amplitudes) these
   // tables, refilled every step, are most of the propagation time.
   for (std::size_t j = 0; j < levels_.size(); ++j) {
     double sn = 0, cs = 0;
     ::sincos(phi * levels_[j], &sn, &cs);
-    cs_[j] = cs;
-    sn_[j] = -sn;
+    cs_[j] = scale * cs;
+    sn_[j] = -scale * sn;
   }
 }
 
 void SplitExponentials::phase(SplitState& psi, double phi) const {
-  fill_tables(phi);
+  fill_tables(phi, 1.0);
   const double* cs = cs_.data();
   const double* sn = sn_.data();
   const std::size_t chunk = std::min<std::size_t>(dim_, std::size_t{1} << kBlockQubits);
@@ -281,7 +329,7 @@ void SplitExponentials::phase(SplitState& psi, double phi) const {
   double* re = psi.re.data();
   double* im = psi.im.data();
   for_each_index(chunks, dim_ >= parallel_threshold(),
-                 [&](std::size_t c) { phase_block(re, im, c * chunk, chunk, cs, sn, phi); });
+                 [&](std::size_t c) { phase_block(re, im, c * chunk, chunk, cs, sn, phi, 1.0); });
 }
 
 void SplitExponentials::rotate(SplitState& psi, double theta) const { rotate_all(psi, false, 0.0, theta); }
@@ -290,9 +338,9 @@ void SplitExponentials::phase_then_rotate(SplitState& psi, double phi, double th
   rotate_all(psi, true, phi, theta);
 }
 
-void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi, double theta) const {
-  const double c = std::cos(theta), s = std::sin(theta);
-  if (with_phase) fill_tables(phi);
+template <bool kUnit>
+void SplitExponentials::rotate_sweeps(SplitState& psi, bool with_phase, double phi, double c, double s,
+                                      double scale) const {
   const double* cs = cs_.data();
   const double* sn = sn_.data();
   const int low = std::min(n_, kBlockQubits);
@@ -301,10 +349,14 @@ void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi,
   double* re = psi.re.data();
   double* im = psi.im.data();
   const bool parallel = dim_ >= parallel_threshold();
-  // Low qubits: each block is rotated while it is in L1 (after its phase).
+  // Low qubits: each block is rotated while it is in L1 (after its phase, or
+  // its scaling by the rotations' common factor).
   for_each_index(blocks, parallel, [&](std::size_t bk) {
-    if (with_phase) phase_block(re, im, bk * block, block, cs, sn, phi);
-    rotate_block(re + bk * block, im + bk * block, low, c, s);
+    if (with_phase)
+      phase_block(re, im, bk * block, block, cs, sn, phi, scale);
+    else if (kUnit)
+      scale_block(re + bk * block, im + bk * block, block, scale);
+    rotate_block<kUnit>(re + bk * block, im + bk * block, low, c, s);
   });
   // High qubits, two per pass; chunks of `block` contiguous amplitudes.
   int q = low;
@@ -314,8 +366,8 @@ void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi,
     const std::size_t groups = dim_ / (4 * s1);
     for_each_index(groups * per_group, parallel, [&](std::size_t w) {
       const std::size_t base = (w / per_group) * 4 * s1 + (w % per_group) * block;
-      rotate_quads(re + base, im + base, re + base + s1, im + base + s1, re + base + 2 * s1, im + base + 2 * s1,
-                   re + base + 3 * s1, im + base + 3 * s1, block, c, s);
+      rotate_quads<kUnit>(re + base, im + base, re + base + s1, im + base + s1, re + base + 2 * s1,
+                          im + base + 2 * s1, re + base + 3 * s1, im + base + 3 * s1, block, c, s);
     });
   }
   if (q < n_) {
@@ -324,8 +376,24 @@ void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi,
     const std::size_t groups = dim_ / (2 * s1);
     for_each_index(groups * per_group, parallel, [&](std::size_t w) {
       const std::size_t base = (w / per_group) * 2 * s1 + (w % per_group) * block;
-      rotate_pairs(re + base, im + base, re + base + s1, im + base + s1, block, c, s);
+      rotate_pairs<kUnit>(re + base, im + base, re + base + s1, im + base + s1, block, c, s);
     });
+  }
+}
+
+void SplitExponentials::rotate_all(SplitState& psi, bool with_phase, double phi, double theta) const {
+  const double c = std::cos(theta), s = std::sin(theta);
+  // Tangent form (see the kernels) while cos(theta) >= 1/2, i.e. |tan| <= sqrt(3):
+  // the intermediate growth (1 + t^2)^(n/2) stays harmless and rounding stays
+  // that of the plain form. Beyond (a step far past the splitting threshold,
+  // which the error control rejects anyway) the plain form.
+  if (std::abs(c) >= 0.5) {
+    const double scale = std::pow(c, n_);
+    if (with_phase) fill_tables(phi, scale);
+    rotate_sweeps<true>(psi, with_phase, phi, 1.0, s / c, scale);
+  } else {
+    if (with_phase) fill_tables(phi, 1.0);
+    rotate_sweeps<false>(psi, with_phase, phi, c, s, 1.0);
   }
 }
 

@@ -11,11 +11,16 @@
 //       every pair (b, b ^ 2^i). Qubits below kBlockQubits are applied block by
 //       block while the block sits in L1; higher qubits two at a time (one pass
 //       over the state per qubit pair), inner loops contiguous and branch-free.
+//       Applied as cos^n(theta) prod_i (1 + i tan(theta) sigma^x_i) while
+//       cos(theta) >= 1/2: one fused multiply-add per output and qubit, the
+//       common factor folded into the phase table (or one scaling).
 //   * phase(psi, phi):      psi_b <- exp(-i phi D_b) psi_b
 //       Problem energies usually take few distinct values (integer couplings:
 //       at most a few hundred): D is stored as a 16-bit index into its distinct
 //       levels, and each call evaluates cos/sin once per level, not per state.
 //       With more than 65536 distinct levels the phases are computed per state.
+//       Built with AVX-512 and at most 32 levels, the factors are looked up by
+//       in-register permutes rather than memory gathers.
 //   * phase_then_rotate(psi, phi, theta): both in one sweep (the phase is applied
 //       to each block just before its low-qubit rotations).
 //
@@ -115,10 +120,13 @@ class SplitExponentials {
   std::vector<std::uint16_t> index_; ///< D_b == levels_[index_[b]]
 
   mutable std::vector<double> cs_, sn_;  ///< per-call phase tables (one object per thread)
-  void fill_tables(double phi) const;
+  /// Tables of scale * exp(-i phi level), padded to at least 32 entries.
+  void fill_tables(double phi, double scale) const;
   void phase_block(double* re, double* im, std::size_t begin, std::size_t count, const double* cs,
-                   const double* sn, double phi) const;
+                   const double* sn, double phi, double scale) const;
   void rotate_all(SplitState& psi, bool with_phase, double phi, double theta) const;
+  template <bool kUnit>
+  void rotate_sweeps(SplitState& psi, bool with_phase, double phi, double c, double s, double scale) const;
 };
 
 }  // namespace gapwise

@@ -29,6 +29,9 @@ std::vector<double> composition_weights(SplitComposition c) {
 
 // States kept at waypoints only while they fit in this much memory.
 constexpr double kKeepBytes = 256.0 * 1024 * 1024;
+// The first pair of runs has kFirstCoarse : kFirstFine steps per piece (see prepare).
+constexpr long kFirstCoarse = 4;
+constexpr long kFirstFine = 5;
 // Give up (the schedule needs a finer grid than this) beyond this many steps.
 constexpr double kMaxStepsPerRun = 2e8;
 
@@ -66,10 +69,10 @@ double SplitOperatorPropagator::accepted_steps_per_ns() const {
   return len > 0 ? steps / len : 0.0;
 }
 
-void SplitOperatorPropagator::fixed_step(const AnnealDrive& drive, double t, double h, SplitState& x) const {
+void SplitOperatorPropagator::open_step(const AnnealDrive& drive, double t, double h, SplitState& x,
+                                        double& pending_phi) const {
   constexpr double pi = std::numbers::pi;
   double tau = t;
-  double pending_phi = 0.0;  // half phase left over from the previous stage
   for (const double w : weights_) {
     const double hs = w * h;
     const double tm = tau + 0.5 * hs;
@@ -79,6 +82,11 @@ void SplitOperatorPropagator::fixed_step(const AnnealDrive& drive, double t, dou
     pending_phi = half_phi;
     tau += hs;
   }
+}
+
+void SplitOperatorPropagator::fixed_step(const AnnealDrive& drive, double t, double h, SplitState& x) const {
+  double pending_phi = 0.0;
+  open_step(drive, t, h, x, pending_phi);
   ex_.phase(x, pending_phi);
 }
 
@@ -86,7 +94,9 @@ long SplitOperatorPropagator::run_pieces(const AnnealDrive& drive, SplitState& x
   long steps = 0;
   for (std::size_t k = 0; k < pieces_.size(); ++k) {
     const Piece p{pieces_[k].t0, pieces_[k].t1, pieces_[k].steps * num / den};
-    for (long j = 0; j < p.steps; ++j) fixed_step(drive, p.at(j), p.h(), x);
+    double pending_phi = 0.0;
+    for (long j = 0; j < p.steps; ++j) open_step(drive, p.at(j), p.h(), x, pending_phi);
+    ex_.phase(x, pending_phi);  // every piece ends on a whole state (see advance)
     steps += p.steps;
     if (keep) kept_[k].copy_from(x);
   }
@@ -115,10 +125,17 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
   // the method's order and makes the error erratic in N, which step doubling
   // cannot read.
   pieces_.clear();
+  // The first pair of runs: the coarse one at about 1.25 h0 (4m steps), the
+  // fine one with 5m steps, 5/4 of it: the fine run's error is estimated from
+  // their difference as if the error fell only in proportion to the step (order
+  // one, the conservative reading: err = d / (5/4 - 1) = 4 d). Below the
+  // threshold the probabilities' error falls far faster than that, so the
+  // estimate holds while costing 9m steps where halving cost 12m. Later pairs
+  // halve the step.
   auto add_piece = [&](double a, double b) {
     if (!(b > a + eps)) return;
-    const long coarse = std::max(1L, static_cast<long>(std::ceil((b - a) / (1.25 * h0))));
-    pieces_.push_back({a, b, 2 * coarse});
+    const long m = std::max(1L, static_cast<long>(std::ceil((b - a) / (1.25 * h0) / kFirstCoarse)));
+    pieces_.push_back({a, b, kFirstFine * m});
   };
   const std::vector<double> no_knots;
   const std::vector<double>& knots = drive.scales->is_linear_ramp() ? no_knots : drive.scales->table_s();
@@ -150,9 +167,10 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
 
   // Richardson: with a measured ratio r of successive differences (the error
   // shrinks by r per halving), the finer run's error is d / (r - 1); r is
-  // capped at the method's 2^p and, before two differences exist, taken as 2
-  // (d itself: the error of the finer run is at most the difference when the
-  // coarse one is at least twice as far off).
+  // capped at the method's 2^p and, before two halving differences exist,
+  // taken as the step ratio itself (order one: 5/4 for the first pair, 2 after;
+  // for a halving, d itself bounds the finer run's error when the coarse one is
+  // at least twice as far off).
   // Two differences d are controlled: that of the watched set's probability
   // (p) to the tolerance, and TV (any set of outcomes) to others_factor x
   // tolerance; with nothing watched, TV to the tolerance.
@@ -164,22 +182,24 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
   };
   long steps = 0;
   coarse_.load(psi);
-  steps += run_pieces(drive, coarse_, 1, 2, false);
+  steps += run_pieces(drive, coarse_, kFirstCoarse, kFirstFine, false);
   double err = 0.0, err_tv = 0.0, previous_tv = -1.0, previous_dp = -1.0;
-  for (;;) {
+  for (bool first = true;; first = false) {
     x_.load(psi);
     steps += run_pieces(drive, x_, 1, 1, keep);
     const double tv = x_.probability_distance(coarse_);
     const double dp = watching ? std::abs(x_.probability_of(opt_.watched_states) -
                                           coarse_.probability_of(opt_.watched_states))
                                : tv;
-    err_tv = tv / (shrink(previous_tv, tv) - 1.0);
-    err = watching ? dp / (shrink(previous_dp, dp) - 1.0) : err_tv;
+    const double first_ratio = static_cast<double>(kFirstFine) / kFirstCoarse;
+    err_tv = tv / ((first ? first_ratio : shrink(previous_tv, tv)) - 1.0);
+    err = watching ? dp / ((first ? first_ratio : shrink(previous_dp, dp)) - 1.0) : err_tv;
     if (!std::isfinite(err) || !std::isfinite(err_tv))
       throw std::runtime_error("the state became non-finite during split-operator propagation");
     if (err <= 0.5 * opt_.tolerance && err_tv <= 0.5 * tv_limit) break;
-    previous_tv = tv;
-    previous_dp = dp;
+    // Only differences of halvings are compared with each other.
+    previous_tv = first ? -1.0 : tv;
+    previous_dp = first ? -1.0 : dp;
     double grid = 0;
     for (auto& p : pieces_) grid += 2.0 * static_cast<double>(p.steps);
     if (grid > kMaxStepsPerRun)
@@ -196,6 +216,7 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
   x_.load(psi);
   piece_ = 0;
   step_ = 0;
+  pending_phi_ = 0.0;
   ready_ = true;
 }
 
@@ -208,6 +229,10 @@ void SplitOperatorPropagator::advance(const AnnealDrive& drive, double t0, doubl
   if (!ready_ || std::abs(t0 - t_out_) > eps || psi != last_out_) prepare(drive, t0, psi, stats);
   if (t1 > pieces_.back().t1 + eps) throw std::invalid_argument("split propagator: t1 lies beyond the end of the path");
 
+  // The main trajectory x_ owes the phase pending_phi_ inside a piece (the
+  // last half phase of a step merged with the first of the next, exactly as in
+  // run_pieces, so the replay has the pilot's bits); it is settled at piece
+  // ends, and a state handed out mid-piece is settled on a copy.
   long steps = 0;
   double g = piece_ < pieces_.size() ? pieces_[piece_].at(step_) : pieces_.back().t1;  // main trajectory's time
   while (piece_ < pieces_.size()) {
@@ -220,20 +245,29 @@ void SplitOperatorPropagator::advance(const AnnealDrive& drive, double t0, doubl
     }
     const double next = p.at(step_ + 1);
     if (next > t1 + eps) break;
-    fixed_step(drive, p.at(step_), p.h(), x_);
+    open_step(drive, p.at(step_), p.h(), x_, pending_phi_);
     ++steps;
     g = next;
     if (++step_ == p.steps) {
+      ex_.phase(x_, pending_phi_);
+      pending_phi_ = 0.0;
       ++piece_;
       step_ = 0;
     }
   }
-  if (std::abs(t1 - g) <= eps) {
+  const bool settled = pending_phi_ == 0.0;
+  if (std::abs(t1 - g) <= eps && settled) {
     x_.store(psi);
-  } else {  // off the grid: a side branch from the last grid point
+  } else {  // mid-piece or off the grid: a side branch from the last grid point
     branch_.copy_from(x_);
-    fixed_step(drive, g, t1 - g, branch_);
-    ++steps;
+    if (std::abs(t1 - g) <= eps) {
+      ex_.phase(branch_, pending_phi_);
+    } else {
+      double pending = pending_phi_;
+      open_step(drive, g, t1 - g, branch_, pending);
+      ex_.phase(branch_, pending);
+      ++steps;
+    }
     branch_.store(psi);
   }
   stats.steps += steps;
