@@ -157,3 +157,25 @@ TEST_CASE("memory refusals of every subcommand name the line of `qubits` in the 
     CHECK(r.err.find("at most 20") != std::string::npos);
   }
 }
+
+TEST_CASE("anneal --p-only: p still within the tolerance of a tight Boost.Odeint run, on no more steps") {
+  // Reference: the odeint propagator (Boost.Odeint's Dormand-Prince stepper, a
+  // general-purpose library) at tolerance 1e-9.
+  TempDir dir;
+  const std::string args = "anneal " + sample("data-samples/spin-glass-8.toml") + " " + sample("schedules/linear.toml") +
+                           " --duration-ns 20 --json --no-check ";
+  auto ref = run_gapwise(args + "--propagator odeint --tolerance 1e-9", dir);
+  auto all = run_gapwise(args + "--propagator split2 --tolerance 1e-6", dir);
+  auto ponly = run_gapwise(args + "--propagator split2 --tolerance 1e-6 --p-only", dir);
+  INFO(ponly.err);
+  REQUIRE(ref.exit_code == 0);
+  REQUIRE(all.exit_code == 0);
+  REQUIRE(ponly.exit_code == 0);
+  CHECK(json_value(dir, ponly.out, "p_only") == "True");
+  CHECK(json_value(dir, all.out, "p_only") == "False");
+  const double p_ref = std::stod(json_value(dir, ref.out, "ground_probability"));
+  const double p = std::stod(json_value(dir, ponly.out, "ground_probability"));
+  CHECK(std::abs(p - p_ref) < 1e-6);
+  CHECK(std::stod(json_value(dir, ponly.out, "error_estimate")) <= 5e-7);
+  CHECK(std::stol(json_value(dir, ponly.out, "steps")) <= std::stol(json_value(dir, all.out, "steps")));
+}

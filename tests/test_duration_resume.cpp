@@ -102,6 +102,11 @@ TEST_CASE("a journal written for other inputs is refused with a fix") {
   CHECK(r.err.find("other inputs") != std::string::npos);
   CHECK(r.err.find("a.csv.journal") != std::string::npos);
   CHECK(run_gapwise(base + " --tolerance 1e-7 --restart", dir).exit_code == 0);
+  // --p-only changes the accuracy contract: a journal of the other choice is refused too.
+  const auto p_only = run_gapwise(base + " --tolerance 1e-7 --p-only", dir);
+  CHECK(p_only.exit_code == 2);
+  CHECK(p_only.err.find("other inputs") != std::string::npos);
+  CHECK(run_gapwise(base + " --tolerance 1e-7 --p-only --restart", dir).exit_code == 0);
 }
 
 TEST_CASE("input errors name the option and the fix") {

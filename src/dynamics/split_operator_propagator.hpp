@@ -34,8 +34,9 @@
 //
 // as err = d / (r - 1) each (TV bounds the difference of the probability of
 // any set of outcomes). r is the measured ratio of successive differences,
-// capped at 2^p (Richardson); for the first pair r = 5/4, the step ratio
-// (order one, err = 4 d), and for the first halving r = 2 (err = d). Accepted
+// capped at 2^p (Richardson); the first pair's difference is read as
+// err = 20 d (just past the splitting threshold the error can stall in N, see
+// prepare), and the first halving's as err = d (r = 2). Accepted
 // when err_p <= tolerance/2 and err_TV <= others_factor x tolerance/2
 // (nothing watched: err_TV <= tolerance/2); else N doubles (the old fine run
 // becomes the coarse one). The

@@ -44,6 +44,7 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
   h5.attribute(root, "target_probability", in.target);
   h5.attribute(root, "propagator", in.propagator);
   h5.attribute(root, "tolerance", in.tolerance);
+  h5.attribute(root, "p_only", static_cast<long long>(in.p_only));
   h5.attribute(root, "grid_points", static_cast<long long>(in.grid_ns.size()));
   if (in.setup) {
     h5.attribute(root, "qubits", static_cast<long long>(in.setup->problem.qubits));

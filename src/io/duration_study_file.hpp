@@ -23,6 +23,7 @@ struct DurationStudyInputs {
   std::string problem_file, schedule_file, command_line;
   std::string propagator;
   double tolerance = 0;
+  bool p_only = false;  ///< only p held to the tolerance (--p-only)
   double target = kDefaultTargetProbability;
   std::vector<double> grid_ns;     ///< the sampled grid (ascending)
   const AnnealSetup* setup = nullptr;
