@@ -9,6 +9,12 @@
 
 #if defined(__AVX512F__)
 #include <immintrin.h>
+// GCC 12's AVX-512 permute intrinsics start from _mm512_undefined_pd(), which
+// -Wmaybe-uninitialized reports inside the header (a false positive: every lane
+// is written).
+#if defined(__GNUC__) && !defined(__clang__)
+#pragma GCC diagnostic ignored "-Wmaybe-uninitialized"
+#endif
 #endif
 
 namespace gapwise {
@@ -109,6 +115,103 @@ inline void rotate_block(double* re, double* im, int qubits, double c, double s)
       rotate_pairs<kUnit>(re + base, im + base, re + base + s1, im + base + s1, s1, c, s);
   }
 }
+
+#if defined(__AVX512F__)
+// Tangent form only (c == 1): three qubits q, q+1, q+2 at once on octets
+// (k + j s1, j < 8): one pass over the block instead of two, the eight
+// amplitudes held in registers between the qubits.
+// Amplitudes k + j s1 for k < len (len <= s1, a multiple of 8).
+inline void rotate_octs_unit(double* __restrict re, double* __restrict im, std::size_t s1, std::size_t len, double t) {
+  const __m512d tv = _mm512_set1_pd(t);
+  double* __restrict r0 = re;
+  double* __restrict i0 = im;
+  for (std::size_t k = 0; k < len; k += 8) {
+#define GW_LD(j) __m512d a##j = _mm512_load_pd(r0 + (j) * s1 + k), b##j = _mm512_load_pd(i0 + (j) * s1 + k);
+    GW_LD(0) GW_LD(1) GW_LD(2) GW_LD(3) GW_LD(4) GW_LD(5) GW_LD(6) GW_LD(7)
+#undef GW_LD
+#define GW_ROT(x, y)                                          \
+  {                                                           \
+    const __m512d ax = a##x, bx = b##x, ay = a##y, by = b##y; \
+    a##x = _mm512_fnmadd_pd(tv, by, ax);                      \
+    b##x = _mm512_fmadd_pd(tv, ay, bx);                       \
+    a##y = _mm512_fnmadd_pd(tv, bx, ay);                      \
+    b##y = _mm512_fmadd_pd(tv, ax, by);                       \
+  }
+    GW_ROT(0, 1) GW_ROT(2, 3) GW_ROT(4, 5) GW_ROT(6, 7)  // qubit q
+    GW_ROT(0, 2) GW_ROT(1, 3) GW_ROT(4, 6) GW_ROT(5, 7)  // qubit q+1
+    GW_ROT(0, 4) GW_ROT(1, 5) GW_ROT(2, 6) GW_ROT(3, 7)  // qubit q+2
+#undef GW_ROT
+#define GW_ST(j) _mm512_store_pd(r0 + (j) * s1 + k, a##j); _mm512_store_pd(i0 + (j) * s1 + k, b##j);
+    GW_ST(0) GW_ST(1) GW_ST(2) GW_ST(3) GW_ST(4) GW_ST(5) GW_ST(6) GW_ST(7)
+#undef GW_ST
+  }
+}
+
+// Tangent form: qubits 0, 1, 2 (the eight lanes of one register) by lane
+// permutes, after the phase (cs, sn: the permute tables of at most 32 levels,
+// scale folded in) or the plain scaling; one pass over the block.
+inline void low3_unit(double* __restrict re, double* __restrict im, const std::uint16_t* __restrict idx,
+                      std::size_t count, const double* cs, const double* sn, double scale, double t) {
+  const __m512d tv = _mm512_set1_pd(t);
+  const __m512d c0 = _mm512_loadu_pd(cs), c1 = _mm512_loadu_pd(cs + 8), c2 = _mm512_loadu_pd(cs + 16),
+                c3 = _mm512_loadu_pd(cs + 24);
+  const __m512d s0 = _mm512_loadu_pd(sn), s1 = _mm512_loadu_pd(sn + 8), s2 = _mm512_loadu_pd(sn + 16),
+                s3 = _mm512_loadu_pd(sn + 24);
+  const __m512i bit4 = _mm512_set1_epi64(16);
+  const __m512d sc = _mm512_set1_pd(scale);
+  for (std::size_t k = 0; k < count; k += 8) {
+    __m512d a = _mm512_load_pd(re + k), b = _mm512_load_pd(im + k);
+    if (idx) {
+      const __m512i j = _mm512_cvtepu16_epi64(_mm_loadu_si128(reinterpret_cast<const __m128i*>(idx + k)));
+      const __mmask8 high = _mm512_test_epi64_mask(j, bit4);
+      const __m512d c = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(c0, j, c1), _mm512_permutex2var_pd(c2, j, c3));
+      const __m512d sv = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(s0, j, s1), _mm512_permutex2var_pd(s2, j, s3));
+      const __m512d a1 = _mm512_fmsub_pd(a, c, _mm512_mul_pd(b, sv));
+      b = _mm512_fmadd_pd(a, sv, _mm512_mul_pd(b, c));
+      a = a1;
+    } else {
+      a = _mm512_mul_pd(a, sc);
+      b = _mm512_mul_pd(b, sc);
+    }
+    // qubit 0: swap neighbours; qubit 1: swap pairs; qubit 2: swap halves.
+    __m512d pa = _mm512_permute_pd(a, 0x55), pb = _mm512_permute_pd(b, 0x55);
+    a = _mm512_fnmadd_pd(tv, pb, a);
+    b = _mm512_fmadd_pd(tv, pa, b);
+    pa = _mm512_permutex_pd(a, 0x4E);
+    pb = _mm512_permutex_pd(b, 0x4E);
+    a = _mm512_fnmadd_pd(tv, pb, a);
+    b = _mm512_fmadd_pd(tv, pa, b);
+    pa = _mm512_shuffle_f64x2(a, a, 0x4E);
+    pb = _mm512_shuffle_f64x2(b, b, 0x4E);
+    a = _mm512_fnmadd_pd(tv, pb, a);
+    b = _mm512_fmadd_pd(tv, pa, b);
+    _mm512_store_pd(re + k, a);
+    _mm512_store_pd(im + k, b);
+  }
+}
+
+// Tangent form, qubits 3 .. qubits-1 of a block whose qubits 0-2 are done:
+// three per pass, then two or one.
+inline void rotate_block_above3_unit(double* re, double* im, int qubits, double t) {
+  const std::size_t count = std::size_t{1} << qubits;
+  int q = 3;
+  for (; q + 2 < qubits; q += 3) {
+    const std::size_t s1 = std::size_t{1} << q;
+    for (std::size_t base = 0; base < count; base += 8 * s1) rotate_octs_unit(re + base, im + base, s1, s1, t);
+  }
+  for (; q + 1 < qubits; q += 2) {
+    const std::size_t s1 = std::size_t{1} << q;
+    for (std::size_t base = 0; base < count; base += 4 * s1)
+      rotate_quads<true>(re + base, im + base, re + base + s1, im + base + s1, re + base + 2 * s1, im + base + 2 * s1,
+                         re + base + 3 * s1, im + base + 3 * s1, s1, 1.0, t);
+  }
+  for (; q < qubits; ++q) {
+    const std::size_t s1 = std::size_t{1} << q;
+    for (std::size_t base = 0; base < count; base += 2 * s1)
+      rotate_pairs<true>(re + base, im + base, re + base + s1, im + base + s1, s1, 1.0, t);
+  }
+}
+#endif
 
 inline void scale_block(double* __restrict re, double* __restrict im, std::size_t count, double f) {
 #pragma omp simd
@@ -351,14 +454,30 @@ void SplitExponentials::rotate_sweeps(SplitState& psi, bool with_phase, double p
   const bool parallel = dim_ >= parallel_threshold();
   // Low qubits: each block is rotated while it is in L1 (after its phase, or
   // its scaling by the rotations' common factor).
-  for_each_index(blocks, parallel, [&](std::size_t bk) {
-    if (with_phase)
-      phase_block(re, im, bk * block, block, cs, sn, phi, scale);
-    else if (kUnit)
-      scale_block(re + bk * block, im + bk * block, block, scale);
-    rotate_block<kUnit>(re + bk * block, im + bk * block, low, c, s);
-  });
-  // High qubits, two per pass; chunks of `block` contiguous amplitudes.
+#if defined(__AVX512F__)
+  // Tangent form with the register kernels: phase (or scaling) and qubits 0-2
+  // in one pass, then three qubits per pass (needs at least 3 low qubits, and
+  // a permute table when there is a phase).
+  if (kUnit && low >= 3 && (!with_phase || (!index_.empty() && levels_.size() <= 32))) {
+    for_each_index(blocks, parallel, [&](std::size_t bk) {
+      const std::size_t b0 = bk * block;
+      low3_unit(re + b0, im + b0, with_phase ? index_.data() + b0 : nullptr, block, cs, sn, scale, s);
+      rotate_block_above3_unit(re + b0, im + b0, low, s);
+    });
+  } else
+#endif
+  {
+    for_each_index(blocks, parallel, [&](std::size_t bk) {
+      if (with_phase)
+        phase_block(re, im, bk * block, block, cs, sn, phi, scale);
+      else if (kUnit)
+        scale_block(re + bk * block, im + bk * block, block, scale);
+      rotate_block<kUnit>(re + bk * block, im + bk * block, low, c, s);
+    });
+  }
+  // High qubits, two per pass; chunks of `block` contiguous amplitudes (eight
+  // streams per pass measured slower here: power-of-two strides crowd the
+  // cache sets).
   int q = low;
   for (; q + 1 < n_; q += 2) {
     const std::size_t s1 = std::size_t{1} << q;

@@ -20,7 +20,9 @@
 //       levels, and each call evaluates cos/sin once per level, not per state.
 //       With more than 65536 distinct levels the phases are computed per state.
 //       Built with AVX-512 and at most 32 levels, the factors are looked up by
-//       in-register permutes rather than memory gathers.
+//       in-register permutes rather than memory gathers, in the same pass as
+//       the rotations of qubits 0-2 (lane permutes); the block's other qubits
+//       then go three per pass (eight amplitudes held in registers).
 //   * phase_then_rotate(psi, phi, theta): both in one sweep (the phase is applied
 //       to each block just before its low-qubit rotations).
 //
