@@ -147,44 +147,53 @@ inline void rotate_octs_unit(double* __restrict re, double* __restrict im, std::
   }
 }
 
+// The rotations of qubits 0-2 on the eight lanes of (a, b).
+inline void low3_lanes(__m512d& a, __m512d& b, __m512d tv) {
+  // qubit 0: swap neighbours; qubit 1: swap pairs; qubit 2: swap halves.
+  __m512d pa = _mm512_permute_pd(a, 0x55), pb = _mm512_permute_pd(b, 0x55);
+  a = _mm512_fnmadd_pd(tv, pb, a);
+  b = _mm512_fmadd_pd(tv, pa, b);
+  pa = _mm512_permutex_pd(a, 0x4E);
+  pb = _mm512_permutex_pd(b, 0x4E);
+  a = _mm512_fnmadd_pd(tv, pb, a);
+  b = _mm512_fmadd_pd(tv, pa, b);
+  pa = _mm512_shuffle_f64x2(a, a, 0x4E);
+  pb = _mm512_shuffle_f64x2(b, b, 0x4E);
+  a = _mm512_fnmadd_pd(tv, pb, a);
+  b = _mm512_fmadd_pd(tv, pa, b);
+}
+
 // Tangent form: qubits 0, 1, 2 (the eight lanes of one register) by lane
-// permutes, after the phase (cs, sn: the permute tables of at most 32 levels,
-// scale folded in) or the plain scaling; one pass over the block.
+// permutes, after the phase (idx non-null; cs, sn: the permute tables of at
+// most 32 levels, scale folded in) or the plain scaling (idx null; the tables
+// are not read); one pass over the block.
 inline void low3_unit(double* __restrict re, double* __restrict im, const std::uint16_t* __restrict idx,
                       std::size_t count, const double* cs, const double* sn, double scale, double t) {
   const __m512d tv = _mm512_set1_pd(t);
+  if (!idx) {
+    const __m512d sc = _mm512_set1_pd(scale);
+    for (std::size_t k = 0; k < count; k += 8) {
+      __m512d a = _mm512_mul_pd(_mm512_load_pd(re + k), sc), b = _mm512_mul_pd(_mm512_load_pd(im + k), sc);
+      low3_lanes(a, b, tv);
+      _mm512_store_pd(re + k, a);
+      _mm512_store_pd(im + k, b);
+    }
+    return;
+  }
   const __m512d c0 = _mm512_loadu_pd(cs), c1 = _mm512_loadu_pd(cs + 8), c2 = _mm512_loadu_pd(cs + 16),
                 c3 = _mm512_loadu_pd(cs + 24);
   const __m512d s0 = _mm512_loadu_pd(sn), s1 = _mm512_loadu_pd(sn + 8), s2 = _mm512_loadu_pd(sn + 16),
                 s3 = _mm512_loadu_pd(sn + 24);
   const __m512i bit4 = _mm512_set1_epi64(16);
-  const __m512d sc = _mm512_set1_pd(scale);
   for (std::size_t k = 0; k < count; k += 8) {
-    __m512d a = _mm512_load_pd(re + k), b = _mm512_load_pd(im + k);
-    if (idx) {
-      const __m512i j = _mm512_cvtepu16_epi64(_mm_loadu_si128(reinterpret_cast<const __m128i*>(idx + k)));
-      const __mmask8 high = _mm512_test_epi64_mask(j, bit4);
-      const __m512d c = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(c0, j, c1), _mm512_permutex2var_pd(c2, j, c3));
-      const __m512d sv = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(s0, j, s1), _mm512_permutex2var_pd(s2, j, s3));
-      const __m512d a1 = _mm512_fmsub_pd(a, c, _mm512_mul_pd(b, sv));
-      b = _mm512_fmadd_pd(a, sv, _mm512_mul_pd(b, c));
-      a = a1;
-    } else {
-      a = _mm512_mul_pd(a, sc);
-      b = _mm512_mul_pd(b, sc);
-    }
-    // qubit 0: swap neighbours; qubit 1: swap pairs; qubit 2: swap halves.
-    __m512d pa = _mm512_permute_pd(a, 0x55), pb = _mm512_permute_pd(b, 0x55);
-    a = _mm512_fnmadd_pd(tv, pb, a);
-    b = _mm512_fmadd_pd(tv, pa, b);
-    pa = _mm512_permutex_pd(a, 0x4E);
-    pb = _mm512_permutex_pd(b, 0x4E);
-    a = _mm512_fnmadd_pd(tv, pb, a);
-    b = _mm512_fmadd_pd(tv, pa, b);
-    pa = _mm512_shuffle_f64x2(a, a, 0x4E);
-    pb = _mm512_shuffle_f64x2(b, b, 0x4E);
-    a = _mm512_fnmadd_pd(tv, pb, a);
-    b = _mm512_fmadd_pd(tv, pa, b);
+    const __m512d a0 = _mm512_load_pd(re + k), b0 = _mm512_load_pd(im + k);
+    const __m512i j = _mm512_cvtepu16_epi64(_mm_loadu_si128(reinterpret_cast<const __m128i*>(idx + k)));
+    const __mmask8 high = _mm512_test_epi64_mask(j, bit4);
+    const __m512d c = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(c0, j, c1), _mm512_permutex2var_pd(c2, j, c3));
+    const __m512d sv = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(s0, j, s1), _mm512_permutex2var_pd(s2, j, s3));
+    __m512d a = _mm512_fmsub_pd(a0, c, _mm512_mul_pd(b0, sv));
+    __m512d b = _mm512_fmadd_pd(a0, sv, _mm512_mul_pd(b0, c));
+    low3_lanes(a, b, tv);
     _mm512_store_pd(re + k, a);
     _mm512_store_pd(im + k, b);
   }
