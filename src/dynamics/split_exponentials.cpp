@@ -117,6 +117,26 @@ inline void rotate_block(double* re, double* im, int qubits, double c, double s)
 }
 
 #if defined(__AVX512F__)
+// The phase factors scale * exp(-i phi level) of at most 32 levels, held in
+// four registers each (cos, sin) and looked up by permutes; apply() multiplies
+// eight amplitudes (a, b) by the factors of their level indices idx[0..7].
+struct PermutePhase {
+  __m512d c0, c1, c2, c3, s0, s1, s2, s3;
+  PermutePhase(const double* cs, const double* sn)
+      : c0(_mm512_loadu_pd(cs)), c1(_mm512_loadu_pd(cs + 8)), c2(_mm512_loadu_pd(cs + 16)),
+        c3(_mm512_loadu_pd(cs + 24)), s0(_mm512_loadu_pd(sn)), s1(_mm512_loadu_pd(sn + 8)),
+        s2(_mm512_loadu_pd(sn + 16)), s3(_mm512_loadu_pd(sn + 24)) {}
+  void apply(const std::uint16_t* idx, __m512d& a, __m512d& b) const {
+    const __m512i j = _mm512_cvtepu16_epi64(_mm_loadu_si128(reinterpret_cast<const __m128i*>(idx)));
+    const __mmask8 high = _mm512_test_epi64_mask(j, _mm512_set1_epi64(16));
+    const __m512d c = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(c0, j, c1), _mm512_permutex2var_pd(c2, j, c3));
+    const __m512d s = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(s0, j, s1), _mm512_permutex2var_pd(s2, j, s3));
+    const __m512d a1 = _mm512_fmsub_pd(a, c, _mm512_mul_pd(b, s));
+    b = _mm512_fmadd_pd(a, s, _mm512_mul_pd(b, c));
+    a = a1;
+  }
+};
+
 // Tangent form only (c == 1): three qubits q, q+1, q+2 at once on octets
 // (k + j s1, j < 8): one pass over the block instead of two, the eight
 // amplitudes held in registers between the qubits.
@@ -180,19 +200,10 @@ inline void low3_unit(double* __restrict re, double* __restrict im, const std::u
     }
     return;
   }
-  const __m512d c0 = _mm512_loadu_pd(cs), c1 = _mm512_loadu_pd(cs + 8), c2 = _mm512_loadu_pd(cs + 16),
-                c3 = _mm512_loadu_pd(cs + 24);
-  const __m512d s0 = _mm512_loadu_pd(sn), s1 = _mm512_loadu_pd(sn + 8), s2 = _mm512_loadu_pd(sn + 16),
-                s3 = _mm512_loadu_pd(sn + 24);
-  const __m512i bit4 = _mm512_set1_epi64(16);
+  const PermutePhase table(cs, sn);
   for (std::size_t k = 0; k < count; k += 8) {
-    const __m512d a0 = _mm512_load_pd(re + k), b0 = _mm512_load_pd(im + k);
-    const __m512i j = _mm512_cvtepu16_epi64(_mm_loadu_si128(reinterpret_cast<const __m128i*>(idx + k)));
-    const __mmask8 high = _mm512_test_epi64_mask(j, bit4);
-    const __m512d c = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(c0, j, c1), _mm512_permutex2var_pd(c2, j, c3));
-    const __m512d sv = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(s0, j, s1), _mm512_permutex2var_pd(s2, j, s3));
-    __m512d a = _mm512_fmsub_pd(a0, c, _mm512_mul_pd(b0, sv));
-    __m512d b = _mm512_fmadd_pd(a0, sv, _mm512_mul_pd(b0, c));
+    __m512d a = _mm512_load_pd(re + k), b = _mm512_load_pd(im + k);
+    table.apply(idx + k, a, b);
     low3_lanes(a, b, tv);
     _mm512_store_pd(re + k, a);
     _mm512_store_pd(im + k, b);
@@ -384,19 +395,12 @@ void SplitExponentials::phase_block(double* re, double* im, std::size_t begin, s
     // amplitudes looks its factors up by permutes (no memory gathers). The
     // tables are padded to 32 entries (fill_tables).
     if (levels_.size() <= 32) {
-      const __m512d c0 = _mm512_loadu_pd(cs), c1 = _mm512_loadu_pd(cs + 8), c2 = _mm512_loadu_pd(cs + 16),
-                    c3 = _mm512_loadu_pd(cs + 24);
-      const __m512d s0 = _mm512_loadu_pd(sn), s1 = _mm512_loadu_pd(sn + 8), s2 = _mm512_loadu_pd(sn + 16),
-                    s3 = _mm512_loadu_pd(sn + 24);
-      const __m512i bit4 = _mm512_set1_epi64(16);
+      const PermutePhase table(cs, sn);
       for (; k + 8 <= count; k += 8) {
-        const __m512i j = _mm512_cvtepu16_epi64(_mm_loadu_si128(reinterpret_cast<const __m128i*>(idx + k)));
-        const __mmask8 high = _mm512_test_epi64_mask(j, bit4);
-        const __m512d c = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(c0, j, c1), _mm512_permutex2var_pd(c2, j, c3));
-        const __m512d sv = _mm512_mask_blend_pd(high, _mm512_permutex2var_pd(s0, j, s1), _mm512_permutex2var_pd(s2, j, s3));
-        const __m512d a = _mm512_loadu_pd(r + k), b = _mm512_loadu_pd(i + k);
-        _mm512_storeu_pd(r + k, _mm512_fmsub_pd(a, c, _mm512_mul_pd(b, sv)));
-        _mm512_storeu_pd(i + k, _mm512_fmadd_pd(a, sv, _mm512_mul_pd(b, c)));
+        __m512d a = _mm512_loadu_pd(r + k), b = _mm512_loadu_pd(i + k);
+        table.apply(idx + k, a, b);
+        _mm512_storeu_pd(r + k, a);
+        _mm512_storeu_pd(i + k, b);
       }
     }
 #endif

@@ -173,9 +173,8 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
   // Richardson: with a measured ratio r of successive differences (the error
   // shrinks by r per halving), the finer run's error is d / (r - 1); r is
   // capped at the method's 2^p and, before two halving differences exist,
-  // taken as the step ratio itself (order one: 5/4 for the first pair, 2 after;
-  // for a halving, d itself bounds the finer run's error when the coarse one is
-  // at least twice as far off).
+  // taken as 2 (d itself bounds the finer run's error when the coarse one is
+  // at least twice as far off); the first (4:5) pair's d is read as 20 d (above).
   // Two differences d are controlled: that of the watched set's probability
   // (p) to the tolerance, and TV (any set of outcomes) to others_factor x
   // tolerance; with nothing watched, TV to the tolerance.
