@@ -61,8 +61,8 @@ InterruptNotice::InterruptNotice(const ResultJournal& journal, const std::vector
     if (k < kPaths) put(g_temporaries[k++], kPath, "{}", temporary_path_for(r));
   }
   put(g_with_points, kText,
-      " finished point(s) are saved in the journal {}. Run the same command again to continue from there; "
-      "it writes {} when it is done.\n",
+      " finished point(s) are saved in the journal {}. Run the same command again to continue from there "
+      "and finish {}.\n",
       journal.path(), shown);
   put(g_without_points, kText,
       "\ngapwise: interrupted before the first point finished: nothing was written (no result file {}, "
