@@ -89,6 +89,14 @@ std::vector<Row> rows() {
       {"C1", "", "", "anneal TRIANGLE LINEAR --tolerance 0.5"},
       {"C2", "", "", "anneal TRIANGLE LINEAR --duration-ns 0"},
       {"C3", "", "", "anneal TRIANGLE LINEAR --duration-ns twenty"},
+      // --- round two: outputs never replace inputs or special files; journals and interrupts ---
+      {"R2C1", "p.toml", "qubits = 2\ncouplings = [[0, 1, -1.0]]\nfields = [0.25, 0.0]\n",
+       "anneal DIR/p.toml LINEAR -d 5 --csv DIR/p.toml"},
+      {"R2C2", "", "", "anneal TRIANGLE LINEAR -d 5 --out DIR/x.h5 --csv DIR/x.h5"},
+      {"R2C3", "", "", "durations TRIANGLE LINEAR --durations 5 --out DIR/x.h5 --csv DIR/x.h5.journal"},
+      {"R2C4", "s.toml", "[path]\nduration_ns = 20\n", "gap-path TRIANGLE DIR/s.toml --out DIR/s.toml"},
+      {"R2C5", "", "", "anneal TRIANGLE LINEAR -d 5 --out ''"},
+      {"R2C6", "", "", "durations TRIANGLE LINEAR --durations 5 --csv ''"},
   };
 }
 

@@ -151,3 +151,32 @@ TEST_CASE("HDF5 trouble is an error message with the file named, never an abort"
     CHECK(Hdf5Input(path).read("/a/x") == std::vector<double>{1.0});
   }
 }
+
+// PLplot's cairo drivers do not report a failed write: before, `figure` said
+// "wrote" for a cut-off or empty image and renamed it over the previous one.
+TEST_CASE("a full disk while drawing figures: exit non-zero naming the image, no cut-off image, the old one kept") {
+  testing::TempDir dir;
+  const std::string h5 = (dir.path / "run.h5").string(), figs = (dir.path / "figs").string();
+  REQUIRE(run_limited(triangle_anneal(h5), dir, 1 << 20).exit_code == 0);
+  const std::string draw = "figure '" + h5 + "' --out-dir '" + figs + "'";
+  REQUIRE(run_limited(draw, dir, 1 << 20).exit_code == 0);  // complete figures from before
+  const std::string svg = figs + "/run-anneal-trace.svg", png = figs + "/run-anneal-trace.png";
+  const std::string svg_before = read_text_file(svg), png_before = read_text_file(png);
+  REQUIRE(svg_before.size() > 8 * 1024);
+  REQUIRE(png_before.size() > 8 * 1024);
+  for (int limit_kib : {1, 4}) {  // both images are larger than this: each is cut off
+    CAPTURE(limit_kib);
+    const auto r = run_limited(draw, dir, limit_kib);
+    CHECK(r.exit_code == 1);
+    CHECK(r.out.find("wrote") == std::string::npos);
+    CHECK(r.err.find("cannot write '" + svg + "': the image came out incomplete") != std::string::npos);
+    CHECK(read_text_file(svg) == svg_before);
+    CHECK(read_text_file(png) == png_before);
+    for (const auto& e : fs::directory_iterator(figs)) CHECK(e.path().filename().string().find(".tmp-") == std::string::npos);
+  }
+  // A PNG cut off alone (SVG not asked for) is caught by its missing IEND chunk.
+  const auto r = run_limited(draw + " --format png", dir, 4);
+  CHECK(r.exit_code == 1);
+  CHECK(r.err.find("cannot write '" + png + "': the image came out incomplete") != std::string::npos);
+  CHECK(read_text_file(png) == png_before);
+}

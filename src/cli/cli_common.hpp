@@ -46,6 +46,11 @@ void register_durations(CLI::App& app);
 /// "20,50,100" or "0.3:0.7:9" (FIRST:LAST:COUNT, ends included); InputError naming `option`.
 std::vector<double> parse_value_list(const std::string& text, const std::string& option);
 
+/// Every output option of every subcommand (--out, --csv, --write-physical,
+/// --out-dir) refuses an empty value ("") while the command line is parsed,
+/// before any work (exit 2, naming the option). Call after registering.
+void refuse_empty_output_paths(CLI::App& app);
+
 void register_ensemble(CLI::App& app);
 void register_merge_shards(CLI::App& app);
 

@@ -11,6 +11,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/output_paths.hpp"
 #include "dynamics/accuracy_guard.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "dynamics/level_population_observer.hpp"
@@ -34,6 +35,7 @@ struct AnnealOptions {
 };
 
 void run_anneal(const AnnealOptions& o) {
+  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out").output(o.csv, "--csv"));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);

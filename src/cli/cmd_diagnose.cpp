@@ -11,6 +11,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
@@ -33,6 +34,7 @@ struct DiagnoseOptions {
 };
 
 void run_diagnose(const DiagnoseOptions& o) {
+  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out"));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);

@@ -7,7 +7,6 @@
 #include <limits>
 #include <algorithm>
 #include <cmath>
-#include <csignal>
 #include <cstring>
 #include <filesystem>
 #include <fstream>
@@ -26,6 +25,8 @@
 #include "io/atomic_file.hpp"
 #include "io/duration_study_file.hpp"
 #include "io/input_error.hpp"
+#include "io/interrupt_notice.hpp"
+#include "io/output_paths.hpp"
 #include "io/json_summary.hpp"
 #include "io/progress_bar.hpp"
 #include "io/result_journal.hpp"
@@ -49,16 +50,6 @@ struct DurationsOptions {
   bool json = false, no_search = false, no_predictions = false, restart = false, quiet = false;
 };
 
-// Interrupts: everything finished is already on disk; say so and leave.
-char g_interrupt_message[1024] = "";
-extern "C" void on_interrupt(int sig) {
-  if (g_interrupt_message[0]) {
-    const ssize_t ignored = ::write(STDERR_FILENO, g_interrupt_message, std::strlen(g_interrupt_message));
-    (void)ignored;
-  }
-  ::_exit(128 + sig);
-}
-
 std::string read_text(const std::string& path) {
   std::ifstream in(path, std::ios::binary);
   std::ostringstream t;
@@ -81,6 +72,12 @@ std::string p_text(double p) { return fmt::format("{:.6f}", std::clamp(p, 0.0, 1
 std::string ns_text(double t) { return std::isinf(t) ? "inf" : fmt_num(t, 5); }
 
 void run_durations(const DurationsOptions& o) {
+  check_file_plan(FilePlan{}
+                      .input(o.problem, "problem")
+                      .input(o.schedule, "schedule")
+                      .output(o.out, "--out")
+                      .output(o.csv, "--csv")
+                      .journal_of(!o.out.empty() ? o.out : o.csv));
   const ProblemFile problem_file = parse_problem_file(o.problem);
   const IsingProblem& problem = problem_file.ising;
   const Schedule schedule = read_schedule_file(o.schedule);
@@ -151,13 +148,9 @@ void run_durations(const DurationsOptions& o) {
                                        fmt::format("{:a}", o.tolerance), "p-only"})
                  : input_fingerprint({read_text(o.problem), read_text(o.schedule), o.propagator,
                                       fmt::format("{:a}", o.tolerance)}));
-    fmt::format_to_n(g_interrupt_message, sizeof g_interrupt_message - 1,
-                     "\ngapwise: interrupted; every finished duration is saved in {} (and {}). "
-                     "Run the same command again to continue.\n",
-                     jpath, keep);
-    std::signal(SIGINT, on_interrupt);
-    std::signal(SIGTERM, on_interrupt);
   }
+  std::optional<InterruptNotice> notice;  // Ctrl-C: says what is saved (or that nothing is)
+  if (journal) notice.emplace(*journal, std::vector<std::string>{o.out, o.csv});
   DurationEvaluator ev(setup, journal.get());
   if (journal && journal->resumed() > 0 && !o.quiet)
     std::cerr << fmt::format("gapwise: resuming from {}: {} finished duration(s) reused\n", journal->path(),
@@ -195,8 +188,7 @@ void run_durations(const DurationsOptions& o) {
   in.grid_ns = grid;
   bar.done();
   write_outputs(&st);
-  std::signal(SIGINT, SIG_DFL);
-  std::signal(SIGTERM, SIG_DFL);
+  notice.reset();
 
   // ---- report
   const auto& known = ev.known();

@@ -14,6 +14,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "dynamics/propagator.hpp"
 #include "hamiltonian/memory_budget.hpp"
@@ -101,6 +102,13 @@ void check_options(const EmbedCostOptions& o) {
 }
 
 void run_embed_cost(const EmbedCostOptions& o) {
+  check_file_plan(FilePlan{}
+                      .input(o.problem, "logical problem")
+                      .input(o.embedding, "embedding")
+                      .input(o.schedule, "schedule")
+                      .output(o.out, "--out")
+                      .output(o.csv, "--csv")
+                      .output(o.write_physical, "--write-physical"));
   check_options(o);
   const IsingProblem logical = read_problem_file(o.problem);
   const Embedding embedding = read_embedding_file(o.embedding);

@@ -9,6 +9,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/output_paths.hpp"
 #include "io/atomic_file.hpp"
 #include "io/ensemble_result_file.hpp"
 #include "io/input_error.hpp"
@@ -143,6 +144,12 @@ namespace {
 void run_ensemble(const EnsembleOptions& o) {
   ProcessGroup& group = ProcessGroup::instance();
   try {
+    check_file_plan(FilePlan{}
+                        .input_file_or_folder(o.set, "instance set")
+                        .input(o.schedule, "schedule")
+                        .output(o.out, "--out")
+                        .journal_of(o.out)
+                        .output(o.csv, "--csv"));
     const InstanceSet set = read_instance_set(o.set);
     const std::string schedule_text = read_text_file(o.schedule);
     const Schedule sch = read_schedule_file(o.schedule);

@@ -3,6 +3,7 @@
 #include <memory>
 
 #include "cli/cli_common.hpp"
+#include "io/output_paths.hpp"
 #include "io/result_figures.hpp"
 
 namespace gapwise::cli {
@@ -33,8 +34,12 @@ void register_figure(CLI::App& app) {
   sub->add_option("--out-dir", o->out_dir, "folder for the figures (created if missing)")->capture_default_str();
   sub->add_option("--format", o->formats, "svg, png or both")->capture_default_str()->delimiter(',');
   sub->callback([o] {
+    FilePlan plan;
+    for (const auto& f : o->files) plan.input(f, "result");
+    check_file_plan(plan);
+    check_figure_stems_differ(o->files);
     for (const auto& f : o->files)
-      for (const auto& w : draw_result_figures(f, o->out_dir, o->formats)) std::cout << "wrote " << w << "\n";
+      for (const auto& w : draw_result_figures(f, o->out_dir, o->formats, o->files)) std::cout << "wrote " << w << "\n";
   });
 }
 

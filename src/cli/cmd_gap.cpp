@@ -13,6 +13,8 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/interrupt_notice.hpp"
+#include "io/output_paths.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
@@ -103,6 +105,12 @@ VectorRequest parse_vectors_at(const std::string& text) {
 }
 
 void run_gap(const GapOptions& o) {
+  check_file_plan(FilePlan{}
+                      .input(o.problem, "problem")
+                      .input(o.schedule, "schedule")
+                      .output(o.out, "--out")
+                      .journal_of(o.out)
+                      .output(o.csv, "--csv"));
   const ProblemFile pf = parse_problem_file(o.problem);
   const IsingProblem& p = pf.ising;
   const Schedule sch = o.schedule.empty() ? Schedule{} : read_schedule_file(o.schedule);
@@ -157,6 +165,7 @@ void run_gap(const GapOptions& o) {
 
   // Resumable: with --out, every finished point goes to a journal beside it.
   std::unique_ptr<ResultJournal> journal;
+  std::optional<InterruptNotice> notice;  // Ctrl-C: says what is saved (or that nothing is)
   if (!o.out.empty()) {
     const std::string jpath = journal_path_for(o.out);
     if (o.fresh) std::filesystem::remove(jpath);
@@ -173,6 +182,7 @@ void run_gap(const GapOptions& o) {
       return std::nullopt;
     };
     opt.record = [j](const SpectrumPoint& pt) { j->append({pt.s}, spectrum_point_values(pt)); };
+    notice.emplace(*journal, std::vector<std::string>{o.out, o.csv});
     if (journal->resumed() > 0 && !o.json && !o.quiet)
       std::cout << fmt::format("resume       {} points already computed in {}\n", journal->resumed(), jpath);
   }
@@ -395,6 +405,7 @@ void run_gap(const GapOptions& o) {
       }
     }
     h5.commit();
+    notice.reset();
     journal.reset();
     std::filesystem::remove(journal_path_for(o.out));  // the result file now holds everything
   }

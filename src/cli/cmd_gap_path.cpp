@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/output_paths.hpp"
 #include "io/atomic_file.hpp"
 #include "io/input_error.hpp"
 #include "studies/gap_adapted_schedule.hpp"
@@ -23,6 +24,7 @@ struct GapPathOptions {
 };
 
 void run_gap_path(const GapPathOptions& o) {
+  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out"));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
   Schedule base = read_schedule_file(o.schedule);

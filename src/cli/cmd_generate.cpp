@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/output_paths.hpp"
 #include "io/atomic_file.hpp"
 #include "io/input_error.hpp"
 #include "io/instance_set_file.hpp"
@@ -63,6 +64,7 @@ std::vector<int> parse_sizes(const std::string& text) {
 }
 
 void run_generate(const GenerateOptions& o) {
+  check_file_plan(FilePlan{}.output(o.out, "--out"));
   if (o.out.empty() == o.out_dir.empty())
     throw InputError({"--out", 0, 0, "--out"}, "give exactly one of --out (HDF5 file) and --out-dir (problem files)",
                      "e.g. --out glasses.h5");

@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/output_paths.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/json_summary.hpp"
 #include "problem/classical_spectrum.hpp"
@@ -21,6 +22,7 @@ struct InspectOptions {
 };
 
 void run_inspect(const InspectOptions& o) {
+  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule"));
   const ProblemFile pf = parse_problem_file(o.problem);
   // Every input is read before anything is printed: a bad schedule must not
   // leave half a report on stdout.

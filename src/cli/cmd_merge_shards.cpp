@@ -3,6 +3,7 @@
 #include <memory>
 
 #include "cli/cli_common.hpp"
+#include "io/output_paths.hpp"
 #include "io/ensemble_result_file.hpp"
 #include "io/atomic_file.hpp"
 #include "studies/ensemble_study.hpp"
@@ -17,6 +18,9 @@ struct MergeOptions {
 };
 
 void run_merge(const MergeOptions& o) {
+  FilePlan plan;
+  for (const auto& f : o.shards) plan.input(f, "shard");
+  check_file_plan(plan.output(o.out, "--out").output(o.csv, "--csv"));
   check_output_path(o.out, "--out");
   std::vector<EnsembleResult> parts;
   for (const auto& f : o.shards) parts.push_back(read_ensemble_result(f));

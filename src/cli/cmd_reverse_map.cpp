@@ -7,6 +7,8 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/interrupt_notice.hpp"
+#include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
@@ -26,6 +28,7 @@ struct ReverseMapCli {
 };
 
 void run_reverse_map(const ReverseMapCli& o) {
+  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out").journal_of(o.out));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
   Schedule sch = read_schedule_file(o.schedule);
@@ -64,6 +67,7 @@ void run_reverse_map(const ReverseMapCli& o) {
   ResultJournal journal(journal_path_for(o.out), reverse_map_journal_layout(),
                         input_fingerprint({read_text_file(o.problem), read_text_file(o.schedule), bits,
                                            fmt::format("{:a}", o.ramp_ns), fmt::format("{:a}", o.tolerance), o.propagator}));
+  std::optional<InterruptNotice> notice(std::in_place, journal, std::vector<std::string>{o.out});
   const bool tty = ::isatty(2);
   const ReverseMap m = reverse_map(setup, mo, &journal, [&](std::size_t done, std::size_t total) {
     if (tty) std::cerr << fmt::format("\r{} / {} anneals", done, total) << std::flush;

@@ -42,6 +42,7 @@ int main(int argc, char** argv) {
   cli::register_durations(app);
   cli::register_ensemble(app);
   cli::register_merge_shards(app);
+  cli::refuse_empty_output_paths(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -1,5 +1,5 @@
 // Number lists on the command line: "20,50,100" or a linear range "0.3:0.7:9"
-// (first:last:count, both ends included).
+// (first:last:count, both ends included); output options that refuse "".
 #include <cmath>
 
 #include <fmt/format.h>
@@ -44,6 +44,17 @@ std::vector<double> parse_value_list(const std::string& text, const std::string&
     pos = comma + 1;
   }
   return out;
+}
+
+void refuse_empty_output_paths(CLI::App& app) {
+  const CLI::Validator non_empty(
+      [](std::string& path) -> std::string {
+        return path.empty() ? "the path is empty (\"\"); give a file name, e.g. result.h5, or leave the option out" : "";
+      },
+      "", "non-empty path");
+  for (CLI::App* sub : app.get_subcommands([](CLI::App*) { return true; }))
+    for (const char* name : {"--out", "--csv", "--write-physical", "--out-dir"})
+      if (CLI::Option* opt = sub->get_option_no_throw(name)) opt->check(non_empty);
 }
 
 }  // namespace gapwise::cli

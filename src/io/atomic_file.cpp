@@ -12,6 +12,7 @@
 #include <fmt/format.h>
 
 #include "io/input_error.hpp"
+#include "io/output_paths.hpp"
 
 namespace gapwise {
 
@@ -52,6 +53,12 @@ void commit_temporary(const std::string& temp, const std::string& final_path) {
       std::remove(temp.c_str());
       throw std::runtime_error(fmt::format("cannot flush '{}': {}", temp, std::strerror(err)));
     }
+  }
+  try {  // the last line of defence: a rename never replaces a device, FIFO or /dev/stdout
+    check_output_not_special(final_path, "output");
+  } catch (...) {
+    std::remove(temp.c_str());
+    throw;
   }
   if (std::rename(temp.c_str(), final_path.c_str()) != 0) {
     const int err = errno;

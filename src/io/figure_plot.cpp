@@ -1,7 +1,9 @@
 #include "io/figure_plot.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
+#include <cstdint>
 #include <cstdio>
 #include <filesystem>
 #include <limits>
@@ -123,6 +125,54 @@ void for_finite_runs(const std::vector<double>& x, const std::vector<double>& y,
   if (!rx.empty()) f(rx, ry);
 }
 
+// PLplot's cairo drivers do not report failed writes (a full disk, a file-size
+// limit): the file they leave can be cut off or empty. So the finished
+// temporary file is checked for the end every complete image has (PNG: the
+// IEND chunk; SVG: the closing </svg> tag) before it is renamed over `path`;
+// a cut-off image is removed and reported, and a previous file is kept.
+void commit_figure(const std::string& path) {
+  const std::string temp = temporary_path_for(path);
+  std::string tail;
+  std::uintmax_t size = 0;
+  if (std::FILE* f = std::fopen(temp.c_str(), "rb")) {
+    std::fseek(f, 0, SEEK_END);
+    size = static_cast<std::uintmax_t>(std::max(0L, std::ftell(f)));
+    const long n = static_cast<long>(std::min<std::uintmax_t>(size, 64));
+    std::fseek(f, -n, SEEK_END);
+    tail.resize(static_cast<std::size_t>(n));
+    tail.resize(std::fread(tail.data(), 1, tail.size(), f));
+    std::fclose(f);
+  }
+  const bool png = std::filesystem::path(path).extension() == ".png";
+  static const std::string png_end("\0\0\0\0IEND\xae\x42\x60\x82", 12);
+  while (!png && !tail.empty() && std::isspace(static_cast<unsigned char>(tail.back()))) tail.pop_back();
+  const std::string end = png ? png_end : std::string("</svg>");
+  if (tail.size() < end.size() || tail.compare(tail.size() - end.size(), end.size(), end) != 0) {
+    std::remove(temp.c_str());
+    throw std::runtime_error(fmt::format(
+        "cannot write '{}': the image came out incomplete ({} bytes, no {} end); the disk may be full or a "
+        "file-size limit reached. Nothing was written under that name (an earlier file of that name is kept)",
+        path, size, png ? "PNG" : "SVG"));
+  }
+  commit_temporary(temp, path);
+}
+
+// Draws with `draw` into the temporary file of `path` and commits it; the
+// temporary file never outlives a failure.
+template <class Draw>
+void draw_figure_file(const std::string& path, Draw draw) {
+  try {
+    {
+      Stream s(path);
+      draw(s.pls);
+    }  // plstream destructor closes the file
+    commit_figure(path);
+  } catch (...) {
+    std::remove(temporary_path_for(path).c_str());
+    throw;
+  }
+}
+
 }  // namespace
 
 void render_figure(const LinePlot& requested, const std::string& path) {
@@ -143,9 +193,7 @@ void render_figure(const LinePlot& requested, const std::string& path) {
   auto [y0, y1] = plot.y_range ? std::pair{plot.log_y ? std::log10(plot.y_range->first) : plot.y_range->first,
                                            plot.log_y ? std::log10(plot.y_range->second) : plot.y_range->second}
                                : range_of(plot, true, plot.log_y);
-  {
-    Stream s(path);
-    plstream& p = s.pls;
+  draw_figure_file(path, [&](plstream& p) {
     p.adv(0);
     p.vpor(0.1, 0.95, 0.12, 0.86);
     p.wind(x0, x1, y0, y1);
@@ -272,8 +320,7 @@ void render_figure(const LinePlot& requested, const std::string& path) {
                tcol.data(), texts.data(), bcol.data(), bpat.data(), bsc.data(), blw.data(), lcol.data(), lsty.data(),
                lwid.data(), scol.data(), sscale.data(), snum.data(), syms.data());
     }
-  }  // plstream destructor closes the file
-  commit_temporary(temporary_path_for(path), path);
+  });
 }
 
 void render_figure(const HeatMap& map, const std::string& path) {
@@ -298,9 +345,7 @@ void render_figure(const HeatMap& map, const std::string& path) {
   };
   const auto ex = edges(map.x), ey = edges(map.y);
   const double x0 = ex.front(), x1 = ex.back(), y0 = ey.front(), y1 = ey.back();
-  {
-    Stream s(path);
-    plstream& p = s.pls;
+  draw_figure_file(path, [&](plstream& p) {
     // A sequential colour map: dark blue -> yellow.
     const PLFLT pos[3] = {0.0, 0.5, 1.0}, r[3] = {0.1, 0.2, 1.0}, g[3] = {0.1, 0.6, 0.9}, b[3] = {0.4, 0.6, 0.2};
     p.scmap1n(256);
@@ -343,8 +388,7 @@ void render_figure(const HeatMap& map, const std::string& path) {
     p.image(bp, 2, 64, 0, 1, zmin, zmax, zmin, zmax, 0, 1, zmin, zmax);
     p.box("bc", 0, 0, "bcmstv", 0, 0);
     p.mtex("r", 5.0, 0.5, 0.5, map.value_label.c_str());
-  }
-  commit_temporary(temporary_path_for(path), path);
+  });
 }
 
 }  // namespace gapwise

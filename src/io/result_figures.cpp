@@ -13,6 +13,7 @@
 #include "io/figure_plot.hpp"
 #include "io/hdf5_input.hpp"
 #include "io/input_error.hpp"
+#include "io/output_paths.hpp"
 
 namespace gapwise {
 namespace {
@@ -426,8 +427,21 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
 
 }  // namespace
 
+void check_figure_stems_differ(const std::vector<std::string>& result_files) {
+  namespace fs = std::filesystem;
+  for (std::size_t i = 0; i < result_files.size(); ++i)
+    for (std::size_t j = 0; j < i; ++j)
+      if (fs::path(result_files[i]).stem() == fs::path(result_files[j]).stem())
+        throw InputError({result_files[i], 0, 0, "results"},
+                         fmt::format("'{}' and '{}' have the same name stem '{}', so their figures would be written to "
+                                     "the same files, one over the other",
+                                     result_files[j], result_files[i], fs::path(result_files[i]).stem().string()),
+                         "draw them in two runs with different --out-dir, or rename one of them");
+}
+
 std::vector<std::string> draw_result_figures(const std::string& result_file, const std::string& out_dir,
-                                             const std::vector<std::string>& formats) {
+                                             const std::vector<std::string>& formats,
+                                             const std::vector<std::string>& other_inputs) {
   namespace fs = std::filesystem;
   const Hdf5Input in(result_file);
   std::error_code ec;
@@ -439,6 +453,10 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
   const Emit emit = [&](const std::string& kind, const std::function<void(const std::string&)>& draw) {
     for (const auto& f : formats) {
       const std::string path = (fs::path(out_dir) / fmt::format("{}-{}.{}", stem, kind, f)).string();
+      FilePlan plan;
+      plan.input(result_file, "result");
+      for (const auto& other : other_inputs) plan.input(other, "result");
+      check_file_plan(plan.output(path, "figure"));
       draw(path);
       written.push_back(path);
     }

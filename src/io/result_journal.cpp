@@ -5,6 +5,7 @@
 #include <cstdint>
 #include <cstdlib>
 #include <cstring>
+#include <iostream>
 #include <sstream>
 #include <stdexcept>
 
@@ -46,29 +47,32 @@ std::string journal_record_line(const std::vector<double>& key, const std::vecto
 
 namespace {
 
-// Parses one record line (without its newline); false when malformed. A NaN is
-// malformed: no study journals one, and a NaN key would break the ordering of
-// the record map.
-bool parse_record(const std::string& line, std::size_t nkeys, std::size_t nvalues, std::vector<double>& key,
-                  std::vector<double>& values) {
+// Parses one record line (without its newline); on a malformed line returns
+// what is wrong with it, else "". A NaN is malformed: no study journals one,
+// and a NaN key would break the ordering of the record map.
+std::string parse_record(const std::string& line, std::size_t nkeys, std::size_t nvalues, std::vector<double>& key,
+                         std::vector<double>& values) {
   const auto star = line.rfind(" *");
-  if (star == std::string::npos) return false;
+  if (star == std::string::npos) return "it has no checksum (\" *<16 hex digits>\" at the end)";
   const std::string body = line.substr(0, star);
-  if (line.substr(star + 2) != fmt::format("{:016x}", fnv1a(body))) return false;
+  if (line.substr(star + 2) != fmt::format("{:016x}", fnv1a(body)))
+    return "its checksum does not match its text (the line was changed or only partly written)";
   std::vector<double> nums;
   const char* p = body.c_str();
   while (*p) {
     char* end = nullptr;
     const double x = std::strtod(p, &end);
-    if (end == p || std::isnan(x)) return false;
+    if (end == p) return fmt::format("\"{}\" is not a number", std::string(p).substr(0, 24));
+    if (std::isnan(x)) return "it holds a NaN, which no study writes";
     nums.push_back(x);
     p = end;
     while (*p == ' ') ++p;
   }
-  if (nums.size() != nkeys + nvalues) return false;
+  if (nums.size() != nkeys + nvalues)
+    return fmt::format("it holds {} numbers where this study writes {}", nums.size(), nkeys + nvalues);
   key.assign(nums.begin(), nums.begin() + static_cast<std::ptrdiff_t>(nkeys));
   values.assign(nums.begin() + static_cast<std::ptrdiff_t>(nkeys), nums.end());
-  return true;
+  return {};
 }
 
 void write_all(int fd, const std::string& text, const std::string& path) {
@@ -114,23 +118,45 @@ JournalContents parse_journal_text(std::string_view text, const std::string& pat
                      "changed since), so its points cannot be reused",
                      fmt::format("delete '{}' to start afresh, or write to another output file", path));
   std::size_t keep = header.size();
+  bool dropped = false;
   int line_no = 3;
   std::vector<double> key, values;
-  while (keep < text.size()) {
-    const auto end = text.find('\n', keep);
-    if (end == std::string_view::npos) break;  // torn last line: dropped
-    if (!parse_record(std::string(text.substr(keep, end - keep)), layout.key_columns.size(),
-                      layout.value_columns.size(), key, values)) {
-      if (end + 1 >= text.size()) break;  // damaged last line (killed mid-write): dropped
-      throw InputError({path, line_no, 1, "journal"}, "a record in the middle of the journal is damaged",
-                       fmt::format("delete '{}' to start afresh", path));
+  for (std::size_t at = header.size(); at < text.size(); ++line_no) {
+    const auto end = text.find('\n', at);
+    if (end == std::string_view::npos) {  // a torn last line (killed mid-write)
+      out.warnings.push_back(fmt::format("{}:{}: the last line is incomplete (the run was stopped while writing it); "
+                                         "dropped, its point will be computed again",
+                                         path, line_no));
+      break;
     }
-    out.records[key] = values;
-    keep = end + 1;
-    ++line_no;
+    const std::string line(text.substr(at, end - at));
+    const std::string wrong = parse_record(line, layout.key_columns.size(), layout.value_columns.size(), key, values);
+    if (!wrong.empty()) {
+      out.warnings.push_back(
+          fmt::format("{}:{}: a damaged record was dropped: {}; its point will be computed again", path, line_no, wrong));
+      dropped = true;
+    } else {
+      out.records[key] = values;
+      if (dropped) out.kept_after += line + "\n";
+      else keep = end + 1;
+    }
+    at = end + 1;
   }
   out.valid_bytes = keep;
   return out;
+}
+
+namespace {
+ResultJournal::WarningSink& warning_sink() {
+  static ResultJournal::WarningSink sink = [](const std::string& m) { std::cerr << "gapwise: warning: " << m << "\n"; };
+  return sink;
+}
+}  // namespace
+
+ResultJournal::WarningSink ResultJournal::set_warning_sink(WarningSink sink) {
+  WarningSink old = std::move(warning_sink());
+  warning_sink() = std::move(sink);
+  return old;
 }
 
 ResultJournal::ResultJournal(std::string path, JournalLayout layout, std::string fingerprint)
@@ -159,9 +185,20 @@ ResultJournal::ResultJournal(std::string path, JournalLayout layout, std::string
     }
     JournalContents contents = parse_journal_text(text, path_, layout_, fingerprint_);
     records_ = std::move(contents.records);
-    const std::size_t keep = contents.valid_bytes;
+    warnings_ = std::move(contents.warnings);
+    for (const auto& w : warnings_)
+      if (warning_sink()) warning_sink()(w);
+    // Compaction: the intact lines after a dropped one move up over it. Bytes
+    // before it stay as they are, so a crash during this leaves every intact
+    // record in the file (at worst twice, the same values) and at most one
+    // damaged line at the seam, dropped again on the next open.
+    const std::size_t keep = contents.valid_bytes + contents.kept_after.size();
     resumed_ = records_.size();
+    count_ = records_.size();
     if (keep < text.size() || keep == 0) {
+      if (::lseek(fd_, static_cast<off_t>(contents.valid_bytes), SEEK_SET) < 0)
+        throw std::runtime_error(fmt::format("cannot seek in the journal '{}': {}", path_, std::strerror(errno)));
+      if (!contents.kept_after.empty()) write_all(fd_, contents.kept_after, path_);
       if (::ftruncate(fd_, static_cast<off_t>(keep)) != 0)
         throw std::runtime_error(fmt::format("cannot repair the journal '{}': {}", path_, std::strerror(errno)));
     }
@@ -176,7 +213,11 @@ ResultJournal::ResultJournal(std::string path, JournalLayout layout, std::string
 }
 
 ResultJournal::~ResultJournal() {
-  if (fd_ >= 0) ::close(fd_);  // releases the lock
+  if (fd_ < 0) return;
+  // No record: the run was refused or stopped before its first point. Nothing
+  // worth resuming is in the file; remove it (still under the lock).
+  if (count_.load() == 0) ::unlink(path_.c_str());
+  ::close(fd_);  // releases the lock
 }
 
 std::size_t ResultJournal::size() const {
@@ -204,6 +245,7 @@ void ResultJournal::append(const std::vector<double>& key, const std::vector<dou
   std::lock_guard<std::mutex> lock(mutex_);
   write_all(fd_, line, path_);
   records_[key] = values;
+  count_ = records_.size();
 }
 
 }  // namespace gapwise

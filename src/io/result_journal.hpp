@@ -26,9 +26,15 @@
 //   # keys: <names>  values: <names>
 //   <key...> <value...> *<checksum>
 // A line is accepted only when it ends in a newline and its checksum (FNV-1a
-// of the text before '*') matches; a torn last line (killed mid-write) is
-// dropped, and the journal is compacted when it is reopened. Only one process
-// may use a journal at a time (an exclusive lock; a second run gets an InputError).
+// of the text before '*') matches. Any other line (a torn last line from a
+// kill mid-write, or a line damaged anywhere) is dropped with a warning naming
+// the journal, the line and what is wrong, its point is computed again, and the
+// journal is compacted when it is reopened. Only one process may use a journal
+// at a time (an exclusive lock; a second run gets an InputError). A journal that
+// holds no record when it is closed (a run refused or stopped before its first
+// point) is removed, so no empty journal is left behind.
+#include <atomic>
+#include <functional>
 #include <map>
 #include <memory>
 #include <mutex>
@@ -67,6 +73,16 @@ class ResultJournal {
   /// Appends and flushes (fsync) one record; thread-safe. A key already present
   /// is replaced in memory and written again (the later line wins on reload).
   void append(const std::vector<double>& key, const std::vector<double>& values);
+  /// Lines dropped when the journal was opened, one message each ("<path>:<line>:
+  /// ... dropped"); each was also passed to the warning sink.
+  const std::vector<std::string>& warnings() const { return warnings_; }
+  /// The number of records, readable from a signal handler (lock-free).
+  std::size_t record_count_signal_safe() const { return count_.load(std::memory_order_relaxed); }
+
+  /// Where journals report dropped lines; the default writes "gapwise: warning:
+  /// <message>" to stderr. Returns the previous sink.
+  using WarningSink = std::function<void(const std::string&)>;
+  static WarningSink set_warning_sink(WarningSink sink);
 
  private:
   std::string path_;
@@ -74,21 +90,27 @@ class ResultJournal {
   std::string fingerprint_;
   int fd_ = -1;
   std::size_t resumed_ = 0;
+  std::atomic<std::size_t> count_{0};
+  std::vector<std::string> warnings_;
   mutable std::mutex mutex_;
   std::map<std::vector<double>, std::vector<double>> records_;
 };
 
 /// What a journal's text holds for a study with this layout and fingerprint:
-/// the records of every whole, intact line (a torn or damaged last line is
-/// dropped) and how many leading bytes are valid (0 for a new journal). Throws
-/// InputError (the path, line and what to do) for a file that is no journal,
-/// belongs to another study or other inputs, or is damaged in the middle.
+/// the records of every whole, intact line; each other line is dropped with a
+/// warning (path, line number, what is wrong). The clean journal is the first
+/// `valid_bytes` of the text (0 for a new journal) followed by `kept_after`,
+/// the intact lines after the first dropped one. Throws InputError (the path,
+/// line and what to do) for a file that is no journal or belongs to another
+/// study or other inputs.
 /// ResultJournal reads its file with it; the fuzz target calls it directly.
 ///
 ///   JournalContents c = parse_journal_text(text, "sweep.h5.journal", layout, fingerprint);
 struct JournalContents {
   std::map<std::vector<double>, std::vector<double>> records;
   std::size_t valid_bytes = 0;
+  std::string kept_after;
+  std::vector<std::string> warnings;
 };
 JournalContents parse_journal_text(std::string_view text, const std::string& path, const JournalLayout& layout,
                                    const std::string& fingerprint);
