@@ -104,12 +104,21 @@ std::vector<double> spectrum_point_values(const SpectrumPoint& p);
 std::vector<std::string> spectrum_point_value_names(int levels);
 SpectrumPoint spectrum_point_from_values(double s, const std::vector<double>& values, int levels);
 
+/// A minimum whose gap reopens on both sides to at least this multiple of
+/// Delta_min before the s range ends is passed through; below it the path stops
+/// inside the crossing (an end gap). sqrt(2) is one crossing width Delta/alpha
+/// on the two-level hyperbola sqrt(Delta^2 + alpha^2 x^2).
+inline constexpr double kSweptCrossingReopening = 1.4142135623730951;
+
 /// A local minimum of the governing gap, after refinement.
 struct GapMinimum {
   double s = 0.0, s_uncertainty = 0.0;
   double gap_ghz = 0.0, gap_uncertainty_ghz = 0.0;
   double curvature_ghz = 0.0;   ///< d^2 gap / ds^2 at s (GHz)
   bool at_end_point = false;
+  /// How far the gap reopens: over the two sides of s, the smaller of the largest
+  /// gap between s and that end of the range, over gap_ghz (1 at an end point).
+  double reopening = 1.0;
 };
 
 /// What a lowest level becomes at the last s: its dominant classical states.
@@ -127,6 +136,7 @@ struct MinimumGapReport {
   double s_star = 0.0, s_star_uncertainty = 0.0;
   double gap_ghz = 0.0, gap_uncertainty_ghz = 0.0;
   bool at_end_point = false;      ///< the smallest gap is at an end of the s range (not interior)
+  double reopening = 1.0;         ///< GapMinimum::reopening of the answer (< kSweptCrossingReopening: an end gap)
   std::string definition;         ///< e.g. "E_2 - E_0 (g = 2: ...)"
   int ground_degeneracy = 1;      ///< g, in the sector used
   std::size_t classical_ground_states = 1;  ///< ground manifold size in the full space
