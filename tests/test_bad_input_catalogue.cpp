@@ -89,6 +89,14 @@ std::vector<Row> rows() {
       {"C1", "", "", "anneal TRIANGLE LINEAR --tolerance 0.5"},
       {"C2", "", "", "anneal TRIANGLE LINEAR --duration-ns 0"},
       {"C3", "", "", "anneal TRIANGLE LINEAR --duration-ns twenty"},
+      // --- round two: numbers that were silently wrong; messages that help ---
+      {"R2D3", "", "", "durations TRIANGLE LINEAR --durations 0"},
+      {"R2D4", "p.toml", "qubits = 100000\n", "inspect DIR/p.toml"},
+      {"R2D5", "", "", "anneall TRIANGLE LINEAR"},
+      {"R2D6", "", "", "inspect DIR/" + std::string(260, 'n') + ".toml"},
+      {"R2D7", "", "", "inspect DIR/no-such-folder/p.toml"},
+      {"R2D8", "b.toml", "qubits = 25\n", "ensemble DIR LINEAR -d 5 -q --out DIR/study.h5"},
+      {"R2D9", "p.toml", "qubits = 2\nlabels = [\"x\\u001b[2J\", \"x\\u001b[2J\"]\n", "inspect DIR/p.toml"},
   };
 }
 

@@ -191,9 +191,9 @@ void register_compare_paths(CLI::App& app) {
       "level. All schedules must share the same energy scales (paths are compared, not hardware).\n"
       "Example: gapwise compare-paths data-samples/weak-field-ring.toml schedules/linear.toml \\\n"
       "           --pause 0.5:0.2 --gap-adapted --duration-ns 10,20 --out cmp.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedules", o->schedules, "schedule files; the first is the base for generated shapes")
-      ->required()->check(CLI::ExistingFile);
+      ->required()->check(readable_input_file());
   sub->add_option("-d,--duration-ns", o->durations, "total durations: a list 10,20,50 or a range FIRST:LAST:COUNT")->required();
   sub->add_option("--pause", o->pauses, "add the base path with a pause S:FRACTION (at s = S for FRACTION of the duration); repeatable");
   sub->add_option("--quench", o->quenches, "add the base path quenched from s = S to 1 in FRACTION of the duration; repeatable");

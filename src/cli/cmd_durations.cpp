@@ -505,9 +505,9 @@ void register_durations(CLI::App& app) {
       "With --out or --csv, each finished duration is journaled to <file>.journal and the\n"
       "files are rewritten atomically; rerunning the same command skips finished points.\n"
       "Example: gapwise durations data-samples/triangle.toml schedules/linear.toml --range 0.5:50:9 --out tri.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedule", o->schedule, "schedule file (TOML); its path shape is stretched to each duration")
-      ->required()->check(CLI::ExistingFile);
+      ->required()->check(readable_input_file());
   sub->add_option("--durations", o->durations, "durations in ns, comma separated (e.g. 5,10,20,40)")->delimiter(',');
   sub->add_option("--range", o->range, "FIRST:LAST:COUNT, log-spaced durations in ns, both ends included (default: 10 points from a fifth of the\n"
                   "smaller to 5 x the larger predicted duration; 1:300:10 with --no-predictions)");

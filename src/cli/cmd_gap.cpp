@@ -418,8 +418,8 @@ void register_gap(CLI::App& app) {
       "Only the energy scales A(s), B(s) of the schedule matter here (default: linear, 5 GHz).\n"
       "Up to 20 qubits; the memory estimate is printed before the scan.\n"
       "Example: gapwise gap data-samples/spin-glass-8.toml schedules/hardware-like.toml --out gap.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "schedule file (TOML) whose energy scales are used")->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "schedule file (TOML) whose energy scales are used")->check(readable_input_file());
   sub->add_option("-k,--levels", o->levels, "lowest levels to follow (raised to g + 1 when needed)")->capture_default_str();
   sub->add_option("--sector", o->sector, "auto: even when every field is zero, else full; or full, even, odd")
       ->check(CLI::IsMember({"auto", "full", "even", "odd"}))->capture_default_str();

@@ -175,8 +175,8 @@ void register_pause_map(CLI::App& app) {
       "are journaled beside --out and a rerun skips them (also after Ctrl-C).\n"
       "Example: gapwise pause-map data-samples/triangle.toml schedules/linear.toml --duration-ns 5 \\\n"
       "           --at 0.3:0.9:7 --pause-ns 0,1,2,4 --out pause-map.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "forward schedule: its scales and path shape")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "forward schedule: its scales and path shape")->required()->check(readable_input_file());
   sub->add_option("-d,--duration-ns", o->duration_ns, "anneal duration T in ns (see --cost)")->required();
   sub->add_option("--at", o->at, "pause locations s: list 0.3,0.5 or range FIRST:LAST:COUNT")->capture_default_str();
   sub->add_option("--pause-ns", o->pause_ns, "pause durations in ns (0: no pause): list or range")->capture_default_str();

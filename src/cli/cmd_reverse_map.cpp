@@ -135,8 +135,8 @@ void register_reverse_map(CLI::App& app) {
       "Threaded and resumable like pause-map (journal beside --out).\n"
       "Example: gapwise reverse-map data-samples/meeting-slots-qubo.toml schedules/reverse-dwell.toml \\\n"
       "           --turn 0.3:0.9:7 --dwell-ns 0,10,40 --out reverse-map.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "schedule: its energy scales (and start_bits, if any)")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "schedule: its energy scales (and start_bits, if any)")->required()->check(readable_input_file());
   sub->add_option("--start-bits", o->start_bits, "the classical guess, qubit 0 first: 0,1,0 or 010");
   sub->add_option("--turn", o->turn, "turn points s: list or range FIRST:LAST:COUNT")->capture_default_str();
   sub->add_option("--dwell-ns", o->dwell_ns, "dwell times at the turn point, ns: list or range")->capture_default_str();
