@@ -43,6 +43,9 @@ TEST_CASE("command-line errors raised inside the library name the option, never 
       {"embed-cost " + tri + " " + sample("data-samples/triangle-ring-embedding.toml") + " " + lin + " --range 5:1:3",
        "--range"},
       {"compare-paths " + tri + " " + lin + " --duration-ns -1", "--duration-ns"},
+      {"gap " + tri + " --points 2", "--points"},             // checked by the gap search
+      {"gap " + tri + " --s-tolerance 0.5", "--s-tolerance"},
+      {"gap " + tri + " --s-first 0.8 --s-last 0.2", "--s-first"},
       {"embed-cost " + tri + " " + sample("data-samples/triangle-ring-embedding.toml") + " " + lin +
            " --term-limit -1 --strengths 2",
        "--term-limit"},
