@@ -146,6 +146,7 @@ void run_gap(const GapOptions& o) {
   // Refuse a too-large problem before building anything of size 2^n.
   check_gap_search_size(p.qubits, opt.sector.value_or(default_sector(p)), o.levels, opt.method, pf.qubits_place);
   const TransverseIsingHamiltonian H(p);
+  check_gap_search_options(opt, sch.scales);  // before anything is printed
   const GapSearchPlan plan = plan_gap_search(H, opt);
   if (!o.json && !o.quiet)
     std::cout << fmt::format("plan         {} qubits, {} (dimension {}), {} levels, {} solver; memory about {} "

@@ -153,6 +153,21 @@ void check_gap_search_size(int qubits, SpinFlipSector sector, int levels, EigenM
                      "use fewer qubits, fewer levels, or a machine with more memory");
 }
 
+void check_gap_search_options(const GapSearchOptions& o, const EnergyScales& scales) {
+  const double first = o.s_first.value_or(scales.s_first()), last = o.s_last.value_or(scales.s_last());
+  if (!(first < last) || first < scales.s_first() - 1e-12 || last > scales.s_last() + 1e-12)
+    throw InputError({"--s-first", 0, 0, "--s-first"},
+                     fmt::format("the s range [{}, {}] is empty or leaves the range [{}, {}] the energy scales cover",
+                                 first, last, scales.s_first(), scales.s_last()),
+                     "give --s-first < --s-last inside the range the schedule's scales cover");
+  if (o.coarse_points < 3)
+    throw InputError({"--points", 0, 0, "--points"}, fmt::format("{} coarse points are too few", o.coarse_points),
+                     "use at least 3 (the default 101 suits most problems)");
+  if (!(o.s_tolerance > 0.0 && o.s_tolerance < 0.1))
+    throw InputError({"--s-tolerance", 0, 0, "--s-tolerance"},
+                     fmt::format("s tolerance {} is out of range", o.s_tolerance), "use a value in (0, 0.1), e.g. 1e-6");
+}
+
 namespace {
 
 class GapSearch {
@@ -192,17 +207,7 @@ class GapSearch {
     r_.sector = sector_;
     r_.s_first = o_.s_first.value_or(scales_.s_first());
     r_.s_last = o_.s_last.value_or(scales_.s_last());
-    if (!(r_.s_first < r_.s_last) || r_.s_first < scales_.s_first() - 1e-12 || r_.s_last > scales_.s_last() + 1e-12)
-      throw InputError({"--s-first", 0, 0, "--s-first"},
-                       fmt::format("the s range [{}, {}] is empty or leaves the range [{}, {}] the energy scales cover",
-                                   r_.s_first, r_.s_last, scales_.s_first(), scales_.s_last()),
-                       "give --s-first < --s-last inside the range the schedule's scales cover");
-    if (o_.coarse_points < 3)
-      throw InputError({"--points", 0, 0, "--points"}, fmt::format("{} coarse points are too few", o_.coarse_points),
-                       "use at least 3 (the default 101 suits most problems)");
-    if (!(o_.s_tolerance > 0.0 && o_.s_tolerance < 0.1))
-      throw InputError({"--s-tolerance", 0, 0, "--s-tolerance"},
-                       fmt::format("s tolerance {} is out of range", o_.s_tolerance), "use a value in (0, 0.1), e.g. 1e-6");
+    check_gap_search_options(o_, scales_);
     const GapSearchPlan plan = plan_gap_search(full_, o_);
     gm_ = plan.ground;
     r_.classical_ground_states = gm_.degeneracy();

@@ -213,6 +213,10 @@ struct EigenvectorsAt {
 EigenvectorsAt eigenvectors_at(const TransverseIsingHamiltonian& h, const EnergyScales& scales, double s, int levels,
                                SpinFlipSector sector, EigenMethod method = EigenMethod::Auto);
 
+/// Refuses (InputError naming the gap command's option) an empty s range or one
+/// outside the scales, fewer than 3 coarse points, an s tolerance outside (0, 0.1).
+void check_gap_search_options(const GapSearchOptions& options, const EnergyScales& scales);
+
 /// The full search. Throws InputError for an impossible request (sector with fields,
 /// no level outside the ground manifold, too many qubits), std::runtime_error when an
 /// eigensolver fails.
