@@ -408,7 +408,8 @@ void register_gap(CLI::App& app) {
   CLI::App* sub = app.add_subcommand("gap",
       "The instantaneous spectrum of H(s) along s and its minimum gap.\n"
       "Scans s on a grid, subdivides where levels bend sharply (so a narrow avoided\n"
-      "crossing is not missed), refines every local minimum with Brent's method, and\n"
+      "crossing is not missed), refines every local minimum with Brent's method (an\n"
+      "end point whose sample is smallest too: the minimum may lie just inside), and\n"
       "reports s*, Delta_min in GHz with uncertainties, the gap's definition, the\n"
       "matrix element |<g|dH/ds|0>|, the adiabatic time scale, and which classical\n"
       "states the lowest levels end in.\n"
