@@ -148,4 +148,9 @@ TEST_CASE("gapwise inspect reports the right degeneracy for tiny and huge coeffi
   r = run_gapwise("inspect '" + huge.string() + "' --json", dir);
   REQUIRE(r.exit_code == 0);
   CHECK(r.out.find("\"ground_degeneracy\" : 3,") != std::string::npos);
+  // The text shows energies to 15 digits: the half units beside 1e9 are not rounded away.
+  r = run_gapwise("inspect '" + huge.string() + "'", dir);
+  REQUIRE(r.exit_code == 0);
+  CHECK(r.out.find("ground       energy -1000000001.5, degeneracy 3") != std::string::npos);
+  CHECK(r.out.find("next level   energy -1000000000.5 (classical gap 1)") != std::string::npos);
 }

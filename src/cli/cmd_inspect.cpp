@@ -61,9 +61,9 @@ void run_inspect(const InspectOptions& o) {
   std::cout << fmt::format("symmetry     {}\n", p.has_fields()
                                                    ? "none (fields break the global spin flip)"
                                                    : "global spin flip (all h = 0): spectra are taken in the even sector");
-  std::cout << fmt::format("ground       energy {:.10g}, degeneracy {} (tolerance {:.1e})\n", gm.energy, gm.degeneracy(),
+  std::cout << fmt::format("ground       energy {:.15g}, degeneracy {} (tolerance {:.1e})\n", gm.energy, gm.degeneracy(),
                            gm.tolerance);
-  std::cout << fmt::format("next level   energy {:.10g} (classical gap {:.6g})\n", gm.first_excited_energy,
+  std::cout << fmt::format("next level   energy {:.15g} (classical gap {:.6g})\n", gm.first_excited_energy,
                            gm.first_excited_energy - gm.energy);
   std::cout << "ground states (bits q0..q" << p.qubits - 1 << ", spins):\n";
   for (std::size_t k = 0; k < gm.states.size() && static_cast<int>(k) < o.list; ++k)
