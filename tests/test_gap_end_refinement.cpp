@@ -186,6 +186,11 @@ TEST_CASE("the triangle sample: the minimum near s = 1 against a dense diagonali
   CHECK(std::abs(r.gap_ghz - ref.gap) <= r.gap_uncertainty_ghz + 1e-12);
   CHECK(r.s_star_uncertainty > 0.0);
   CHECK(r.gap_uncertainty_ghz > 0.0);
+  // Every point's error bound, written to the CSV and HDF5 curve, is nonzero too
+  // (at s = 1, A = 0 and the dense residual is exactly zero).
+  std::size_t zero_bounds = 0;
+  for (const SpectrumPoint& pt : r.curve) zero_bounds += pt.error_bound_ghz > 0.0 ? 0 : 1;
+  CHECK(zero_bounds == 0);
 }
 
 TEST_CASE("every command that runs the gap search reports the refined triangle minimum") {

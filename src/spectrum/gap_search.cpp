@@ -26,14 +26,20 @@ double degeneracy_tolerance(const std::vector<double>& e, double error_bound) {
   return std::max(1e-9 * scale, 10.0 * error_bound);
 }
 
-/// Error bound of a point's governing gap: the eigensolver's residual bound on
-/// E_0 and E_g plus the rounding of the two eigenvalues themselves (a few ulps
-/// of the larger energy; a dense solve of a tiny matrix can report a residual
-/// of exactly zero, which is not an error of zero).
-double gap_error_ghz(const SpectrumPoint& p) {
+/// The rounding of eigenvalues of size up to max|E| (at least 1 GHz): a few
+/// ulps. A dense solve of a tiny or diagonal matrix can report a residual of
+/// exactly zero, which is not an error of zero.
+double eigenvalue_rounding_ghz(const std::vector<double>& energies) {
   double e = 1.0;
-  for (double x : p.energies_ghz) e = std::max(e, std::abs(x));
-  return p.error_bound_ghz + 4.0 * std::numeric_limits<double>::epsilon() * e;
+  for (double x : energies) e = std::max(e, std::abs(x));
+  return 4.0 * std::numeric_limits<double>::epsilon() * e;
+}
+
+/// Error bound of a point's governing gap: the residual bounds on E_0 and E_g
+/// plus rounding (already in points computed here; added for points resumed
+/// from journals written before it was).
+double gap_error_ghz(const SpectrumPoint& p) {
+  return std::max(p.error_bound_ghz, eigenvalue_rounding_ghz(p.energies_ghz));
 }
 
 /// Norm of <j|w> over the levels j degenerate with `level` (excluding level 0).
@@ -67,7 +73,8 @@ SpectrumPoint spectrum_at(const SectorHamiltonian& h, const EnergyScales& scales
   for (int j = 0; j < k; ++j) p.slopes_ghz[static_cast<std::size_t>(j)] = lv.vectors.col(j).dot(dv.col(j));
   const Eigen::VectorXd elements = lv.vectors.transpose() * dv.col(0);  // <j| dH/ds |0>
   const int gi = std::min(g, k - 1);
-  p.error_bound_ghz = lv.residuals_ghz[0] + lv.residuals_ghz[static_cast<std::size_t>(gi)];
+  p.error_bound_ghz = lv.residuals_ghz[0] + lv.residuals_ghz[static_cast<std::size_t>(gi)] +
+                      eigenvalue_rounding_ghz(p.energies_ghz);
   const double tol = degeneracy_tolerance(p.energies_ghz, p.error_bound_ghz);
   p.gap_ghz = p.energies_ghz[static_cast<std::size_t>(gi)] - p.energies_ghz[0];
   p.gap_10_ghz = k > 1 ? p.energies_ghz[1] - p.energies_ghz[0] : 0.0;

@@ -63,7 +63,7 @@ struct SpectrumPoint {
   /// degenerate subspace (basis-independent).
   double matrix_element_ghz = 0.0;
   double matrix_element_10_ghz = 0.0;  ///< |<1|dH/ds|0>|, same treatment for level 1
-  double error_bound_ghz = 0.0;        ///< residual bound on E_0 plus that on E_g
+  double error_bound_ghz = 0.0;        ///< residual bound on E_0 plus that on E_g, plus rounding (never 0)
   int origin = 0;                      ///< 0 coarse grid, 1 subdivision, 2 refinement
   std::vector<double> other_energies_ghz;  ///< other spin-flip sector, on request
 };
