@@ -188,4 +188,16 @@ TEST_CASE("control characters in user text are escaped where gapwise prints it")
   check_refused(r);
   CHECK(has(r.err, "odd\\x1b[2J.toml"));
   CHECK_FALSE(has(r.err, "\x1b"));
+  // ... and in the headers of the reports that echo the input files.
+  std::filesystem::copy_file(source_dir() / "data-samples/triangle.toml", odd);
+  const std::string lin = sample("schedules/linear.toml");
+  for (const std::string& cmd : {"inspect " + quoted(odd), "gap " + quoted(odd), "anneal " + quoted(odd) + " " + lin + " -d 1",
+                                 "diagnose " + quoted(odd) + " " + lin + " -d 1 --samples 0 -q",
+                                 "durations " + quoted(odd) + " " + lin + " --durations 1,2"}) {
+    INFO(cmd);
+    r = run_gapwise(cmd, dir);
+    REQUIRE(r.exit_code == 0);
+    CHECK(has(r.out, "odd\\x1b[2J.toml"));
+    CHECK_FALSE(has(r.out, "\x1b"));
+  }
 }

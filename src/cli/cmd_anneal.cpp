@@ -19,6 +19,7 @@
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 
 namespace gapwise::cli {
@@ -187,7 +188,7 @@ void run_anneal(const AnnealOptions& o) {
     }
     std::cout << to_json(j) << "\n";
   } else {
-    std::cout << fmt::format("problem      {}: {} qubits, {} couplings; ground energy {:.10g}, degeneracy {}\n", o.problem,
+    std::cout << fmt::format("problem      {}: {} qubits, {} couplings; ground energy {:.10g}, degeneracy {}\n", terminal_text(o.problem),
                              p.qubits, p.couplings.size(), gm.energy, gm.degeneracy());
     std::cout << fmt::format("schedule     {}: {}\n", o.schedule, sch.scales.describe());
     std::cout << fmt::format("path         {} waypoints, duration {} ns, start: {}\n", path.points().size(),

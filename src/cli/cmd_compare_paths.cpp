@@ -14,6 +14,7 @@
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "studies/gap_adapted_schedule.hpp"
 #include "studies/shape_comparison.hpp"
@@ -94,7 +95,7 @@ void run_compare(const CompareOptions& o) {
                            cands.size(), co.durations_ns.size());
   const ShapeComparison r = compare_shapes(p, cands, co);
 
-  std::cout << fmt::format("problem  {}: {} qubits; paths compared at equal total duration\n", o.problem, p.qubits);
+  std::cout << fmt::format("problem  {}: {} qubits; paths compared at equal total duration\n", terminal_text(o.problem), p.qubits);
   std::cout << fmt::format("levels   populations of the lowest {} instantaneous levels ({})\n", o.levels,
                            describe_sector(r.sector));
   if (gap)

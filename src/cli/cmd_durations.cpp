@@ -29,6 +29,7 @@
 #include "io/json_summary.hpp"
 #include "io/progress_bar.hpp"
 #include "io/result_journal.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "studies/anneal_predictions.hpp"
 #include "studies/duration_study.hpp"
@@ -332,9 +333,9 @@ void run_durations(const DurationsOptions& o) {
     return;
   }
 
-  std::cout << fmt::format("problem     {}: {} qubits; ground energy {:.10g}, degeneracy {}\n", o.problem,
+  std::cout << fmt::format("problem     {}: {} qubits; ground energy {:.10g}, degeneracy {}\n", terminal_text(o.problem),
                            problem.qubits, setup.ground.energy, setup.ground.degeneracy());
-  std::cout << fmt::format("schedule    {}: {}; path shape of {} waypoints stretched to each t_f\n", o.schedule,
+  std::cout << fmt::format("schedule    {}: {}; path shape of {} waypoints stretched to each t_f\n", terminal_text(o.schedule),
                            schedule.scales.describe(), schedule.shape.points().size());
   std::cout << fmt::format("numerics    propagator {} (tolerance {:.0e}), {} thread(s); {} duration(s) simulated now, {} reused\n",
                            o.propagator, o.tolerance, threads, ev.simulated(), known.size() - ev.simulated());

@@ -19,6 +19,7 @@
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
 #include "io/result_journal.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "spectrum/gap_search.hpp"
 
@@ -245,7 +246,7 @@ void run_gap(const GapOptions& o) {
   } else if (!o.quiet) {
     std::size_t by_origin[3] = {0, 0, 0};
     for (const auto& pt : r.curve) ++by_origin[pt.origin];
-    std::cout << fmt::format("problem      {}: {} qubits, {} couplings, {}\n", o.problem, p.qubits, p.couplings.size(),
+    std::cout << fmt::format("problem      {}: {} qubits, {} couplings, {}\n", terminal_text(o.problem), p.qubits, p.couplings.size(),
                              p.has_fields() ? "with fields" : "no fields (global spin flip is a symmetry)");
     std::cout << fmt::format("scales       {}{}, s from {} to {}\n", sch.scales.describe(),
                              o.schedule.empty() ? " (default; give a schedule file for others)" : "", r.s_first,

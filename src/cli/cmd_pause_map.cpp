@@ -15,6 +15,7 @@
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
 #include "studies/shape_maps.hpp"
@@ -109,7 +110,7 @@ void run_pause_map(const PauseMapCli& o) {
   if (o.json) {
     print_pause_map_json(o, mo, m, bi, bj, reference_tts);
   } else {
-    std::cout << fmt::format("problem   {} ({} qubits); schedule {}\n", o.problem, p.qubits, o.schedule);
+    std::cout << fmt::format("problem   {} ({} qubits); schedule {}\n", terminal_text(o.problem), p.qubits, terminal_text(o.schedule));
     std::cout << fmt::format("cost      {}\n", mo.cost == PauseCost::EqualTotal
                                                   ? fmt::format("equal total: every run takes {} ns, the pause eats into the ramp", o.duration_ns)
                                                   : fmt::format("added time: the ramp takes {} ns, the run {} ns + pause", o.duration_ns, o.duration_ns));

@@ -12,6 +12,7 @@
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
 #include "studies/shape_maps.hpp"
@@ -71,7 +72,7 @@ void run_reverse_map(const ReverseMapCli& o) {
   if (tty) std::cerr << "\n";
 
   const double e_start = p.energy(m.start_state);
-  std::cout << fmt::format("problem   {} ({} qubits): ground energy {:.10g}\n", o.problem, p.qubits, setup.ground.energy);
+  std::cout << fmt::format("problem   {} ({} qubits): ground energy {:.10g}\n", terminal_text(o.problem), p.qubits, setup.ground.energy);
   std::cout << fmt::format("start     bits {} (qubit 0 first), energy {:.10g}{}\n", bits, e_start,
                            m.start_in_ground_manifold ? " (already a ground state)" : "");
   std::cout << fmt::format("path      s = 1 -> turn point in {} ns, dwell, back to s = 1 in {} ns\n", o.ramp_ns, o.ramp_ns);
