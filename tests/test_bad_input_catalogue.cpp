@@ -97,6 +97,14 @@ std::vector<Row> rows() {
       {"R2C4", "s.toml", "[path]\nduration_ns = 20\n", "gap-path TRIANGLE DIR/s.toml --out DIR/s.toml"},
       {"R2C5", "", "", "anneal TRIANGLE LINEAR -d 5 --out ''"},
       {"R2C6", "", "", "durations TRIANGLE LINEAR --durations 5 --csv ''"},
+      // --- round two: numbers that were silently wrong; messages that help ---
+      {"R2D3", "", "", "durations TRIANGLE LINEAR --durations 0"},
+      {"R2D4", "p.toml", "qubits = 100000\n", "inspect DIR/p.toml"},
+      {"R2D5", "", "", "anneall TRIANGLE LINEAR"},
+      {"R2D6", "", "", "inspect DIR/" + std::string(260, 'n') + ".toml"},
+      {"R2D7", "", "", "inspect DIR/no-such-folder/p.toml"},
+      {"R2D8", "b.toml", "qubits = 25\n", "ensemble DIR LINEAR -d 5 -q --out DIR/study.h5"},
+      {"R2D9", "p.toml", "qubits = 2\nlabels = [\"x\\u001b[2J\", \"x\\u001b[2J\"]\n", "inspect DIR/p.toml"},
   };
 }
 

@@ -84,9 +84,12 @@ TEST_CASE("sigma = 0 reproduces the unperturbed numbers exactly") {
 }
 
 TEST_CASE("an end gap and a degenerate manifold get their own channels") {
-  // Frustrated triangle with small fields (sample-like, invented): the gap is
-  // smallest at s = 1, where it equals B(1) times half the classical gap
-  // (two-level limit A = 0; conventions' single-qubit formula).
+  // Frustrated triangle with small fields (sample-like, invented): at s = 1 the
+  // gap equals B(1) times half the classical gap (two-level limit A = 0;
+  // conventions' single-qubit formula); the minimum lies just before s = 1,
+  // a little lower (second-order shift by A(s) > 0; the value itself is checked
+  // against a dense diagonalisation in test_gap_end_refinement.cpp), and the
+  // gap does not reopen before the end: an end gap, not a crossing.
   IsingProblem tri(3);
   tri.h = {0.30, -0.10, 0.05};
   tri.couplings = {{0, 1, 1.0}, {1, 2, 1.0}, {0, 2, 1.0}};
@@ -95,7 +98,10 @@ TEST_CASE("an end gap and a degenerate manifold get their own channels") {
   const Diagnosis d = diagnose_anneal(tri, Schedule{}, o);
   REQUIRE(d.crossings.size() == 1);
   CHECK(d.crossings[0].at_end_point);
-  CHECK(d.crossings[0].minimum.gap_ghz == doctest::Approx(5.0 * (d.ground.first_excited_energy - d.ground.energy) / 2));
+  const double end_gap = 5.0 * (d.ground.first_excited_energy - d.ground.energy) / 2;
+  CHECK(d.crossings[0].minimum.gap_ghz < end_gap);
+  CHECK(d.crossings[0].minimum.gap_ghz > 0.99 * end_gap);
+  CHECK(d.crossings[0].minimum.s > 0.99);
   CHECK(std::isnan(d.crossings[0].passages[0].landau_zener_loss));
   CHECK(d.runs[0].channels.front().kind == ChannelKind::EndGap);
 

@@ -43,6 +43,10 @@ void register_reverse_map(CLI::App& app);
 void register_embed_cost(CLI::App& app);
 void register_durations(CLI::App& app);
 
+/// Check for an input-file argument: InputError naming the path and why it cannot
+/// be read (link loop, name too long, missing, a directory, no permission).
+CLI::Validator readable_input_file();
+
 /// "20,50,100" or "0.3:0.7:9" (FIRST:LAST:COUNT, ends included); InputError naming `option`.
 std::vector<double> parse_value_list(const std::string& text, const std::string& option);
 

@@ -20,6 +20,7 @@
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 
 namespace gapwise::cli {
@@ -189,7 +190,7 @@ void run_anneal(const AnnealOptions& o) {
     }
     std::cout << to_json(j) << "\n";
   } else {
-    std::cout << fmt::format("problem      {}: {} qubits, {} couplings; ground energy {:.10g}, degeneracy {}\n", o.problem,
+    std::cout << fmt::format("problem      {}: {} qubits, {} couplings; ground energy {:.10g}, degeneracy {}\n", terminal_text(o.problem),
                              p.qubits, p.couplings.size(), gm.energy, gm.degeneracy());
     std::cout << fmt::format("schedule     {}: {}\n", o.schedule, sch.scales.describe());
     std::cout << fmt::format("path         {} waypoints, duration {} ns, start: {}\n", path.points().size(),
@@ -295,8 +296,8 @@ void register_anneal(CLI::App& app) {
       "the norm drift, and how much p moves when the tolerance is tightened tenfold.\n"
       "Units: durations in ns, energy scales in GHz; d psi/dt = -i 2 pi H psi.\n"
       "Example: gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20 --out run.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(readable_input_file());
   sub->add_option("-d,--duration-ns", o->duration_ns,
                   "anneal duration in ns; stretches the schedule's path (default: the schedule's own)");
   sub->add_option("--tolerance", o->tolerance, "target accuracy of the ground-state probability (checked by a re-run at tolerance/10)")->capture_default_str();

@@ -15,6 +15,7 @@
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "studies/gap_adapted_schedule.hpp"
 #include "studies/shape_comparison.hpp"
@@ -99,7 +100,7 @@ void run_compare(const CompareOptions& o) {
                            cands.size(), co.durations_ns.size());
   const ShapeComparison r = compare_shapes(p, cands, co);
 
-  std::cout << fmt::format("problem  {}: {} qubits; paths compared at equal total duration\n", o.problem, p.qubits);
+  std::cout << fmt::format("problem  {}: {} qubits; paths compared at equal total duration\n", terminal_text(o.problem), p.qubits);
   std::cout << fmt::format("levels   populations of the lowest {} instantaneous levels ({})\n", o.levels,
                            describe_sector(r.sector));
   if (gap)
@@ -196,9 +197,9 @@ void register_compare_paths(CLI::App& app) {
       "level. All schedules must share the same energy scales (paths are compared, not hardware).\n"
       "Example: gapwise compare-paths data-samples/weak-field-ring.toml schedules/linear.toml \\\n"
       "           --pause 0.5:0.2 --gap-adapted --duration-ns 10,20 --out cmp.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedules", o->schedules, "schedule files; the first is the base for generated shapes")
-      ->required()->check(CLI::ExistingFile);
+      ->required()->check(readable_input_file());
   sub->add_option("-d,--duration-ns", o->durations, "total durations: a list 10,20,50 or a range FIRST:LAST:COUNT")->required();
   sub->add_option("--pause", o->pauses, "add the base path with a pause S:FRACTION (at s = S for FRACTION of the duration); repeatable");
   sub->add_option("--quench", o->quenches, "add the base path quenched from s = S to 1 in FRACTION of the duration; repeatable");

@@ -119,8 +119,8 @@ void register_diagnose(CLI::App& app) {
       "Also where the lost probability goes (excited states, energies, spin flips to\n"
       "the nearest ground state). Forward anneals only (s never decreasing).\n"
       "Example: gapwise diagnose data-samples/weak-field-ring.toml schedules/linear.toml -d 20 -d 200 --out why.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(readable_input_file());
   sub->add_option("-d,--duration-ns", o->durations_ns, "anneal duration(s) in ns; repeat for several")->required();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of the simulated probabilities")->capture_default_str();
   sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")

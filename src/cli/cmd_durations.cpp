@@ -30,6 +30,7 @@
 #include "io/json_summary.hpp"
 #include "io/progress_bar.hpp"
 #include "io/result_journal.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "studies/anneal_predictions.hpp"
 #include "studies/duration_study.hpp"
@@ -324,9 +325,9 @@ void run_durations(const DurationsOptions& o) {
     return;
   }
 
-  std::cout << fmt::format("problem     {}: {} qubits; ground energy {:.10g}, degeneracy {}\n", o.problem,
+  std::cout << fmt::format("problem     {}: {} qubits; ground energy {:.10g}, degeneracy {}\n", terminal_text(o.problem),
                            problem.qubits, setup.ground.energy, setup.ground.degeneracy());
-  std::cout << fmt::format("schedule    {}: {}; path shape of {} waypoints stretched to each t_f\n", o.schedule,
+  std::cout << fmt::format("schedule    {}: {}; path shape of {} waypoints stretched to each t_f\n", terminal_text(o.schedule),
                            schedule.scales.describe(), schedule.shape.points().size());
   std::cout << fmt::format("numerics    propagator {} (tolerance {:.0e}), {} thread(s); {} duration(s) simulated now, {} reused\n",
                            o.propagator, o.tolerance, threads, ev.simulated(), known.size() - ev.simulated());
@@ -497,9 +498,9 @@ void register_durations(CLI::App& app) {
       "With --out or --csv, each finished duration is journaled to <file>.journal and the\n"
       "files are rewritten atomically; rerunning the same command skips finished points.\n"
       "Example: gapwise durations data-samples/triangle.toml schedules/linear.toml --range 0.5:50:9 --out tri.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedule", o->schedule, "schedule file (TOML); its path shape is stretched to each duration")
-      ->required()->check(CLI::ExistingFile);
+      ->required()->check(readable_input_file());
   sub->add_option("--durations", o->durations, "durations in ns, comma separated (e.g. 5,10,20,40)")->delimiter(',');
   sub->add_option("--range", o->range, "FIRST:LAST:COUNT, log-spaced durations in ns, both ends included (default: 10 points from a fifth of the\n"
                   "smaller to 5 x the larger predicted duration; 1:300:10 with --no-predictions)");

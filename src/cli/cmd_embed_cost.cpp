@@ -23,6 +23,7 @@
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "studies/chain_strength_scan.hpp"
 
@@ -55,7 +56,7 @@ std::string chains_text(const Embedding& e, const IsingProblem& logical) {
   for (int v = 0; v < e.logical_qubits(); ++v) {
     std::string members;
     for (int q : e.chains[static_cast<std::size_t>(v)]) members += (members.empty() ? "" : ",") + std::to_string(q);
-    s += fmt::format("{}{}=[{}]", v ? " " : "", logical.label(v), members);
+    s += fmt::format("{}{}=[{}]", v ? " " : "", terminal_text(logical.label(v)), members);
   }
   return s;
 }
@@ -292,9 +293,9 @@ void register_embed_cost(CLI::App& app) {
       "the embedded problem over that on the logical problem (under the same term limit).\n"
       "Example: gapwise embed-cost data-samples/triangle.toml data-samples/triangle-ring-embedding.toml \\\n"
       "           schedules/linear.toml --strengths 1,2,3 --write-physical ring.toml");
-  sub->add_option("logical", o->problem, "logical problem file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("embedding", o->embedding, "embedding file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("logical", o->problem, "logical problem file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("embedding", o->embedding, "embedding file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(readable_input_file());
   sub->add_option("--strengths", o->strengths,
                   "chain strengths to scan, comma-separated; multiples of the largest logical |h| or |J|\n"
                   "unless --absolute (default 0.5,1,1.5,2,3,4; the embedding file's own strength is added)")

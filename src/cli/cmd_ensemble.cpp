@@ -15,6 +15,7 @@
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
 #include "io/result_journal.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
 #include "studies/ensemble_study.hpp"
@@ -179,7 +180,7 @@ void run_ensemble(const EnsembleOptions& o) {
       run.progress = [](const EnsembleProgress& p) {
         const double eta = p.seconds_left();
         std::cerr << fmt::format("[{}/{}] {} (n={}): gap {} GHz, best TTS {} ns  ({:.2f} s; {:.0f} s elapsed, ~{:.0f} s left)\n",
-                                 p.done, p.total, p.last->name, p.last->qubits, fmt_num(p.last->gap_ghz, 4),
+                                 p.done, p.total, terminal_text(p.last->name), p.last->qubits, fmt_num(p.last->gap_ghz, 4),
                                  std::isinf(p.last->tts_ns) ? std::string("inf") : fmt_num(p.last->tts_ns, 4),
                                  p.last->wall_seconds, p.elapsed_seconds, eta);
       };
@@ -219,7 +220,7 @@ void register_ensemble(CLI::App& app) {
       "Example: gapwise ensemble glasses.h5 schedules/linear.toml --durations-ns 0.1,0.2,0.5,1,2,5,10,30 --out study.h5\n"
       "         mpirun -np 8 gapwise ensemble glasses.h5 schedules/linear.toml --out study.h5");
   sub->add_option("set", o->set, "instance set: HDF5 file or directory of problem files")->required();
-  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(readable_input_file());
   sub->add_option("--out", o->out, "result file (HDF5); its journal is OUT.journal")->required();
   sub->add_option("-d,--durations-ns", o->durations, "anneal durations in ns: a list 1,10,100 or an even range FIRST:LAST:COUNT")
       ->capture_default_str();

@@ -30,7 +30,7 @@ void register_figure(CLI::App& app) {
       "  diagnose       diagnosis-gap (crossings marked), diagnosis-ground-weight\n"
       "  ensemble       ensemble-tts, ensemble-gap: median and quantile band against size\n"
       "Example: gapwise figure run.h5 --out-dir figs --format png");
-  sub->add_option("results", o->files, "HDF5 result files")->required()->check(CLI::ExistingFile);
+  sub->add_option("results", o->files, "HDF5 result files")->required()->check(readable_input_file());
   sub->add_option("--out-dir", o->out_dir, "folder for the figures (created if missing)")->capture_default_str();
   sub->add_option("--format", o->formats, "svg, png or both")->capture_default_str()->delimiter(',');
   sub->callback([o] {

@@ -21,6 +21,7 @@
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
 #include "io/result_journal.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "spectrum/gap_search.hpp"
 
@@ -154,6 +155,7 @@ void run_gap(const GapOptions& o) {
   // Refuse a too-large problem before building anything of size 2^n.
   check_gap_search_size(p.qubits, opt.sector.value_or(default_sector(p)), o.levels, opt.method, pf.qubits_place);
   const TransverseIsingHamiltonian H(p);
+  check_gap_search_options(opt, sch.scales);  // before anything is printed
   const GapSearchPlan plan = plan_gap_search(H, opt);
   if (!o.json && !o.quiet)
     std::cout << fmt::format("plan         {} qubits, {} (dimension {}), {} levels, {} solver; memory about {} "
@@ -254,7 +256,7 @@ void run_gap(const GapOptions& o) {
   } else if (!o.quiet) {
     std::size_t by_origin[3] = {0, 0, 0};
     for (const auto& pt : r.curve) ++by_origin[pt.origin];
-    std::cout << fmt::format("problem      {}: {} qubits, {} couplings, {}\n", o.problem, p.qubits, p.couplings.size(),
+    std::cout << fmt::format("problem      {}: {} qubits, {} couplings, {}\n", terminal_text(o.problem), p.qubits, p.couplings.size(),
                              p.has_fields() ? "with fields" : "no fields (global spin flip is a symmetry)");
     std::cout << fmt::format("scales       {}{}, s from {} to {}\n", sch.scales.describe(),
                              o.schedule.empty() ? " (default; give a schedule file for others)" : "", r.s_first,
@@ -418,7 +420,8 @@ void register_gap(CLI::App& app) {
   CLI::App* sub = app.add_subcommand("gap",
       "The instantaneous spectrum of H(s) along s and its minimum gap.\n"
       "Scans s on a grid, subdivides where levels bend sharply (so a narrow avoided\n"
-      "crossing is not missed), refines every local minimum with Brent's method, and\n"
+      "crossing is not missed), refines every local minimum with Brent's method (an\n"
+      "end point whose sample is smallest too: the minimum may lie just inside), and\n"
       "reports s*, Delta_min in GHz with uncertainties, the gap's definition, the\n"
       "matrix element |<g|dH/ds|0>|, the adiabatic time scale, and which classical\n"
       "states the lowest levels end in.\n"
@@ -429,8 +432,8 @@ void register_gap(CLI::App& app) {
       "Only the energy scales A(s), B(s) of the schedule matter here (default: linear, 5 GHz).\n"
       "Up to 20 qubits; the memory estimate is printed before the scan.\n"
       "Example: gapwise gap data-samples/spin-glass-8.toml schedules/hardware-like.toml --out gap.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "schedule file (TOML) whose energy scales are used")->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "schedule file (TOML) whose energy scales are used")->check(readable_input_file());
   sub->add_option("-k,--levels", o->levels, "lowest levels to follow (raised to g + 1 when needed)")->capture_default_str();
   sub->add_option("--sector", o->sector, "auto: even when every field is zero, else full; or full, even, odd")
       ->check(CLI::IsMember({"auto", "full", "even", "odd"}))->capture_default_str();

@@ -87,9 +87,9 @@ void register_gap_path(CLI::App& app) {
       "no fields) from the minimum-gap search. It slows down where the gap is small and hurries\n"
       "where it is large; the file is an ordinary waypoint schedule to run, compare and edit.\n"
       "Example: gapwise gap-path data-samples/weak-field-ring.toml schedules/linear.toml --out gap.toml");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedule", o->schedule, "base schedule (its energy scales and default duration are used)")
-      ->required()->check(CLI::ExistingFile);
+      ->required()->check(readable_input_file());
   sub->add_option("-o,--out", o->out, "schedule file to write")->required();
   sub->add_option("--waypoints", o->waypoints, "waypoints equally spaced in time (plus a quarter as many in s)")
       ->capture_default_str()->check(CLI::Range(2, 100000));

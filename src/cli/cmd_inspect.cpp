@@ -10,6 +10,7 @@
 #include "io/output_paths.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/json_summary.hpp"
+#include "io/terminal_text.hpp"
 #include "problem/classical_spectrum.hpp"
 
 namespace gapwise::cli {
@@ -54,16 +55,17 @@ void run_inspect(const InspectOptions& o) {
     std::cout << to_json(j) << "\n";
     return;
   }
-  std::cout << fmt::format("problem      {}{}\n", o.problem, p.description.empty() ? "" : "  (" + p.description + ")");
+  std::cout << fmt::format("problem      {}{}\n", terminal_text(o.problem),
+                           p.description.empty() ? "" : "  (" + terminal_text(p.description) + ")");
   std::cout << fmt::format("kind         {} (read as Ising: E(s) = sum h_i s_i + sum J_ij s_i s_j + offset)\n", pf.kind);
   std::cout << fmt::format("qubits       {}   couplings {}   non-zero fields {}   offset {}\n", p.qubits,
                            p.couplings.size(), nfields, p.offset);
   std::cout << fmt::format("symmetry     {}\n", p.has_fields()
                                                    ? "none (fields break the global spin flip)"
                                                    : "global spin flip (all h = 0): spectra are taken in the even sector");
-  std::cout << fmt::format("ground       energy {:.10g}, degeneracy {} (tolerance {:.1e})\n", gm.energy, gm.degeneracy(),
+  std::cout << fmt::format("ground       energy {:.15g}, degeneracy {} (tolerance {:.1e})\n", gm.energy, gm.degeneracy(),
                            gm.tolerance);
-  std::cout << fmt::format("next level   energy {:.10g} (classical gap {:.6g})\n", gm.first_excited_energy,
+  std::cout << fmt::format("next level   energy {:.15g} (classical gap {:.6g})\n", gm.first_excited_energy,
                            gm.first_excited_energy - gm.energy);
   std::cout << "ground states (bits q0..q" << p.qubits - 1 << ", spins):\n";
   for (std::size_t k = 0; k < gm.states.size() && static_cast<int>(k) < o.list; ++k)
@@ -74,7 +76,8 @@ void run_inspect(const InspectOptions& o) {
                            human_bytes(available_bytes()));
   if (!o.schedule.empty()) {
     const Schedule& s = *schedule;
-    std::cout << fmt::format("schedule     {}{}\n", o.schedule, s.description.empty() ? "" : "  (" + s.description + ")");
+    std::cout << fmt::format("schedule     {}{}\n", terminal_text(o.schedule),
+                             s.description.empty() ? "" : "  (" + terminal_text(s.description) + ")");
     std::cout << fmt::format("  scales     {}\n", s.scales.describe());
     std::cout << fmt::format("  path       {} waypoints, times in {}{}\n", s.shape.points().size(),
                              s.time_in_ns ? "ns" : "fractions of the duration",
@@ -93,8 +96,8 @@ void register_inspect(CLI::App& app) {
       "the classical ground energy and degeneracy by exhaustive enumeration, and the\n"
       "memory a simulation needs.\n"
       "Example: gapwise inspect data-samples/triangle.toml schedules/pause.toml");
-  sub->add_option("problem", o->problem, "problem file (TOML, see the user guide)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "schedule file (TOML), optional")->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML, see the user guide)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "schedule file (TOML), optional")->check(readable_input_file());
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   sub->add_option("--list", o->list, "how many ground states to list")->capture_default_str();
   sub->callback([o] { run_inspect(*o); });

@@ -39,7 +39,7 @@ void register_merge_shards(CLI::App& app) {
       "job each) into one result, identical to what a single run would have written.\n"
       "Refuses shards of different studies, a shard given twice, or a missing one.\n"
       "Example: gapwise merge-shards part-0.h5 part-1.h5 part-2.h5 --out study.h5");
-  sub->add_option("shards", o->shards, "shard result files")->required()->check(CLI::ExistingFile);
+  sub->add_option("shards", o->shards, "shard result files")->required()->check(readable_input_file());
   sub->add_option("--out", o->out, "merged result file (HDF5)")->required();
   sub->add_option("--csv", o->csv, "also write the per-size table as CSV");
   sub->add_flag("--json", o->json, "print the JSON summary of `gapwise ensemble --json` instead of the table");

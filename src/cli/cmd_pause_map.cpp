@@ -17,6 +17,7 @@
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
 #include "studies/shape_maps.hpp"
@@ -113,7 +114,7 @@ void run_pause_map(const PauseMapCli& o) {
   if (o.json) {
     print_pause_map_json(o, mo, m, bi, bj, reference_tts);
   } else {
-    std::cout << fmt::format("problem   {} ({} qubits); schedule {}\n", o.problem, p.qubits, o.schedule);
+    std::cout << fmt::format("problem   {} ({} qubits); schedule {}\n", terminal_text(o.problem), p.qubits, terminal_text(o.schedule));
     std::cout << fmt::format("cost      {}\n", mo.cost == PauseCost::EqualTotal
                                                   ? fmt::format("equal total: every run takes {} ns, the pause eats into the ramp", o.duration_ns)
                                                   : fmt::format("added time: the ramp takes {} ns, the run {} ns + pause", o.duration_ns, o.duration_ns));
@@ -179,8 +180,8 @@ void register_pause_map(CLI::App& app) {
       "are journaled beside --out and a rerun skips them (also after Ctrl-C).\n"
       "Example: gapwise pause-map data-samples/triangle.toml schedules/linear.toml --duration-ns 5 \\\n"
       "           --at 0.3:0.9:7 --pause-ns 0,1,2,4 --out pause-map.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "forward schedule: its scales and path shape")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "forward schedule: its scales and path shape")->required()->check(readable_input_file());
   sub->add_option("-d,--duration-ns", o->duration_ns, "anneal duration T in ns (see --cost)")->required();
   sub->add_option("--at", o->at, "pause locations s: list 0.3,0.5 or range FIRST:LAST:COUNT")->capture_default_str();
   sub->add_option("--pause-ns", o->pause_ns, "pause durations in ns (0: no pause): list or range")->capture_default_str();

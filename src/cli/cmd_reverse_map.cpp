@@ -14,6 +14,7 @@
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
 #include "studies/shape_maps.hpp"
@@ -75,7 +76,7 @@ void run_reverse_map(const ReverseMapCli& o) {
   if (tty) std::cerr << "\n";
 
   const double e_start = p.energy(m.start_state);
-  std::cout << fmt::format("problem   {} ({} qubits): ground energy {:.10g}\n", o.problem, p.qubits, setup.ground.energy);
+  std::cout << fmt::format("problem   {} ({} qubits): ground energy {:.10g}\n", terminal_text(o.problem), p.qubits, setup.ground.energy);
   std::cout << fmt::format("start     bits {} (qubit 0 first), energy {:.10g}{}\n", bits, e_start,
                            m.start_in_ground_manifold ? " (already a ground state)" : "");
   std::cout << fmt::format("path      s = 1 -> turn point in {} ns, dwell, back to s = 1 in {} ns\n", o.ramp_ns, o.ramp_ns);
@@ -139,8 +140,8 @@ void register_reverse_map(CLI::App& app) {
       "Threaded and resumable like pause-map (journal beside --out).\n"
       "Example: gapwise reverse-map data-samples/meeting-slots-qubo.toml schedules/reverse-dwell.toml \\\n"
       "           --turn 0.3:0.9:7 --dwell-ns 0,10,40 --out reverse-map.h5");
-  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(CLI::ExistingFile);
-  sub->add_option("schedule", o->schedule, "schedule: its energy scales (and start_bits, if any)")->required()->check(CLI::ExistingFile);
+  sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
+  sub->add_option("schedule", o->schedule, "schedule: its energy scales (and start_bits, if any)")->required()->check(readable_input_file());
   sub->add_option("--start-bits", o->start_bits, "the classical guess, qubit 0 first: 0,1,0 or 010");
   sub->add_option("--turn", o->turn, "turn points s: list or range FIRST:LAST:COUNT")->capture_default_str();
   sub->add_option("--dwell-ns", o->dwell_ns, "dwell times at the turn point, ns: list or range")->capture_default_str();

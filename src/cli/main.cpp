@@ -1,16 +1,62 @@
 // gapwise: the command line. Each subcommand lives in its own cmd_*.cpp file and
 // registers itself here; all computation is in the library.
+#include <algorithm>
 #include <iostream>
+#include <string>
+#include <vector>
 
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
 #include "gapwise_version.hpp"
 #include "io/input_error.hpp"
+#include "io/terminal_text.hpp"
 
 namespace gapwise::cli {
 int& exit_code() { static int code = kExitOk; return code; }
 std::string& command_line() { static std::string s; return s; }
+
+namespace {
+
+/// Levenshtein distance (insertions, deletions, substitutions), for suggestions.
+std::size_t edit_distance(const std::string& a, const std::string& b) {
+  std::vector<std::size_t> row(b.size() + 1);
+  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
+  for (std::size_t i = 1; i <= a.size(); ++i) {
+    std::size_t diagonal = row[0];
+    row[0] = i;
+    for (std::size_t j = 1; j <= b.size(); ++j) {
+      const std::size_t up = row[j];
+      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] == b[j - 1] ? 0 : 1)});
+      diagonal = up;
+    }
+  }
+  return row[b.size()];
+}
+
+/// CLI11 2.1 answers a mistyped subcommand with "A subcommand is required";
+/// say what is wrong and suggest the nearest name instead (exit code 2).
+bool refuse_unknown_subcommand(CLI::App& app, int argc, char** argv) {
+  if (argc < 2 || argv[1][0] == '-') return false;
+  const std::string typed = argv[1];
+  std::vector<std::string> names;
+  for (const CLI::App* sub : app.get_subcommands([](CLI::App*) { return true; })) names.push_back(sub->get_name());
+  if (std::find(names.begin(), names.end(), typed) != names.end()) return false;
+  std::string best;
+  std::size_t best_distance = std::string::npos;
+  for (const auto& n : names)
+    if (const std::size_t d = edit_distance(typed, n); d < best_distance) { best_distance = d; best = n; }
+  std::string list;
+  for (const auto& n : names) list += (list.empty() ? "" : ", ") + n;
+  // A suggestion only when it is plausibly a typo: at most a third of the name differs.
+  const bool close = best_distance <= std::max<std::size_t>(2, best.size() / 3);
+  std::cerr << "gapwise: error: unknown subcommand '" << terminal_text(typed) << "'."
+            << (close ? " Did you mean '" + best + "'?" : std::string()) << " Subcommands: " << list
+            << ". Fix: `gapwise --help` describes each\n";
+  return true;
+}
+
+}  // namespace
 }  // namespace gapwise::cli
 
 int main(int argc, char** argv) {
@@ -43,6 +89,7 @@ int main(int argc, char** argv) {
   cli::register_ensemble(app);
   cli::register_merge_shards(app);
   cli::refuse_empty_output_paths(app);
+  if (cli::refuse_unknown_subcommand(app, argc, argv)) return cli::kExitBadInput;
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -32,14 +32,22 @@ std::string human_bytes(double bytes) {
   return fmt::format("{:.1f} {}", bytes, units[u]);
 }
 
-void check_memory(int qubits, int complex_vectors, int real_vectors, const std::string& what) {
+void check_memory(long long qubits, int complex_vectors, int real_vectors, const std::string& what) {
   check_memory(qubits, complex_vectors, real_vectors, SourcePlace{what, 0, 0, "qubits"});
 }
 
-void check_memory(int qubits, int complex_vectors, int real_vectors, const SourcePlace& where_in) {
+void check_memory(long long qubits, int complex_vectors, int real_vectors, const SourcePlace& where_in) {
   SourcePlace where = where_in;
   if (where.key.empty()) where.key = "qubits";
-  const double need = estimate_bytes(qubits, complex_vectors, real_vectors);
+  // The count the input asked for is the one shown, however large (up to 64 the
+  // estimate in bytes is still a number worth printing).
+  if (qubits > 64)
+    throw InputError(where,
+                     fmt::format("{} qubits need 2^{} amplitudes, more memory than any computer has; gapwise accepts at "
+                                 "most {} qubits",
+                                 qubits, qubits, kMaxQubits),
+                     "split the problem or fix the qubit count");
+  const double need = estimate_bytes(static_cast<int>(qubits), complex_vectors, real_vectors);
   if (qubits > kMaxQubits)
     throw InputError(where,
                      fmt::format("{} qubits need about {} of memory (2^{} amplitudes); gapwise accepts at most {} qubits",

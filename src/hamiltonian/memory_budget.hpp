@@ -23,11 +23,11 @@ double available_bytes();
 std::string human_bytes(double bytes);
 
 /// Throws InputError (place: `what`) when the estimate exceeds the available memory
-/// or n > kMaxQubits; the message shows the estimate.
-void check_memory(int qubits, int complex_vectors, int real_vectors, const std::string& what);
+/// or n > kMaxQubits; the message shows the estimate and the qubit count as asked for.
+void check_memory(long long qubits, int complex_vectors, int real_vectors, const std::string& what);
 
 /// The same, with the refusal placed at `where` (e.g. file, line and column of
 /// the `qubits` key; an empty key becomes "qubits").
-void check_memory(int qubits, int complex_vectors, int real_vectors, const SourcePlace& where);
+void check_memory(long long qubits, int complex_vectors, int real_vectors, const SourcePlace& where);
 
 }  // namespace gapwise

@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 
 #include "io/hdf5_output.hpp"
+#include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 
 namespace gapwise {
@@ -20,7 +21,7 @@ std::string finite_or(double x, const char* alt, int digits = 4) {
 std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c) {
   const int n = c.qubits;
   std::string out;
-  out += fmt::format("diagnosis of {} along {}\n", c.problem_file, c.schedule_file);
+  out += fmt::format("diagnosis of {} along {}\n", terminal_text(c.problem_file), terminal_text(c.schedule_file));
   out += fmt::format("ground manifold  energy {:.10g}, {} state(s); next classical level {:.10g}\n", d.ground.energy,
                      d.ground.degeneracy(), d.ground.first_excited_energy);
   out += fmt::format("minimum gap      {:.6g} +- {:.1g} GHz at s* = {:.6f} +- {:.1g}  ({}; {})\n", d.gap.gap_ghz,

@@ -2,17 +2,22 @@
 
 #include <fmt/format.h>
 
+#include "io/terminal_text.hpp"
+
 namespace gapwise {
 
 std::string format_input_error(const SourcePlace& place, const std::string& problem,
                                const std::string& fix) {
-  std::string where = place.file.empty() ? std::string("<input>") : place.file;
+  // Without a file the place is a command-line option (its key, "--name"); a
+  // bare "<input>" is left only for text parsed from memory without a name.
+  std::string where = !place.file.empty() ? place.file : place.key.rfind("--", 0) == 0 ? place.key : std::string("<input>");
+  where = terminal_text(where);  // file names and keys are user text: no control characters reach the terminal
   if (place.line > 0) where += fmt::format(":{}", place.line);
   if (place.line > 0 && place.column > 0) where += fmt::format(":{}", place.column);
   std::string msg = where + ": ";
-  if (!place.key.empty()) msg += fmt::format("key '{}': ", place.key);
-  msg += problem;
-  if (!fix.empty()) msg += ". Fix: " + fix;
+  if (!place.key.empty()) msg += fmt::format("key '{}': ", terminal_text(place.key));
+  msg += terminal_text(problem, true);
+  if (!fix.empty()) msg += ". Fix: " + terminal_text(fix, true);
   return msg;
 }
 

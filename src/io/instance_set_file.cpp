@@ -13,6 +13,7 @@
 #include "io/hdf5_input.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/hdf5_seal.hpp"
+#include "io/input_path.hpp"
 #include "io/problem_file.hpp"
 #include "io/toml_reader.hpp"
 
@@ -90,8 +91,16 @@ InstanceSet read_directory(const std::string& dir) {
   namespace fs = std::filesystem;
   std::vector<fs::path> files;
   std::error_code ec;
-  for (const auto& e : fs::directory_iterator(dir, ec))
-    if (e.is_regular_file() && e.path().extension() == ".toml") files.push_back(e.path());
+  for (const auto& e : fs::directory_iterator(dir, ec)) {
+    if (e.path().extension() != ".toml") continue;
+    std::error_code entry_ec;
+    const bool regular = e.is_regular_file(entry_ec);
+    if (entry_ec) {  // a link loop, a dangling link, a name too long: say which file and why
+      const PathProblem why = describe_path_error(e.path().string(), entry_ec.value());
+      throw InputError({e.path().string(), 0, 0, ""}, why.problem + " (in the instance folder)", why.fix);
+    }
+    if (regular) files.push_back(e.path());
+  }
   if (ec) throw InputError({dir, 0, 0, ""}, fmt::format("cannot list the directory: {}", ec.message()), "check the path");
   if (files.empty())
     throw InputError({dir, 0, 0, ""}, "the directory holds no problem files (*.toml)",
@@ -102,6 +111,7 @@ InstanceSet read_directory(const std::string& dir) {
   for (const auto& f : files) {
     Instance inst;
     inst.name = f.stem().string();
+    inst.source = f.string();
     inst.problem = read_problem_file(f.string());
     set.instances.push_back(std::move(inst));
   }
@@ -157,10 +167,9 @@ InstanceSet parse_instance_set_bytes(std::string_view bytes, const std::string& 
 }
 
 InstanceSet read_instance_set(const std::string& path) {
+  require_readable_input(path, /*directory_allowed=*/true);
   std::error_code ec;
   if (std::filesystem::is_directory(path, ec)) return read_directory(path);
-  if (!std::filesystem::exists(path, ec))
-    throw InputError({path, 0, 0, ""}, "no such file or directory", "give an HDF5 instance set or a directory of problem files");
   return parse_instance_set_bytes(read_text_file(path), path);
 }
 

@@ -101,7 +101,7 @@ ProblemFile parse_problem_text(std::string_view text, const std::string& name) {
   const long long n = r.integer(*qn, "qubits");
   if (n < 1) r.fail(qn, "qubits", fmt::format("qubits must be at least 1, found {}", n), "give a positive count");
   try {
-    check_memory(static_cast<int>(std::min<long long>(n, 64)), 1, 0, name);
+    check_memory(n, 1, 0, name);
   } catch (const InputError& e) {
     r.fail(qn, "qubits", e.problem(), e.fix());
   }

@@ -5,12 +5,23 @@
 
 #include <fmt/format.h>
 
+#include "io/terminal_text.hpp"
+
 namespace gapwise {
 
 std::string TextTable::render() const {
-  std::vector<std::size_t> w(header_.size(), 0);
-  for (std::size_t c = 0; c < header_.size(); ++c) w[c] = header_[c].size();
-  for (const auto& r : rows_)
+  // Cells may hold user text (labels, names): control characters are escaped.
+  auto safe = [](const std::vector<std::string>& r) {
+    std::vector<std::string> out;
+    for (const auto& cell : r) out.push_back(terminal_text(cell));
+    return out;
+  };
+  const std::vector<std::string> header = safe(header_);
+  std::vector<std::vector<std::string>> rows;
+  for (const auto& r : rows_) rows.push_back(safe(r));
+  std::vector<std::size_t> w(header.size(), 0);
+  for (std::size_t c = 0; c < header.size(); ++c) w[c] = header[c].size();
+  for (const auto& r : rows)
     for (std::size_t c = 0; c < r.size() && c < w.size(); ++c) w[c] = std::max(w[c], r[c].size());
   auto line = [&](const std::vector<std::string>& r) {
     std::string s;
@@ -20,11 +31,11 @@ std::string TextTable::render() const {
     }
     return s + "\n";
   };
-  std::string out = line(header_);
+  std::string out = line(header);
   std::size_t total = 0;
   for (auto x : w) total += x + 2;
   out += std::string(total > 2 ? total - 2 : 0, '-') + "\n";
-  for (const auto& r : rows_) out += line(r);
+  for (const auto& r : rows) out += line(r);
   return out;
 }
 

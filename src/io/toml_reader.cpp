@@ -12,6 +12,8 @@
 
 #include <fmt/format.h>
 
+#include "io/input_path.hpp"
+
 namespace gapwise {
 namespace {
 
@@ -55,9 +57,10 @@ std::string read_text_file(const std::string& path) {
   if (std::filesystem::is_directory(path, ec))
     throw InputError({path, 0, 0, ""}, "this is a directory, not a file", "give the path of a file");
   const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
-  if (fd < 0)
-    throw InputError({path, 0, 0, ""}, fmt::format("cannot open the file for reading ({})", std::strerror(errno)),
-                     "check the path and the file's permissions");
+  if (fd < 0) {
+    const PathProblem why = describe_path_error(path, errno);
+    throw InputError({path, 0, 0, ""}, why.problem, why.fix);
+  }
   // Read errors must not pass for an empty or truncated file.
   std::string text;
   char buf[1 << 16];

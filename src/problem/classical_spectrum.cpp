@@ -26,14 +26,27 @@ bool GroundManifold::contains(BasisIndex b) const {
   return std::binary_search(states.begin(), states.end(), b);
 }
 
+double classical_energy_tolerance(const IsingProblem& problem) {
+  double sum = 0.0, smallest = std::numeric_limits<double>::infinity();
+  int terms = 0;
+  auto term = [&](double c) {
+    if (c == 0.0) return;
+    sum += std::abs(c);
+    smallest = std::min(smallest, std::abs(c));
+    ++terms;
+  };
+  for (double h : problem.h) term(h);
+  for (const auto& c : problem.couplings) term(c.value);
+  if (terms == 0) return std::numeric_limits<double>::min();  // every energy is exactly 0
+  const double rounding = 8.0 * terms * std::numeric_limits<double>::epsilon() * sum;
+  return std::max(1e-9 * smallest, rounding);
+}
+
 GroundManifold find_ground_manifold(const IsingProblem& problem, const std::vector<double>& diagonal) {
   GroundManifold gm;
-  double emin = std::numeric_limits<double>::infinity(), scale = 1.0;
-  for (double e : diagonal) {
-    emin = std::min(emin, e);
-    scale = std::max(scale, std::abs(e));
-  }
-  gm.tolerance = 1e-9 * scale;
+  double emin = std::numeric_limits<double>::infinity();
+  for (double e : diagonal) emin = std::min(emin, e);
+  gm.tolerance = classical_energy_tolerance(problem);
   gm.energy = emin + problem.offset;
   double next = std::numeric_limits<double>::infinity();
   for (std::size_t b = 0; b < diagonal.size(); ++b) {

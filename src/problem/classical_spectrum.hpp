@@ -23,7 +23,17 @@ struct GroundManifold {
   bool contains(BasisIndex b) const;
 };
 
-/// Tolerance: 1e-9 times max(1, largest |E|), stated in GroundManifold::tolerance.
+/// Two problem energies closer than this are the same level (absolute, problem
+/// units, offset excluded): the larger of 1e-9 times the smallest nonzero |h_i|,
+/// |J_ij| (the finest scale the problem holds) and a rounding floor of
+/// 8 m eps sum(|h_i| + |J_ij|) over its m nonzero terms (the error of summing
+/// them in double, with room for QUBO conversion and summation order). It
+/// scales with the problem: multiplying every coefficient by c multiplies it by
+/// c, and one huge coefficient does not swamp unit ones. See the method notes
+/// ("What is reported"). Positive even for an all-zero problem.
+double classical_energy_tolerance(const IsingProblem& problem);
+
+/// The states within classical_energy_tolerance of the minimum, stated in GroundManifold::tolerance.
 GroundManifold find_ground_manifold(const IsingProblem& problem, const std::vector<double>& diagonal);
 GroundManifold find_ground_manifold(const IsingProblem& problem);
 

@@ -225,7 +225,7 @@ IsingProblem limit_terms(const IsingProblem& p, std::optional<double> term_limit
   double scale = 1.0;
   if (term_limit) {
     if (!(*term_limit > 0.0) || !std::isfinite(*term_limit))
-      throw InputError({"", 0, 0, "term_limit"}, fmt::format("term limit {} is not positive", *term_limit),
+      throw InputError({"--term-limit", 0, 0, "--term-limit"}, fmt::format("term limit {} is not positive", *term_limit),
                        "give the largest |h| or |J| the device accepts, > 0");
     const double largest = p.largest_term();
     if (largest > *term_limit) scale = *term_limit / largest;

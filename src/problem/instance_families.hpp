@@ -54,6 +54,7 @@ struct Instance {
   std::optional<std::uint64_t> seed;         ///< this instance's own seed (derived, 63 bits)
   std::optional<double> planted_energy;      ///< ground energy known by construction
   std::optional<BasisIndex> planted_state;   ///< one ground state (its flip is another)
+  std::string source;          ///< the problem file it was read from (directory sets); empty otherwise
 };
 
 struct Edge { int i = 0; int j = 0; };

@@ -26,6 +26,22 @@ double degeneracy_tolerance(const std::vector<double>& e, double error_bound) {
   return std::max(1e-9 * scale, 10.0 * error_bound);
 }
 
+/// The rounding of eigenvalues of size up to max|E| (at least 1 GHz): a few
+/// ulps. A dense solve of a tiny or diagonal matrix can report a residual of
+/// exactly zero, which is not an error of zero.
+double eigenvalue_rounding_ghz(const std::vector<double>& energies) {
+  double e = 1.0;
+  for (double x : energies) e = std::max(e, std::abs(x));
+  return 4.0 * std::numeric_limits<double>::epsilon() * e;
+}
+
+/// Error bound of a point's governing gap: the residual bounds on E_0 and E_g
+/// plus rounding (already in points computed here; added for points resumed
+/// from journals written before it was).
+double gap_error_ghz(const SpectrumPoint& p) {
+  return std::max(p.error_bound_ghz, eigenvalue_rounding_ghz(p.energies_ghz));
+}
+
 /// Norm of <j|w> over the levels j degenerate with `level` (excluding level 0).
 double subspace_element(const std::vector<double>& e, const Eigen::VectorXd& elements, int level, double tol) {
   double sum = 0.0;
@@ -57,7 +73,8 @@ SpectrumPoint spectrum_at(const SectorHamiltonian& h, const EnergyScales& scales
   for (int j = 0; j < k; ++j) p.slopes_ghz[static_cast<std::size_t>(j)] = lv.vectors.col(j).dot(dv.col(j));
   const Eigen::VectorXd elements = lv.vectors.transpose() * dv.col(0);  // <j| dH/ds |0>
   const int gi = std::min(g, k - 1);
-  p.error_bound_ghz = lv.residuals_ghz[0] + lv.residuals_ghz[static_cast<std::size_t>(gi)];
+  p.error_bound_ghz = lv.residuals_ghz[0] + lv.residuals_ghz[static_cast<std::size_t>(gi)] +
+                      eigenvalue_rounding_ghz(p.energies_ghz);
   const double tol = degeneracy_tolerance(p.energies_ghz, p.error_bound_ghz);
   p.gap_ghz = p.energies_ghz[static_cast<std::size_t>(gi)] - p.energies_ghz[0];
   p.gap_10_ghz = k > 1 ? p.energies_ghz[1] - p.energies_ghz[0] : 0.0;
@@ -143,6 +160,21 @@ void check_gap_search_size(int qubits, SpinFlipSector sector, int levels, EigenM
                      "use fewer qubits, fewer levels, or a machine with more memory");
 }
 
+void check_gap_search_options(const GapSearchOptions& o, const EnergyScales& scales) {
+  const double first = o.s_first.value_or(scales.s_first()), last = o.s_last.value_or(scales.s_last());
+  if (!(first < last) || first < scales.s_first() - 1e-12 || last > scales.s_last() + 1e-12)
+    throw InputError({"--s-first", 0, 0, "--s-first"},
+                     fmt::format("the s range [{}, {}] is empty or leaves the range [{}, {}] the energy scales cover",
+                                 first, last, scales.s_first(), scales.s_last()),
+                     "give --s-first < --s-last inside the range the schedule's scales cover");
+  if (o.coarse_points < 3)
+    throw InputError({"--points", 0, 0, "--points"}, fmt::format("{} coarse points are too few", o.coarse_points),
+                     "use at least 3 (the default 101 suits most problems)");
+  if (!(o.s_tolerance > 0.0 && o.s_tolerance < 0.1))
+    throw InputError({"--s-tolerance", 0, 0, "--s-tolerance"},
+                     fmt::format("s tolerance {} is out of range", o.s_tolerance), "use a value in (0, 0.1), e.g. 1e-6");
+}
+
 namespace {
 
 class GapSearch {
@@ -182,17 +214,7 @@ class GapSearch {
     r_.sector = sector_;
     r_.s_first = o_.s_first.value_or(scales_.s_first());
     r_.s_last = o_.s_last.value_or(scales_.s_last());
-    if (!(r_.s_first < r_.s_last) || r_.s_first < scales_.s_first() - 1e-12 || r_.s_last > scales_.s_last() + 1e-12)
-      throw InputError({"s range", 0, 0, "s range"},
-                       fmt::format("the s range [{}, {}] is empty or leaves the range [{}, {}] the energy scales cover",
-                                   r_.s_first, r_.s_last, scales_.s_first(), scales_.s_last()),
-                       "give s_first < s_last inside the schedule's table");
-    if (o_.coarse_points < 3)
-      throw InputError({"points", 0, 0, "points"}, fmt::format("{} coarse points are too few", o_.coarse_points),
-                       "use at least 3 (the default 101 suits most problems)");
-    if (!(o_.s_tolerance > 0.0 && o_.s_tolerance < 0.1))
-      throw InputError({"s tolerance", 0, 0, "s-tolerance"},
-                       fmt::format("s tolerance {} is out of range", o_.s_tolerance), "use a value in (0, 0.1), e.g. 1e-6");
+    check_gap_search_options(o_, scales_);
     const GapSearchPlan plan = plan_gap_search(full_, o_);
     gm_ = plan.ground;
     r_.classical_ground_states = gm_.degeneracy();
@@ -298,6 +320,15 @@ class GapSearch {
     }
   }
 
+  /// The larger distance from curve point `i` to its neighbours.
+  double grid_spacing_at(std::size_t i) const {
+    const auto& c = r_.curve;
+    double d = 0.0;
+    if (i > 0) d = std::max(d, c[i].s - c[i - 1].s);
+    if (i + 1 < c.size()) d = std::max(d, c[i + 1].s - c[i].s);
+    return d;
+  }
+
   double gap_near(double s) const {
     auto it = std::lower_bound(r_.curve.begin(), r_.curve.end(), s,
                                [](const SpectrumPoint& a, double x) { return a.s < x; });
@@ -306,9 +337,9 @@ class GapSearch {
     return std::min(it->gap_ghz, std::prev(it)->gap_ghz);
   }
 
-  /// Brent on [lo, hi] around grid point `i`; returns the refined minimum.
-  GapMinimum refine_at(std::size_t i) {
-    const double lo = r_.curve[i - 1].s, hi = r_.curve[i + 1].s;
+  /// Brent on [lo, hi] (the neighbours of a grid minimum, or the interval next
+  /// to an end point); returns the refined minimum.
+  GapMinimum refine_on(double lo, double hi) {
     const double tol = o_.s_tolerance / 2.5;
     const int bits = std::clamp(static_cast<int>(std::ceil(1.0 - std::log2(tol))), 8,
                                 std::numeric_limits<double>::digits / 2);
@@ -344,8 +375,7 @@ class GapSearch {
     }
     m.gap_ghz = mid.gap_ghz;
     m.curvature_ghz = curvature;
-    const double eig_err = mid.error_bound_ghz + 4.0 * std::numeric_limits<double>::epsilon() *
-                                                     std::max(1.0, std::abs(mid.energies_ghz[0]));
+    const double eig_err = gap_error_ghz(mid);
     const double noise_unc = curvature > 0.0 ? std::sqrt(2.0 * eig_err / curvature) : 0.0;
     m.s_uncertainty = brent_unc + noise_unc;
     m.gap_uncertainty_ghz = eig_err + (curvature > 0.0 ? 0.5 * curvature * m.s_uncertainty * m.s_uncertainty : 0.0);
@@ -376,29 +406,58 @@ class GapSearch {
       r_.flags.push_back(fmt::format("{} local minima of the gap along s; the 6 deepest were refined", cand.size()));
       cand.resize(6);
     }
-    std::vector<double> cand_s;
-    for (std::size_t i : cand) cand_s.push_back(c[i].s);
-    for (double s : cand_s) {
-      // Indices move as points are inserted: look the point up again.
-      std::size_t i = 0;
-      while (r_.curve[i].s != s) ++i;
-      r_.minima.push_back(refine_at(i));
+    std::vector<std::pair<double, double>> brackets;
+    for (std::size_t i : cand) brackets.push_back({c[i - 1].s, c[i + 1].s});
+    // An end point where the sampled gap is smallest is only a candidate: the
+    // minimum may sit inside the interval next to it (a grid never samples it
+    // there), so that interval is searched like any other bracket.
+    const bool front = c.front().gap_ghz < c[1].gap_ghz, back = c.back().gap_ghz < c[c.size() - 2].gap_ghz;
+    const SpectrumPoint first = c.front(), last = c.back();
+    if (front) brackets.push_back({first.s, c[1].s});
+    if (back) brackets.push_back({c[c.size() - 2].s, last.s});
+    for (const auto& [lo, hi] : brackets) {
+      GapMinimum m = refine_on(lo, hi);
+      const SpectrumPoint* end = front && lo == first.s ? &first : back && hi == last.s ? &last : nullptr;
+      if (end && !(m.gap_ghz < end->gap_ghz - gap_error_ghz(*end))) m = end_minimum(*end, m);
+      r_.minima.push_back(m);
     }
-    // End points count when the gap is smallest there.
-    auto end_min = [&](const SpectrumPoint& p) {
-      GapMinimum m;
-      m.s = p.s;
-      m.gap_ghz = p.gap_ghz;
-      m.gap_uncertainty_ghz = p.error_bound_ghz;
-      m.at_end_point = true;
-      return m;
-    };
-    if (r_.curve.front().gap_ghz < r_.curve[1].gap_ghz) r_.minima.push_back(end_min(r_.curve.front()));
-    if (r_.curve.back().gap_ghz < r_.curve[r_.curve.size() - 2].gap_ghz) r_.minima.push_back(end_min(r_.curve.back()));
     std::sort(r_.minima.begin(), r_.minima.end(), [](const GapMinimum& x, const GapMinimum& y) { return x.s < y.s; });
+    // Two brackets can meet the same minimum (a grid minimum next to an end).
+    r_.minima.erase(std::unique(r_.minima.begin(), r_.minima.end(),
+                                [](const GapMinimum& x, const GapMinimum& y) {
+                                  return x.at_end_point == y.at_end_point &&
+                                         std::abs(x.s - y.s) <= x.s_uncertainty + y.s_uncertainty;
+                                }),
+                    r_.minima.end());
+  }
+
+  /// The gap is smallest at an end point: nothing inside the interval next to it
+  /// was lower (Brent on that interval, `inner`, converged onto the end). The end
+  /// is the minimum's place; its s is known to the distance Brent could still
+  /// tell apart from the end, its gap to the eigenvalue error.
+  GapMinimum end_minimum(const SpectrumPoint& end, const GapMinimum& inner) const {
+    GapMinimum m;
+    m.s = end.s;
+    m.gap_ghz = end.gap_ghz;
+    m.gap_uncertainty_ghz = gap_error_ghz(end);
+    m.s_uncertainty = std::abs(inner.s - end.s) + inner.s_uncertainty;
+    m.at_end_point = true;
+    return m;
+  }
+
+  /// GapMinimum::reopening from the curve.
+  double reopening_at(const GapMinimum& m) const {
+    if (m.at_end_point || !(m.gap_ghz > 0.0)) return 1.0;
+    double left = m.gap_ghz, right = m.gap_ghz;
+    for (const auto& p : r_.curve) {
+      double& side = p.s < m.s ? left : right;
+      side = std::max(side, p.gap_ghz);
+    }
+    return std::min(left, right) / m.gap_ghz;
   }
 
   void summarize() {
+    for (auto& m : r_.minima) m.reopening = reopening_at(m);
     const auto best = std::min_element(r_.minima.begin(), r_.minima.end(), [](const GapMinimum& x, const GapMinimum& y) {
       return x.gap_ghz < y.gap_ghz;
     });
@@ -410,10 +469,17 @@ class GapSearch {
       r_.gap_ghz = best->gap_ghz;
       r_.gap_uncertainty_ghz = best->gap_uncertainty_ghz;
       r_.at_end_point = best->at_end_point;
-    } else {  // flat or monotone without a strict minimum: the smallest sample
+      r_.reopening = best->reopening;
+      if (!r_.at_end_point && r_.reopening < kSweptCrossingReopening)
+        r_.flags.push_back(fmt::format(
+            "the minimum at s* = {:.6f} lies next to an end of the s range: the gap reopens only to {:.4g} x Delta_min "
+            "before the range ends, so the anneal stops inside it (an end gap, not a crossing passed through)",
+            r_.s_star, r_.reopening));
+    } else {  // flat without a strict minimum: the smallest sample, placed no better than its grid neighbours
       r_.s_star = pmin->s;
+      r_.s_star_uncertainty = grid_spacing_at(static_cast<std::size_t>(pmin - r_.curve.data()));
       r_.gap_ghz = pmin->gap_ghz;
-      r_.gap_uncertainty_ghz = pmin->error_bound_ghz;
+      r_.gap_uncertainty_ghz = gap_error_ghz(*pmin);
       r_.at_end_point = pmin == &r_.curve.front() || pmin == &r_.curve.back();
     }
     // Matrix element at s* (from the sample there).
@@ -446,7 +512,7 @@ class GapSearch {
         m.s = c[i].s;
         m.s_uncertainty = 0.5 * (c[i + 1].s - c[i - 1].s);
         m.gap_ghz = c[i].gap_10_ghz;
-        m.gap_uncertainty_ghz = c[i].error_bound_ghz;
+        m.gap_uncertainty_ghz = gap_error_ghz(c[i]);
         r_.gap_10_interior_minimum = m;
       }
     if (g_ >= 2)

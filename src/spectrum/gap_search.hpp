@@ -63,7 +63,7 @@ struct SpectrumPoint {
   /// degenerate subspace (basis-independent).
   double matrix_element_ghz = 0.0;
   double matrix_element_10_ghz = 0.0;  ///< |<1|dH/ds|0>|, same treatment for level 1
-  double error_bound_ghz = 0.0;        ///< residual bound on E_0 plus that on E_g
+  double error_bound_ghz = 0.0;        ///< residual bound on E_0 plus that on E_g, plus rounding (never 0)
   int origin = 0;                      ///< 0 coarse grid, 1 subdivision, 2 refinement
   std::vector<double> other_energies_ghz;  ///< other spin-flip sector, on request
 };
@@ -104,12 +104,21 @@ std::vector<double> spectrum_point_values(const SpectrumPoint& p);
 std::vector<std::string> spectrum_point_value_names(int levels);
 SpectrumPoint spectrum_point_from_values(double s, const std::vector<double>& values, int levels);
 
+/// A minimum whose gap reopens on both sides to at least this multiple of
+/// Delta_min before the s range ends is passed through; below it the path stops
+/// inside the crossing (an end gap). sqrt(2) is one crossing width Delta/alpha
+/// on the two-level hyperbola sqrt(Delta^2 + alpha^2 x^2).
+inline constexpr double kSweptCrossingReopening = 1.4142135623730951;
+
 /// A local minimum of the governing gap, after refinement.
 struct GapMinimum {
   double s = 0.0, s_uncertainty = 0.0;
   double gap_ghz = 0.0, gap_uncertainty_ghz = 0.0;
   double curvature_ghz = 0.0;   ///< d^2 gap / ds^2 at s (GHz)
   bool at_end_point = false;
+  /// How far the gap reopens: over the two sides of s, the smaller of the largest
+  /// gap between s and that end of the range, over gap_ghz (1 at an end point).
+  double reopening = 1.0;
 };
 
 /// What a lowest level becomes at the last s: its dominant classical states.
@@ -127,6 +136,7 @@ struct MinimumGapReport {
   double s_star = 0.0, s_star_uncertainty = 0.0;
   double gap_ghz = 0.0, gap_uncertainty_ghz = 0.0;
   bool at_end_point = false;      ///< the smallest gap is at an end of the s range (not interior)
+  double reopening = 1.0;         ///< GapMinimum::reopening of the answer (< kSweptCrossingReopening: an end gap)
   std::string definition;         ///< e.g. "E_2 - E_0 (g = 2: ...)"
   int ground_degeneracy = 1;      ///< g, in the sector used
   std::size_t classical_ground_states = 1;  ///< ground manifold size in the full space
@@ -202,6 +212,10 @@ struct EigenvectorsAt {
 /// The lowest `levels` eigenpairs of H(s) in `sector`, expanded to the full basis.
 EigenvectorsAt eigenvectors_at(const TransverseIsingHamiltonian& h, const EnergyScales& scales, double s, int levels,
                                SpinFlipSector sector, EigenMethod method = EigenMethod::Auto);
+
+/// Refuses (InputError naming the gap command's option) an empty s range or one
+/// outside the scales, fewer than 3 coarse points, an s tolerance outside (0, 0.1).
+void check_gap_search_options(const GapSearchOptions& options, const EnergyScales& scales);
 
 /// The full search. Throws InputError for an impossible request (sector with fields,
 /// no level outside the ground manifold, too many qubits), std::runtime_error when an

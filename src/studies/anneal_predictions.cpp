@@ -135,6 +135,14 @@ AnnealPredictions predict_anneal(const AnnealSetup& setup, const PredictionOptio
     lz.why_not = "the minimum gap is zero (a true level crossing inside the sector)";
     return pr;
   }
+  if (rep.reopening < kSweptCrossingReopening) {
+    lz.why_not = fmt::format(
+        "the gap does not reopen before the path's s range ends: from Delta_min = {:.6g} GHz at s* = {:.6g} it rises "
+        "only to {:.4g} x Delta_min on one side (the path stops inside the crossing, so it is not swept through as "
+        "Landau-Zener assumes; that needs at least {:.3g} x, one crossing width)",
+        rep.gap_ghz, rep.s_star, rep.reopening, kSweptCrossingReopening);
+    return pr;
+  }
   double curvature = 0;
   for (const auto& m : rep.minima)
     if (std::abs(m.s - rep.s_star) <= std::max(1e-9, 10 * rep.s_star_uncertainty)) curvature = m.curvature_ghz;

@@ -110,7 +110,7 @@ bool better(const ChainScanPoint& x, const ChainScanPoint& y) {
 ChainScanResult scan_chain_strength(const IsingProblem& logical, const Embedding& e, const Schedule& schedule,
                                     const ChainScanOptions& o) {
   if (o.strengths.empty())
-    throw InputError({"", 0, 0, "strengths"}, "no chain strengths to scan", "give at least one chain strength");
+    throw InputError({"--strengths", 0, 0, "--strengths"}, "no chain strengths to scan", "give at least one chain strength");
   check_embedding_serves(e, logical, logical.description.empty() ? "the logical problem" : logical.description);
   auto say = [&](const std::string& what) {
     if (o.progress) o.progress(what);

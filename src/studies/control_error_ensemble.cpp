@@ -38,15 +38,14 @@ IsingProblem perturb_problem(const IsingProblem& problem, const ControlErrorMode
 
 void classify_ground_change(const IsingProblem& perturbed, const GroundManifold& intended, ControlSample& sample) {
   const std::vector<double> d = problem_diagonal(perturbed);
-  double in = std::numeric_limits<double>::infinity(), out = std::numeric_limits<double>::infinity(), scale = 1.0;
+  double in = std::numeric_limits<double>::infinity(), out = std::numeric_limits<double>::infinity();
   for (BasisIndex b = 0; b < d.size(); ++b) {
     double& best = intended.contains(b) ? in : out;
     best = std::min(best, d[b]);
-    scale = std::max(scale, std::abs(d[b]));
   }
   // With every state in the manifold there is nothing to change to.
   sample.classical_margin = std::isfinite(out) ? out - in : std::numeric_limits<double>::infinity();
-  sample.ground_changed = sample.classical_margin <= 1e-9 * scale;
+  sample.ground_changed = sample.classical_margin <= classical_energy_tolerance(perturbed);
 }
 
 ControlEnsemble run_control_error_ensemble(const IsingProblem& problem, const GroundManifold& intended,

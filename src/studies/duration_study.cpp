@@ -12,10 +12,10 @@
 namespace gapwise {
 
 std::vector<double> normalised_grid(std::vector<double> t) {
-  if (t.empty()) throw InputError({"", 0, 0, "durations"}, "no durations to simulate", "give --durations or --range");
+  if (t.empty()) throw InputError({"--durations", 0, 0, "--durations"}, "no durations to simulate", "give --durations or --range");
   for (double d : t)
     if (!(d > 0.0) || !std::isfinite(d))
-      throw InputError({"", 0, 0, "durations"}, fmt::format("duration {} ns is not positive", d), "give durations > 0 ns");
+      throw InputError({"--durations", 0, 0, "--durations"}, fmt::format("duration {} ns is not positive", d), "give durations > 0 ns");
   std::sort(t.begin(), t.end());
   t.erase(std::unique(t.begin(), t.end()), t.end());
   return t;

@@ -42,13 +42,13 @@ DurationPoint anneal_for_duration(const AnnealSetup& setup, double duration_ns) 
 
 std::vector<double> log_spaced_durations(double first, double last, int count) {
   if (!(first > 0.0) || !std::isfinite(first) || !std::isfinite(last))
-    throw InputError({"", 0, 0, "durations"}, fmt::format("the first duration {} ns is not positive", first),
+    throw InputError({"--range", 0, 0, "--range"}, fmt::format("the first duration {} ns is not positive", first),
                      "give durations > 0 ns");
   if (!(last >= first))
-    throw InputError({"", 0, 0, "durations"}, fmt::format("the last duration {} ns is below the first {} ns", last, first),
+    throw InputError({"--range", 0, 0, "--range"}, fmt::format("the last duration {} ns is below the first {} ns", last, first),
                      "give the range as FIRST:LAST:COUNT with FIRST <= LAST");
   if (count < 1)
-    throw InputError({"", 0, 0, "durations"}, fmt::format("{} durations requested", count), "ask for at least one");
+    throw InputError({"--range", 0, 0, "--range"}, fmt::format("{} durations requested", count), "ask for at least one");
   if (count == 1) return {first};
   std::vector<double> t(static_cast<std::size_t>(count));
   const double l0 = std::log(first), l1 = std::log(last);
@@ -84,7 +84,7 @@ std::vector<DurationPoint> DurationEvaluator::evaluate(const std::vector<double>
   std::vector<double> todo;
   for (double d : durations) {
     if (!(d > 0.0) || !std::isfinite(d))
-      throw InputError({"", 0, 0, "durations"}, fmt::format("duration {} ns is not positive", d), "give durations > 0 ns");
+      throw InputError({"--durations", 0, 0, "--durations"}, fmt::format("duration {} ns is not positive", d), "give durations > 0 ns");
     if (!known_.count(d)) todo.push_back(d);
   }
   std::sort(todo.begin(), todo.end(), std::greater<>());  // longest first: the cost grows with t_f

@@ -10,6 +10,7 @@
 
 #include <fmt/format.h>
 
+#include "hamiltonian/memory_budget.hpp"
 #include "io/input_error.hpp"
 #include "io/result_journal.hpp"
 #include "problem/seeded_random.hpp"
@@ -143,6 +144,25 @@ InstanceOutcome InstanceOutcome::from_values(std::size_t set_index, const std::v
 
 double instance_cost(int qubits) { return qubits * std::ldexp(1.0, qubits); }
 
+/// Where an instance came from, for messages: its problem file (directory sets)
+/// or the set file and the instance's group (HDF5 sets).
+SourcePlace instance_place(const InstanceSet& set, const Instance& instance, const std::string& key) {
+  if (!instance.source.empty()) return {instance.source, 0, 0, key};
+  return {set.source, 0, 0, fmt::format("/instances/{}{}", instance.name, key.empty() ? "" : "/" + key)};
+}
+
+/// Every instance this run computes fits the gap search and the dynamics: refused
+/// before any work, naming the instance's file.
+void check_instance_sizes(const EnsembleRun& run, const std::vector<std::size_t>& mine) {
+  for (std::size_t i : mine) {
+    const Instance& inst = run.set.instances[i];
+    const SourcePlace where = instance_place(run.set, inst, "qubits");
+    const GapSearchOptions gopt;
+    check_gap_search_size(inst.problem.qubits, default_sector(inst.problem), gopt.levels, gopt.method, where);
+    check_memory(inst.problem.qubits, 10, 0, where);
+  }
+}
+
 InstanceOutcome evaluate_instance(const Instance& instance, std::size_t set_index, const Schedule& schedule,
                                   const EnsembleSettings& settings) {
   const auto t0 = std::chrono::steady_clock::now();
@@ -226,6 +246,7 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
   std::vector<std::size_t> mine;
   for (std::size_t i = 0; i < run.set.instances.size(); ++i)
     if (run.shard.contains(i)) mine.push_back(i);
+  check_instance_sizes(run, mine);  // before the journal exists: a refused run leaves nothing behind
 
   std::map<std::size_t, InstanceOutcome> known;
   std::unique_ptr<ResultJournal> journal;
@@ -253,7 +274,15 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
   double cost_total = 0, cost_done = 0;
   for (std::size_t i : pending) cost_total += instance_cost(run.set.instances[i].problem.qubits);
   auto task = [&](std::size_t i) {
-    return bytes_of(evaluate_instance(run.set.instances.at(i), i, run.schedule, run.settings).to_values());
+    const Instance& inst = run.set.instances.at(i);
+    try {
+      return bytes_of(evaluate_instance(inst, i, run.schedule, run.settings).to_values());
+    } catch (const InputError& e) {
+      // A refusal about one instance names its file, whatever part of the library raised it.
+      if (e.place().file == inst.source && !inst.source.empty()) throw;
+      throw InputError(instance_place(run.set, inst, e.place().key),
+                       fmt::format("instance '{}': {}", inst.name, e.problem()), e.fix());
+    }
   };
   auto collect = [&](std::size_t i, std::string bytes) {
     InstanceOutcome o = InstanceOutcome::from_values(i, values_of(bytes), k_durations);

@@ -12,7 +12,7 @@ ClassicalLevels classical_levels(const TransverseIsingHamiltonian& h, const Grou
   const auto& d = h.diagonal();
   std::vector<double> sorted(d.begin(), d.end());
   std::sort(sorted.begin(), sorted.end());
-  const double tol = std::max(ground.tolerance, 1e-12);
+  const double tol = ground.tolerance;
   ClassicalLevels cl;
   std::vector<double> reps;  // representative diagonal value of each level
   for (double x : sorted)
@@ -103,7 +103,7 @@ OverlapTrack track_ground_overlap(const TransverseIsingHamiltonian& h, const Gro
     const OverlapPoint sw = at(x.s_switch, 2);
     x.gap_at_switch_ghz = sw.levels.size() > 1 ? sw.levels[1].energy_ghz - sw.levels[0].energy_ghz : 0.0;
     // Degeneracy and distance of the excited classical level.
-    const double tol = std::max(ground.tolerance, 1e-12);
+    const double tol = ground.tolerance;
     const Levels v = source ? source(scales.a_ghz(x.s_before), scales.b_ghz(x.s_before), 1)
                             : lowest_levels(h, scales.a_ghz(x.s_before), scales.b_ghz(x.s_before), 1, true);
     x.hamming_to_ground = h.qubits() + 1;

@@ -174,10 +174,14 @@ Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule,
     if (m.at_end_point) continue;
     AvoidedCrossing c;
     c.minimum = m;
-    c.diabatic_slope_ghz = crossing_diabatic_slope_ghz(m);
     std::tie(c.window_s_before, c.window_s_after) = crossing_window(d.gap, m, o.window_factor);
+    // A minimum the gap hardly climbs out of before the path ends is not swept
+    // through: an end gap whose minimum lies just inside the range (typically a
+    // small final classical gap lowered a little by A(s) > 0 near s = 1).
+    c.at_end_point = m.reopening < kSweptCrossingReopening;
+    if (!c.at_end_point) c.diabatic_slope_ghz = crossing_diabatic_slope_ghz(m);
     const double range = shape.s_max() - shape.s_min();
-    if (range > 0 && c.window_s_after - c.window_s_before > o.broad_window_fraction * range) {
+    if (!c.at_end_point && range > 0 && c.window_s_after - c.window_s_before > o.broad_window_fraction * range) {
       // A broad minimum: the gap stays small over most of the path, so the
       // loss read across the window is not that of an isolated two-level
       // crossing. Flagged (the verdict and report say so), window kept.
@@ -369,8 +373,9 @@ Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule,
       if (c.at_end_point) {
         ch.kind = ChannelKind::EndGap;
         ch.verdict = fmt::format(
-            "the gap is smallest at the end of the path, {:.4g} GHz at s = {:.4f} (classical gap {:.4g} times B/2 when A "
-            "vanishes there): {} (between s = {:.3f} and {:.3f}); the adiabatic scale is {:.3g} ns, so anneal several "
+            "the gap is smallest at the end of the path or just before it (it does not reopen before the end), {:.4g} "
+            "GHz at s = {:.4f} (classical gap {:.4g} times B/2 when A vanishes there): {} (between s = {:.3f} and "
+            "{:.3f}); the adiabatic scale is {:.3g} ns, so anneal several "
             "times longer or slow down over that stretch",
             delta, c.minimum.s, d.ground.first_excited_energy - d.ground.energy, moved, c.window_s_before,
             c.window_s_after, d.gap.adiabatic_time_ns);

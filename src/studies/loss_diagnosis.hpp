@@ -77,7 +77,9 @@ struct AvoidedCrossing {
   double diabatic_slope_ghz = 0;       ///< |d eps/ds| of the fitted crossing (GHz per unit s)
   double window_s_before = 0, window_s_after = 0;  ///< where the gap is window_factor * Delta_min
   std::optional<std::size_t> late_crossing;       ///< index into the overlap track's late crossings
-  bool at_end_point = false;                      ///< an end gap, not an interior minimum
+  /// An end gap: the minimum sits at an end of the path, or so close to one that
+  /// the gap does not reopen to window_factor * Delta_min before the path ends.
+  bool at_end_point = false;
   std::vector<CrossingPassage> passages;          ///< one per duration
   /// The window (gap below window_factor * Delta_min) covers more than
   /// broad_window_fraction of the path's s range: not an isolated two-level

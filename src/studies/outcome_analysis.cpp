@@ -50,7 +50,7 @@ OutcomeAnalysis analyze_outcome(const TransverseIsingHamiltonian& h, const Groun
   // rounded energy so that equal energies computed in a different order merge.
   const auto& diag = h.diagonal();
   const double offset = h.problem().offset;
-  const double tol = std::max(ground.tolerance, 1e-12);
+  const double tol = ground.tolerance;
   std::map<long long, SinkLevel> levels;
   std::vector<SinkState> states;
   for (BasisIndex b = 0; b < prob.size(); ++b) {
