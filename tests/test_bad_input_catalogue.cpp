@@ -89,6 +89,8 @@ std::vector<Row> rows() {
       {"C1", "", "", "anneal TRIANGLE LINEAR --tolerance 0.5"},
       {"C2", "", "", "anneal TRIANGLE LINEAR --duration-ns 0"},
       {"C3", "", "", "anneal TRIANGLE LINEAR --duration-ns twenty"},
+      // --- round two: crashes, lost results, paths kept as written ---
+      {"R2A2", "", "", "anneal TRIANGLE PAUSE --duration-ns 5e-324"},
   };
 }
 
@@ -104,6 +106,7 @@ TEST_CASE("every row of the bad-input catalogue: exit code 2 and the catalogued 
     std::string args = replace_all(row.command, "DIR", dir.path.string());
     args = replace_all(args, "TRIANGLE", (src / "data-samples/triangle.toml").string());
     args = replace_all(args, "LINEAR", (src / "schedules/linear.toml").string());
+    args = replace_all(args, "PAUSE", (src / "schedules/pause.toml").string());
     const auto r = testing::run_gapwise(args, dir);
     std::string err = replace_all(r.err, dir.path.string(), "DIR");
     err = replace_all(err, src.string(), "SRC");

@@ -141,11 +141,7 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
     r.fail(p->get("time"), "path.time", fmt::format("unknown time unit \"{}\"", time), "use \"fraction\" or \"ns\"");
   sch.time_in_ns = time == "ns";
   if (auto d = r.get_double(*p, "duration_ns", "path")) {
-    if (!(*d > 0)) r.fail(p->get("duration_ns"), "path.duration_ns", "duration must be > 0 ns", "give a positive duration");
-    if (*d > kMaxDurationNs)
-      r.fail(p->get("duration_ns"), "path.duration_ns",
-             fmt::format("duration {} ns is longer than the {:g} ns (one second) gapwise simulates", *d, kMaxDurationNs),
-             "check the unit: durations are in ns");
+    check_duration_ns(*d, r.place(p->get("duration_ns"), "path.duration_ns"));
     const bool forward_shape_in_ns = spec && !spec->is_reverse();
     if (sch.time_in_ns && !forward_shape_in_ns)
       r.fail(p->get("duration_ns"), "path.duration_ns",
