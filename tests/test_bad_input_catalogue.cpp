@@ -32,6 +32,13 @@ std::string replace_all(std::string s, const std::string& from, const std::strin
   return s;
 }
 
+// "k.k.k...": a dotted key of n parts.
+std::string deep_key(int n) {
+  std::string s = "k";
+  for (int i = 1; i < n; ++i) s += ".k";
+  return s;
+}
+
 const std::string kScheduleHead = "format = \"gapwise-schedule\"\n[scales]\nkind = \"linear\"\n";
 
 // The last cell of the catalogue row "| id | ... | message |".
@@ -91,6 +98,7 @@ std::vector<Row> rows() {
       {"C3", "", "", "anneal TRIANGLE LINEAR --duration-ns twenty"},
       // --- round two: crashes, lost results, paths kept as written ---
       {"R2A2", "", "", "anneal TRIANGLE PAUSE --duration-ns 5e-324"},
+      {"R2A4", "p.toml", "qubits = 2\n[" + deep_key(100) + "]\n", "inspect DIR/p.toml"},
   };
 }
 
