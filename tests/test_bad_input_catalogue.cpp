@@ -99,6 +99,10 @@ std::vector<Row> rows() {
       // --- round two: crashes, lost results, paths kept as written ---
       {"R2A2", "", "", "anneal TRIANGLE PAUSE --duration-ns 5e-324"},
       {"R2A4", "p.toml", "qubits = 2\n[" + deep_key(100) + "]\n", "inspect DIR/p.toml"},
+      {"R2A6", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 0\n", "inspect TRIANGLE DIR/s.toml"},
+      {"R2A7", "s.toml", "[scales]\nkind = \"table\"\ns = [0, 1]\na_ghz = [5, 0]\nb_ghz = [0, 0]\n", "inspect TRIANGLE DIR/s.toml"},
+      {"R2A8", "s.toml", "[path]\nduration_ns = 10\nstart_bits = [0, 1, 1]\n", "anneal TRIANGLE DIR/s.toml"},
+      {"R2A9", "", "", "gap-path TRIANGLE LINEAR --duration-ns -5 --out DIR/g.toml"},
   };
 }
 

@@ -79,7 +79,7 @@ TEST_CASE("Every schedule validation error names the place") {
   check_error(kLinear + "[path]\nduration_ns = 5\npoints = [[0, 0], [0.5, 0.5], [0.9, 1]]\n", 7, "path.points[2]",
               "last time fraction must be 1");
   check_error(kLinear + "[path]\nspeed = 3\n", 6, "path.speed", "unknown key");
-  check_error(kLinear + "[path]\nstart_bits = [0, 2]\n", 6, "path.start_bits[1]", "0 or 1");
+  check_error(kLinear + "[path]\nstart = \"classical\"\nstart_bits = [0, 2]\n", 7, "path.start_bits[1]", "0 or 1");
 }
 
 TEST_CASE("A reverse anneal with its start state reads; the start bits must fit the problem") {
