@@ -6,29 +6,14 @@
 
 #include "io/input_error.hpp"
 #include "io/schedule_file.hpp"
+#include "input_error_checks.hpp"
 
 using namespace gapwise;
 
 namespace {
 
-InputError error_of(const std::string& text) {
-  try {
-    parse_schedule_text(text, "bad.toml");
-  } catch (const InputError& e) {
-    return e;
-  }
-  FAIL("no InputError for:\n" << text);
-  throw;
-}
-
 void check_error(const std::string& text, int line, const std::string& key, const std::string& words) {
-  const InputError e = error_of(text);
-  INFO(e.what());
-  CHECK(e.place().file == "bad.toml");
-  CHECK(e.place().line == line);
-  CHECK(e.place().key == key);
-  CHECK(std::string(e.what()).find(words) != std::string::npos);
-  CHECK(!e.fix().empty());
+  testing::check_input_error([&] { (void)parse_schedule_text(text, "bad.toml"); }, "bad.toml", line, key, words);
 }
 
 const std::string kLinear = "[scales]\nkind = \"linear\"\na_max_ghz = 5\nb_max_ghz = 5\n";

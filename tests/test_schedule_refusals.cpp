@@ -14,6 +14,7 @@
 
 #include "io/input_error.hpp"
 #include "io/schedule_file.hpp"
+#include "input_error_checks.hpp"
 #include "test_support.hpp"
 
 using namespace gapwise;
@@ -21,18 +22,7 @@ using namespace gapwise;
 namespace {
 
 void check_refused(const std::string& text, int line, const std::string& key, const std::string& words) {
-  try {
-    (void)parse_schedule_text(text, "s.toml");
-  } catch (const InputError& e) {
-    INFO(e.what());
-    CHECK(e.place().file == "s.toml");
-    CHECK(e.place().line == line);
-    CHECK(e.place().key == key);
-    CHECK(std::string(e.what()).find(words) != std::string::npos);
-    CHECK(!e.fix().empty());
-    return;
-  }
-  FAIL("not refused:\n" << text);
+  testing::check_input_error([&] { (void)parse_schedule_text(text, "s.toml"); }, "s.toml", line, key, words);
 }
 
 std::string sample(const std::string& rel) { return "'" + (testing::source_dir() / rel).string() + "' "; }
