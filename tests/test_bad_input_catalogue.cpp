@@ -32,6 +32,13 @@ std::string replace_all(std::string s, const std::string& from, const std::strin
   return s;
 }
 
+// "k.k.k...": a dotted key of n parts.
+std::string deep_key(int n) {
+  std::string s = "k";
+  for (int i = 1; i < n; ++i) s += ".k";
+  return s;
+}
+
 const std::string kScheduleHead = "format = \"gapwise-schedule\"\n[scales]\nkind = \"linear\"\n";
 
 // The last cell of the catalogue row "| id | ... | message |".
@@ -105,6 +112,13 @@ std::vector<Row> rows() {
       {"R2D7", "", "", "inspect DIR/no-such-folder/p.toml"},
       {"R2D8", "b.toml", "qubits = 25\n", "ensemble DIR LINEAR -d 5 -q --out DIR/study.h5"},
       {"R2D9", "p.toml", "qubits = 2\nlabels = [\"x\\u001b[2J\", \"x\\u001b[2J\"]\n", "inspect DIR/p.toml"},
+      // --- round two: crashes, lost results, paths kept as written ---
+      {"R2A2", "", "", "anneal TRIANGLE PAUSE --duration-ns 5e-324"},
+      {"R2A4", "p.toml", "qubits = 2\n[" + deep_key(100) + "]\n", "inspect DIR/p.toml"},
+      {"R2A6", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 0\n", "inspect TRIANGLE DIR/s.toml"},
+      {"R2A7", "s.toml", "[scales]\nkind = \"table\"\ns = [0, 1]\na_ghz = [5, 0]\nb_ghz = [0, 0]\n", "inspect TRIANGLE DIR/s.toml"},
+      {"R2A8", "s.toml", "[path]\nduration_ns = 10\nstart_bits = [0, 1, 1]\n", "anneal TRIANGLE DIR/s.toml"},
+      {"R2A9", "", "", "gap-path TRIANGLE LINEAR --duration-ns -5 --out DIR/g.toml"},
   };
 }
 
@@ -120,6 +134,7 @@ TEST_CASE("every row of the bad-input catalogue: exit code 2 and the catalogued 
     std::string args = replace_all(row.command, "DIR", dir.path.string());
     args = replace_all(args, "TRIANGLE", (src / "data-samples/triangle.toml").string());
     args = replace_all(args, "LINEAR", (src / "schedules/linear.toml").string());
+    args = replace_all(args, "PAUSE", (src / "schedules/pause.toml").string());
     const auto r = testing::run_gapwise(args, dir);
     std::string err = replace_all(r.err, dir.path.string(), "DIR");
     err = replace_all(err, src.string(), "SRC");

@@ -7,6 +7,7 @@
 
 #include "io/input_error.hpp"
 #include "io/schedule_file.hpp"
+#include "input_error_checks.hpp"
 
 using namespace gapwise;
 
@@ -15,18 +16,7 @@ namespace {
 const std::string kHead = "[scales]\nkind = \"linear\"\na_max_ghz = 5\nb_max_ghz = 5\n";
 
 void check_refused(const std::string& text, int line, const std::string& key, const std::string& words) {
-  try {
-    parse_schedule_text(text, "bad.toml");
-  } catch (const InputError& e) {
-    INFO(e.what());
-    CHECK(e.place().file == "bad.toml");
-    CHECK(e.place().line == line);
-    CHECK(e.place().key == key);
-    CHECK(std::string(e.what()).find(words) != std::string::npos);
-    CHECK(!e.fix().empty());
-    return;
-  }
-  FAIL("not refused:\n" << text);
+  testing::check_input_error([&] { (void)parse_schedule_text(text, "bad.toml"); }, "bad.toml", line, key, words);
 }
 
 }  // namespace

@@ -14,6 +14,7 @@
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
+#include "io/infinite_tts.hpp"
 #include "io/input_error.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
@@ -112,7 +113,7 @@ void run_compare(const CompareOptions& o) {
     for (std::size_t i = 0; i < r.names.size(); ++i) {
       const ShapeRun& x = r.at(i, j);
       t.add({x.name, fmt_num(x.duration_ns, 8), fmt_num(x.end_time_ns, 12), fmt_num(x.ground_probability, 8),
-             std::isfinite(x.tts.tts_ns) ? fmt_num(x.tts.tts_ns, 6) : "never",
+             tts_text(x.tts.tts_ns, 6),
              x.leak.drop > 0 ? fmt::format("{:.3f}-{:.3f}", x.leak.s_from, x.leak.s_to) : "-", fmt_num(x.leak.drop, 4),
              fmt_num(x.leak.final_ground_level, 6)});
     }
@@ -130,12 +131,12 @@ void run_compare(const CompareOptions& o) {
     std::vector<double> pg, tts, end;
     for (const auto& x : r.runs) {
       pg.push_back(x.ground_probability);
-      tts.push_back(x.tts.tts_ns);
+      tts.push_back(stored_tts(x.tts.tts_ns));
       end.push_back(x.end_time_ns);
     }
     const std::size_t ni = r.names.size(), nj = r.durations_ns.size();
     h5.write_matrix("/compare/ground_probability", pg, ni, nj, "1");
-    h5.write_matrix("/compare/tts_ns", tts, ni, nj, "ns");
+    h5.write_matrix("/compare/tts_ns", tts, ni, nj, tts_unit("ns"));
     h5.write_matrix("/compare/end_time_ns", end, ni, nj, "ns");
     h5.attribute("/compare", "target_probability", o.target);
     h5.attribute("/compare", "level_sector", sector_name(r.sector));

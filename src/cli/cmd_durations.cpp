@@ -21,6 +21,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/infinite_tts.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/duration_study_file.hpp"
@@ -232,7 +233,7 @@ void run_durations(const DurationsOptions& o) {
       put(e, "grid", grid_set.count(t) > 0);
       put(e, "ground_probability", pt.ground_probability);
       put(e, "tts_case", std::string(tts_case_name(tts.kind)));
-      if (std::isfinite(tts.tts_ns)) put(e, "tts_ns", tts.tts_ns);
+      put_tts(e, "tts_ns", tts.tts_ns);
       if (predictions && predictions->lz.applicable) put(e, "p_landau_zener", predictions->lz.p_at(t));
       if (predictions && predictions->adiabatic.applicable) put(e, "p_adiabatic", predictions->adiabatic.p_at(t));
       pts.push_back(std::move(e));
@@ -240,7 +241,7 @@ void run_durations(const DurationsOptions& o) {
     j.insert_or_assign("points", std::move(pts));
     toml::table best;
     put(best, "duration_ns", best_t);
-    if (std::isfinite(st.optimum.tts_ns)) put(best, "tts_ns", st.optimum.tts_ns);
+    put_tts(best, "tts_ns", st.optimum.tts_ns);
     put(best, "at_range_edge", st.optimum.at_range_edge);
     put(best, "lower_ns", st.optimum.lower_ns);
     put(best, "upper_ns", st.optimum.upper_ns);
@@ -255,7 +256,7 @@ void run_durations(const DurationsOptions& o) {
     if (opt.local) {
       toml::table l;
       put(l, "duration_ns", opt.local->duration_ns);
-      put(l, "tts_ns", opt.local->tts_ns);
+      put_tts(l, "tts_ns", opt.local->tts_ns);
       put(l, "lower_ns", opt.local->lower_ns);
       put(l, "upper_ns", opt.local->upper_ns);
       best.insert_or_assign("local", std::move(l));

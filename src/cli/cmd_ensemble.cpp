@@ -10,6 +10,7 @@
 
 #include "cli/cli_common.hpp"
 #include "io/output_paths.hpp"
+#include "io/infinite_tts.hpp"
 #include "io/atomic_file.hpp"
 #include "io/ensemble_result_file.hpp"
 #include "io/input_error.hpp"
@@ -34,8 +35,8 @@ struct EnsembleOptions {
 };
 
 std::string interval_text(const QuantileEstimate& q, int digits) {
-  auto f = [&](double x) { return std::isinf(x) ? std::string("inf") : fmt_num(x, digits); };
-  return fmt::format("{} [{}, {}]", f(q.value), f(q.interval.low), f(q.interval.high));
+  return fmt::format("{} [{}, {}]", tts_text(q.value, digits), tts_text(q.interval.low, digits),
+                     tts_text(q.interval.high, digits));
 }
 
 }  // namespace
@@ -181,7 +182,7 @@ void run_ensemble(const EnsembleOptions& o) {
         const double eta = p.seconds_left();
         std::cerr << fmt::format("[{}/{}] {} (n={}): gap {} GHz, best TTS {} ns  ({:.2f} s; {:.0f} s elapsed, ~{:.0f} s left)\n",
                                  p.done, p.total, terminal_text(p.last->name), p.last->qubits, fmt_num(p.last->gap_ghz, 4),
-                                 std::isinf(p.last->tts_ns) ? std::string("inf") : fmt_num(p.last->tts_ns, 4),
+                                 tts_text(p.last->tts_ns, 4),
                                  p.last->wall_seconds, p.elapsed_seconds, eta);
       };
     const EnsembleResult r = run_ensemble_study(run);

@@ -29,7 +29,10 @@ void run_gap_path(const GapPathOptions& o) {
   const IsingProblem& p = p_file.ising;
   Schedule base = read_schedule_file(o.schedule);
   check_output_path(o.out, "--out");
-  if (o.duration_ns) base.duration_ns = *o.duration_ns;
+  if (o.duration_ns) {
+    check_duration_ns(*o.duration_ns, {"--duration-ns", 0, 0, "--duration-ns"});
+    base.duration_ns = *o.duration_ns;
+  }
   check_gap_search_size(p.qubits, default_sector(p), o.levels, EigenMethod::Auto, p_file.qubits_place);
   const TransverseIsingHamiltonian H(p);
   GapSearchOptions search;
@@ -97,7 +100,8 @@ void register_gap_path(CLI::App& app) {
       ->capture_default_str();
   sub->add_option("--levels", o->levels, "levels followed by the spectrum search")->capture_default_str()->check(CLI::Range(2, 64));
   sub->add_option("--coarse", o->coarse, "uniform spectrum points before refinement")->capture_default_str()->check(CLI::Range(3, 100000));
-  sub->add_option("-d,--duration-ns", o->duration_ns, "default duration written into the file (default: the base schedule's)");
+  sub->add_option("-d,--duration-ns", o->duration_ns,
+                  "default duration written into the file, ns: > 0 and at most 1e9 (default: the base schedule's)");
   sub->callback([o] { run_gap_path(*o); });
 }
 

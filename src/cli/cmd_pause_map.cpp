@@ -15,6 +15,7 @@
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
+#include "io/infinite_tts.hpp"
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
 #include "io/terminal_text.hpp"
@@ -31,11 +32,6 @@ struct PauseMapCli {
   int threads = 0;
   bool json = false;
 };
-
-// Infinite TTS (p = 0) has no JSON number: the key is left out.
-void put_finite(toml::table& t, std::string_view key, double v) {
-  if (std::isfinite(v)) put(t, key, v);
-}
 
 void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const PauseMap& m, std::size_t bi,
                           std::size_t bj, double reference_tts) {
@@ -67,8 +63,8 @@ void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const
   put(b, "ground_probability", m.at(bi, bj).ground_probability);
   put(b, "reference_ground_probability", m.reference[bj].ground_probability);
   put(b, "gain", m.at(bi, bj).ground_probability - m.reference[bj].ground_probability);
-  put_finite(b, "tts_ns", m.tts_ns(bi, bj));
-  put_finite(b, "reference_tts_ns", reference_tts);
+  put_tts(b, "tts_ns", m.tts_ns(bi, bj));
+  put_tts(b, "reference_tts_ns", reference_tts);
   j.insert_or_assign("best", std::move(b));
   std::cout << to_json(j) << "\n";
 }
@@ -134,7 +130,7 @@ void run_pause_map(const PauseMapCli& o) {
     std::cout << fmt::format("\nbest pause: s = {}, {} ns: p = {:.6f} against {:.6f} without a pause at the same cost ({:+.6f}); "
                              "TTS {} ns against {} ns\n",
                              fmt_num(mo.pause_s[bi], 6), fmt_num(mo.pause_ns[bj], 6), b.ground_probability, m.reference[bj].ground_probability, best,
-                             fmt_num(m.tts_ns(bi, bj), 6), fmt_num(reference_tts, 6));
+                             tts_text(m.tts_ns(bi, bj), 6), tts_text(reference_tts, 6));
   }
 
   Hdf5Output h5(o.out);
@@ -143,7 +139,7 @@ void run_pause_map(const PauseMapCli& o) {
   for (std::size_t i = 0; i < mo.pause_s.size(); ++i)
     for (std::size_t j = 0; j < mo.pause_ns.size(); ++j) {
       pg.push_back(m.at(i, j).ground_probability);
-      tts.push_back(m.tts_ns(i, j));
+      tts.push_back(stored_tts(m.tts_ns(i, j)));
       tot.push_back(m.at(i, j).total_ns);
       nd.push_back(m.at(i, j).norm_drift);
     }
@@ -151,7 +147,7 @@ void run_pause_map(const PauseMapCli& o) {
   h5.write("/pause_map/pause_s", mo.pause_s, "1");
   h5.write("/pause_map/pause_ns", mo.pause_ns, "ns");
   h5.write_matrix("/pause_map/ground_probability", pg, ni, nj, "1");
-  h5.write_matrix("/pause_map/tts_ns", tts, ni, nj, "ns");
+  h5.write_matrix("/pause_map/tts_ns", tts, ni, nj, tts_unit("ns"));
   h5.write_matrix("/pause_map/total_ns", tot, ni, nj, "ns");
   h5.write_matrix("/pause_map/norm_drift", nd, ni, nj, "1");
   std::vector<double> rp, rt;

@@ -13,6 +13,7 @@
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
+#include "io/infinite_tts.hpp"
 #include "io/input_error.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
@@ -102,7 +103,7 @@ void run_reverse_map(const ReverseMapCli& o) {
   const MapPoint& b = m.at(bi, bj);
   std::cout << fmt::format("\nbest TTS{:g}: turn s = {}, dwell {} ns: p = {:.6f}, run {} ns, TTS {} ns\n", 100 * o.target,
                            fmt_num(mo.turn_s[bi], 6), fmt_num(mo.dwell_ns[bj], 6), b.ground_probability, b.total_ns,
-                           fmt_num(time_to_solution(b.total_ns, std::clamp(b.ground_probability, 0.0, 1.0), o.target).tts_ns, 6));
+                           tts_text(time_to_solution(b.total_ns, std::clamp(b.ground_probability, 0.0, 1.0), o.target).tts_ns, 6));
 
   Hdf5Output h5(o.out);
   write_provenance(h5, command_line(), {o.problem, o.schedule});
@@ -111,7 +112,7 @@ void run_reverse_map(const ReverseMapCli& o) {
     pg.push_back(x.ground_probability);
     ps.push_back(x.start_probability);
     tot.push_back(x.total_ns);
-    tts.push_back(time_to_solution(x.total_ns, std::clamp(x.ground_probability, 0.0, 1.0), o.target).tts_ns);
+    tts.push_back(stored_tts(time_to_solution(x.total_ns, std::clamp(x.ground_probability, 0.0, 1.0), o.target).tts_ns));
   }
   const std::size_t ni = mo.turn_s.size(), nj = mo.dwell_ns.size();
   h5.write("/reverse_map/turn_s", mo.turn_s, "1");
@@ -119,7 +120,7 @@ void run_reverse_map(const ReverseMapCli& o) {
   h5.write_matrix("/reverse_map/ground_probability", pg, ni, nj, "1");
   h5.write_matrix("/reverse_map/start_probability", ps, ni, nj, "1");
   h5.write_matrix("/reverse_map/total_ns", tot, ni, nj, "ns");
-  h5.write_matrix("/reverse_map/tts_ns", tts, ni, nj, "ns");
+  h5.write_matrix("/reverse_map/tts_ns", tts, ni, nj, tts_unit("ns"));
   h5.attribute("/reverse_map", "start_bits", bits);
   h5.attribute("/reverse_map", "ramp_ns", o.ramp_ns);
   h5.attribute("/reverse_map", "target_probability", o.target);

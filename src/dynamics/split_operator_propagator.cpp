@@ -230,7 +230,16 @@ void SplitOperatorPropagator::advance(const AnnealDrive& drive, double t0, doubl
   const double eps = 1e-12 * std::max(1.0, drive.path.duration_ns());
   // A new run, or a state the caller changed: choose the grid from here.
   if (!ready_ || std::abs(t0 - t_out_) > eps || psi != last_out_) prepare(drive, t0, psi, stats);
-  if (t1 > pieces_.back().t1 + eps) throw std::invalid_argument("split propagator: t1 lies beyond the end of the path");
+  if (t1 > drive.path.duration_ns() + eps)
+    throw std::invalid_argument("split propagator: t1 lies beyond the end of the path");
+  if (pieces_.empty()) {
+    // What is left of the path is shorter than the time resolution eps (a run of
+    // about 1e-12 ns or less): the sudden limit, psi unchanged (the phases it
+    // would pick up are below eps x the energy scale, far under any tolerance).
+    last_out_ = psi;
+    t_out_ = t1;
+    return;
+  }
 
   // The main trajectory x_ owes the phase pending_phi_ inside a piece (the
   // last half phase of a step merged with the first of the next, exactly as in

@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include "io/infinite_tts.hpp"
 #include "io/hdf5_output.hpp"
 
 namespace gapwise {
@@ -67,8 +68,8 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     const auto x = time_to_solution(d, clamp01(pt.ground_probability), in.target);
     t.push_back(d);
     p.push_back(pt.ground_probability);
-    tts.push_back(std::isfinite(x.tts_ns) ? x.tts_ns : -1.0);
-    reps.push_back(std::isfinite(x.repetitions) ? x.repetitions : -1.0);
+    tts.push_back(stored_tts(x.tts_ns));
+    reps.push_back(stored_tts(x.repetitions));
     kind.push_back(static_cast<long long>(x.kind));
     on_grid.push_back(grid.count(d) ? 1 : 0);
     drift.push_back(pt.norm_drift);
@@ -82,8 +83,8 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
   const std::string pts = root + "/points";
   h5.write(pts + "/duration_ns", t, "ns");
   h5.write(pts + "/ground_probability", p, "1");
-  h5.write(pts + "/tts_ns", tts, "ns (-1: infinite, p = 0)");
-  h5.write(pts + "/repetitions", reps, "1 (-1: infinite, p = 0)");
+  h5.write(pts + "/tts_ns", tts, tts_unit("ns"));
+  h5.write(pts + "/repetitions", reps, tts_unit("1"));
   h5.write(pts + "/tts_case", kind, "0 never (p = 0), 1 repeated (0 < p < p*), 2 single run (p >= p*)");
   h5.write(pts + "/on_grid", on_grid, "1 sampled grid point, 0 bisection probe");
   h5.write(pts + "/norm_drift", drift, "1");
@@ -98,7 +99,7 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     const std::string opt = root + "/tts_optimum";
     h5.group(opt);
     h5.attribute(opt, "duration_ns", finished->optimum.duration_ns);
-    h5.attribute(opt, "tts_ns", std::isfinite(finished->optimum.tts_ns) ? finished->optimum.tts_ns : -1.0);
+    h5.attribute(opt, "tts_ns", stored_tts(finished->optimum.tts_ns));
     h5.attribute(opt, "at_range_edge", static_cast<long long>(finished->optimum.at_range_edge));
     h5.attribute(opt, "lower_ns", finished->optimum.lower_ns);
     h5.attribute(opt, "upper_ns", finished->optimum.upper_ns);
@@ -114,7 +115,7 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     h5.attribute(opt, "has_local_optimum", static_cast<long long>(o.local.has_value()));
     if (o.local) {
       h5.attribute(opt, "local_duration_ns", o.local->duration_ns);
-      h5.attribute(opt, "local_tts_ns", o.local->tts_ns);
+      h5.attribute(opt, "local_tts_ns", stored_tts(o.local->tts_ns));
       h5.attribute(opt, "local_lower_ns", o.local->lower_ns);
       h5.attribute(opt, "local_upper_ns", o.local->upper_ns);
     }
@@ -209,7 +210,7 @@ TextTable duration_points_table(const DurationStudyInputs& in, const std::map<do
     const auto x = time_to_solution(d, clamp01(pt.ground_probability), in.target);
     const auto* pr = in.predictions;
     t.add({num(d), grid.count(d) ? "grid" : "probe", num(pt.ground_probability),
-           std::isfinite(x.tts_ns) ? num(x.tts_ns) : "inf", std::isfinite(x.repetitions) ? num(x.repetitions) : "inf",
+           tts_text(x.tts_ns, 17), tts_text(x.repetitions, 17),
            tts_case_name(x.kind), pr && pr->lz.applicable ? num(pr->lz.p_at(d)) : "",
            pr && pr->adiabatic.applicable ? num(pr->adiabatic.p_at(d)) : "", num(pt.norm_drift),
            std::to_string(pt.steps), fmt::format("{:.3f}", pt.wall_seconds)});

@@ -7,14 +7,13 @@
 
 #include "io/hdf5_input.hpp"
 #include "io/hdf5_output.hpp"
+#include "io/infinite_tts.hpp"
 
 namespace gapwise {
 namespace {
 
 constexpr const char* kFormat = "gapwise-ensemble-result";
 const double kInf = std::numeric_limits<double>::infinity();
-
-double finite_or_marker(double x) { return std::isinf(x) ? -1.0 : x; }
 
 template <class F>
 std::vector<double> column(const std::vector<InstanceOutcome>& v, F f) {
@@ -75,7 +74,7 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
   out.write(g + "/gap_degeneracy", int_column(v, [](auto& o) { return o.gap_degeneracy; }), "1 (g of E_g - E_0)");
   out.write(g + "/gap_at_end_point", int_column(v, [](auto& o) { return o.gap_at_end_point; }), "1 = yes");
   out.write(g + "/max_norm_drift", column(v, [](auto& o) { return o.max_norm_drift; }), "1");
-  out.write(g + "/tts_ns", column(v, [](auto& o) { return finite_or_marker(o.tts_ns); }), "ns (-1: never, see tts_never)");
+  out.write(g + "/tts_ns", column(v, [](auto& o) { return stored_tts(o.tts_ns); }), tts_unit("ns") + ", see tts_never");
   out.write(g + "/tts_never", int_column(v, [](auto& o) { return std::isinf(o.tts_ns); }), "1 = p was 0 at every duration");
   out.write(g + "/tts_duration_ns", column(v, [](auto& o) { return o.tts_duration_ns; }), "ns");
   out.write(g + "/tts_at_range_edge", int_column(v, [](auto& o) { return o.tts_at_range_edge; }), "1 = yes");
@@ -97,10 +96,10 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
   out.write(b + "/tts_at_range_edge", edge, "instances");
   out.write(b + "/never_solved", never, "instances");
   const std::size_t rows = r.sizes.size(), cols = st.quantile_levels.size();
-  auto table = [&](const std::string& name, auto pick, auto value, const char* unit) {
+  auto table = [&](const std::string& name, auto pick, auto value, const std::string& unit) {
     std::vector<double> t;
     for (const auto& s : r.sizes)
-      for (const auto& q : pick(s).quantiles) t.push_back(finite_or_marker(value(q)));
+      for (const auto& q : pick(s).quantiles) t.push_back(stored_tts(value(q)));
     out.write_matrix(b + "/" + name, t, rows, cols, unit);
   };
   auto tts = [](const SizeSummary& s) -> const SampleSummary& { return s.tts_ns; };
@@ -108,9 +107,9 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
   auto val = [](const QuantileEstimate& q) { return q.value; };
   auto low = [](const QuantileEstimate& q) { return q.interval.low; };
   auto high = [](const QuantileEstimate& q) { return q.interval.high; };
-  table("tts_quantile_ns", tts, val, "ns (-1: infinite)");
-  table("tts_low_ns", tts, low, "ns (-1: infinite)");
-  table("tts_high_ns", tts, high, "ns (-1: infinite)");
+  table("tts_quantile_ns", tts, val, tts_unit("ns"));
+  table("tts_low_ns", tts, low, tts_unit("ns"));
+  table("tts_high_ns", tts, high, tts_unit("ns"));
   table("gap_quantile_ghz", gap, val, "GHz");
   table("gap_low_ghz", gap, low, "GHz");
   table("gap_high_ghz", gap, high, "GHz");

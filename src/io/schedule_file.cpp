@@ -1,5 +1,6 @@
 #include "io/schedule_file.hpp"
 
+#include <algorithm>
 #include <cmath>
 
 #include <fmt/format.h>
@@ -10,6 +11,11 @@ namespace gapwise {
 namespace {
 
 constexpr const char* kFormat = "gapwise-schedule";
+// Like A = 0 at the start of a forward anneal (refused when the run starts), a
+// B(s) that is zero everywhere makes every prediction meaningless.
+constexpr const char* kZeroProblemScale =
+    "B(s) is 0 at every s: the problem Hamiltonian never acts, so no anneal can prefer its ground state "
+    "(gaps, durations and predictions would all be meaningless)";
 
 void check_scale(const TomlReader& r, const toml::node* node, const std::string& key, double ghz) {
   if (ghz < 0) r.fail(node, key, fmt::format("energy scale {} GHz is negative", ghz), "energy scales are >= 0 GHz");
@@ -27,6 +33,9 @@ EnergyScales read_scales(const TomlReader& r, const toml::table* t) {
     const double b = r.require_double(*t, "b_max_ghz", "scales");
     check_scale(r, t->get("a_max_ghz"), "scales.a_max_ghz", a);
     check_scale(r, t->get("b_max_ghz"), "scales.b_max_ghz", b);
+    if (b == 0)
+      r.fail(t->get("b_max_ghz"), "scales.b_max_ghz", kZeroProblemScale,
+             "give the problem Hamiltonian's scale B at s = 1 in GHz, e.g. b_max_ghz = 5");
     return EnergyScales::linear(a, b);
   }
   if (kind != "table")
@@ -61,6 +70,9 @@ EnergyScales read_scales(const TomlReader& r, const toml::table* t) {
     }
   }
   if (cols[0].size() < 2) r.fail(t->get("s"), "scales.s", "a table needs at least two points", "add points");
+  if (std::all_of(cols[2].begin(), cols[2].end(), [](double b) { return b == 0; }))
+    r.fail(t->get("b_ghz"), "scales.b_ghz", kZeroProblemScale,
+           "give B(s), the problem Hamiltonian's scale in GHz, rising to its full value at s = 1");
   return EnergyScales::table(cols[0], cols[1], cols[2],
                              interp == "linear" ? ScaleInterpolation::Linear : ScaleInterpolation::MonotoneCubic);
 }
@@ -141,11 +153,7 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
     r.fail(p->get("time"), "path.time", fmt::format("unknown time unit \"{}\"", time), "use \"fraction\" or \"ns\"");
   sch.time_in_ns = time == "ns";
   if (auto d = r.get_double(*p, "duration_ns", "path")) {
-    if (!(*d > 0)) r.fail(p->get("duration_ns"), "path.duration_ns", "duration must be > 0 ns", "give a positive duration");
-    if (*d > kMaxDurationNs)
-      r.fail(p->get("duration_ns"), "path.duration_ns",
-             fmt::format("duration {} ns is longer than the {:g} ns (one second) gapwise simulates", *d, kMaxDurationNs),
-             "check the unit: durations are in ns");
+    check_duration_ns(*d, r.place(p->get("duration_ns"), "path.duration_ns"));
     const bool forward_shape_in_ns = spec && !spec->is_reverse();
     if (sch.time_in_ns && !forward_shape_in_ns)
       r.fail(p->get("duration_ns"), "path.duration_ns",
@@ -231,6 +239,15 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
     sch.start_place = r.place(p->get("start"), "path.start");
   else if (p->get("start_bits"))
     sch.start_place = r.place(p->get("start_bits"), "path.start_bits");
+  // start_bits alone reads as a classical start only where the path itself says
+  // so (it starts above s = 0, as a reverse anneal does): on a forward path it
+  // would silently replace the usual start in the transverse field's ground state.
+  if (p->get("start_bits") && !p->get("start") && shape.points().front().s == 0.0)
+    r.fail(p->get("start_bits"), "path.start_bits",
+           "start_bits is given without `start` on a path that starts at s = 0, where it is ambiguous: a forward "
+           "anneal from the transverse field's ground state, or a start in these bits",
+           "add `start = \"classical\"` to [path] to start in start_bits, or remove start_bits to start in the "
+           "ground state");
   const std::string start = r.get_string(*p, "start", "path").value_or(p->get("start_bits") ? "classical" : "ground");
   if (start != "ground" && start != "classical")
     r.fail(p->get("start"), "path.start", fmt::format("unknown start \"{}\"", start), "use \"ground\" or \"classical\"");
@@ -260,6 +277,7 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
 Schedule read_schedule_file(const std::string& path) { return parse_schedule_text(read_text_file(path), path); }
 
 std::string format_schedule_toml(const Schedule& s) {
+  if (s.duration_ns) check_duration_ns(*s.duration_ns, {s.source, 0, 0, "path.duration_ns"});
   std::string out = fmt::format("format = \"{}\"\nformat_version = 1\n", kFormat);
   if (!s.description.empty()) out += "description = " + toml_quoted(s.description) + "\n";
   out += "\n[scales]\n";
@@ -302,6 +320,14 @@ std::string format_schedule_toml(const Schedule& s) {
     if (sp.reverse)
       out += fmt::format("\n[path.reverse]\nturn_s = {:.17g}\ndown = {:.17g}\ndwell = {:.17g}\nup = {:.17g}\n",
                          sp.reverse->turn_s, sp.reverse->down, sp.reverse->dwell, sp.reverse->up);
+  }
+  // What gapwise writes it must read back: the reader's own checks, before the
+  // text reaches a file (a generated path with a non-finite time, say).
+  try {
+    (void)parse_schedule_text(out, "the schedule being written");
+  } catch (const InputError& e) {
+    throw InputError({s.source, 0, 0, e.place().key},
+                     "the schedule to be written would be refused when read back: " + e.problem(), e.fix());
   }
   return out;
 }

@@ -89,7 +89,132 @@ std::string read_text_file(const std::string& path) {
 
 TomlReader TomlReader::open(const std::string& path) { return from_string(read_text_file(path), path); }
 
+std::optional<TomlNesting> deepest_toml_nesting(std::string_view text) {
+  // A light lexer: strings and comments are skipped (dots and brackets in them
+  // mean nothing), keys are read where TOML expects one (at the start of a line
+  // outside any value, after `{` or `,` inside an inline table), and the depth
+  // of every value is the components of its table header, plus those of its
+  // (dotted) key, plus one per enclosing array or inline table. Syntax errors
+  // are left to toml++; this only has to see every way of nesting.
+  struct Open {
+    char close;
+    int depth;  ///< depth of the values directly inside
+  };
+  std::vector<Open> open;
+  int header = 0;          // components of the current [table] header
+  int line = 1;
+  TomlNesting deepest{0, 0};
+  bool key_mode = true;    // reading a key (top level after a newline, or in an inline table)
+  bool header_mode = false;
+  int components = 1;      // of the key or header being read
+  std::size_t i = 0;
+  auto note = [&](int depth) {
+    if (depth > deepest.depth) deepest = {depth, line};
+  };
+  auto skip_string = [&]() {  // at a quote; leaves i after the closing quote
+    const char q = text[i];
+    const bool multi = text.substr(i, 3) == std::string(3, q);
+    i += multi ? 3 : 1;
+    while (i < text.size()) {
+      if (text[i] == '\\' && q == '"') {  // an escape (a line-ending backslash in a multi-line string)
+        if (i + 1 < text.size() && text[i + 1] == '\n') ++line;
+        i += 2;
+        continue;
+      }
+      if (text[i] == '\n') {
+        if (!multi) return;  // unterminated: toml++ reports it (the main loop counts this line end)
+        ++line;
+      }
+      if (multi ? text.substr(i, 3) == std::string(3, q) : text[i] == q) {
+        i += multi ? 3 : 1;
+        while (multi && i < text.size() && text[i] == q) ++i;  // up to two quotes may close the content
+        return;
+      }
+      ++i;
+    }
+  };
+  const auto value_depth = [&]() { return (open.empty() ? header : open.back().depth) + components; };
+  while (i < text.size()) {
+    const char c = text[i];
+    if (c == '"' || c == '\'') {
+      skip_string();
+      continue;
+    }
+    if (c == '#') {
+      while (i < text.size() && text[i] != '\n') ++i;
+      continue;
+    }
+    if (c == '\n') {
+      ++line;
+      if (open.empty()) {
+        key_mode = true;
+        header_mode = false;
+        components = 1;
+      }
+      ++i;
+      continue;
+    }
+    if (header_mode) {
+      if (c == '.') ++components;
+      if (c == ']') {
+        header = components + (text.substr(i, 2) == "]]" ? 1 : 0);  // [[x]]: an array of tables
+        note(header);
+        header_mode = false;
+        key_mode = false;
+        i += text.substr(i, 2) == "]]" ? 2 : 1;
+        continue;
+      }
+      ++i;
+      continue;
+    }
+    if (key_mode) {
+      if (c == '[' && open.empty()) {
+        header_mode = true;
+        components = 1;
+        i += text.substr(i, 2) == "[[" ? 2 : 1;
+        continue;
+      }
+      if (c == '.') ++components;
+      if (c == '=') {
+        note(value_depth());
+        key_mode = false;
+      }
+      if (c == '}' && !open.empty()) open.pop_back();  // an empty inline table
+      ++i;
+      continue;
+    }
+    // Inside a value.
+    if (c == '[' || c == '{') {
+      // The container sits at the depth of its key (or, in an array, one below the array).
+      const int d = (open.empty() || open.back().close == '}') ? value_depth() : open.back().depth + 1;
+      note(d);
+      open.push_back({c == '[' ? ']' : '}', d});
+      if (c == '{') {
+        key_mode = true;
+        components = 1;
+      }
+    } else if ((c == ']' || c == '}') && !open.empty()) {
+      open.pop_back();
+    } else if (c == ',' && !open.empty() && open.back().close == '}') {
+      key_mode = true;
+      components = 1;
+    }
+    ++i;
+  }
+  if (deepest.depth == 0) return std::nullopt;
+  return deepest;
+}
+
 TomlReader TomlReader::from_string(std::string_view text, const std::string& name) {
+  // toml++ recurses once per level of nesting (building and destroying nested
+  // tables): a few thousand dotted key parts or header parts overflow the
+  // stack. It caps nested arrays and inline tables itself, not keys.
+  if (const auto deep = deepest_toml_nesting(text); deep && deep->depth > kMaxTomlNesting)
+    throw InputError({name, deep->line, 0, ""},
+                     fmt::format("tables, keys and arrays nest {} levels deep here; gapwise reads at most {}",
+                                 deep->depth, kMaxTomlNesting),
+                     "gapwise files nest a few levels (e.g. [path.pause]): check the dotted key or [table] "
+                     "header on this line");
   try {
     return TomlReader(toml::parse(text, name), name);
   } catch (const toml::parse_error& e) {

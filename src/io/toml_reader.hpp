@@ -30,6 +30,22 @@ inline constexpr std::size_t kMaxInputFileBytes = std::size_t{64} << 20;
 /// kMaxInputFileBytes is an InputError naming the path and the reason.
 std::string read_text_file(const std::string& path);
 
+/// Deepest nesting TomlReader accepts: the components of a table header plus
+/// those of a dotted key plus one per enclosing array or inline table. gapwise's
+/// own files nest three or four levels; toml++ recurses once per level and
+/// overflows the stack a few thousand levels down.
+inline constexpr int kMaxTomlNesting = 64;
+
+struct TomlNesting {
+  int depth = 0;  ///< levels, counted as for kMaxTomlNesting
+  int line = 0;   ///< 1-based line where that depth is first reached
+};
+
+/// The deepest nesting of a TOML text and where it is first reached, read
+/// without parsing (strings and comments skipped); nullopt for a text with no
+/// keys. Used by TomlReader before it hands a text to toml++.
+std::optional<TomlNesting> deepest_toml_nesting(std::string_view text);
+
 class TomlReader {
  public:
   /// Parses a file; syntax errors and unreadable files become InputError.

@@ -4,6 +4,10 @@
 #include <cmath>
 #include <stdexcept>
 
+#include <fmt/format.h>
+
+#include "io/input_error.hpp"
+
 namespace gapwise {
 
 AnnealPath::AnnealPath(std::vector<Waypoint> points) : points_(std::move(points)) {
@@ -36,9 +40,19 @@ double AnnealPath::ds_dt_ns(std::size_t k) const {
 AnnealPath AnnealPath::scaled_to(double new_duration_ns) const {
   if (!(new_duration_ns > 0.0) || !std::isfinite(new_duration_ns)) throw std::invalid_argument("duration must be > 0");
   std::vector<Waypoint> p = points_;
-  const double f = new_duration_ns / duration_ns();
-  for (auto& w : p) w.t_ns *= f;
+  const double old = duration_ns();
+  const double f = new_duration_ns / old;
+  // From a subnormal duration the factor overflows (0 x inf is NaN): scale by
+  // the fraction of the run instead.
+  for (auto& w : p) w.t_ns = std::isfinite(f) ? w.t_ns * f : w.t_ns / old * new_duration_ns;
   p.back().t_ns = new_duration_ns;  // exact end time, no round-off
+  for (std::size_t k = 1; k < p.size(); ++k)
+    if (!(p[k].t_ns > p[k - 1].t_ns))
+      throw InputError({"", 0, 0, "duration_ns"},
+                       fmt::format("a duration of {} ns cannot hold the path's {} waypoints apart in double precision",
+                                   new_duration_ns, p.size()),
+                       "give a longer duration: any run shorter than about 1e-12 ns already gives the sudden limit "
+                       "(the start state, unchanged)");
   return AnnealPath(std::move(p));
 }
 

@@ -30,7 +30,9 @@ class AnnealPath {
   /// Index of the piece containing t (the last piece for t at the end).
   std::size_t piece_at(double t_ns) const;
   double ds_dt_ns(std::size_t piece) const;
-  /// The same shape stretched to a new total duration.
+  /// The same shape stretched to a new total duration (> 0, finite: std::invalid_argument
+  /// otherwise). A duration too short to keep the waypoints apart in double precision
+  /// throws InputError (key "duration_ns", no file: callers add theirs).
   AnnealPath scaled_to(double duration_ns) const;
   double s_min() const;
   double s_max() const;

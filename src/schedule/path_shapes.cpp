@@ -55,15 +55,6 @@ AnnealPath checked_path(std::vector<Waypoint> pts, const std::string& key) {
   return AnnealPath(std::move(pts));
 }
 
-/// Appends w unless it repeats the last point (same time), keeping times increasing.
-void push(std::vector<Waypoint>& v, Waypoint w) {
-  if (!v.empty() && w.t_ns <= v.back().t_ns) {
-    v.back().s = w.s;  // same instant: the later value (equal s in every use here)
-    return;
-  }
-  v.push_back(w);
-}
-
 }  // namespace
 
 AnnealPath insert_pause(const AnnealPath& base, double s, double duration) {
@@ -83,7 +74,10 @@ AnnealPath insert_pause(const AnnealPath& base, double s, double duration) {
   out.push_back({r.t, s});
   out.push_back({r.t + duration, s});
   for (std::size_t k = r.piece + 1; k < p.size(); ++k)
-    if (p[k].t_ns > r.t) push(out, {p[k].t_ns + duration, p[k].s});
+    // Never merged with the point before: a time that rounds onto the pause's end
+    // (a pause within a rounding step of the whole run) would overwrite the
+    // pause's s and drop the pause; checked_path refuses it instead.
+    if (p[k].t_ns > r.t) out.push_back({p[k].t_ns + duration, p[k].s});
   return checked_path(std::move(out), "pause.duration");
 }
 

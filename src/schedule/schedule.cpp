@@ -8,17 +8,25 @@
 
 namespace gapwise {
 
+void check_duration_ns(double d, const SourcePlace& place) {
+  if (!std::isfinite(d))
+    throw InputError(place, fmt::format("duration {} ns is not a finite number", d), "give a duration > 0 ns");
+  if (!(d > 0.0)) throw InputError(place, fmt::format("duration {} ns is not positive", d), "give a duration > 0 ns");
+  if (d > kMaxDurationNs)
+    throw InputError(place,
+                     fmt::format("duration {} ns is longer than the {:g} ns (one second) gapwise simulates", d,
+                                 kMaxDurationNs),
+                     "check the unit: durations are in ns");
+}
+
 AnnealPath Schedule::path_for(std::optional<double> d) const {
   if (d) {
-    if (!(*d > 0.0) || !std::isfinite(*d))
-      throw InputError({source, 0, 0, "duration_ns"}, fmt::format("duration {} ns is not positive", *d),
-                       "give a duration > 0 ns");
-    if (*d > kMaxDurationNs)
-      throw InputError({source, 0, 0, "duration_ns"},
-                       fmt::format("duration {} ns is longer than the {:g} ns (one second) gapwise simulates", *d,
-                                   kMaxDurationNs),
-                       "check the unit: durations are in ns");
-    return shape.scaled_to(*d);
+    check_duration_ns(*d, {source, 0, 0, "duration_ns"});
+    try {
+      return shape.scaled_to(*d);
+    } catch (const InputError& e) {  // waypoints that a tiny duration cannot keep apart
+      throw InputError({source, 0, 0, e.place().key}, e.problem(), e.fix());
+    }
   }
   if (time_in_ns) return shape;
   if (duration_ns) return shape.scaled_to(*duration_ns);

@@ -26,6 +26,11 @@ inline constexpr double kMaxEnergyScaleGhz = 1000.0;
 /// ~1e10 integrator steps; a larger value is a unit slip.
 inline constexpr double kMaxDurationNs = 1e9;
 
+/// The one check of a run's duration, shared by the schedule reader, the
+/// writers of schedule files and --duration-ns overrides: finite, > 0 and at most
+/// kMaxDurationNs, else InputError at `place`.
+void check_duration_ns(double duration_ns, const SourcePlace& place);
+
 enum class StartKind {
   Ground,     ///< ground state of H(s) at the path's first s (|+>^n for a forward anneal)
   Classical,  ///< a computational basis state given by the user (reverse anneals)
