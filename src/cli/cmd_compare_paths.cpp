@@ -90,7 +90,6 @@ void run_compare(const CompareOptions& o) {
   co.simulation.propagator = o.propagator;
   co.simulation.propagation.tolerance = o.tolerance;
   co.levels = o.levels;
-  check_levels_fit(o.levels, p.qubits, p.has_fields() ? SpinFlipSector::Full : SpinFlipSector::Even);
   co.population_points = o.points;
   co.threads = o.threads;
   WorkEstimate work;

@@ -15,7 +15,6 @@
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/diagnosis_output.hpp"
-#include "spectrum/gap_search.hpp"
 #include "io/input_error.hpp"
 #include "studies/work_estimate.hpp"
 
@@ -58,7 +57,6 @@ void run_diagnose(const DiagnoseOptions& o) {
   d.durations_ns = o.durations_ns;
   d.simulation.propagator = o.propagator;
   d.simulation.propagation.tolerance = o.tolerance;
-  check_levels_fit(o.levels, p.qubits, default_sector(p));
   d.gap.levels = o.levels;
   d.overlap.levels = o.levels;
   d.window_factor = o.window;

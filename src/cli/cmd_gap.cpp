@@ -145,7 +145,6 @@ void run_gap(const GapOptions& o) {
   opt.other_sector = o.other_sector;
   opt.check_missed_levels = !o.no_level_check;
 
-  check_levels_fit(o.levels, p.qubits, opt.sector.value_or(default_sector(p)));
   // Refuse a too-large problem before building anything of size 2^n.
   check_gap_search_size(p.qubits, opt.sector.value_or(default_sector(p)), o.levels, opt.method, pf.qubits_place);
   if (o.points > o.max_points)  // the library refuses it too; here the message names the options

@@ -28,7 +28,6 @@ void run_gap_path(const GapPathOptions& o) {
   Schedule base = read_schedule_file(o.schedule);
   check_output_path(o.out, "--out");
   if (o.duration_ns) base.duration_ns = *o.duration_ns;
-  check_levels_fit(o.levels, p.qubits, default_sector(p));
   check_gap_search_size(p.qubits, default_sector(p), o.levels, EigenMethod::Auto, p_file.qubits_place);
   const TransverseIsingHamiltonian H(p);
   GapSearchOptions search;
