@@ -119,6 +119,23 @@ std::vector<Row> rows() {
       {"R2A7", "s.toml", "[scales]\nkind = \"table\"\ns = [0, 1]\na_ghz = [5, 0]\nb_ghz = [0, 0]\n", "inspect TRIANGLE DIR/s.toml"},
       {"R2A8", "s.toml", "[path]\nduration_ns = 10\nstart_bits = [0, 1, 1]\n", "anneal TRIANGLE DIR/s.toml"},
       {"R2A9", "", "", "gap-path TRIANGLE LINEAR --duration-ns -5 --out DIR/g.toml"},
+      // --- Round two: bad input is exit 2; runs that would never finish (one shared check per kind) ---
+      {"R2B1", "", "", "pause-map TRIANGLE LINEAR -d 30 --target 2 --out DIR/m.h5"},
+      {"R2B2", "", "", "pause-map TRIANGLE LINEAR -d 30 --tolerance 0.5 --out DIR/m.h5"},
+      {"R2B3", "", "", "diagnose TRIANGLE LINEAR -d 10 --sigma-h nan"},
+      {"R2B4", "", "", "embed-cost TRIANGLE SRC/data-samples/triangle-ring-embedding.toml LINEAR --strengths 1e308 --absolute"},
+      {"R2B5", "", "", "pause-map TRIANGLE LINEAR -d 30 --threads -1 --out DIR/m.h5"},
+      {"R2B6", "", "", "durations TRIANGLE LINEAR --threads 100000"},
+      {"R2B7", "", "", "anneal TRIANGLE LINEAR --samples 100000000"},
+      {"R2B8", "p.toml", "qubits = 1\nfields = [0.5]\n", "anneal DIR/p.toml LINEAR -d 10 --observe-s 0.5 --levels 4"},
+      {"R2B9", "", "", "anneal TRIANGLE LINEAR -d 1e9"},
+      {"R2B10", "p.toml", "qubits = 3\nfields = [1e6, 0, 0]\ncouplings = [[0, 1, 1.0], [1, 2, 1.0], [0, 2, 1.0]]\n",
+       "anneal DIR/p.toml LINEAR -d 1000"},
+      {"R2B11", "", "", "pause-map TRIANGLE LINEAR -d 10 --cost added --pause-ns 1e12 --out DIR/m.h5"},
+      {"R2B12", "", "", "diagnose TRIANGLE LINEAR -d 10 --sigma-h 1e12"},
+      {"R2B13", "", "", "durations TRIANGLE LINEAR --range 1:100:10000000"},
+      {"R2B14", "", "", "gap TRIANGLE LINEAR --points 1000000000"},
+      {"R2B15", "", "", "generate --count 2000000000 --out DIR/g.h5"},
   };
 }
 
@@ -133,6 +150,7 @@ TEST_CASE("every row of the bad-input catalogue: exit code 2 and the catalogued 
     if (!row.file.empty()) dir.write(row.file, row.text);
     std::string args = replace_all(row.command, "DIR", dir.path.string());
     args = replace_all(args, "TRIANGLE", (src / "data-samples/triangle.toml").string());
+    args = replace_all(args, "SRC", src.string());
     args = replace_all(args, "LINEAR", (src / "schedules/linear.toml").string());
     args = replace_all(args, "PAUSE", (src / "schedules/pause.toml").string());
     const auto r = testing::run_gapwise(args, dir);

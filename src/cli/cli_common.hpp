@@ -7,6 +7,7 @@
 
 #include <CLI/CLI.hpp>
 
+#include "hamiltonian/spin_flip_sector.hpp"
 #include "io/problem_file.hpp"
 #include "io/schedule_file.hpp"
 
@@ -54,6 +55,20 @@ std::vector<double> parse_value_list(const std::string& text, const std::string&
 /// --out-dir) refuses an empty value ("") while the command line is parsed,
 /// before any work (exit 2, naming the option). Call after registering.
 void refuse_empty_output_paths(CLI::App& app);
+/// Range checks shared by every subcommand (option_checks.cpp); InputError naming `option`.
+/// Targets lie in (0, 1); tolerances in [1e-12, 1e-2]; threads in 0 (one per core) to kMaxThreads;
+/// sigmas are finite and >= 0; counts in [lo, hi]; --levels at most the states of `space`.
+inline constexpr long long kMaxThreads = 1024;
+void check_target_probability(double p, const std::string& option = "--target");
+void check_tolerance(double tolerance, const std::string& option = "--tolerance");
+void check_threads(long long threads, const std::string& option = "--threads");
+void check_sigma(double sigma, const std::string& option);
+void check_count(long long value, long long lo, long long hi, const std::string& option, const std::string& what);
+void check_levels_fit(int levels, int qubits, SpinFlipSector sector, const std::string& option = "--levels");
+/// The one flag that lifts the work limit (studies/work_estimate.hpp), same name on every command.
+CLI::Option* add_allow_long_flag(CLI::App* sub, bool& allow_long);
+/// "FIRST:LAST:COUNT", log-spaced durations in ns, both ends included (durations, embed-cost).
+std::vector<double> parse_log_range(const std::string& text, const std::string& option);
 
 void register_ensemble(CLI::App& app);
 void register_merge_shards(CLI::App& app);

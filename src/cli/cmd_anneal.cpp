@@ -22,6 +22,7 @@
 #include "io/json_summary.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
+#include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -32,7 +33,7 @@ struct AnnealOptions {
   double tolerance = 1e-6;
   bool p_only = false;
   int samples = 20, top = 8, levels = 0;
-  bool json = false, no_check = false, strict = false;
+  bool json = false, no_check = false, strict = false, allow_long = false;
 };
 
 void run_anneal(const AnnealOptions& o) {
@@ -40,15 +41,17 @@ void run_anneal(const AnnealOptions& o) {
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);
-  if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
-    throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
-                     "use a value between 1e-12 and 1e-2 (default 1e-6)");
+  check_tolerance(o.tolerance);
+  check_count(o.samples, 0, 10000, "--samples", "observations per piece");
+  check_count(o.top, 0, 1000, "--top", "outcome count");
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
   check_memory(p.qubits, 10, 0, p_file.qubits_place);
   const TransverseIsingHamiltonian H(p);
   const GroundManifold gm = find_ground_manifold(p, H.diagonal());
   const AnnealPath path = sch.path_for(o.duration_ns);
+  check_work_limit(anneal_work(p, sch.scales, path.duration_ns(), o.no_check ? 1.0 : 2.0), o.allow_long,
+                   o.duration_ns ? SourcePlace{"--duration-ns", 0, 0, "--duration-ns"} : SourcePlace{o.schedule, 0, 0, "path"});
   const QuantumState psi0 = initial_state(H, sch, path);
 
   // Observations at chosen s: every passage of the path through each value.
@@ -86,6 +89,7 @@ void run_anneal(const AnnealOptions& o) {
   lpo.requested_only = true;
   const bool even = !p.has_fields() && sch.start.kind == StartKind::Ground;
   lpo.sector = even ? SpinFlipSector::Even : SpinFlipSector::Full;
+  check_levels_fit(o.levels, p.qubits, lpo.sector);
   std::optional<LevelPopulationObserver> pops;
   std::vector<AnnealObserver*> observers{&trace};
   if (o.levels > 0) observers.push_back(&pops.emplace(H, lpo));
@@ -328,6 +332,7 @@ void register_anneal(CLI::App& app) {
   sub->add_option("--out", o->out, "write an HDF5 result file (trace, final probabilities, provenance)");
   sub->add_option("--csv", o->csv, "write the trace (t, s, p_ground, energy, norm) as CSV");
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
+  add_allow_long_flag(sub, o->allow_long);
   sub->callback([o] { run_anneal(*o); });
 }
 

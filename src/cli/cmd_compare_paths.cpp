@@ -20,6 +20,7 @@
 #include "io/text_table.hpp"
 #include "studies/gap_adapted_schedule.hpp"
 #include "studies/shape_comparison.hpp"
+#include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -28,7 +29,7 @@ struct CompareOptions {
   std::string problem;
   std::vector<std::string> schedules, pauses, quenches;
   std::string durations, out, csv, propagator = SimulationOptions{}.propagator;
-  bool gap_adapted = false;
+  bool gap_adapted = false, allow_long = false;
   int levels = 4, points = 60, threads = 0, waypoints = 200;
   double tolerance = 1e-6, target = kDefaultTargetProbability;
 };
@@ -69,8 +70,9 @@ void run_compare(const CompareOptions& o) {
   check_memory(p.qubits, 10, 0, p_file.qubits_place);
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
-  if (!(o.target > 0 && o.target < 1))
-    throw InputError({"--target", 0, 0, "--target"}, fmt::format("target {} is not inside (0, 1)", o.target), "use e.g. 0.99");
+  check_target_probability(o.target);
+  check_tolerance(o.tolerance);
+  check_threads(o.threads);
   std::vector<ShapeCandidate> cands;
   const Schedule base = read_schedule_file(o.schedules.front());
   for (const auto& f : o.schedules) cands.push_back({std::filesystem::path(f).filename().string(), read_schedule_file(f)});
@@ -97,6 +99,10 @@ void run_compare(const CompareOptions& o) {
   co.levels = o.levels;
   co.population_points = o.points;
   co.threads = o.threads;
+  WorkEstimate work;
+  for (const auto& c : cands)
+    for (double t : co.durations_ns) work += anneal_work(p, c.schedule.scales, t);
+  check_work_limit(work, o.allow_long, {"--duration-ns", 0, 0, "--duration-ns"});
   std::cerr << fmt::format("running {} anneals ({} paths x {} durations)...\n", cands.size() * co.durations_ns.size(),
                            cands.size(), co.durations_ns.size());
   const ShapeComparison r = compare_shapes(p, cands, co);
@@ -215,6 +221,7 @@ void register_compare_paths(CLI::App& app) {
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default); results do not depend on it")->capture_default_str();
   sub->add_option("--out", o->out, "HDF5: p, TTS and end times per path and duration; level populations along each run");
   sub->add_option("--csv", o->csv, "the table as CSV");
+  add_allow_long_flag(sub, o->allow_long);
   sub->callback([o] { run_compare(*o); });
 }
 

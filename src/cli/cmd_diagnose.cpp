@@ -17,6 +17,7 @@
 #include "io/atomic_file.hpp"
 #include "io/diagnosis_output.hpp"
 #include "io/input_error.hpp"
+#include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -27,7 +28,7 @@ struct DiagnoseOptions {
   std::optional<double> control_tolerance;
   double tolerance = 1e-6, sigma_h = 0.03, sigma_j = 0.03, window = 5.0, target_loss = 0.01, check_max_ns = 10000.0;
   bool sigma_h_given = false, sigma_j_given = false;
-  bool relative = false, json = false, quiet = false, no_control_gaps = false;
+  bool relative = false, json = false, quiet = false, no_control_gaps = false, allow_long = false;
   int levels = 4, threads = 0;
   long long samples = 100;
   unsigned long long seed = 1;
@@ -38,12 +39,11 @@ void run_diagnose(const DiagnoseOptions& o) {
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);
-  if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
-    throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
-                     "use a value between 1e-12 and 1e-2 (default 1e-6)");
-  if (o.sigma_h < 0 || o.sigma_j < 0)
-    throw InputError({"--sigma-h/--sigma-j", 0, 0, "--sigma-h"}, "a control-error sigma is negative",
-                     "give sigmas >= 0 (0 switches that error off)");
+  check_tolerance(o.tolerance);
+  check_sigma(o.sigma_h, "--sigma-h");
+  check_sigma(o.sigma_j, "--sigma-j");
+  check_threads(o.threads);
+  if (o.control_tolerance) check_tolerance(*o.control_tolerance, "--control-tolerance");
   if (o.samples < 0)
     throw InputError({"--samples", 0, 0, "--samples"}, "the sample count is negative", "use 0 to skip the Monte Carlo");
   if (!(o.target_loss > 0 && o.target_loss < 1))
@@ -68,6 +68,15 @@ void run_diagnose(const DiagnoseOptions& o) {
   d.control_sigma_j_given = o.sigma_j_given;
   d.control_gaps = !o.no_control_gaps;
   d.control_tolerance = o.control_tolerance;
+  {
+    WorkEstimate work = spectrum_work(p.qubits, o.levels, 300.0);
+    for (double t : o.durations_ns) {
+      work += anneal_work(p, sch.scales, t);
+      work += perturbed_anneal_work(p, sch.scales, o.sigma_h, o.sigma_j, o.relative, t, static_cast<double>(o.samples));
+    }
+    work += spectrum_work(p.qubits, o.levels, o.no_control_gaps ? 0.0 : 300.0 * static_cast<double>(o.samples));
+    check_work_limit(work, o.allow_long, {"--duration-ns", 0, 0, "--duration-ns"});
+  }
   if (o.samples > 0) {
     ControlEnsembleOptions c;
     c.model = {o.sigma_h, o.sigma_j, o.relative};
@@ -150,6 +159,7 @@ void register_diagnose(CLI::App& app) {
   sub->add_option("--out", o->out, "write an HDF5 file (curves, crossings, per-duration results, every sample)");
   sub->add_flag("--json", o->json, "print JSON instead of the text report");
   sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
+  add_allow_long_flag(sub, o->allow_long);
   sub->callback([o, sub] {
     o->sigma_h_given = sub->count("--sigma-h") > 0;
     o->sigma_j_given = sub->count("--sigma-j") > 0;

@@ -35,6 +35,7 @@
 #include "io/text_table.hpp"
 #include "studies/anneal_predictions.hpp"
 #include "studies/duration_study.hpp"
+#include "studies/work_estimate.hpp"
 
 #ifdef _OPENMP
 #include <omp.h>
@@ -49,7 +50,7 @@ struct DurationsOptions {
   bool p_only = false;
   double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3, agreement = kDefaultAgreementFactor;
   int threads = 0, probes = 2;
-  bool json = false, no_search = false, no_predictions = false, restart = false, quiet = false;
+  bool json = false, no_search = false, no_predictions = false, restart = false, quiet = false, allow_long = false;
 };
 
 std::string read_text(const std::string& path) {
@@ -57,17 +58,6 @@ std::string read_text(const std::string& path) {
   std::ostringstream t;
   t << in.rdbuf();
   return t.str();
-}
-
-std::vector<double> parse_range(const std::string& text) {
-  double first = 0, last = 0;
-  int count = 0;
-  char c1 = 0, c2 = 0;
-  std::istringstream in(text);
-  if (!(in >> first >> c1 >> last >> c2 >> count) || c1 != ':' || c2 != ':' || !(in >> std::ws).eof())
-    throw InputError({"--range", 0, 0, "--range"}, fmt::format("cannot read the range '{}'", text),
-                     "write FIRST:LAST:COUNT in ns, e.g. --range 1:1000:13 (log-spaced, both ends included)");
-  return log_spaced_durations(first, last, count);
 }
 
 std::string p_text(double p) { return fmt::format("{:.6f}", std::clamp(p, 0.0, 1.0)); }
@@ -83,12 +73,9 @@ void run_durations(const DurationsOptions& o) {
   const ProblemFile problem_file = parse_problem_file(o.problem);
   const IsingProblem& problem = problem_file.ising;
   const Schedule schedule = read_schedule_file(o.schedule);
-  if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
-    throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
-                     "use a value between 1e-12 and 1e-2 (default 1e-6)");
-  if (!(o.target > 0.0 && o.target < 1.0))
-    throw InputError({"--target", 0, 0, "--target"}, fmt::format("target {} is not inside (0, 1)", o.target),
-                     "give a success probability such as 0.99");
+  check_tolerance(o.tolerance);
+  check_target_probability(o.target);
+  check_threads(o.threads);
   if (!(o.resolution > 0.0 && o.resolution < 1.0))
     throw InputError({"--resolution", 0, 0, "--resolution"}, fmt::format("resolution {} is not inside (0, 1)", o.resolution),
                      "give the relative width at which bisection stops, e.g. 0.005");
@@ -101,7 +88,7 @@ void run_durations(const DurationsOptions& o) {
     throw InputError({"--range", 0, 0, "--range"}, "both --durations and --range were given", "give one of them");
   std::vector<double> grid;
   if (!o.durations.empty()) grid = normalised_grid(o.durations);
-  else if (!o.range.empty()) grid = parse_range(o.range);
+  else if (!o.range.empty()) grid = parse_log_range(o.range, "--range");
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
 #ifdef _OPENMP
@@ -121,6 +108,12 @@ void run_durations(const DurationsOptions& o) {
   if (!o.no_predictions) predictions = predict_anneal(setup);
   const bool grid_chosen = grid.empty();
   if (grid_chosen) grid = default_duration_grid(predictions ? &*predictions : nullptr, o.target);
+  {
+    // The grid, and about as much again for the search of the needed duration.
+    WorkEstimate work;
+    for (double t : grid) work += anneal_work(problem, schedule.scales, t, o.no_search ? 1.0 : 2.0);
+    check_work_limit(work, o.allow_long, {o.range.empty() ? "--durations" : "--range", 0, 0, o.range.empty() ? "--durations" : "--range"});
+  }
 
   DurationStudyInputs in;
   in.problem_file = o.problem;
@@ -528,6 +521,7 @@ void register_durations(CLI::App& app) {
   sub->add_option("--csv", o->csv, "CSV with one row per simulated duration");
   sub->add_flag("--restart", o->restart, "discard the journal of an earlier run and start afresh");
   sub->add_flag("--quiet", o->quiet, "no progress bar or resume message on stderr");
+  add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   sub->callback([o] { run_durations(*o); });
 }

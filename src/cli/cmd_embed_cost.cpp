@@ -26,6 +26,7 @@
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "studies/chain_strength_scan.hpp"
+#include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -34,22 +35,11 @@ struct EmbedCostOptions {
   std::string problem, embedding, schedule, out, csv, write_physical, range = "1:1000:13";
   std::string propagator = SimulationOptions{}.propagator;
   std::vector<double> strengths;
-  bool absolute = false, json = false, quiet = false, no_term_limit = false;
+  bool absolute = false, json = false, quiet = false, no_term_limit = false, allow_long = false;
   std::optional<double> duration_ns, term_limit;
   double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3;
   int threads = 0;
 };
-
-std::vector<double> parse_range(const std::string& text) {
-  double first = 0, last = 0;
-  int count = 0;
-  char c1 = 0, c2 = 0;
-  std::istringstream in(text);
-  if (!(in >> first >> c1 >> last >> c2 >> count) || c1 != ':' || c2 != ':' || !(in >> std::ws).eof())
-    throw InputError({"--range", 0, 0, "--range"}, fmt::format("cannot read the range '{}'", text),
-                     "write FIRST:LAST:COUNT in ns, e.g. --range 1:1000:13 (log-spaced, both ends included)");
-  return log_spaced_durations(first, last, count);
-}
 
 std::string chains_text(const Embedding& e, const IsingProblem& logical) {
   std::string s;
@@ -80,12 +70,9 @@ long long needed_bound_code(const NeededDuration& n) {
 }
 
 void check_options(const EmbedCostOptions& o) {
-  if (!(o.tolerance >= 1e-12 && o.tolerance <= 1e-2))
-    throw InputError({"--tolerance", 0, 0, "--tolerance"}, fmt::format("tolerance {} is out of range", o.tolerance),
-                     "use a value between 1e-12 and 1e-2 (default 1e-6)");
-  if (!(o.target > 0.0 && o.target < 1.0))
-    throw InputError({"--target", 0, 0, "--target"}, fmt::format("target {} is not inside (0, 1)", o.target),
-                     "give a success probability such as 0.99");
+  check_tolerance(o.tolerance);
+  check_target_probability(o.target);
+  check_threads(o.threads);
   if (!(o.resolution > 0.0 && o.resolution < 1.0))
     throw InputError({"--resolution", 0, 0, "--resolution"},
                      fmt::format("resolution {} is not inside (0, 1)", o.resolution),
@@ -124,13 +111,27 @@ void run_embed_cost(const EmbedCostOptions& o) {
   if (embedding.chain_strength) scan.strengths.push_back(*embedding.chain_strength);  // the file's default, always
   scan.term_limit = o.no_term_limit ? std::nullopt : (o.term_limit ? o.term_limit : embedding.term_limit);
   scan.duration_ns = schedule.path_for(o.duration_ns).duration_ns();
-  scan.grid_ns = parse_range(o.range);
+  scan.grid_ns = parse_log_range(o.range, "--range");
   scan.needed.target = o.target;
   scan.needed.relative_width = o.resolution;
   scan.needed.noise = std::max(10.0 * o.tolerance, 1e-5);
   scan.simulation.propagator = o.propagator;
   scan.simulation.propagation.tolerance = o.tolerance;
   scan.threads = o.threads;
+  {
+    // Each strength: the grid and about as much again for the needed-duration search, plus the t_f anneal;
+    // the strength itself sets the physical problem's energy scale.
+    WorkEstimate work;
+    for (std::size_t k = 0; k < scan.strengths.size(); ++k) {
+      const SourcePlace from = k < values.size() ? SourcePlace{"--strengths", 0, 0, "--strengths"}
+                                                 : SourcePlace{o.embedding, 0, 0, "chain_strength"};
+      const IsingProblem physical =
+          embed_problem(logical, embedding, scan.strengths[k].resolve(logical, from), scan.term_limit).physical;
+      work += anneal_work(physical, schedule.scales, scan.duration_ns);
+      for (double t : scan.grid_ns) work += anneal_work(physical, schedule.scales, t, 2.0);
+    }
+    check_work_limit(work, o.allow_long, {"--range", 0, 0, "--range"});
+  }
   if (!o.quiet) scan.progress = [](const std::string& what) { std::cerr << "gapwise embed-cost: " << what << "\n"; };
 
   const ChainScanResult r = scan_chain_strength(logical, embedding, schedule, scan);
@@ -320,6 +321,7 @@ void register_embed_cost(CLI::App& app) {
   sub->add_option("--csv", o->csv, "write the scan table as CSV");
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   sub->add_flag("-q,--quiet", o->quiet, "no progress lines on stderr");
+  add_allow_long_flag(sub, o->allow_long);
   sub->callback([o] { run_embed_cost(*o); });
 }
 

@@ -21,6 +21,7 @@
 #include "io/toml_reader.hpp"
 #include "studies/ensemble_study.hpp"
 #include "studies/work_distribution.hpp"
+#include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -31,7 +32,7 @@ struct EnsembleOptions {
   double target = kDefaultTargetProbability, tolerance = 1e-6, confidence = 0.95, gap_s_tolerance = 1e-6;
   int threads = 0, resamples = 2000, gap_points = 101;
   unsigned long long bootstrap_seed = 1;
-  bool fresh = false, quiet = false, json = false;
+  bool fresh = false, quiet = false, json = false, allow_long = false;
 };
 
 std::string interval_text(const QuantileEstimate& q, int digits) {
@@ -157,6 +158,9 @@ void run_ensemble(const EnsembleOptions& o) {
     const Schedule sch = read_schedule_file(o.schedule);
     check_output_path(o.out, "--out");
     if (!o.csv.empty()) check_output_path(o.csv, "--csv");
+    check_target_probability(o.target);
+    check_tolerance(o.tolerance);
+    check_threads(o.threads);
     EnsembleSettings st;
     st.durations_ns = parse_value_list(o.durations, "--durations-ns");
     st.target_probability = o.target;
@@ -174,6 +178,14 @@ void run_ensemble(const EnsembleOptions& o) {
 
     EnsembleRun run{set, sch, schedule_text, st, ShardSpec{}, "", 1, {}};
     run.shard = ShardSpec::parse(o.shard);
+    WorkEstimate work;
+    for (std::size_t i = 0; i < set.instances.size(); ++i) {
+      if (!run.shard.contains(i)) continue;
+      const IsingProblem& ip = set.instances[i].problem;
+      for (double t : st.durations_ns) work += anneal_work(ip, sch.scales, t);
+      work += spectrum_work(ip.qubits, 4, 3.0 * st.gap_coarse_points);
+    }
+    check_work_limit(work, o.allow_long, {"--durations-ns", 0, 0, "--durations-ns"});
     run.threads = o.threads > 0 ? o.threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
     run.journal_path = journal_path_for(o.out);
     if (o.fresh && group.is_collector()) std::remove(run.journal_path.c_str());
@@ -241,6 +253,7 @@ void register_ensemble(CLI::App& app) {
   sub->add_option("--gap-s-tolerance", o->gap_s_tolerance, "gap search: precision of s*")->capture_default_str();
   sub->add_option("--csv", o->csv, "also write the per-size table as CSV");
   sub->add_flag("-q,--quiet", o->quiet, "no progress lines on stderr");
+  add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json,
                 "print a JSON summary instead of the table: settings, and per size (`sizes`) the instance count, "
                 "`tts_ns` and `gap_ghz` as lists of {q, value, ci_low, ci_high}, `tts_at_range_edge`, `never_solved`");

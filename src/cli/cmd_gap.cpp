@@ -19,6 +19,7 @@
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
+#include "studies/work_estimate.hpp"
 #include "io/json_summary.hpp"
 #include "io/result_journal.hpp"
 #include "io/terminal_text.hpp"
@@ -34,6 +35,7 @@ struct GapOptions {
   double s_tolerance = 1e-6;
   std::optional<double> s_first, s_last;
   bool json = false, other_sector = false, progress = false, quiet = false, no_level_check = false, fresh = false;
+  bool allow_long = false;
 };
 
 std::string slurp(const std::string& path) {
@@ -154,6 +156,14 @@ void run_gap(const GapOptions& o) {
 
   // Refuse a too-large problem before building anything of size 2^n.
   check_gap_search_size(p.qubits, opt.sector.value_or(default_sector(p)), o.levels, opt.method, pf.qubits_place);
+  if (o.points > o.max_points)  // the library refuses it too; here the message names the options
+    throw InputError({"--points", 0, 0, "--points"},
+                     fmt::format("{} coarse points are more than the budget of {} points for the whole search (--max-points)",
+                                 o.points, o.max_points),
+                     "ask for fewer coarse points (the default 101 suits most problems) or raise --max-points");
+  // The coarse scan and typically about a hundred more points (never more than the budget).
+  check_work_limit(spectrum_work(p.qubits, o.levels, std::min(static_cast<double>(o.max_points), o.points + 100.0)),
+                   o.allow_long, {"--points", 0, 0, "--points"});
   const TransverseIsingHamiltonian H(p);
   check_gap_search_options(opt, sch.scales);  // before anything is printed
   const GapSearchPlan plan = plan_gap_search(H, opt);
@@ -461,6 +471,7 @@ void register_gap(CLI::App& app) {
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   sub->add_flag("--progress", o->progress, "report progress on stderr even when it is not a terminal");
   sub->add_flag("-q,--quiet", o->quiet, "print nothing (files only)");
+  add_allow_long_flag(sub, o->allow_long);
   sub->callback([o] { run_gap(*o); });
 }
 

@@ -14,6 +14,7 @@
 #include "io/instance_set_file.hpp"
 #include "io/text_table.hpp"
 #include "problem/instance_families.hpp"
+#include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -24,7 +25,7 @@ struct GenerateOptions {
   unsigned long long seed = 1;
   double chords = 0.5, loops = 1.0;
   int ruggedness = 0;
-  bool quiet = false;
+  bool quiet = false, allow_long = false;
 };
 
 // "6,8,10", "6-14" or "6-14:2" (ranges include both ends).
@@ -79,6 +80,9 @@ void run_generate(const GenerateOptions& o) {
   f.loops_per_qubit = o.loops;
   f.ruggedness = o.ruggedness;
   const std::vector<int> sizes = parse_sizes(o.sizes);
+  WorkEstimate work;
+  for (int n : sizes) work += instance_work(n, o.count);
+  check_work_limit(work, o.allow_long, {"--count", 0, 0, "--count"});
 
   InstanceSet set;
   set.family = family_name(f);
@@ -132,6 +136,7 @@ void register_generate(CLI::App& app) {
   sub->add_option("--out", o->out, "write one HDF5 instance-set file (keeps seeds and planted ground energies)");
   sub->add_option("--out-dir", o->out_dir, "write one problem file per instance into this directory instead");
   sub->add_flag("-q,--quiet", o->quiet, "print nothing on success");
+  add_allow_long_flag(sub, o->allow_long);
   sub->callback([o] { run_generate(*o); });
 }
 

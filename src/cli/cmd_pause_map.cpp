@@ -22,6 +22,7 @@
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
 #include "studies/shape_maps.hpp"
+#include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -30,7 +31,7 @@ struct PauseMapCli {
   std::string problem, schedule, out, at = "0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = SimulationOptions{}.propagator;
   double duration_ns = 0, tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0;
-  bool json = false;
+  bool json = false, allow_long = false;
 };
 
 void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const PauseMap& m, std::size_t bi,
@@ -75,6 +76,9 @@ void run_pause_map(const PauseMapCli& o) {
   const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);
   check_output_path(o.out, "--out");
+  check_target_probability(o.target);
+  check_tolerance(o.tolerance);
+  check_threads(o.threads);
   check_memory(p.qubits, 10, 0, p_file.qubits_place);
   PauseMapOptions mo;
   mo.pause_s = parse_value_list(o.at, "--at");
@@ -86,6 +90,12 @@ void run_pause_map(const PauseMapCli& o) {
   SimulationOptions sim;
   sim.propagator = o.propagator;
   sim.propagation.tolerance = o.tolerance;
+  WorkEstimate work;
+  for (double pause : mo.pause_ns) {
+    const double run_ns = mo.cost == PauseCost::AddedTime ? o.duration_ns + pause : o.duration_ns;
+    work += anneal_work(p, sch.scales, run_ns, static_cast<double>(mo.pause_s.size()) + 1.0);  // + the unpaused reference
+  }
+  check_work_limit(work, o.allow_long, {"--pause-ns", 0, 0, "--pause-ns"});
   const AnnealSetup setup(p, sch, sim);
   ResultJournal journal(journal_path_for(o.out), pause_map_journal_layout(),
                         input_fingerprint({read_text_file(o.problem), read_text_file(o.schedule), fmt::format("{:a}", o.duration_ns),
@@ -189,6 +199,7 @@ void register_pause_map(CLI::App& app) {
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default)")->capture_default_str();
   sub->add_option("-o,--out", o->out, "HDF5 result (heat-map ready); the journal is <out>.journal")->required();
+  add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json,
                 "print a JSON summary instead of the table: the grid, p per cell (rows: --at), the unpaused\n"
                 "reference per pause duration, and the best cell (largest gain over its reference)");

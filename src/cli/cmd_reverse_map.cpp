@@ -19,6 +19,7 @@
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
 #include "studies/shape_maps.hpp"
+#include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -27,6 +28,7 @@ struct ReverseMapCli {
   std::string problem, schedule, out, turn = "0.3:0.9:7", dwell_ns = "0,5,10,20", start_bits, propagator = SimulationOptions{}.propagator;
   double ramp_ns = 5, tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0;
+  bool allow_long = false;
 };
 
 void run_reverse_map(const ReverseMapCli& o) {
@@ -35,6 +37,9 @@ void run_reverse_map(const ReverseMapCli& o) {
   const IsingProblem& p = p_file.ising;
   Schedule sch = read_schedule_file(o.schedule);
   check_output_path(o.out, "--out");
+  check_target_probability(o.target);
+  check_tolerance(o.tolerance);
+  check_threads(o.threads);
   check_memory(p.qubits, 10, 0, p_file.qubits_place);
   if (!o.start_bits.empty()) {
     sch.start.kind = StartKind::Classical;
@@ -60,6 +65,9 @@ void run_reverse_map(const ReverseMapCli& o) {
   mo.ramp_ns = o.ramp_ns;
   mo.target_probability = o.target;
   mo.threads = o.threads;
+  WorkEstimate work;
+  for (double dwell : mo.dwell_ns) work += anneal_work(p, sch.scales, 2.0 * o.ramp_ns + dwell, static_cast<double>(mo.turn_s.size()));
+  check_work_limit(work, o.allow_long, {"--dwell-ns", 0, 0, "--dwell-ns"});
   SimulationOptions sim;
   sim.propagator = o.propagator;
   sim.propagation.tolerance = o.tolerance;
@@ -153,6 +161,7 @@ void register_reverse_map(CLI::App& app) {
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default)")->capture_default_str();
   sub->add_option("-o,--out", o->out, "HDF5 result; the journal is <out>.journal")->required();
+  add_allow_long_flag(sub, o->allow_long);
   sub->callback([o] { run_reverse_map(*o); });
 }
 

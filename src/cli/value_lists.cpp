@@ -1,11 +1,13 @@
 // Number lists on the command line: "20,50,100" or a linear range "0.3:0.7:9"
 // (first:last:count, both ends included); output options that refuse "".
 #include <cmath>
+#include <sstream>
 
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
 #include "io/input_error.hpp"
+#include "studies/duration_sweep.hpp"
 
 namespace gapwise::cli {
 
@@ -55,6 +57,25 @@ void refuse_empty_output_paths(CLI::App& app) {
   for (CLI::App* sub : app.get_subcommands([](CLI::App*) { return true; }))
     for (const char* name : {"--out", "--csv", "--write-physical", "--out-dir"})
       if (CLI::Option* opt = sub->get_option_no_throw(name)) opt->check(non_empty);
+}
+
+std::vector<double> parse_log_range(const std::string& text, const std::string& option) {
+  double first = 0, last = 0;
+  long long count = 0;
+  char c1 = 0, c2 = 0;
+  std::istringstream in(text);
+  if (!(in >> first >> c1 >> last >> c2 >> count) || c1 != ':' || c2 != ':' || !(in >> std::ws).eof())
+    throw InputError({option, 0, 0, option}, fmt::format("cannot read the range '{}'", text),
+                     fmt::format("write FIRST:LAST:COUNT in ns, e.g. {} 1:1000:13 (log-spaced, both ends included)", option));
+  // The same cap as a linear range: a longer list is a typo, not a study.
+  if (count < 1 || count > 10000)
+    throw InputError({option, 0, 0, option}, fmt::format("count {} in \"{}\" is not a whole number from 1 to 10000", count, text),
+                     "write FIRST:LAST:COUNT with a whole COUNT");
+  try {
+    return log_spaced_durations(first, last, static_cast<int>(count));
+  } catch (const InputError& e) {
+    throw InputError({option, 0, 0, option}, e.problem(), e.fix());
+  }
 }
 
 }  // namespace gapwise::cli

@@ -84,6 +84,10 @@ void read_chain_strength(const TomlReader& r, const toml::table& t, Embedding& e
   if (!(value > 0.0))
     r.fail(t.get(key), key, fmt::format("chain strength {} is not positive", value),
            "give the magnitude of the ferromagnetic chain coupling, > 0 (its sign is always ferromagnetic)");
+  if (value > kMaxProblemCoefficient)
+    r.fail(t.get(key), key, fmt::format("chain strength {:g} is larger than {:g}, the largest term gapwise accepts", value,
+                                        kMaxProblemCoefficient),
+           "a chain strength of a few times the largest logical term is usual, e.g. chain_strength_relative = 2");
   e.chain_strength = absolute ? ChainStrength::absolute(value) : ChainStrength::relative_to_largest(value);
 }
 

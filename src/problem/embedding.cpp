@@ -22,11 +22,17 @@ double ChainStrength::resolve(const IsingProblem& logical, const SourcePlace& wh
   if (!(value > 0.0) || !std::isfinite(value))
     throw InputError(where, fmt::format("chain strength {} is not a positive number", value),
                      "give a chain strength > 0 (it is the magnitude of a ferromagnetic coupling)");
-  if (!relative) return value;
-  const double scale = logical.largest_term();
+  const double scale = relative ? logical.largest_term() : 1.0;
   if (!(scale > 0.0))
     throw InputError(where, "a relative chain strength needs a logical problem with at least one non-zero term",
                      "give an absolute chain strength instead");
+  // The chain coupling is a term of the physical problem: the same bound as every |h| and |J|.
+  if (!(value * scale <= kMaxProblemCoefficient))
+    throw InputError(where,
+                     fmt::format("chain strength {} ({:g} in problem units) is larger than {:g}, the largest term gapwise "
+                                 "accepts",
+                                 describe(), value * scale, kMaxProblemCoefficient),
+                     "a chain strength of a few times the largest logical term is usual, e.g. 2 (relative)");
   return value * scale;
 }
 

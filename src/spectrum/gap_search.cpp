@@ -625,6 +625,11 @@ GapSearchPlan plan_gap_search(const TransverseIsingHamiltonian& h, const GapSear
                                  "search",
                                  g, describe_sector(plan.sector), g + 1),
                      "lift the degeneracy with small fields or couplings");
+  if (o.coarse_points > o.max_points)
+    throw InputError({"points", 0, 0, "points"},
+                     fmt::format("{} coarse points are more than the budget of {} points for the whole search",
+                                 o.coarse_points, o.max_points),
+                     "ask for fewer coarse points (the default 101 suits most problems) or raise the point budget");
   plan.ground_degeneracy = g;
   plan.levels = static_cast<int>(std::min<std::size_t>(static_cast<std::size_t>(std::max(o.levels, g + 1)), sh.dim()));
   EigenMethod m = o.method;
