@@ -15,7 +15,9 @@ std::string format_input_error(const SourcePlace& place, const std::string& prob
   if (place.line > 0) where += fmt::format(":{}", place.line);
   if (place.line > 0 && place.column > 0) where += fmt::format(":{}", place.column);
   std::string msg = where + ": ";
-  if (!place.key.empty()) msg += fmt::format("key '{}': ", terminal_text(place.key));
+  // An option named as the place is not named again as its key ("--range: key '--range':").
+  const bool key_is_place = (place.file.empty() || place.file == place.key) && place.line <= 0 && place.key.rfind("--", 0) == 0;
+  if (!place.key.empty() && !key_is_place) msg += fmt::format("key '{}': ", terminal_text(place.key));
   msg += terminal_text(problem, true);
   if (!fix.empty()) msg += ". Fix: " + terminal_text(fix, true);
   return msg;
