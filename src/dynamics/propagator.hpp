@@ -35,6 +35,14 @@ struct PropagationStats {
   long rejected_steps = 0;           ///< where the propagator can tell
   long hamiltonian_applications = 0; ///< H x products (or equivalent kernel passes)
   double error_estimate = 0.0;       ///< accumulated local error estimate (propagator's own measure)
+  // The frame propagator ("frame") only; zero for the others.
+  int frame_levels = 0;              ///< largest number K of kept instantaneous levels used
+  long frame_grid_points = 0;        ///< grid points in s over all pieces run in the frame
+  long frame_eigen_solves = 0;       ///< eigen-decompositions (accepted and rejected grid points, all K tried)
+  double frame_top_level_population = 0.0;  ///< largest population seen on the highest kept level (leakage indicator)
+  double frame_truncation_estimate = 0.0;   ///< sum over pieces of |p(K) - p(K')|, K' < K (change of p with K)
+  long frame_pieces = 0;             ///< pieces run in the frame
+  long frame_fallback_pieces = 0;    ///< pieces the frame could not hold to the tolerance: run by split4 instead
 };
 
 class Propagator {

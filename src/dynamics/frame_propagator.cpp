@@ -1,0 +1,234 @@
+#include "dynamics/frame_propagator.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+#include <stdexcept>
+
+#include <Eigen/Eigenvalues>
+
+#include "dynamics/split_operator_propagator.hpp"
+#include "frame/instantaneous_frame.hpp"
+#include "spectrum/lowest_levels.hpp"
+
+namespace gapwise {
+
+namespace {
+
+constexpr double kRefineBudget = 4e5;  // grid points x dimension a refinement may reach
+constexpr double kTwoPi = 2.0 * std::numbers::pi;
+const Complex kI{0.0, 1.0};
+
+/// c <- exp(-i dt H_frame) c for one interval, H_frame = 2 pi H_avg - i L / dt.
+void frame_step(const Eigen::MatrixXd& h_avg, const Eigen::MatrixXd& l, double dt, Eigen::VectorXcd& c) {
+  Eigen::MatrixXcd hf = (kTwoPi * h_avg).cast<Complex>();
+  if (dt > 0) hf -= kI * l.cast<Complex>() / dt;
+  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXcd> es(hf);
+  Eigen::VectorXcd y = es.eigenvectors().adjoint() * c;
+  for (Eigen::Index i = 0; i < y.size(); ++i) y(i) *= std::polar(1.0, -dt * es.eigenvalues()(i));
+  c = es.eigenvectors() * y;
+}
+
+/// Energy average over an interval: trapezoid plus the cubic Hermite term (signed ds).
+Eigen::MatrixXd interval_average(const FramePoint& a, const FramePoint& b, int kk, double ds) {
+  Eigen::MatrixXd m = 0.5 * (a.h_out.topLeftCorner(kk, kk) + b.h_in.topLeftCorner(kk, kk));
+  m.diagonal() += (a.dh_out.head(kk) - b.dh_in.head(kk)) * (ds / 12.0);
+  return m;
+}
+
+struct FrameRun {
+  Eigen::VectorXcd c;
+  double top_population = 0.0;
+};
+
+/// The K x K evolution through the frame, with the first kk levels, on the grid
+/// (coarse: every other point).
+FrameRun run_frame(const InstantaneousFrame& fr, const Eigen::VectorXcd& c0, int kk, bool coarse,
+                   double ns_per_unit_s, double pause_ns) {
+  FrameRun r;
+  r.c = c0.head(kk);
+  auto watch = [&] { r.top_population = std::max(r.top_population, std::norm(r.c(kk - 1))); };
+  watch();
+  const auto& pts = fr.points();
+  if (pts.size() == 1) {  // constant s: exact phases of the (projected) Hamiltonian
+    frame_step(pts[0].h_out.topLeftCorner(kk, kk), Eigen::MatrixXd::Zero(kk, kk), pause_ns, r.c);
+    return r;
+  }
+  std::size_t j = 0;
+  const std::size_t last = pts.size() - 1;
+  while (j < last) {
+    const std::size_t stride = (coarse && j + 2 <= last) ? 2 : 1;
+    const FramePoint& a = pts[j];
+    const FramePoint& b = pts[j + stride];
+    const double ds = b.s - a.s;
+    const double dt = std::abs(ds) * ns_per_unit_s;
+    Eigen::MatrixXd l;
+    if (stride == 1)
+      l = fr.intervals()[j].generator.topLeftCorner(kk, kk);
+    else
+      l = rotation_log(closest_rotation(b.overlap_two_back)).topLeftCorner(kk, kk);
+    frame_step(interval_average(a, b, kk, ds), l, dt, r.c);
+    r.c = b.rebase.topLeftCorner(kk, kk) * r.c;
+    watch();
+    j += stride;
+  }
+  return r;
+}
+
+QuantumState to_state(const Eigen::MatrixXd& v_full, const Eigen::VectorXcd& c) {
+  const Eigen::VectorXcd x = v_full.leftCols(c.size()).cast<Complex>() * c;
+  return QuantumState(x.data(), x.data() + x.size());
+}
+
+double watched_probability(const QuantumState& psi, const std::vector<std::size_t>& w) {
+  double p = 0.0;
+  for (std::size_t b : w) p += std::norm(psi[b]);
+  return p;
+}
+
+double total_variation(const QuantumState& x, const QuantumState& y) {
+  double tv = 0.0;
+  for (std::size_t b = 0; b < x.size(); ++b) tv += std::abs(std::norm(x[b]) - std::norm(y[b]));
+  return 0.5 * tv;
+}
+
+}  // namespace
+
+FramePropagator::FramePropagator(const TransverseIsingHamiltonian& h, PropagatorOptions options)
+    : h_(&h), opt_(std::move(options)) {
+  full_ = std::make_unique<SectorHamiltonian>(h, SpinFlipSector::Full);
+  if (!h.problem().has_fields() && h.qubits() >= 2) {
+    even_ = std::make_unique<SectorHamiltonian>(h, SpinFlipSector::Even);
+    odd_ = std::make_unique<SectorHamiltonian>(h, SpinFlipSector::Odd);
+  }
+}
+
+const SectorHamiltonian& FramePropagator::sector_of(const QuantumState& psi) const {
+  if (!even_) return *full_;
+  // Weight of psi in the odd sector: || (psi - P psi) / 2 ||^2, P psi(b) = psi(~b).
+  const std::size_t mask = psi.size() - 1;
+  double odd = 0.0, even = 0.0;
+  for (std::size_t b = 0; b < psi.size(); ++b) {
+    odd += std::norm(0.5 * (psi[b] - psi[b ^ mask]));
+    even += std::norm(0.5 * (psi[b] + psi[b ^ mask]));
+  }
+  const double tiny = 1e-3 * opt_.tolerance * opt_.tolerance;
+  if (odd <= tiny) return *even_;
+  if (even <= tiny) return *odd_;
+  return *full_;
+}
+
+void FramePropagator::advance(const AnnealDrive& drive, double t0, double t1, QuantumState& psi,
+                              PropagationStats& stats) {
+  if (!(t1 > t0)) return;
+  if (psi.size() != h_->dim()) throw std::invalid_argument("frame propagator: state size does not match the Hamiltonian");
+  if (advance_in_frame(drive, t0, t1, psi, stats)) {
+    ++stats.frame_pieces;
+    return;
+  }
+  // The frame cannot hold this piece to the tolerance: full propagation here.
+  ++stats.frame_fallback_pieces;
+  AnnealDrive piece{drive.scales, AnnealPath({{0.0, drive.s_at(t0)}, {t1 - t0, drive.s_at(t1)}})};
+  SplitOperatorPropagator split(*h_, opt_, SplitComposition::Suzuki4);
+  split.advance(piece, 0.0, t1 - t0, psi, stats);
+}
+
+bool FramePropagator::advance_in_frame(const AnnealDrive& drive, double t0, double t1, QuantumState& psi,
+                                       PropagationStats& stats) {
+  const SectorHamiltonian& sec = sector_of(psi);
+  const double s0 = drive.s_at(t0), s1 = drive.s_at(t1);
+  const double tol = opt_.tolerance;
+  const auto& w = opt_.watched_states;
+  const int kmax = static_cast<int>(std::min<std::size_t>(kMaxLevels, sec.dim()));
+  const int per_pair = sec.sector() == SpinFlipSector::Full ? 1 : 2;
+  int k = std::min(kmax, std::max(4, static_cast<int>((w.size() + per_pair - 1) / per_pair) + 2));
+  FrameOptions fo;
+  // K must not cut a near-degenerate group at the start (near s = 0 the first
+  // excited level of the transverse term is n-fold degenerate): a cut group's
+  // kept part is an arbitrary pick inside it, and its couplings are noise.
+  auto whole_groups = [&](int want) {
+    LevelOptions lo;
+    lo.levels = std::min(kmax + 1, static_cast<int>(sec.dim()));
+    Levels lv = lowest_levels(sec, drive.scales->a_ghz(s0), drive.scales->b_ghz(s0), lo);
+    ++stats.frame_eigen_solves;
+    int kk = std::min(want, kmax);
+    while (kk < static_cast<int>(lv.energies_ghz.size()) &&
+           lv.energies_ghz[static_cast<std::size_t>(kk)] - lv.energies_ghz[static_cast<std::size_t>(kk - 1)] <
+               fo.group_gap_ghz)
+      ++kk;
+    return kk;
+  };
+  k = whole_groups(k);
+  if (k > kmax) return false;
+  int refinements = 0;
+  const bool pause = s0 == s1;
+  fo.ns_per_unit_s = pause ? 0.0 : (t1 - t0) / std::abs(s1 - s0);
+  const Eigen::Map<const Eigen::VectorXcd> x(psi.data(), static_cast<Eigen::Index>(psi.size()));
+  for (int attempt = 0; attempt < 10; ++attempt) {
+    fo.levels = k;
+    std::unique_ptr<InstantaneousFrame> fr;
+    try {
+      fr = std::make_unique<InstantaneousFrame>(sec, *drive.scales, s0, s1, fo);
+    } catch (const std::runtime_error&) {
+      return false;  // the grid cannot follow the levels (crossing, cut group): full propagation
+    }
+    stats.frame_eigen_solves += fr->eigen_solves();
+    const int kk = fr->levels();
+    const Eigen::VectorXcd c0 = fr->first_vectors_full().cast<Complex>().adjoint() * x;
+    const double outside = std::max(0.0, 1.0 - c0.squaredNorm());
+    if (outside > tol / 10) {  // the start is not (yet) in the kept span
+      if (k >= kmax) return false;
+      k = std::min(kmax, 2 * k);
+      continue;
+    }
+    const double pause_ns = t1 - t0;
+    const FrameRun fine = run_frame(*fr, c0, kk, false, fo.ns_per_unit_s, pause_ns);
+    const QuantumState psi_fine = to_state(fr->last_vectors_full(), fine.c);
+    double err_grid_p = 0, err_k_p = 0, tv_grid = 0, tv_k = 0;
+    if (!pause && fr->points().size() > 2) {
+      const QuantumState psi_coarse =
+          to_state(fr->last_vectors_full(), run_frame(*fr, c0, kk, true, fo.ns_per_unit_s, pause_ns).c);
+      err_grid_p = std::abs(watched_probability(psi_fine, w) - watched_probability(psi_coarse, w));
+      tv_grid = total_variation(psi_fine, psi_coarse);
+    }
+    if (kk < static_cast<int>(sec.dim())) {  // with every level kept there is no truncation
+      const int ks = kk - std::max(1, kk / 4);
+      const QuantumState psi_small =
+          to_state(fr->last_vectors_full(), run_frame(*fr, c0, ks, false, fo.ns_per_unit_s, pause_ns).c);
+      err_k_p = std::abs(watched_probability(psi_fine, w) - watched_probability(psi_small, w));
+      tv_k = total_variation(psi_fine, psi_small);
+    }
+    const double err_tv = tv_grid + tv_k + outside;
+    const double err_p = w.empty() ? err_tv : err_grid_p + err_k_p + outside;
+    const bool ok = err_p <= tol / 2 && (w.empty() || err_tv <= opt_.others_factor * tol / 2);
+    if (ok) {
+      psi = psi_fine;
+      stats.steps += static_cast<long>(fr->intervals().size());
+      stats.frame_grid_points += static_cast<long>(fr->points().size());
+      stats.frame_levels = std::max(stats.frame_levels, kk);
+      stats.frame_top_level_population = std::max(stats.frame_top_level_population, fine.top_population);
+      stats.frame_truncation_estimate += err_k_p;
+      stats.error_estimate += err_p;
+      return true;
+    }
+    const bool k_limited = err_k_p + outside >= err_grid_p || tv_k >= tv_grid;
+    if (k_limited) {
+      if (k >= kmax) return false;
+      k = whole_groups(2 * k);
+      if (k > kmax) return false;
+    } else {
+      // The grid error falls at least as the square of the turn per interval
+      // where the phases are slow (and only linearly where they oscillate fast,
+      // see the method notes). Refine while the predicted grid stays within a
+      // budget of (points x dimension); beyond it full propagation is cheaper.
+      const double shrink = std::max(0.05, std::sqrt((tol / 4) / err_p));
+      const double predicted = static_cast<double>(fr->points().size()) / shrink * static_cast<double>(sec.dim());
+      if (predicted > kRefineBudget || ++refinements > 4) return false;
+      fo.max_rotation *= shrink;
+      fo.max_phase_error *= shrink * shrink;
+    }
+  }
+  return false;
+}
+
+}  // namespace gapwise

@@ -1,0 +1,228 @@
+#include "frame/instantaneous_frame.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+#include <stdexcept>
+#include <utility>
+
+#include <fmt/format.h>
+#include <unsupported/Eigen/MatrixFunctions>
+
+#include "spectrum/lowest_levels.hpp"
+
+namespace gapwise {
+
+Eigen::MatrixXd closest_rotation(const Eigen::MatrixXd& m) {
+  Eigen::JacobiSVD<Eigen::MatrixXd> svd(m, Eigen::ComputeFullU | Eigen::ComputeFullV);
+  return svd.matrixU() * svd.matrixV().transpose();
+}
+
+Eigen::MatrixXd rotation_log(const Eigen::MatrixXd& q) {
+  Eigen::MatrixXd l = q.log();
+  return 0.5 * (l - l.transpose());  // antisymmetric up to rounding; drop the rounding
+}
+
+namespace {
+
+struct Group {
+  int first, last;  // levels [first, last]
+};
+
+/// Consecutive levels closer than `gap` form a group.
+std::vector<Group> groups_of(const std::vector<double>& e, int k, double gap) {
+  std::vector<Group> g;
+  for (int i = 0; i < k; ++i) {
+    if (!g.empty() && e[static_cast<std::size_t>(i)] - e[static_cast<std::size_t>(i - 1)] < gap)
+      g.back().last = i;
+    else
+      g.push_back({i, i});
+  }
+  return g;
+}
+
+/// Union of two partitions of 0..k-1 into index ranges: ranges that overlap merge.
+std::vector<Group> linked(const std::vector<Group>& a, const std::vector<Group>& b, int k) {
+  std::vector<int> end(static_cast<std::size_t>(k));
+  for (int i = 0; i < k; ++i) end[static_cast<std::size_t>(i)] = i;
+  for (const auto* part : {&a, &b})
+    for (const Group& g : *part) end[static_cast<std::size_t>(g.first)] = std::max(end[static_cast<std::size_t>(g.first)], g.last);
+  std::vector<Group> out;
+  int i = 0;
+  while (i < k) {
+    int last = end[static_cast<std::size_t>(i)];
+    for (int j = i; j <= last; ++j) last = std::max(last, end[static_cast<std::size_t>(j)]);
+    out.push_back({i, last});
+    i = last + 1;
+  }
+  return out;
+}
+
+/// Rotation R of the block of `v` (columns of g) that best matches `prev`
+/// (orthogonal Procrustes): v_G R closest to prev_G. Returns R (identity-sized block).
+Eigen::MatrixXd procrustes(const Eigen::MatrixXd& prev, const Eigen::MatrixXd& v, const Group& g) {
+  const int w = g.last - g.first + 1;
+  const Eigen::MatrixXd o = v.middleCols(g.first, w).transpose() * prev.middleCols(g.first, w);
+  return closest_rotation(o);  // maximizes trace(R^T o) -> v_G R ~ prev_G
+}
+
+/// A trial point: aligned eigenbasis (out) and the basis the incoming interval ends in (in).
+struct Trial {
+  double s = 0;
+  std::vector<double> energies;   // K + 1 when available
+  Eigen::MatrixXd v_out, v_in;    // dim x K
+  Eigen::MatrixXd rebase;         // K x K, v_in = v_out * rebase
+  std::vector<Group> groups;      // at this point
+  bool top_cut = false;           // the top group continues beyond K
+};
+
+}  // namespace
+
+InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyScales& scales, double s_from,
+                                       double s_to, const FrameOptions& options) {
+  const long dim = static_cast<long>(h.dim());
+  k_ = static_cast<int>(std::min<long>(std::max(options.levels, 1), dim));
+  const int k = k_;
+  const int solve_levels = static_cast<int>(std::min<long>(k + 1, dim));
+
+  auto eigen_at = [&](double s) {
+    LevelOptions lo;
+    lo.levels = solve_levels;
+    lo.vectors = true;
+    ++solves_;
+    Levels lv = lowest_levels(h, scales.a_ghz(s), scales.b_ghz(s), lo);
+    if (static_cast<int>(lv.energies_ghz.size()) < k || lv.vectors.cols() < k)
+      throw std::runtime_error(fmt::format("instantaneous frame: {} levels at s = {} (asked for {})",
+                                           lv.energies_ghz.size(), s, k));
+    Trial t;
+    t.s = s;
+    t.energies = lv.energies_ghz;
+    t.v_out = lv.vectors.leftCols(k);
+    for (int c = 0; c < k; ++c) t.v_out.col(c).normalize();
+    t.groups = groups_of(t.energies, k, options.group_gap_ghz);
+    t.top_cut = static_cast<int>(t.energies.size()) > k &&
+                t.energies[static_cast<std::size_t>(k)] - t.energies[static_cast<std::size_t>(k - 1)] <
+                    options.group_gap_ghz;
+    return t;
+  };
+  // Align a trial to the previous point's outgoing basis.
+  auto align = [&](Trial& t, const Trial& prev) {
+    for (const Group& g : t.groups) {
+      const Eigen::MatrixXd r = procrustes(prev.v_out, t.v_out, g);
+      t.v_out.middleCols(g.first, g.last - g.first + 1) = t.v_out.middleCols(g.first, g.last - g.first + 1) * r;
+    }
+    t.rebase = Eigen::MatrixXd::Identity(k, k);
+    for (const Group& g : linked(prev.groups, t.groups, k)) {
+      if (g.first == g.last) continue;
+      const int w = g.last - g.first + 1;
+      t.rebase.block(g.first, g.first, w, w) = procrustes(prev.v_out, t.v_out, g);
+    }
+    t.v_in = t.v_out * t.rebase;
+  };
+  // K x K projections of H and dH/ds in the outgoing basis.
+  auto project = [&](const Trial& t, FramePoint& p) {
+    const double a = scales.a_ghz(t.s), b = scales.b_ghz(t.s);
+    const double da = scales.da_ds(t.s), db = scales.db_ds(t.s);
+    Eigen::MatrixXd hv(dim, k), dv(dim, k);
+    for (int c = 0; c < k; ++c) {
+      h.apply(a, b, t.v_out.col(c).data(), hv.col(c).data());
+      h.apply(da, db, t.v_out.col(c).data(), dv.col(c).data());
+    }
+    p.s = t.s;
+    p.h_out = t.v_out.transpose() * hv;
+    p.h_out = 0.5 * (p.h_out + p.h_out.transpose()).eval();
+    const Eigen::MatrixXd d_out = t.v_out.transpose() * dv;
+    p.dh_out = d_out.diagonal();
+    p.rebase = t.rebase;
+    p.h_in = t.rebase.transpose() * p.h_out * t.rebase;
+    p.dh_in = (t.rebase.transpose() * d_out * t.rebase).diagonal();
+  };
+  auto to_full = [&](const Eigen::MatrixXd& v) {
+    Eigen::MatrixXd f(static_cast<Eigen::Index>(h.full().dim()), k);
+    for (int c = 0; c < k; ++c) {
+      const std::vector<double> x = h.to_full(v.col(c).data());
+      f.col(c) = Eigen::Map<const Eigen::VectorXd>(x.data(), static_cast<Eigen::Index>(x.size()));
+    }
+    return f;
+  };
+
+  // Forced grid points: the ends and the knots of a tabulated scale in between.
+  const double dir = s_to >= s_from ? 1.0 : -1.0;
+  std::vector<double> stops;
+  if (!scales.is_linear_ramp())
+    for (double knot : scales.table_s())
+      if ((knot - s_from) * dir > 1e-12 && (s_to - knot) * dir > 1e-12) stops.push_back(knot);
+  if (dir < 0) std::reverse(stops.begin(), stops.end());
+  if (s_to != s_from) stops.push_back(s_to);  // equal: one point (a pause)
+
+  Trial prev = eigen_at(s_from);
+  // First point: signs fixed so that each vector's largest entry is positive.
+  for (int c = 0; c < k; ++c) {
+    Eigen::Index i = 0;
+    prev.v_out.col(c).cwiseAbs().maxCoeff(&i);
+    if (prev.v_out(i, c) < 0) prev.v_out.col(c) *= -1.0;
+  }
+  prev.rebase = Eigen::MatrixXd::Identity(k, k);
+  prev.v_in = prev.v_out;
+  {
+    FramePoint p;
+    project(prev, p);
+    points_.push_back(std::move(p));
+  }
+  first_full_ = to_full(prev.v_out);
+  Eigen::MatrixXd two_back;  // v_out two points back (empty until there is one)
+
+  const double span = std::abs(s_to - s_from);
+  double ds = std::max(span / 16.0, options.min_ds);
+  std::size_t next_stop = 0;
+  const double two_pi = 2.0 * std::numbers::pi;
+  while (next_stop < stops.size()) {
+    const double stop = stops[next_stop];
+    const double left = std::abs(stop - prev.s);
+    const bool to_stop = ds >= left * (1.0 - 1e-9);
+    const double step = to_stop ? left : ds;
+    const double s_new = to_stop ? stop : prev.s + dir * step;
+    Trial t = eigen_at(s_new);
+    align(t, prev);
+    const Eigen::MatrixXd o = prev.v_out.transpose() * t.v_in;
+    const Eigen::MatrixXd l = rotation_log(closest_rotation(o));
+    // Turn of the frame, leaving out a top group that continues beyond K (its
+    // kept part is not a well-defined subspace; the K test judges it).
+    int k_eff = k;
+    if (t.top_cut) k_eff = t.groups.back().first;
+    if (prev.top_cut) k_eff = std::min(k_eff, prev.groups.back().first);
+    const double turn = k_eff > 0 ? l.topLeftCorner(k_eff, k_eff).norm() : 0.0;
+    FramePoint p;
+    project(t, p);
+    const double ds_signed = s_new - prev.s;
+    const Eigen::VectorXd corr = (points_.back().dh_out - p.dh_in) * (ds_signed / 12.0);
+    const double phase = two_pi * options.ns_per_unit_s * step * (corr.array() - corr(0)).abs().maxCoeff();
+    const double ratio = std::max(turn / options.max_rotation, std::cbrt(phase / options.max_phase_error));
+    if (ratio > 1.0 && step > options.min_ds) {
+      ds = std::max(step * std::clamp(0.8 / ratio, 0.1, 0.5), options.min_ds);
+      continue;
+    }
+    if (ratio > 1.0)
+      throw std::runtime_error(fmt::format(
+          "instantaneous frame: the frame turns by {:.3g} rad (phase correction {:.3g} rad) over the smallest interval "
+          "ds = {:.3g} at s = {:.6g}; levels cross or the kept set is cut inside a near-degenerate group",
+          turn, phase, step, prev.s));
+    if (static_cast<long>(points_.size()) >= options.max_points)
+      throw std::runtime_error(fmt::format("instantaneous frame: more than {} grid points needed", options.max_points));
+    FrameInterval iv;
+    iv.generator = l;
+    Eigen::JacobiSVD<Eigen::MatrixXd> svd(o);
+    iv.subspace_loss = 1.0 - svd.singularValues().minCoeff();
+    intervals_.push_back(std::move(iv));
+    if (two_back.size() > 0) p.overlap_two_back = two_back.transpose() * t.v_in;
+    points_.push_back(std::move(p));
+    two_back = prev.v_out;
+    prev = std::move(t);
+    if (to_stop) ++next_stop;
+    ds = step * std::min(2.0, ratio > 0 ? 0.8 / ratio : 2.0);
+    ds = std::max(ds, options.min_ds);
+  }
+  last_full_ = to_full(prev.v_out);
+}
+
+}  // namespace gapwise

@@ -1,0 +1,97 @@
+#pragma once
+// The frame of the K lowest instantaneous eigenstates of H(s) along a stretch
+// of s, on an adaptive grid, as the K x K data a propagator in that frame needs.
+//
+//   TransverseIsingHamiltonian H(problem);
+//   SectorHamiltonian sec(H, SpinFlipSector::Full);   // Even/Odd when there are no fields
+//   FrameOptions fo;  fo.levels = 6;  fo.ns_per_unit_s = 1000.0;  // 1 us for s: 0 -> 1
+//   InstantaneousFrame fr(sec, scales, 0.0, 1.0, fo);
+//   fr.points().size();                       // grid points chosen
+//   fr.intervals()[j].generator;              // log of the aligned overlap, ~ A(s) ds
+//
+// At each grid point the K lowest eigenpairs come from lowest_levels (dense or
+// Lanczos, sector-aware). The basis V(s) carried along is made continuous:
+//  - each eigenvector's sign is chosen so that its overlap with the previous
+//    point's vector is positive;
+//  - levels closer than group_gap_ghz form a group, and the group's vectors are
+//    replaced by the rotation of them closest to the previous point's group
+//    (orthogonal Procrustes: SVD of the group's overlap matrix). Inside a group
+//    the basis is then no eigenbasis, so each point also keeps the projected
+//    Hamiltonian V^T H V (diagonal outside groups).
+// Between neighbouring points the frame turns by Q = polar factor of
+// V_j^T V_{j+1}; its logarithm L (real antisymmetric) is the integrated
+// connection A(s) ds with A_mn = <m|d n/ds>. The grid is refined until the
+// turn per interval (Frobenius norm of L, levels below a group cut by the top
+// of the kept set) stays below max_rotation, and until the leading correction
+// of the dynamical phase between levels (Hermite term) is below max_phase_error.
+// Knots of a tabulated energy scale are grid points (no interval straddles a kink).
+//
+// Only the first and last point keep their K eigenvectors (in the 2^n basis);
+// everything else is K x K, so memory does not grow with the grid.
+#include <vector>
+
+#include <Eigen/Dense>
+
+#include "hamiltonian/spin_flip_sector.hpp"
+#include "schedule/energy_scales.hpp"
+
+namespace gapwise {
+
+struct FrameOptions {
+  int levels = 4;                 ///< K, the number of kept levels (capped at the sector dimension)
+  double ns_per_unit_s = 1000.0;  ///< |dt/ds| of the stretch (ns): duration per unit of s
+  double max_rotation = 0.05;     ///< largest turn of the frame per interval (radians, Frobenius norm of L)
+  double max_phase_error = 0.2;   ///< largest Hermite correction of a relative dynamical phase per interval (rad)
+  double group_gap_ghz = 1e-4;    ///< levels closer than this are aligned as one subspace
+  double min_ds = 1e-9;           ///< smallest interval; below it the build throws
+  long max_points = 200000;       ///< the build throws beyond this many grid points
+};
+
+struct FramePoint {
+  double s = 0.0;
+  /// The basis changes at a point only inside near-degenerate groups whose
+  /// membership changed: the interval arriving here ends in basis V_in, the one
+  /// leaving starts in V_out = V_in rebase^T (both span the same subspace at the
+  /// same s, so the change of coordinates c_out = rebase c_in is exact).
+  Eigen::MatrixXd rebase;                ///< K x K orthogonal (identity almost everywhere)
+  Eigen::MatrixXd h_out, h_in;           ///< K x K, V^T H V (GHz) in either basis
+  Eigen::VectorXd dh_out, dh_in;         ///< K, diagonal of V^T (dH/ds) V (GHz per unit s)
+  /// K x K: V_out(j-2)^T V_in(j) (zero-size for j < 2); for the coarse-grid check.
+  Eigen::MatrixXd overlap_two_back;
+};
+
+struct FrameInterval {
+  Eigen::MatrixXd generator;  ///< K x K real antisymmetric, log of the polar factor of V_j^T V_{j+1}
+  double subspace_loss = 0.0; ///< 1 - smallest singular value of V_j^T V_{j+1} (kept subspace turning out)
+};
+
+class InstantaneousFrame {
+ public:
+  /// s_from > s_to is allowed (a reverse stretch). Throws std::runtime_error when
+  /// the grid cannot meet the options (min_ds or max_points reached).
+  InstantaneousFrame(const SectorHamiltonian& h, const EnergyScales& scales, double s_from, double s_to,
+                     const FrameOptions& options);
+
+  int levels() const { return k_; }
+  const std::vector<FramePoint>& points() const { return points_; }
+  const std::vector<FrameInterval>& intervals() const { return intervals_; }
+  /// Eigen-decompositions done (accepted and rejected trial points).
+  long eigen_solves() const { return solves_; }
+  /// Columns: the aligned frame vectors at the first / last point, in the 2^n basis.
+  const Eigen::MatrixXd& first_vectors_full() const { return first_full_; }
+  const Eigen::MatrixXd& last_vectors_full() const { return last_full_; }
+
+ private:
+  int k_ = 0;
+  long solves_ = 0;
+  std::vector<FramePoint> points_;
+  std::vector<FrameInterval> intervals_;
+  Eigen::MatrixXd first_full_, last_full_;
+};
+
+/// The orthogonal matrix closest to m (polar factor, from the SVD m = U S W^T: U W^T).
+Eigen::MatrixXd closest_rotation(const Eigen::MatrixXd& m);
+/// Real logarithm of an orthogonal matrix close to the identity (antisymmetric).
+Eigen::MatrixXd rotation_log(const Eigen::MatrixXd& q);
+
+}  // namespace gapwise
