@@ -20,6 +20,7 @@
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
 #include "io/json_summary.hpp"
+#include "io/progress_bar.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "studies/work_estimate.hpp"
@@ -33,8 +34,11 @@ struct AnnealOptions {
   double tolerance = 1e-6;
   bool p_only = false;
   int samples = 20, top = 8, levels = 0;
-  bool json = false, no_check = false, strict = false, allow_long = false;
+  bool json = false, no_check = false, strict = false, allow_long = false, quiet = false, progress = false;
 };
+
+// Runs estimated below this many seconds of one core show no progress unless --progress asks.
+constexpr double kProgressAfterSeconds = 2.0;
 
 void run_anneal(const AnnealOptions& o) {
   check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out").output(o.csv, "--csv"));
@@ -50,7 +54,8 @@ void run_anneal(const AnnealOptions& o) {
   const TransverseIsingHamiltonian H(p);
   const GroundManifold gm = find_ground_manifold(p, H.diagonal());
   const AnnealPath path = sch.path_for(o.duration_ns);
-  check_work_limit(anneal_work(p, sch.scales, path.duration_ns(), o.no_check ? 1.0 : 2.0), o.allow_long,
+  const WorkEstimate work = anneal_work(p, sch.scales, path.duration_ns(), o.no_check ? 1.0 : 2.0);
+  check_work_limit(work, o.allow_long,
                    o.duration_ns ? SourcePlace{"--duration-ns", 0, 0, "--duration-ns"} : SourcePlace{o.schedule, 0, 0, "path"});
   const QuantumState psi0 = initial_state(H, sch, path);
 
@@ -93,6 +98,16 @@ void run_anneal(const AnnealOptions& o) {
   std::optional<LevelPopulationObserver> pops;
   std::vector<AnnealObserver*> observers{&trace};
   if (o.levels > 0) observers.push_back(&pops.emplace(H, lpo));
+  // Progress on stderr for long runs (the passes of the propagator over the path).
+  const int runs = o.no_check ? 1 : 2;
+  const bool show = !o.quiet && (o.progress || work.core_seconds() > kProgressAfterSeconds);
+  ProgressBar bar("anneal", 0, 0.0, !show ? 0 : (o.progress ? 1 : -1));
+  int run = 1;
+  if (bar.enabled())
+    sim.propagation.progress = [&](const PropagationProgress& pp) {
+      bar.stage(fmt::format("run {} of {}{}, pass {}", run, runs, run == 2 ? " (check at tolerance/10)" : "", pp.pass),
+                pp.fraction);
+    };
   const AnnealResult r = simulate_anneal(H, gm, sch.scales, path, psi0, sim, observers);
   std::vector<TraceObserver::Row> requested_rows;
   for (const auto& row : trace.rows())
@@ -102,8 +117,11 @@ void run_anneal(const AnnealOptions& o) {
     SimulationOptions tight = sim;
     tight.propagation.tolerance = o.tolerance / 10.0;
     tight.top_outcomes = 0;
+    run = 2;
     delta_p = std::abs(simulate_anneal(H, gm, sch.scales, path, psi0, tight).ground_probability - r.ground_probability);
   }
+
+  bar.done();
 
   const std::vector<AccuracyIssue> accuracy = check_accuracy(r, o.tolerance, delta_p);
   for (const auto& issue : accuracy) std::cerr << "gapwise: warning: " << issue.message << "\n";
@@ -333,6 +351,10 @@ void register_anneal(CLI::App& app) {
   sub->add_option("--csv", o->csv, "write the trace (t, s, p_ground, energy, norm) as CSV");
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   add_allow_long_flag(sub, o->allow_long);
+  sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
+  sub->add_flag("--progress", o->progress,
+                "show progress on stderr for any run, also when stderr is not a terminal (then a line every\n"
+                "few seconds); by default it shows on a terminal for runs estimated above 2 s");
   sub->callback([o] { run_anneal(*o); });
 }
 

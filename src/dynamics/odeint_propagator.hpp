@@ -16,6 +16,7 @@ class OdeintPropagator final : public Propagator {
  private:
   const TransverseIsingHamiltonian& h_;
   PropagatorOptions opt_;
+  ProgressTicker ticker_{opt_};
 };
 
 }  // namespace gapwise

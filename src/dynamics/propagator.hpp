@@ -6,6 +6,9 @@
 //
 //   auto prop = make_propagator("odeint", H, {.tolerance = 1e-8});
 //   prop->advance(drive, t0, t1, psi, stats);
+#include <algorithm>
+#include <chrono>
+#include <functional>
 #include <memory>
 #include <string>
 #include <vector>
@@ -15,6 +18,15 @@
 #include "hamiltonian/transverse_ising.hpp"
 
 namespace gapwise {
+
+/// Where a propagation stands, for a progress display. A propagator may pass
+/// over the path more than once: the split propagators' trial runs of the step
+/// doubling are passes 1, 2, ... and their final run along the chosen grid (the
+/// one observers see) is one more; odeint makes one pass.
+struct PropagationProgress {
+  int pass = 1;
+  double fraction = 0.0;  ///< of the path's duration covered in this pass, 0 to 1, non-decreasing within a pass
+};
 
 struct PropagatorOptions {
   /// Target accuracy of the run: the error allowed on amplitudes (and so on
@@ -28,6 +40,46 @@ struct PropagatorOptions {
   /// Propagators without a probability control (odeint) ignore both.
   std::vector<std::size_t> watched_states;
   double others_factor = 100.0;
+  /// Called during long propagations (empty: never). Results are bit for bit
+  /// the same with and without it. Each pass that reaches the end of the path
+  /// ends with a call at fraction 1.
+  std::function<void(const PropagationProgress&)> progress;
+  /// Least wall time between two calls inside a pass (0: at every check, which
+  /// comes every ProgressTicker::kCheckEvery steps); the calls at fraction 1 are
+  /// always made.
+  double progress_interval_s = 0.25;
+};
+
+/// The throttle every propagator reports through: counts steps and looks at
+/// the clock only every kCheckEvery of them, so an empty callback costs one
+/// branch per step and a set one a clock read per kCheckEvery steps.
+class ProgressTicker {
+ public:
+  static constexpr int kCheckEvery = 64;
+  explicit ProgressTicker(const PropagatorOptions& o) : callback_(o.progress), interval_s_(o.progress_interval_s) {}
+  /// One step done in `pass`, reaching t_ns of a path of duration_ns.
+  void step(int pass, double t_ns, double duration_ns) {
+    if (!callback_ || ++count_ < kCheckEvery) return;
+    count_ = 0;
+    const auto now = std::chrono::steady_clock::now();
+    if (called_ && std::chrono::duration<double>(now - last_).count() < interval_s_) return;
+    called_ = true;
+    last_ = now;
+    callback_({pass, duration_ns > 0 ? std::clamp(t_ns / duration_ns, 0.0, 1.0) : 1.0});
+  }
+  /// `pass` has reached the end of the path.
+  void finish(int pass) {
+    if (!callback_) return;
+    count_ = 0;
+    callback_({pass, 1.0});
+  }
+
+ private:
+  std::function<void(const PropagationProgress&)> callback_;
+  double interval_s_;
+  int count_ = 0;
+  bool called_ = false;
+  std::chrono::steady_clock::time_point last_{};
 };
 
 struct PropagationStats {

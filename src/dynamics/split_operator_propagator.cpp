@@ -94,14 +94,20 @@ void SplitOperatorPropagator::fixed_step(const AnnealDrive& drive, double t, dou
 
 long SplitOperatorPropagator::run_pieces(const AnnealDrive& drive, SplitState& x, long num, long den, bool keep) {
   long steps = 0;
+  const double total = drive.path.duration_ns();
+  ++pass_;
   for (std::size_t k = 0; k < pieces_.size(); ++k) {
     const Piece p{pieces_[k].t0, pieces_[k].t1, pieces_[k].steps * num / den};
     double pending_phi = 0.0;
-    for (long j = 0; j < p.steps; ++j) open_step(drive, p.at(j), p.h(), x, pending_phi);
+    for (long j = 0; j < p.steps; ++j) {
+      open_step(drive, p.at(j), p.h(), x, pending_phi);
+      ticker_.step(pass_, p.at(j + 1), total);
+    }
     ex_.phase(x, pending_phi);  // every piece ends on a whole state (see advance)
     steps += p.steps;
     if (keep) kept_[k].copy_from(x);
   }
+  ticker_.finish(pass_);
   return steps;
 }
 
@@ -185,6 +191,7 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
     return previous > 0.0 && now > 0.0 ? std::clamp(previous / now, 2.0, ideal) : 2.0;
   };
   long steps = 0;
+  pass_ = 0;
   coarse_.load(psi);
   steps += run_pieces(drive, coarse_, kFirstCoarse, kFirstFine, false);
   double err = 0.0, err_tv = 0.0, previous_tv = -1.0, previous_dp = -1.0;
@@ -213,6 +220,7 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
     for (auto& p : pieces_) p.steps *= 2;
   }
   others_error_ = err_tv;
+  replay_pass_ = pass_ + 1;
   stats.steps += steps;
   stats.hamiltonian_applications += steps * stages();
   stats.error_estimate += err;
@@ -238,8 +246,10 @@ void SplitOperatorPropagator::advance(const AnnealDrive& drive, double t0, doubl
     // would pick up are below eps x the energy scale, far under any tolerance).
     last_out_ = psi;
     t_out_ = t1;
+    if (t1 >= drive.path.duration_ns() - eps) ticker_.finish(replay_pass_);
     return;
   }
+  const double total = drive.path.duration_ns();
 
   // The main trajectory x_ owes the phase pending_phi_ inside a piece (the
   // last half phase of a step merged with the first of the next, exactly as in
@@ -260,6 +270,7 @@ void SplitOperatorPropagator::advance(const AnnealDrive& drive, double t0, doubl
     open_step(drive, p.at(step_), p.h(), x_, pending_phi_);
     ++steps;
     g = next;
+    ticker_.step(replay_pass_, g, total);
     if (++step_ == p.steps) {
       ex_.phase(x_, pending_phi_);
       pending_phi_ = 0.0;
@@ -286,6 +297,7 @@ void SplitOperatorPropagator::advance(const AnnealDrive& drive, double t0, doubl
   stats.hamiltonian_applications += steps * stages();
   last_out_ = psi;
   t_out_ = t1;
+  if (t1 >= total - eps) ticker_.finish(replay_pass_);
 }
 
 }  // namespace gapwise

@@ -120,6 +120,11 @@ class SplitOperatorPropagator final : public Propagator {
   double pending_phi_ = 0.0;  ///< phase x_ still owes (inside a piece)
   QuantumState last_out_;
   double t_out_ = 0.0;
+  // Progress: trial runs are passes 1, 2, ... of prepare(); the run along the
+  // accepted grid in advance() is pass replay_pass_.
+  ProgressTicker ticker_{opt_};
+  int pass_ = 0;
+  int replay_pass_ = 1;
 };
 
 }  // namespace gapwise

@@ -1,6 +1,7 @@
 #include "io/hdf5_input.hpp"
 
 #include <atomic>
+#include <cmath>
 #include <cstring>
 
 #include <H5Cpp.h>
@@ -147,6 +148,28 @@ std::vector<double> Hdf5Input::read(const std::string& dataset) const {
   } catch (const H5::Exception& e) {
     fail(dataset, "cannot read this dataset: " + e.getDetailMsg(), kRewrite);
   }
+}
+
+namespace {
+const char* kNonFiniteFix =
+    "gapwise writes finite numbers only (-1 marks \"not available\" or an infinite TTS); "
+    "the file was changed after it was written: run the command again to rewrite it";
+}  // namespace
+
+std::vector<double> Hdf5Input::read_finite(const std::string& dataset) const {
+  std::vector<double> v = read(dataset);
+  for (std::size_t k = 0; k < v.size(); ++k)
+    if (!std::isfinite(v[k]))
+      fail(dataset, fmt::format("entry {} (0-based, of {}{}) is {}: a figure would draw a silent gap there", k, v.size(),
+                                shape(dataset).size() > 1 ? ", row-major" : "", v[k]),
+           kNonFiniteFix);
+  return v;
+}
+
+double Hdf5Input::attribute_finite(const std::string& object, const std::string& name) const {
+  const double v = attribute_double(object, name);
+  if (!std::isfinite(v)) fail(attr_key(object, name), fmt::format("the value is {}", v), kNonFiniteFix);
+  return v;
 }
 
 namespace {

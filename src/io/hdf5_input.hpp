@@ -46,9 +46,16 @@ class Hdf5Input {
   std::vector<double> read(const std::string& dataset) const;
   /// Variable-length strings; `expected` checks the count when given.
   std::vector<std::string> read_strings(const std::string& dataset, std::optional<std::size_t> expected = {}) const;
+  /// read(), refusing (InputError naming the dataset and the first bad index) a
+  /// NaN or an infinity. gapwise never writes either (Hdf5Output refuses them;
+  /// "not available" and infinite TTS are stored as -1), so one in a file means
+  /// the file was altered or damaged.
+  std::vector<double> read_finite(const std::string& dataset) const;
   /// Dimensions of a dataset.
   std::vector<std::size_t> shape(const std::string& dataset) const;
   double attribute_double(const std::string& object, const std::string& name) const;
+  /// attribute_double(), refusing a NaN or an infinity as read_finite does.
+  double attribute_finite(const std::string& object, const std::string& name) const;
   std::string attribute_string(const std::string& object, const std::string& name) const;
   /// An integer attribute (a floating-point one is refused).
   long long attribute_int(const std::string& object, const std::string& name) const;

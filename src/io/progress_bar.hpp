@@ -10,6 +10,13 @@
 //   ProgressBar bar("durations", 13, total_cost);   // enabled iff stderr is a terminal
 //   bar.finished_item(cost_of_item);                  // from any thread
 //   bar.done();                                       // clears the line
+//
+// One long item whose own progress is known (an anneal) shows a stage and the
+// fraction of it instead of counts:
+//   bar.stage("run 1 of 2, pass 3", 0.45);   // "anneal run 1 of 2, pass 3 [==========>   ] 45%, 12s elapsed"
+//
+// Forced on (enabled = 1) while stderr is not a terminal (a log file), the bar
+// writes whole lines, at most one every few seconds, instead of redrawing one.
 #include <chrono>
 #include <condition_variable>
 #include <mutex>
@@ -29,6 +36,8 @@ class ProgressBar {
   /// More work discovered (e.g. bisection probes).
   void add_items(std::size_t items, double cost);
   void finished_item(double cost);
+  /// Shows `stage` and the fraction done of it (0 to 1) in place of the counts.
+  void stage(std::string stage, double fraction);
   /// Clears the bar (idempotent).
   void done();
   bool enabled() const { return enabled_; }
@@ -40,7 +49,10 @@ class ProgressBar {
   std::string label_;
   std::size_t total_ = 0, finished_ = 0;
   double total_cost_ = 0, finished_cost_ = 0;
-  bool enabled_ = false, shown_ = false;
+  bool enabled_ = false, shown_ = false, tty_ = false;
+  std::string stage_;
+  double stage_fraction_ = 0;
+  std::chrono::steady_clock::time_point last_line_{};
   std::chrono::steady_clock::time_point start_, last_draw_;
   mutable std::mutex mutex_;
   std::condition_variable wake_;

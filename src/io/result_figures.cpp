@@ -36,14 +36,14 @@ void add_level_series(LinePlot& fig, const std::vector<double>& x, const std::ve
 
 void anneal_trace(const Hdf5Input& in, const Emit& emit) {
   if (!in.has("/anneal/trace/t")) return;
-  const auto t = in.read("/anneal/trace/t"), s = in.read("/anneal/trace/s"), p = in.read("/anneal/trace/ground_probability");
+  const auto t = in.read_finite("/anneal/trace/t"), s = in.read_finite("/anneal/trace/s"), p = in.read_finite("/anneal/trace/ground_probability");
   LinePlot fig;
   fig.title = "Anneal: ground-state probability along the path";
   fig.x_label = "time t (ns)";
   fig.y_label = "probability / anneal fraction";
   fig.y_range = std::pair{0.0, 1.05};
   fig.legend = LinePlot::Legend::TopLeft;
-  fig.note = fmt::format("final ground-state probability {:.6f}", in.attribute_double("/anneal", "ground_probability"));
+  fig.note = fmt::format("final ground-state probability {:.6f}", in.attribute_finite("/anneal", "ground_probability"));
   fig.series.push_back({"ground-state probability", t, p, SeriesStyle::LinePoints});
   fig.series.push_back({"anneal fraction s(t)", t, s, SeriesStyle::Dashed});
   emit("anneal-trace", [&](const std::string& path) { render_figure(fig, path); });
@@ -53,13 +53,13 @@ void anneal_trace(const Hdf5Input& in, const Emit& emit) {
 void spectrum(const Hdf5Input& in, const Emit& emit) {
   const std::string G = "/gap";
   if (!in.has(G + "/curve/energies")) return;
-  const auto s = in.read(G + "/curve/s");
+  const auto s = in.read_finite(G + "/curve/s");
   const auto shape = in.shape(G + "/curve/energies");
-  const auto e = in.read(G + "/curve/energies");
+  const auto e = in.read_finite(G + "/curve/energies");
   const std::size_t n = s.size(), k = shape.size() > 1 ? shape[1] : 1;
   if (e.size() != n * k) return;
-  const double s_star = in.attribute_double(G, "s_star"), gap = in.attribute_double(G, "gap_ghz");
-  const double s_unc = in.attribute_double(G, "s_star_uncertainty");
+  const double s_star = in.attribute_finite(G, "s_star"), gap = in.attribute_finite(G, "gap_ghz");
+  const double s_unc = in.attribute_finite(G, "s_star_uncertainty");
   const std::string definition = in.attribute_string(G, "definition"), sector = in.attribute_string(G, "sector");
 
   LinePlot levels;
@@ -86,9 +86,9 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
     for (double& x : v) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
     return v;
   };
-  gaps.series.push_back({"gap that governs success", s, positive(in.read(G + "/curve/gap")), SeriesStyle::Line, 0});
+  gaps.series.push_back({"gap that governs success", s, positive(in.read_finite(G + "/curve/gap")), SeriesStyle::Line, 0});
   if (in.has(G + "/curve/gap_e1_e0"))
-    gaps.series.push_back({"E1 - E0", s, positive(in.read(G + "/curve/gap_e1_e0")), SeriesStyle::Dashed, 1});
+    gaps.series.push_back({"E1 - E0", s, positive(in.read_finite(G + "/curve/gap_e1_e0")), SeriesStyle::Dashed, 1});
   if (gap > 0) gaps.markers.push_back({s_star, gap, fmt::format("min {:.3g} GHz", gap)});
   // Always logarithmic, however few decades the gap spans: the minimum is what
   // the figure is for, and a linear axis squashes it against zero.
@@ -104,8 +104,8 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
 void duration_study(const Hdf5Input& in, const Emit& emit) {
   const std::string R = "/durations", P = R + "/points";
   if (!in.has(P + "/duration_ns")) return;
-  const auto t = in.read(P + "/duration_ns"), p = in.read(P + "/ground_probability");
-  const double target = in.attribute_double(R, "target_probability");
+  const auto t = in.read_finite(P + "/duration_ns"), p = in.read_finite(P + "/ground_probability");
+  const double target = in.attribute_finite(R, "target_probability");
   auto applicable = [](std::vector<double> v) {  // -1 marks "not applicable"
     for (double& x : v) if (x < 0) x = std::numeric_limits<double>::quiet_NaN();
     return v;
@@ -119,13 +119,13 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   fp.legend = LinePlot::Legend::TopRight;
   fp.series.push_back({"simulated", t, p, SeriesStyle::LinePoints, 0});
   if (in.has(P + "/p_landau_zener"))
-    fp.series.push_back({"Landau-Zener at the minimum gap", t, applicable(in.read(P + "/p_landau_zener")), SeriesStyle::Dashed, 1});
+    fp.series.push_back({"Landau-Zener at the minimum gap", t, applicable(in.read_finite(P + "/p_landau_zener")), SeriesStyle::Dashed, 1});
   if (in.has(P + "/p_adiabatic"))
-    fp.series.push_back({"adiabatic-condition estimate", t, applicable(in.read(P + "/p_adiabatic")), SeriesStyle::Dashed, 2});
+    fp.series.push_back({"adiabatic-condition estimate", t, applicable(in.read_finite(P + "/p_adiabatic")), SeriesStyle::Dashed, 2});
   fp.series.push_back({fmt::format("target p* = {}", target), {t.front(), t.back()}, {target, target}, SeriesStyle::Line, 6});
   if (in.has(R + "/predictions"))
-    fp.note = fmt::format("minimum gap {:.4g} GHz at s* = {:.4f}", in.attribute_double(R + "/predictions", "gap_ghz"),
-                          in.attribute_double(R + "/predictions", "s_star"));
+    fp.note = fmt::format("minimum gap {:.4g} GHz at s* = {:.4f}", in.attribute_finite(R + "/predictions", "gap_ghz"),
+                          in.attribute_finite(R + "/predictions", "s_star"));
   emit("probability", [&](const std::string& path) { render_figure(fp, path); });
 
   LinePlot ft;
@@ -133,11 +133,11 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   ft.x_label = "anneal duration t_f (ns)";
   ft.y_label = "TTS (ns)";
   ft.log_x = ft.log_y = true;
-  auto tts = in.read(P + "/tts_ns");
+  auto tts = in.read_finite(P + "/tts_ns");
   for (double& x : tts) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
   ft.series.push_back({"TTS(t_f) = t_f ln(1-p*)/ln(1-p)", t, tts, SeriesStyle::LinePoints, 0});
   if (in.has(R + "/tts_optimum")) {
-    const double d = in.attribute_double(R + "/tts_optimum", "duration_ns"), v = in.attribute_double(R + "/tts_optimum", "tts_ns");
+    const double d = in.attribute_finite(R + "/tts_optimum", "duration_ns"), v = in.attribute_finite(R + "/tts_optimum", "tts_ns");
     if (v > 0) {
       ft.markers.push_back({d, v, fmt::format("optimum {:.3g} ns at t_f = {:.3g} ns", v, d)});
       ft.note = fmt::format("optimal t_f = {:.4g} ns, TTS = {:.4g} ns", d, v);
@@ -156,13 +156,13 @@ void probability_map(const Hdf5Input& in, const Emit& emit, const std::string& r
   m.x_label = x_label;
   m.y_label = y_label;
   m.value_label = "ground-state probability p";
-  m.x = in.read(root + "/" + xname);
-  m.y = in.read(root + "/" + yname);
-  m.values = in.read(root + "/ground_probability");
+  m.x = in.read_finite(root + "/" + xname);
+  m.y = in.read_finite(root + "/" + yname);
+  m.values = in.read_finite(root + "/ground_probability");
   if (m.values.size() != m.x.size() * m.y.size() || m.x.empty() || m.y.empty()) return;
   // The best cell against the unpaused (or unreversed) reference of the same cost, when the file has one.
   const std::string ref = root + "/reference_ground_probability";
-  std::vector<double> reference = in.has(ref) ? in.read(ref) : std::vector<double>{};
+  std::vector<double> reference = in.has(ref) ? in.read_finite(ref) : std::vector<double>{};
   if (reference.size() != m.y.size()) reference.clear();
   std::size_t bi = 0, bj = 0;
   double best = -std::numeric_limits<double>::infinity();
@@ -176,7 +176,7 @@ void probability_map(const Hdf5Input& in, const Emit& emit, const std::string& r
     const std::string cost = in.has_attribute(root, "cost") ? in.attribute_string(root, "cost") : "";
     m.note = fmt::format("best {:.4f} against {:.4f} without a pause at the same cost ({}{})", pb, reference[bj],
                          cost.empty() ? "" : cost + ", ",
-                         in.has_attribute(root, "duration_ns") ? fmt::format("T = {:g} ns", in.attribute_double(root, "duration_ns")) : "");
+                         in.has_attribute(root, "duration_ns") ? fmt::format("T = {:g} ns", in.attribute_finite(root, "duration_ns")) : "");
     m.markers.push_back({m.x[bi], m.y[bj], fmt::format("best p = {:.4f}", pb)});
   } else {
     m.note = fmt::format("best p = {:.4f} at ({:.4g}, {:.4g})", pb, m.x[bi], m.y[bj]);
@@ -192,19 +192,19 @@ void level_populations(const Hdf5Input& in, const Emit& emit) {
     const std::string name = in.attribute_string(fmt::format("/compare/path_{}", i), "name");
     for (int j = 0; in.has(fmt::format("/compare/path_{}/duration_{}/level_population", i, j)); ++j) {
       const std::string g = fmt::format("/compare/path_{}/duration_{}", i, j);
-      const auto t = in.read(g + "/t");
-      auto pop = in.read(g + "/level_population");
+      const auto t = in.read_finite(g + "/t");
+      auto pop = in.read_finite(g + "/level_population");
       const std::size_t n = t.size(), k = n ? pop.size() / n : 0;
       if (!n || pop.size() != n * k) continue;
       if (in.has(g + "/level_resolved")) {  // unresolved levels are gaps in the curves
-        const auto ok = in.read(g + "/level_resolved");
+        const auto ok = in.read_finite(g + "/level_resolved");
         for (std::size_t q = 0; q < pop.size() && q < ok.size(); ++q)
           if (ok[q] == 0.0) pop[q] = std::numeric_limits<double>::quiet_NaN();
       }
       LinePlot fig;
       fig.title = fmt::format("Populations of the lowest instantaneous levels: path '{}'", name);
       fig.note = fmt::format("duration {:.4g} ns, final ground-state probability {:.6f}",
-                             in.attribute_double(g, "duration_ns"), in.attribute_double(g, "ground_probability"));
+                             in.attribute_finite(g, "duration_ns"), in.attribute_finite(g, "ground_probability"));
       fig.x_label = "time t (ns)";
       fig.y_label = "population";
       fig.y_range = std::pair{0.0, 1.05};
@@ -305,11 +305,11 @@ void ensemble_scaling(const Hdf5Input& in, const Emit& emit) {
 void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
   const std::string E = "/embedding", S = E + "/scan";
   if (!in.has(S + "/chain_coupling")) return;
-  const auto c = in.read(S + "/chain_coupling");
+  const auto c = in.read_finite(S + "/chain_coupling");
   if (c.empty()) return;
-  const double best = in.attribute_double(E, "best_chain_coupling");
-  const double bound = in.attribute_double(E, "chain_coupling_bound");
-  const double t_f = in.attribute_double(E, "duration_ns"), target = in.attribute_double(E, "target");
+  const double best = in.attribute_finite(E, "best_chain_coupling");
+  const double bound = in.attribute_finite(E, "chain_coupling_bound");
+  const double t_f = in.attribute_finite(E, "duration_ns"), target = in.attribute_finite(E, "target");
   const std::pair<double, double> c_span{c.front(), c.back()};
   auto constant = [&](double v) { return std::vector<double>{v, v}; };
   const std::vector<double> c_ends{c_span.first, c_span.second};
@@ -323,18 +323,18 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
   fp.y_label = "probability / fraction";
   fp.y_range = std::pair{0.0, 1.5};  // room above p = 1 for the legend
   fp.legend = LinePlot::Legend::TopRight;
-  fp.series.push_back({"p_logical (majority vote per chain)", c, in.read(S + "/p_logical"), SeriesStyle::LinePoints, 0});
-  fp.series.push_back({"p_physical (physical ground states)", c, in.read(S + "/p_physical"), SeriesStyle::Dashed, 1});
-  fp.series.push_back({"expected fraction of broken chains", c, in.read(S + "/chain_break_fraction"), SeriesStyle::LinePoints, 2});
+  fp.series.push_back({"p_logical (majority vote per chain)", c, in.read_finite(S + "/p_logical"), SeriesStyle::LinePoints, 0});
+  fp.series.push_back({"p_physical (physical ground states)", c, in.read_finite(S + "/p_physical"), SeriesStyle::Dashed, 1});
+  fp.series.push_back({"expected fraction of broken chains", c, in.read_finite(S + "/chain_break_fraction"), SeriesStyle::LinePoints, 2});
   fp.series.push_back({fmt::format("logical problem, unembedded: p = {:.4f}",
-                                   in.attribute_double(E + "/logical", "ground_probability")),
-                       c_ends, constant(in.attribute_double(E + "/logical", "ground_probability")), SeriesStyle::Dashed, 6});
+                                   in.attribute_finite(E + "/logical", "ground_probability")),
+                       c_ends, constant(in.attribute_finite(E + "/logical", "ground_probability")), SeriesStyle::Dashed, 6});
   if (bound >= c_span.first && bound <= c_span.second) fp.vertical_lines.push_back(bound);
   emit("chain-probability", [&](const std::string& path) { render_figure(fp, path); });
 
   // The needed duration, split by what the search established (bounds apart).
-  const auto needed = in.read(S + "/needed_duration");
-  const std::vector<double> kind = in.has(S + "/needed_bound") ? in.read(S + "/needed_bound")
+  const auto needed = in.read_finite(S + "/needed_duration");
+  const std::vector<double> kind = in.has(S + "/needed_bound") ? in.read_finite(S + "/needed_bound")
                                                                : std::vector<double>(c.size(), 0.0);
   const double nan = std::numeric_limits<double>::quiet_NaN();
   std::vector<double> bracketed(c.size(), nan), above(c.size(), nan), below(c.size(), nan);
@@ -350,7 +350,7 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
   fd.series.push_back({"embedded problem", c, bracketed, SeriesStyle::LinePoints, 0});
   fd.series.push_back({"not reached: longer than this", c, above, SeriesStyle::Points, 1});
   fd.series.push_back({"reached at the shortest duration tried", c, below, SeriesStyle::Points, 2});
-  const double logical_ns = in.attribute_double(E + "/logical", "needed_ns");
+  const double logical_ns = in.attribute_finite(E + "/logical", "needed_ns");
   if (logical_ns > 0)
     fd.series.push_back({fmt::format("logical problem, unembedded: {}", in.attribute_string(E + "/logical", "needed")),
                          c_ends, constant(logical_ns), SeriesStyle::Dashed, 6});
@@ -365,8 +365,8 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
   fg.note = bound_text;
   fg.x_label = "chain coupling |J_chain| (problem units)";
   fg.y_label = "minimum gap (GHz)";
-  const auto gaps = in.read(S + "/min_gap");
-  const double logical_gap = in.attribute_double(E + "/logical", "min_gap_ghz");
+  const auto gaps = in.read_finite(S + "/min_gap");
+  const double logical_gap = in.attribute_finite(E + "/logical", "min_gap_ghz");
   double top = logical_gap;
   for (double g : gaps) if (std::isfinite(g)) top = std::max(top, g);
   fg.y_range = std::pair{0.0, 1.3 * top};  // linear from zero: a closing gap reads as one; room for the legend
@@ -383,12 +383,12 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
 void diagnosis(const Hdf5Input& in, const Emit& emit) {
   const std::string D = "/diagnosis";
   if (!in.has(D + "/spectrum/gap")) return;
-  const auto s = in.read(D + "/spectrum/s");
-  auto gap = in.read(D + "/spectrum/gap");
+  const auto s = in.read_finite(D + "/spectrum/s");
+  auto gap = in.read_finite(D + "/spectrum/gap");
   for (double& x : gap) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
   LinePlot fg;
   fg.title = "Diagnosis: the gap that governs success, crossings marked";
-  fg.note = fmt::format("minimum {:.4g} GHz at s* = {:.4f}", in.attribute_double(D, "gap_ghz"), in.attribute_double(D, "s_star"));
+  fg.note = fmt::format("minimum {:.4g} GHz at s* = {:.4f}", in.attribute_finite(D, "gap_ghz"), in.attribute_finite(D, "s_star"));
   fg.x_label = "anneal fraction s";
   fg.y_label = "gap (GHz)";
   fg.log_y = true;
@@ -396,21 +396,21 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
   fg.series.push_back({in.attribute_string(D, "gap_definition").substr(0, in.attribute_string(D, "gap_definition").find(" (")),
                        s, gap, SeriesStyle::Line, 0});
   if (in.has(D + "/crossings/s_star")) {
-    const auto xs = in.read(D + "/crossings/s_star"), xd = in.read(D + "/crossings/delta_min");
-    const auto late = in.read(D + "/crossings/late_crossing_index"), end = in.read(D + "/crossings/end_gap");
+    const auto xs = in.read_finite(D + "/crossings/s_star"), xd = in.read_finite(D + "/crossings/delta_min");
+    const auto late = in.read_finite(D + "/crossings/late_crossing_index"), end = in.read_finite(D + "/crossings/end_gap");
     for (std::size_t k = 0; k < xs.size() && k < xd.size(); ++k) {
       if (!(xd[k] > 0)) continue;
       const char* what = k < end.size() && end[k] != 0 ? "end gap" : k < late.size() && late[k] >= 0 ? "late crossing" : "crossing";
       fg.markers.push_back({xs[k], xd[k], fmt::format("{} {}: {:.3g} GHz", what, k + 1, xd[k])});
     }
   }
-  if (in.has(D + "/overlap/late_crossing_s")) fg.vertical_lines = in.read(D + "/overlap/late_crossing_s");
+  if (in.has(D + "/overlap/late_crossing_s")) fg.vertical_lines = in.read_finite(D + "/overlap/late_crossing_s");
   if (!fg.vertical_lines.empty()) fg.note += "; dotted: where the ground level switches classical level (late crossing)";
   emit("diagnosis-gap", [&](const std::string& path) { render_figure(fg, path); });
 
   if (!in.has(D + "/overlap/ground_weight")) return;
-  const auto os = in.read(D + "/overlap/s");
-  const auto w = in.read(D + "/overlap/ground_weight");
+  const auto os = in.read_finite(D + "/overlap/s");
+  const auto w = in.read_finite(D + "/overlap/ground_weight");
   const std::size_t n = os.size(), k = n ? w.size() / n : 0;
   if (!n || !k || w.size() != n * k) return;
   LinePlot fw;
