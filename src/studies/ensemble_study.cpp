@@ -250,8 +250,10 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
 
   std::map<std::size_t, InstanceOutcome> known;
   std::unique_ptr<ResultJournal> journal;
+  std::shared_ptr<void> journal_guard;  // declared after the journal: released before it closes
   if (group.is_collector() && !run.journal_path.empty()) {
     journal = std::make_unique<ResultJournal>(run.journal_path, ensemble_journal_layout(k_durations), r.numerics_fingerprint);
+    if (run.while_journal_open) journal_guard = run.while_journal_open(*journal);
     for (const auto& [key, values] : journal->records()) {
       const auto i = static_cast<std::size_t>(key.at(0));
       if (i < run.set.instances.size() && run.shard.contains(i)) {
