@@ -316,3 +316,18 @@ TEST_CASE("test_ensemble_interrupt_after_an_instance: Ctrl-C says how many insta
   CHECK(testing::journal_records(journal) == 1);
   CHECK_FALSE(fs::exists(out));
 }
+
+TEST_CASE("test_ensemble_refused_late_leaves_no_journal: an instance refused after others finished leaves no journal") {
+  Inputs in;
+  const fs::path set = in.dir.path / "set";
+  fs::create_directory(set);
+  fs::copy_file(testing::source_dir() / "data-samples/triangle.toml", set / "tri.toml");  // 3 qubits: computed first
+  { std::ofstream(set / "flat.toml") << "qubits = 2\n"; }  // no fields, no couplings: no gap to find, refused late
+  const fs::path out = in.dir.path / "e.h5";
+  const auto r = testing::run_gapwise("ensemble " + q(set) + " " + q(in.schedule) + " -d 1 -q --threads 1 --out " + q(out), in.dir);
+  INFO(r.err);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("flat.toml") != std::string::npos);
+  CHECK_FALSE(fs::exists(fs::path(out.string() + ".journal")));
+  CHECK_FALSE(fs::exists(out));
+}

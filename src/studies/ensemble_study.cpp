@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <cstdio>
 #include <cstring>
 #include <limits>
 #include <map>
@@ -307,7 +308,19 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
   };
   WorkOptions wo;
   wo.threads = std::max(1, run.threads);
-  distribute_work(pending, task, collect, wo);
+  try {
+    distribute_work(pending, task, collect, wo);
+  } catch (const InputError&) {
+    // A refused run (exit 2) leaves no new journal, even when instances finished
+    // before the bad one was found: the run was refused, not interrupted.
+    if (journal && journal->resumed() == 0) {
+      const std::string path = journal->path();
+      journal_guard.reset();
+      journal.reset();
+      std::remove(path.c_str());
+    }
+    throw;
+  }
 
   r.complete_here = group.is_collector();
   if (r.complete_here) {
