@@ -271,3 +271,63 @@ TEST_CASE("test_interrupt_before_first_point: Ctrl-C says nothing was written an
   CHECK_FALSE(fs::exists(out));
   CHECK_FALSE(fs::exists(csv));
 }
+
+TEST_CASE("test_ensemble_interrupt_before_first_instance: Ctrl-C during ensemble says nothing was written") {
+  Inputs in;
+  const fs::path set = in.dir.path / "set";
+  fs::create_directory(set);
+  fs::copy_file(in.problem, set / "ring.toml");  // 8 qubits with fields: one long anneal takes many seconds
+  const fs::path out = in.dir.path / "e.h5", csv = in.dir.path / "e.csv";
+  const fs::path journal = out.string() + ".journal", err = in.dir.path / "err.txt";
+  // Before this notice the shell's background job ignored SIGINT and the run went on to the end.
+  const std::string line = "'" + testing::gapwise_exe() + "' ensemble " + q(set) + " " + q(in.schedule) +
+                           " -d 100000 -q --threads 1 --out " + q(out) + " --csv " + q(csv) + " 2>" + q(err) +
+                           " & pid=$!; for i in $(seq 200); do [ -e " + q(journal) +
+                           " ] && break; sleep 0.05; done; sleep 0.3; kill -INT $pid; wait $pid";
+  const int rc = std::system(line.c_str());
+  CHECK(WEXITSTATUS(rc) == 128 + SIGINT);
+  const std::string said = read_text_file(err.string());
+  INFO(said);
+  CHECK(said.find("interrupted before the first instance finished: nothing was written") != std::string::npos);
+  CHECK(said.find("saved in") == std::string::npos);
+  CHECK_FALSE(fs::exists(journal));
+  CHECK_FALSE(fs::exists(out));
+  CHECK_FALSE(fs::exists(csv));
+}
+
+TEST_CASE("test_ensemble_interrupt_after_an_instance: Ctrl-C says how many instances the journal holds") {
+  Inputs in;
+  const fs::path set = in.dir.path / "set";
+  fs::create_directory(set);
+  fs::copy_file(in.problem, set / "ring.toml");  // slow at 100000 ns
+  fs::copy_file(testing::source_dir() / "data-samples/triangle.toml", set / "tri.toml");  // done in well under a second
+  const fs::path out = in.dir.path / "e.h5", journal = out.string() + ".journal", err = in.dir.path / "err.txt";
+  // Two threads: the triangle finishes while the ring still runs; SIGINT once its record is in the journal.
+  const std::string line = "'" + testing::gapwise_exe() + "' ensemble " + q(set) + " " + q(in.schedule) +
+                           " -d 1,100000 -q --threads 2 --out " + q(out) + " 2>" + q(err) +
+                           " & pid=$!; for i in $(seq 400); do [ -e " + q(journal) + " ] && [ $(wc -l < " + q(journal) +
+                           ") -ge 3 ] && break; sleep 0.05; done; kill -INT $pid; wait $pid";
+  const int rc = std::system(line.c_str());
+  CHECK(WEXITSTATUS(rc) == 128 + SIGINT);
+  const std::string said = read_text_file(err.string());
+  INFO(said);
+  CHECK(said.find("interrupted; 1 finished instance(s) are saved in the journal " + journal.string() +
+                  ". Run the same command again to continue") != std::string::npos);
+  CHECK(testing::journal_records(journal) == 1);
+  CHECK_FALSE(fs::exists(out));
+}
+
+TEST_CASE("test_ensemble_refused_late_leaves_no_journal: an instance refused after others finished leaves no journal") {
+  Inputs in;
+  const fs::path set = in.dir.path / "set";
+  fs::create_directory(set);
+  fs::copy_file(testing::source_dir() / "data-samples/triangle.toml", set / "tri.toml");  // 3 qubits: computed first
+  { std::ofstream(set / "flat.toml") << "qubits = 2\n"; }  // no fields, no couplings: no gap to find, refused late
+  const fs::path out = in.dir.path / "e.h5";
+  const auto r = testing::run_gapwise("ensemble " + q(set) + " " + q(in.schedule) + " -d 1 -q --threads 1 --out " + q(out), in.dir);
+  INFO(r.err);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("flat.toml") != std::string::npos);
+  CHECK_FALSE(fs::exists(fs::path(out.string() + ".journal")));
+  CHECK_FALSE(fs::exists(out));
+}

@@ -14,6 +14,7 @@
 #include "io/atomic_file.hpp"
 #include "io/ensemble_result_file.hpp"
 #include "io/input_error.hpp"
+#include "io/interrupt_notice.hpp"
 #include "io/json_summary.hpp"
 #include "io/result_journal.hpp"
 #include "io/terminal_text.hpp"
@@ -197,6 +198,10 @@ void run_ensemble(const EnsembleOptions& o) {
                                  tts_text(p.last->tts_ns, 4),
                                  p.last->wall_seconds, p.elapsed_seconds, eta);
       };
+    // Ctrl-C: says how many instances the journal holds (or that nothing was written).
+    run.while_journal_open = [&o](const ResultJournal& journal) -> std::shared_ptr<void> {
+      return std::make_shared<InterruptNotice>(journal, std::vector<std::string>{o.out, o.csv}, "instance");
+    };
     const EnsembleResult r = run_ensemble_study(run);
     if (!r.complete_here) return;  // other ranks: rank 0 writes and prints
     write_ensemble_result(o.out, r, command_line(), {o.schedule});

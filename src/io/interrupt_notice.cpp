@@ -52,7 +52,8 @@ extern "C" void on_interrupt(int sig) {
 
 }  // namespace
 
-InterruptNotice::InterruptNotice(const ResultJournal& journal, const std::vector<std::string>& results) {
+InterruptNotice::InterruptNotice(const ResultJournal& journal, const std::vector<std::string>& results,
+                                 const std::string& unit) {
   std::string shown;
   std::size_t k = 0;
   for (const auto& r : results) {
@@ -61,13 +62,13 @@ InterruptNotice::InterruptNotice(const ResultJournal& journal, const std::vector
     if (k < kPaths) put(g_temporaries[k++], kPath, "{}", temporary_path_for(r));
   }
   put(g_with_points, kText,
-      " finished point(s) are saved in the journal {}. Run the same command again to continue from there "
+      " finished {}(s) are saved in the journal {}. Run the same command again to continue from there "
       "and finish {}.\n",
-      journal.path(), shown);
+      unit, journal.path(), shown);
   put(g_without_points, kText,
-      "\ngapwise: interrupted before the first point finished: nothing was written (no result file {}, "
+      "\ngapwise: interrupted before the first {} finished: nothing was written (no result file {}, "
       "and no journal with results; the empty journal {} was removed).\n",
-      shown.empty() ? std::string() : "(" + shown + ")", journal.path());
+      unit, shown.empty() ? std::string() : "(" + shown + ")", journal.path());
   put(g_journal_path, kPath, "{}", journal.path());
   g_journal = &journal;
   std::signal(SIGINT, on_interrupt);

@@ -17,7 +17,9 @@ class ResultJournal;
 class InterruptNotice {
  public:
   /// `results`: the result files the run writes (empty strings are skipped).
-  InterruptNotice(const ResultJournal& journal, const std::vector<std::string>& results);
+  /// `unit`: what one journal record is, in the message ("point", "instance").
+  InterruptNotice(const ResultJournal& journal, const std::vector<std::string>& results,
+                  const std::string& unit = "point");
   ~InterruptNotice();  ///< restores the default handlers
   InterruptNotice(const InterruptNotice&) = delete;
   InterruptNotice& operator=(const InterruptNotice&) = delete;

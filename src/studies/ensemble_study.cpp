@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <cstdio>
 #include <cstring>
 #include <limits>
 #include <map>
@@ -250,8 +251,10 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
 
   std::map<std::size_t, InstanceOutcome> known;
   std::unique_ptr<ResultJournal> journal;
+  std::shared_ptr<void> journal_guard;  // declared after the journal: released before it closes
   if (group.is_collector() && !run.journal_path.empty()) {
     journal = std::make_unique<ResultJournal>(run.journal_path, ensemble_journal_layout(k_durations), r.numerics_fingerprint);
+    if (run.while_journal_open) journal_guard = run.while_journal_open(*journal);
     for (const auto& [key, values] : journal->records()) {
       const auto i = static_cast<std::size_t>(key.at(0));
       if (i < run.set.instances.size() && run.shard.contains(i)) {
@@ -305,7 +308,19 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
   };
   WorkOptions wo;
   wo.threads = std::max(1, run.threads);
-  distribute_work(pending, task, collect, wo);
+  try {
+    distribute_work(pending, task, collect, wo);
+  } catch (const InputError&) {
+    // A refused run (exit 2) leaves no new journal, even when instances finished
+    // before the bad one was found: the run was refused, not interrupted.
+    if (journal && journal->resumed() == 0) {
+      const std::string path = journal->path();
+      journal_guard.reset();
+      journal.reset();
+      std::remove(path.c_str());
+    }
+    throw;
+  }
 
   r.complete_here = group.is_collector();
   if (r.complete_here) {

@@ -22,6 +22,7 @@
 //   if (r.complete_here) write_ensemble_result("study.h5", r, command_line);
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
@@ -34,6 +35,8 @@
 #include "studies/time_to_solution.hpp"
 
 namespace gapwise {
+
+class ResultJournal;
 
 struct EnsembleSettings {
   std::vector<double> durations_ns;  ///< ascending, > 0
@@ -140,6 +143,10 @@ struct EnsembleRun {
   std::string journal_path;    ///< "" for no journal
   int threads = 1;             ///< compute threads without MPI
   std::function<void(const EnsembleProgress&)> progress;  ///< on the collector, after each instance
+  /// On the collector, once the journal is open: what it returns is kept until
+  /// just before the journal is closed (the command line keeps its Ctrl-C notice
+  /// there, so the notice never outlives the journal it reports on).
+  std::function<std::shared_ptr<void>(const ResultJournal&)> while_journal_open;
 };
 
 /// Call on every rank. Validates everything before any work is handed out.
