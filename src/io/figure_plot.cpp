@@ -187,12 +187,15 @@ void render_figure(const LinePlot& requested, const std::string& path) {
       if (hi - lo < 1.5) log = false;
     }
   }
-  auto [x0, x1] = plot.x_range ? std::pair{plot.log_x ? std::log10(plot.x_range->first) : plot.x_range->first,
+  // Plain variables, not structured bindings: clang 14 (the fuzz build) cannot
+  // capture a structured binding in the drawing lambda below.
+  const auto [x0_, x1_] = plot.x_range ? std::pair{plot.log_x ? std::log10(plot.x_range->first) : plot.x_range->first,
                                            plot.log_x ? std::log10(plot.x_range->second) : plot.x_range->second}
                                : range_of(plot, false, plot.log_x);
-  auto [y0, y1] = plot.y_range ? std::pair{plot.log_y ? std::log10(plot.y_range->first) : plot.y_range->first,
+  const auto [y0_, y1_] = plot.y_range ? std::pair{plot.log_y ? std::log10(plot.y_range->first) : plot.y_range->first,
                                            plot.log_y ? std::log10(plot.y_range->second) : plot.y_range->second}
                                : range_of(plot, true, plot.log_y);
+  const double x0 = x0_, x1 = x1_, y0 = y0_, y1 = y1_;
   draw_figure_file(path, [&](plstream& p) {
     p.adv(0);
     p.vpor(0.1, 0.95, 0.12, 0.86);
