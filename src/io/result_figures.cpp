@@ -325,7 +325,7 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
   fp.legend = LinePlot::Legend::TopRight;
   fp.series.push_back({"p_logical (majority vote per chain)", c, in.read_finite(S + "/p_logical"), SeriesStyle::LinePoints, 0});
   fp.series.push_back({"p_physical (physical ground states)", c, in.read_finite(S + "/p_physical"), SeriesStyle::Dashed, 1});
-  fp.series.push_back({"expected fraction of broken chains", c, in.read_finite(S + "/chain_break_fraction"), SeriesStyle::LinePoints, 2});
+  fp.series.push_back({"expected broken-chain share", c, in.read_finite(S + "/broken_chain_share"), SeriesStyle::LinePoints, 2});
   fp.series.push_back({fmt::format("logical problem, unembedded: p = {:.4f}",
                                    in.attribute_finite(E + "/logical", "ground_probability")),
                        c_ends, constant(in.attribute_finite(E + "/logical", "ground_probability")), SeriesStyle::Dashed, 6});
