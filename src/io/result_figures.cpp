@@ -40,12 +40,12 @@ void anneal_trace(const Hdf5Input& in, const Emit& emit) {
   LinePlot fig;
   fig.title = "Anneal: ground-state probability along the path";
   fig.x_label = "time t (ns)";
-  fig.y_label = "probability / anneal fraction";
+  fig.y_label = "probability / schedule parameter s";
   fig.y_range = std::pair{0.0, 1.05};
   fig.legend = LinePlot::Legend::TopLeft;
   fig.note = fmt::format("final ground-state probability {:.6f}", in.attribute_finite("/anneal", "ground_probability"));
   fig.series.push_back({"ground-state probability", t, p, SeriesStyle::LinePoints});
-  fig.series.push_back({"anneal fraction s(t)", t, s, SeriesStyle::Dashed});
+  fig.series.push_back({"schedule parameter s(t)", t, s, SeriesStyle::Dashed});
   emit("anneal-trace", [&](const std::string& path) { render_figure(fig, path); });
 }
 
@@ -65,7 +65,7 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
   LinePlot levels;
   levels.title = "Lowest levels of H(s)";
   levels.note = fmt::format("sector: {}; minimum gap {:.4g} GHz at s* = {:.4f} (+- {:.1g})", sector, gap, s_star, s_unc);
-  levels.x_label = "anneal fraction s";
+  levels.x_label = "schedule parameter s";
   levels.y_label = "energy (GHz)";
   for (std::size_t j = 0; j < k; ++j) {
     PlotSeries ser{j < 6 ? fmt::format("E{}", j) : "", s, std::vector<double>(n), SeriesStyle::Line, static_cast<int>(j)};
@@ -79,7 +79,7 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
   gaps.title = "Spectral gap along the anneal";
   const std::string short_definition = definition.substr(0, definition.find(" ("));
   gaps.note = fmt::format("gap = {}; minimum {:.4g} GHz at s* = {:.4f}", short_definition, gap, s_star);
-  gaps.x_label = "anneal fraction s";
+  gaps.x_label = "schedule parameter s";
   gaps.y_label = "gap (GHz)";
   gaps.log_y = true;
   auto positive = [](std::vector<double> v) {
@@ -389,7 +389,7 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
   LinePlot fg;
   fg.title = "Diagnosis: the gap that governs success, crossings marked";
   fg.note = fmt::format("minimum {:.4g} GHz at s* = {:.4f}", in.attribute_finite(D, "gap_ghz"), in.attribute_finite(D, "s_star"));
-  fg.x_label = "anneal fraction s";
+  fg.x_label = "schedule parameter s";
   fg.y_label = "gap (GHz)";
   fg.log_y = true;
   fg.legend = LinePlot::Legend::BottomLeft;
@@ -416,7 +416,7 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
   LinePlot fw;
   fw.title = "Diagnosis: weight of each instantaneous level on the classical ground states";
   fw.note = "a level that ends in the ground manifold rises to 1 at s = 1; a late switch shows as a step";
-  fw.x_label = "anneal fraction s";
+  fw.x_label = "schedule parameter s";
   fw.y_label = "weight on the ground manifold";
   fw.y_range = std::pair{0.0, 1.05};
   fw.legend = LinePlot::Legend::TopLeft;
