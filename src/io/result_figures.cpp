@@ -397,15 +397,15 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
                        s, gap, SeriesStyle::Line, 0});
   if (in.has(D + "/crossings/s_star")) {
     const auto xs = in.read_finite(D + "/crossings/s_star"), xd = in.read_finite(D + "/crossings/delta_min");
-    const auto late = in.read_finite(D + "/crossings/late_crossing_index"), end = in.read_finite(D + "/crossings/end_gap");
+    const auto late = in.read_finite(D + "/crossings/perturbative_crossing_index"), end = in.read_finite(D + "/crossings/end_gap");
     for (std::size_t k = 0; k < xs.size() && k < xd.size(); ++k) {
       if (!(xd[k] > 0)) continue;
-      const char* what = k < end.size() && end[k] != 0 ? "end gap" : k < late.size() && late[k] >= 0 ? "late crossing" : "crossing";
+      const char* what = k < end.size() && end[k] != 0 ? "end gap" : k < late.size() && late[k] >= 0 ? "perturbative crossing" : "crossing";
       fg.markers.push_back({xs[k], xd[k], fmt::format("{} {}: {:.3g} GHz", what, k + 1, xd[k])});
     }
   }
-  if (in.has(D + "/overlap/late_crossing_s")) fg.vertical_lines = in.read_finite(D + "/overlap/late_crossing_s");
-  if (!fg.vertical_lines.empty()) fg.note += "; dotted: where the ground level switches classical level (late crossing)";
+  if (in.has(D + "/overlap/perturbative_crossing_s")) fg.vertical_lines = in.read_finite(D + "/overlap/perturbative_crossing_s");
+  if (!fg.vertical_lines.empty()) fg.note += "; dotted: where the ground level switches classical level (perturbative crossing)";
   emit("diagnosis-gap", [&](const std::string& path) { render_figure(fg, path); });
 
   if (!in.has(D + "/overlap/ground_weight")) return;
