@@ -207,7 +207,7 @@ TEST_CASE("loss bookkeeping: no negative loss, population regained is reported a
                                       dir);
   CHECK(r.exit_code == 0);
   CHECK(r.out.find("loss -") == std::string::npos);
-  CHECK(r.out.find("elsewhere         gain") != std::string::npos);
+  CHECK(r.out.find("elsewhere             gain") != std::string::npos);
   CHECK(r.out.find("the losses add up:") != std::string::npos);
 }
 
