@@ -39,7 +39,7 @@ TEST_CASE("embed-cost on the sample: JSON report, CSV, HDF5 and the physical pro
   INFO(r.err);
   REQUIRE(r.exit_code == 0);
   for (const char* key : {"\"price_of_embedding\"", "\"best_chain_coupling\"", "\"p_logical\"", "\"min_gap_ghz\"",
-                          "\"chain_break_fraction\"", "\"needed_ns\"", "\"logical\""})
+                          "\"broken_chain_share\"", "\"needed_ns\"", "\"logical\""})
     CHECK(r.out.find(key) != std::string::npos);
   // Strengths 1x and 3x from the command line plus the file's own 2x.
   std::ifstream c(csv);

@@ -1,11 +1,11 @@
-// Late crossings: the ground level's overlap with the classical ground manifold.
+// Perturbative crossings: the ground level's overlap with the classical ground manifold.
 #include <doctest/doctest.h>
 
 #include <cmath>
 
 #include <Eigen/Dense>
 
-#include "late_crossing_instance.hpp"
+#include "perturbative_crossing_instance.hpp"
 #include "studies/ground_overlap_track.hpp"
 
 using namespace gapwise;
@@ -31,7 +31,7 @@ double reference_ground_weight(const IsingProblem& p, double a, double b, BasisI
 
 }  // namespace
 
-TEST_CASE("a late crossing is found where the ground level's overlap switches") {
+TEST_CASE("a perturbative crossing is found where the ground level's overlap switches") {
   const int k = 6;
   const double delta = 1.0;
   const IsingProblem p = core_and_leaves(k, delta);
@@ -43,8 +43,8 @@ TEST_CASE("a late crossing is found where the ground level's overlap switches") 
   OverlapTrackOptions opt;
   opt.grid_points = 101;
   const OverlapTrack tr = track_ground_overlap(H, gm, scales, opt);
-  REQUIRE(tr.late_crossings.size() == 1);
-  const LateCrossing& x = tr.late_crossings[0];
+  REQUIRE(tr.perturbative_crossings.size() == 1);
+  const PerturbativeCrossing& x = tr.perturbative_crossings[0];
 
   // 1. The switch: bisection on the independent dense reference to 1e-9.
   double lo = x.s_before, hi = x.s_after;
@@ -80,7 +80,7 @@ TEST_CASE("a late crossing is found where the ground level's overlap switches") 
   CHECK(x.gap_at_switch_ghz < 0.2);
 }
 
-TEST_CASE("a single qubit has no late crossing and its ground weight matches the closed form") {
+TEST_CASE("a single qubit has no perturbative crossing and its ground weight matches the closed form") {
   // One qubit, H = -(A/2) X + (B h/2) Z: the ground state's weight on the
   // classical ground state is (1 + |B h| / sqrt(A^2 + B^2 h^2)) / 2 (two-level
   // eigenvector, textbook), never below 1/2: no switch can happen.
@@ -93,7 +93,7 @@ TEST_CASE("a single qubit has no late crossing and its ground weight matches the
   opt.levels = 2;
   opt.grid_points = 21;
   const OverlapTrack tr = track_ground_overlap(H, gm, scales, opt);
-  CHECK(tr.late_crossings.empty());
+  CHECK(tr.perturbative_crossings.empty());
   for (const auto& pt : tr.points) {
     const double a = 5 * (1 - pt.s), b = 5 * pt.s * 0.4;
     const double w = 0.5 * (1 + b / std::sqrt(a * a + b * b));
@@ -102,7 +102,7 @@ TEST_CASE("a single qubit has no late crossing and its ground weight matches the
   }
 }
 
-TEST_CASE("a ferromagnetic chain's ordinary crossing is not reported as a late crossing") {
+TEST_CASE("a ferromagnetic chain's ordinary crossing is not reported as a perturbative crossing") {
   // Three qubits, J = -1 chain, a field favouring all spins +1: the ground
   // state goes from |+>^3 (weight 1/8 on every state) straight to the aligned
   // state without ever being dominated by an excited classical level
@@ -114,7 +114,7 @@ TEST_CASE("a ferromagnetic chain's ordinary crossing is not reported as a late c
   const TransverseIsingHamiltonian H(p);
   const GroundManifold gm = find_ground_manifold(p, H.diagonal());
   const OverlapTrack tr = track_ground_overlap(H, gm, EnergyScales::linear(5.0, 5.0));
-  CHECK(tr.late_crossings.empty());
+  CHECK(tr.perturbative_crossings.empty());
   CHECK(tr.points.front().levels[0].ground_weight == doctest::Approx(1.0 / 8));
   CHECK(tr.points.back().levels[0].ground_weight == doctest::Approx(1.0));
 }

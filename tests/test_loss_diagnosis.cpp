@@ -12,14 +12,14 @@
 #include "io/input_error.hpp"
 #include "io/problem_file.hpp"
 #include "io/schedule_file.hpp"
-#include "late_crossing_instance.hpp"
+#include "perturbative_crossing_instance.hpp"
 #include "studies/loss_diagnosis.hpp"
 #include "test_support.hpp"
 
 using namespace gapwise;
 using gapwise::testing::core_and_leaves;
 
-// The instance and why it has a late crossing: late_crossing_instance.hpp.
+// The instance and why it has a perturbative crossing: perturbative_crossing_instance.hpp.
 
 TEST_CASE("the diagnosis names a sharpening crossing and its Landau-Zener loss matches the simulated transfer") {
   // Zener, Proc. R. Soc. A 137, 696 (1932): an isolated two-level crossing
@@ -38,16 +38,16 @@ TEST_CASE("the diagnosis names a sharpening crossing and its Landau-Zener loss m
     const Diagnosis d = diagnose_anneal(core_and_leaves(c.k, 0.5), sch, o);
     REQUIRE(d.crossings.size() == 1);
     const AvoidedCrossing& x = d.crossings[0];
-    REQUIRE(x.late_crossing.has_value());
+    REQUIRE(x.perturbative_crossing.has_value());
     const CrossingPassage& ps = x.passages[0];
     CHECK(ps.landau_zener_loss > 0.4);
     CHECK(ps.landau_zener_loss < 0.7);
     CHECK(std::abs(ps.transferred - ps.landau_zener_loss) < 0.02);
-    // The late crossing is the gap minimum: the overlap switches at s*.
-    CHECK(std::abs(d.overlap.late_crossings[*x.late_crossing].s_switch - x.minimum.s) < 0.01);
+    // The perturbative crossing is the gap minimum: the overlap switches at s*.
+    CHECK(std::abs(d.overlap.perturbative_crossings[*x.perturbative_crossing].s_switch - x.minimum.s) < 0.01);
     // It limits p: ranked first, and the transfer accounts for the loss.
     const DurationDiagnosis& run = d.runs[0];
-    CHECK(run.channels.front().kind == ChannelKind::LateCrossing);
+    CHECK(run.channels.front().kind == ChannelKind::PerturbativeCrossing);
     CHECK(std::abs((1 - run.anneal.ground_probability) - ps.transferred) < 0.01);
     // The lost probability sits on the excited manifold delta above the ground state.
     REQUIRE(!run.outcome.sink_levels.empty());
@@ -179,7 +179,7 @@ TEST_CASE("loss bookkeeping: no negative loss, population regained is reported a
   // Common practice, no source: probability is conserved, so the population
   // moved at the crossings plus the rest must equal 1 - p exactly, and a
   // return of population is a gain, not a negative loss. The hub-and-leaves
-  // sample at 100 ns loses more across its late-crossing window than it ends
+  // sample at 100 ns loses more across its perturbative-crossing window than it ends
   // with (part comes back after the window), so the remainder is a gain.
   using namespace gapwise::testing;
   const IsingProblem hub = read_problem_file((source_dir() / "data-samples" / "hub-and-leaves.toml").string());
@@ -207,7 +207,7 @@ TEST_CASE("loss bookkeeping: no negative loss, population regained is reported a
                                       dir);
   CHECK(r.exit_code == 0);
   CHECK(r.out.find("loss -") == std::string::npos);
-  CHECK(r.out.find("elsewhere         gain") != std::string::npos);
+  CHECK(r.out.find("elsewhere             gain") != std::string::npos);
   CHECK(r.out.find("the losses add up:") != std::string::npos);
 }
 
@@ -283,7 +283,7 @@ TEST_CASE("the Landau-Zener duration of a crossing is checked by one simulated a
   // The verdict says what the number is and shows the simulated value.
   bool said = false;
   for (const Channel& ch : d.runs[0].channels)
-    if (ch.kind == ChannelKind::LateCrossing)
+    if (ch.kind == ChannelKind::PerturbativeCrossing)
       said = ch.verdict.find("Landau-Zener extrapolation") != std::string::npos &&
              ch.verdict.find(fmt::format("p = {:.4f}", x.check_ground_probability)) != std::string::npos;
   CHECK(said);
@@ -306,7 +306,7 @@ TEST_CASE("the Landau-Zener duration of a crossing is checked by one simulated a
   const Hdf5Input in(h5.string());
   const std::vector<double> cp = in.read_list("/diagnosis/crossings/check_ground_probability");
   REQUIRE(!cp.empty());
-  CHECK(cp[0] > 0.9);  // the late crossing of this sample: 0.99 targeted
+  CHECK(cp[0] > 0.9);  // the perturbative crossing of this sample: 0.99 targeted
   CHECK(in.read_list("/diagnosis/crossings/landau_zener_duration").size() == cp.size());
 }
 
@@ -315,7 +315,7 @@ TEST_CASE("diagnose --help lists every channel") {
   TempDir dir;
   const CommandResult r = run_gapwise("diagnose --help", dir);
   CHECK(r.exit_code == 0);
-  for (ChannelKind k : {ChannelKind::AvoidedCrossing, ChannelKind::LateCrossing, ChannelKind::EndGap,
+  for (ChannelKind k : {ChannelKind::AvoidedCrossing, ChannelKind::PerturbativeCrossing, ChannelKind::EndGap,
                         ChannelKind::Elsewhere, ChannelKind::UnfairSampling, ChannelKind::ControlErrors}) {
     CAPTURE(channel_kind_name(k));
     CHECK(r.out.find(std::string("  ") + channel_kind_name(k) + " ") != std::string::npos);

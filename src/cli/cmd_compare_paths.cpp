@@ -18,7 +18,7 @@
 #include "io/input_error.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
-#include "studies/gap_adapted_schedule.hpp"
+#include "studies/local_adiabatic_schedule.hpp"
 #include "studies/shape_comparison.hpp"
 #include "studies/work_estimate.hpp"
 
@@ -29,7 +29,7 @@ struct CompareOptions {
   std::string problem;
   std::vector<std::string> schedules, pauses, quenches;
   std::string durations, out, csv, propagator = SimulationOptions{}.propagator;
-  bool gap_adapted = false, allow_long = false;
+  bool local_adiabatic = false, allow_long = false;
   int levels = 4, points = 60, threads = 0, waypoints = 200;
   double tolerance = 1e-6, target = kDefaultTargetProbability;
 };
@@ -84,12 +84,12 @@ void run_compare(const CompareOptions& o) {
     const auto [s, f] = two_numbers(text, "--quench");
     cands.push_back({fmt::format("quench from s={:g} in {:g}%", s, 100 * f), with_shape(base, {.quench = QuenchSpec{s, f}}, "--quench")});
   }
-  std::optional<GapAdaptedSchedule> gap;
-  if (o.gap_adapted) {
+  std::optional<LocalAdiabaticSchedule> gap;
+  if (o.local_adiabatic) {
     const TransverseIsingHamiltonian H(p);
-    std::cerr << "computing the spectrum along s for the gap-adapted path...\n";
-    gap = gap_adapted_schedule(H, base, {}, {.waypoints = o.waypoints});
-    cands.push_back({"gap-adapted", gap->schedule});
+    std::cerr << "computing the spectrum along s for the local adiabatic schedule...\n";
+    gap = local_adiabatic_schedule(H, base, {}, {.waypoints = o.waypoints});
+    cands.push_back({"local adiabatic", gap->schedule});
   }
   ShapeComparisonOptions co;
   co.durations_ns = parse_value_list(o.durations, "--duration-ns");
@@ -111,7 +111,7 @@ void run_compare(const CompareOptions& o) {
   std::cout << fmt::format("levels   populations of the lowest {} instantaneous levels ({})\n", o.levels,
                            describe_sector(r.sector));
   if (gap)
-    std::cout << fmt::format("gap      {:.6g} GHz at s* = {:.6g} ({}); gap-adapted I = {:.6g} ns\n", gap->report.gap_ghz,
+    std::cout << fmt::format("gap      {:.6g} GHz at s* = {:.6g} ({}); local adiabatic I = {:.6g} ns\n", gap->report.gap_ghz,
                              gap->report.s_star, gap->report.definition, gap->path.integral_ns);
   TextTable t({"path", "duration_ns", "end_ns", "p_ground", fmt::format("TTS{:g}_ns", 100 * o.target), "largest leak (s)",
                "leak", "level0_end"});
@@ -203,15 +203,15 @@ void register_compare_paths(CLI::App& app) {
       "lowest instantaneous levels along s, so you see where population leaks out of the ground\n"
       "level. All schedules must share the same energy scales (paths are compared, not hardware).\n"
       "Example: gapwise compare-paths data-samples/weak-field-ring.toml schedules/linear.toml \\\n"
-      "           --pause 0.5:0.2 --gap-adapted --duration-ns 10,20 --out cmp.h5");
+      "           --pause 0.5:0.2 --local-adiabatic --duration-ns 10,20 --out cmp.h5");
   sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedules", o->schedules, "schedule files; the first is the base for generated shapes")
       ->required()->check(readable_input_file());
   sub->add_option("-d,--duration-ns", o->durations, "total durations: a list 10,20,50 or a range FIRST:LAST:COUNT")->required();
   sub->add_option("--pause", o->pauses, "add the base path with a pause S:FRACTION (at s = S for FRACTION of the duration); repeatable");
   sub->add_option("--quench", o->quenches, "add the base path quenched from s = S to 1 in FRACTION of the duration; repeatable");
-  sub->add_flag("--gap-adapted", o->gap_adapted, "add the gap-adapted path (see `gapwise gap-path --help`)");
-  sub->add_option("--waypoints", o->waypoints, "waypoints of the gap-adapted path")->capture_default_str();
+  sub->add_flag("--local-adiabatic", o->local_adiabatic, "add the local adiabatic schedule (see `gapwise gap-path --help`)");
+  sub->add_option("--waypoints", o->waypoints, "waypoints of the local adiabatic schedule")->capture_default_str();
   sub->add_option("--levels", o->levels, "instantaneous levels whose populations are followed")->capture_default_str()->check(CLI::Range(1, 64));
   sub->add_option("--points", o->points, "population observations along each run (about)")->capture_default_str()->check(CLI::Range(2, 100000));
   sub->add_option("--target", o->target, "target success probability of the time to solution")->capture_default_str();

@@ -182,7 +182,7 @@ void run_embed_cost(const EmbedCostOptions& o) {
       put(e, "gap_definition", p.m.gap.definition);
       put(e, "p_logical", p.m.p_success);
       put(e, "p_physical", p.m.p_physical);
-      put(e, "chain_break_fraction", p.m.decoded.mean_broken_fraction);
+      put(e, "broken_chain_share", p.m.decoded.mean_broken_fraction);
       put(e, "any_break_probability", p.m.decoded.any_break_probability);
       put(e, "tie_probability", p.m.decoded.tie_probability);
       put(e, "needed_ns", p.m.needed.ns);
@@ -264,7 +264,7 @@ void run_embed_cost(const EmbedCostOptions& o) {
     h5.write("/embedding/scan/s_star", sstar, "1");
     h5.write("/embedding/scan/p_logical", pl, "1");
     h5.write("/embedding/scan/p_physical", pp, "1");
-    h5.write("/embedding/scan/chain_break_fraction", broken, "1");
+    h5.write("/embedding/scan/broken_chain_share", broken, "1");
     h5.write("/embedding/scan/needed_duration", needed, "ns");
     std::vector<long long> bound, intact;
     for (const auto& p : r.points) {
@@ -289,7 +289,7 @@ void register_embed_cost(CLI::App& app) {
       "its chain of physical qubits (see the user guide). For each chain strength the\n"
       "physical problem is built (fields and couplings split over chains, ferromagnetic\n"
       "chains) and gapwise reports its minimum gap, p_logical at t_f (majority vote per\n"
-      "chain), the chain-break fraction and the duration needed for p_logical >= target;\n"
+      "chain), the broken-chain share and the duration needed for p_logical >= target;\n"
       "then the best chain strength and the price of embedding: the duration needed on\n"
       "the embedded problem over that on the logical problem (under the same term limit).\n"
       "Example: gapwise embed-cost data-samples/triangle.toml data-samples/triangle-ring-embedding.toml \\\n"

@@ -1,4 +1,4 @@
-// `gapwise gap-path PROBLEM SCHEDULE --out PATH.toml`: the gap-adapted path of
+// `gapwise gap-path PROBLEM SCHEDULE --out PATH.toml`: the local adiabatic schedule of
 // a problem (local adiabatic condition, Roland & Cerf 2002) written as a
 // schedule file to reuse and edit.
 #include <iostream>
@@ -11,7 +11,7 @@
 #include "io/output_paths.hpp"
 #include "io/atomic_file.hpp"
 #include "io/input_error.hpp"
-#include "studies/gap_adapted_schedule.hpp"
+#include "studies/local_adiabatic_schedule.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -38,15 +38,15 @@ void run_gap_path(const GapPathOptions& o) {
   GapSearchOptions search;
   search.levels = o.levels;
   search.coarse_points = o.coarse;
-  GapAdaptedSchedule g;
+  LocalAdiabaticSchedule g;
   try {
-    g = gap_adapted_schedule(H, base, search, {.waypoints = o.waypoints, .matrix_element_floor = o.floor});
+    g = local_adiabatic_schedule(H, base, search, {.waypoints = o.waypoints, .matrix_element_floor = o.floor});
   } catch (const InputError& e) {
     if (e.place().key != "gap profile") throw;
     throw InputError({"--waypoints/--floor", 0, 0, e.place().key}, e.problem(), e.fix());
   }
   std::string text = fmt::format(
-      "# Gap-adapted path for {} written by `{}`.\n"
+      "# Local adiabatic schedule for {} written by `{}`.\n"
       "# Local adiabatic condition (Roland & Cerf, Phys. Rev. A 65, 042308 (2002)):\n"
       "# ds/dt = eps Delta(s)^2 / |<g|dH/ds|0>|, so a run of T ns has eps = I / T with I = {:.6g} ns.\n"
       "# Gap {} = {:.6g} GHz at s = {:.6g} ({}). Edit freely: the waypoints are an ordinary path.\n",
@@ -83,7 +83,7 @@ void run_gap_path(const GapPathOptions& o) {
 void register_gap_path(CLI::App& app) {
   auto o = std::make_shared<GapPathOptions>();
   CLI::App* sub = app.add_subcommand("gap-path",
-      "Build the gap-adapted path of PROBLEM under SCHEDULE's energy scales and write it as a\n"
+      "Build the local adiabatic schedule of PROBLEM under SCHEDULE's energy scales and write it as a\n"
       "schedule file. The path follows the local adiabatic condition (Roland & Cerf, PRA 65,\n"
       "042308 (2002)): ds/dt proportional to Delta(s)^2 / |<g|dH/ds|0>|, with Delta the gap that\n"
       "governs success (E_g - E_0 for a g-fold ground manifold, in the even sector when there are\n"

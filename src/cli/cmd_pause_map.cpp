@@ -178,7 +178,7 @@ void register_pause_map(CLI::App& app) {
   auto o = std::make_shared<PauseMapCli>();
   CLI::App* sub = app.add_subcommand("pause-map",
       "Does a pause help, where and for how long? Ground-state probability over pause location\n"
-      "(--at, anneal fraction) x pause duration (--pause-ns), inserted into SCHEDULE's path, at\n"
+      "(--at, schedule parameter s) x pause duration (--pause-ns), inserted into SCHEDULE's path, at\n"
       "equal cost: with --cost total (default) every run takes --duration-ns and the pause eats\n"
       "into the ramp; with --cost added the ramp keeps --duration-ns and the pause adds to it\n"
       "(the unpaused reference is then stretched to the same total, and TTS counts the pause).\n"

@@ -76,7 +76,7 @@ class LevelPopulationObserver final : public AnnealObserver {
 /// Where the instantaneous ground level lost the most population between two
 /// consecutive observations (the first row pair with the largest drop).
 struct PopulationLeak {
-  double s_from = 0, s_to = 0;   ///< anneal fractions of the two observations
+  double s_from = 0, s_to = 0;   ///< values of s at the two observations
   double t_from_ns = 0, t_to_ns = 0;
   double drop = 0;               ///< population lost by level 0 in that step (0 when it never falls)
   double final_ground_level = 0; ///< level-0 population at the last observation

@@ -30,14 +30,14 @@ std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c)
   out += fmt::format("adiabatic scale  t_ad = {:.4g} ns (max_s |<g|dH/ds|0>| / (2 pi Delta(s)^2))\n",
                      d.gap.adiabatic_time_ns);
 
-  TextTable xs({"#", "kind", "s*", "Delta_min_GHz", "slope_GHz", "window_s", "late_switch_s", "excited_E", "states"});
+  TextTable xs({"#", "kind", "s*", "Delta_min_GHz", "slope_GHz", "window_s", "switch_s", "excited_E", "states"});
   for (std::size_t i = 0; i < d.crossings.size(); ++i) {
     const AvoidedCrossing& x = d.crossings[i];
-    std::vector<std::string> row{std::to_string(i + 1), x.at_end_point ? "end gap" : x.late_crossing ? "late" : "avoided", fmt_num(x.minimum.s, 6),
+    std::vector<std::string> row{std::to_string(i + 1), x.at_end_point ? "end gap" : x.perturbative_crossing ? "perturbative" : "avoided", fmt_num(x.minimum.s, 6),
                                  fmt_num(x.minimum.gap_ghz, 5), fmt_num(x.diabatic_slope_ghz, 4),
                                  fmt::format("{:.3f}-{:.3f}{}", x.window_s_before, x.window_s_after, x.broad ? "*" : "")};
-    if (x.late_crossing) {
-      const LateCrossing& l = d.overlap.late_crossings[*x.late_crossing];
+    if (x.perturbative_crossing) {
+      const PerturbativeCrossing& l = d.overlap.perturbative_crossings[*x.perturbative_crossing];
       row.insert(row.end(), {fmt_num(l.s_switch, 6), fmt_num(l.excited_energy, 6), std::to_string(l.excited_degeneracy)});
     } else {
       row.insert(row.end(), {"", "", ""});
@@ -75,9 +75,9 @@ std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c)
     out += "Landau-Zener extrapolation (duration for the target loss at each crossing) and one anneal simulated there\n" +
            lz.render();
   }
-  if (!d.overlap.late_crossings.empty()) {
-    out += "late crossings (ground level leaves an excited classical level for the ground manifold)\n";
-    for (const LateCrossing& l : d.overlap.late_crossings)
+  if (!d.overlap.perturbative_crossings.empty()) {
+    out += "perturbative crossings (ground level leaves an excited classical level for the ground manifold)\n";
+    for (const PerturbativeCrossing& l : d.overlap.perturbative_crossings)
       out += fmt::format("  s = {:.6f}: excited level E = {:.6g} ({} states, min {} / mean {:.2f} flips), weight {:.3f} "
                          "before; ground weight {:.3f} after; E_1 - E_0 = {:.4g} GHz there\n",
                          l.s_switch, l.excited_energy, l.excited_degeneracy, l.hamming_to_ground, l.mean_hamming_before,
@@ -118,7 +118,7 @@ std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c)
     for (std::size_t k = 0; k < run.channels.size(); ++k) {
       const Channel& ch = run.channels[k];
       const bool gain = ch.regained >= 5e-5;  // smaller remainders print as loss 0.0000
-      out += fmt::format("{:>2}. {:<17} {} {:>7.4f}  {}\n", k + 1, channel_kind_name(ch.kind), gain ? "gain" : "loss",
+      out += fmt::format("{:>2}. {:<21} {} {:>7.4f}  {}\n", k + 1, channel_kind_name(ch.kind), gain ? "gain" : "loss",
                          gain ? ch.regained : ch.loss, ch.verdict);
     }
     if (!d.crossings.empty()) {
@@ -215,7 +215,7 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
     put(t, "diabatic_slope_ghz", x.diabatic_slope_ghz);
     put(t, "window_s_before", x.window_s_before);
     put(t, "window_s_after", x.window_s_after);
-    put(t, "late", x.late_crossing.has_value());
+    put(t, "perturbative", x.perturbative_crossing.has_value());
     put(t, "end_gap", x.at_end_point);
     put(t, "broad", x.broad);
     if (std::isfinite(x.landau_zener_duration_ns)) put(t, "landau_zener_duration_ns", x.landau_zener_duration_ns);
@@ -243,7 +243,7 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
   }
   j.insert_or_assign("crossings", std::move(xs));
   toml::array late;
-  for (const LateCrossing& l : d.overlap.late_crossings) {
+  for (const PerturbativeCrossing& l : d.overlap.perturbative_crossings) {
     toml::table t;
     put(t, "s_switch", l.s_switch);
     put(t, "excited_energy", l.excited_energy);
@@ -253,7 +253,7 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
     put(t, "gap_at_switch_ghz", l.gap_at_switch_ghz);
     late.push_back(std::move(t));
   }
-  j.insert_or_assign("late_crossings", std::move(late));
+  j.insert_or_assign("perturbative_crossings", std::move(late));
   toml::array runs;
   for (const DurationDiagnosis& run : d.runs) {
     toml::table t;
@@ -362,8 +362,8 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
     h5.write_matrix(root + "/overlap/energy", e, s.size(), k, "GHz");
     h5.write_matrix(root + "/overlap/dominant_excited_weight", dom, s.size(), k, "1");
     std::vector<double> sw;
-    for (const LateCrossing& l : d.overlap.late_crossings) sw.push_back(l.s_switch);
-    h5.write(root + "/overlap/late_crossing_s", sw, "1");
+    for (const PerturbativeCrossing& l : d.overlap.perturbative_crossings) sw.push_back(l.s_switch);
+    h5.write(root + "/overlap/perturbative_crossing_s", sw, "1");
   }
   {
     const std::size_t m = d.crossings.size(), r = d.runs.size();
@@ -373,7 +373,7 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
       s.push_back(x.minimum.s);
       delta.push_back(x.minimum.gap_ghz);
       slope.push_back(x.diabatic_slope_ghz);
-      late.push_back(x.late_crossing ? static_cast<long long>(*x.late_crossing) : -1);
+      late.push_back(x.perturbative_crossing ? static_cast<long long>(*x.perturbative_crossing) : -1);
       for (const CrossingPassage& p : x.passages) {
         before.push_back(p.population_before);
         after.push_back(p.population_after);
@@ -384,7 +384,7 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
     h5.write(root + "/crossings/s_star", s, "1");
     h5.write(root + "/crossings/delta_min", delta, "GHz");
     h5.write(root + "/crossings/diabatic_slope", slope, "GHz");
-    h5.write(root + "/crossings/late_crossing_index", late, "index into overlap/late_crossing_s, -1 for none");
+    h5.write(root + "/crossings/perturbative_crossing_index", late, "index into overlap/perturbative_crossing_s, -1 for none");
     h5.write_matrix(root + "/crossings/population_before", before, m, r, "1");
     h5.write_matrix(root + "/crossings/population_after", after, m, r, "1");
     h5.write_matrix(root + "/crossings/transferred", transferred, m, r, "1");

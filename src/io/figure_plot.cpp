@@ -341,7 +341,7 @@ void render_figure(const HeatMap& map, const std::string& path) {
     const double h0 = c.size() > 1 ? c[1] - c[0] : 1.0, h1 = c.size() > 1 ? c.back() - c[c.size() - 2] : 1.0;
     e.front() = c.front() - 0.5 * h0;
     e.back() = c.back() + 0.5 * h1;
-    // Durations and anneal fractions are never negative: a first cell centred
+    // Durations and values of the schedule parameter s are never negative: a first cell centred
     // on 0 is drawn as its upper half instead of reaching below the axis.
     if (c.front() >= 0.0 && e.front() < 0.0) e.front() = 0.0;
     return e;

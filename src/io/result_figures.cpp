@@ -40,12 +40,12 @@ void anneal_trace(const Hdf5Input& in, const Emit& emit) {
   LinePlot fig;
   fig.title = "Anneal: ground-state probability along the path";
   fig.x_label = "time t (ns)";
-  fig.y_label = "probability / anneal fraction";
+  fig.y_label = "probability / schedule parameter s";
   fig.y_range = std::pair{0.0, 1.05};
   fig.legend = LinePlot::Legend::TopLeft;
   fig.note = fmt::format("final ground-state probability {:.6f}", in.attribute_finite("/anneal", "ground_probability"));
   fig.series.push_back({"ground-state probability", t, p, SeriesStyle::LinePoints});
-  fig.series.push_back({"anneal fraction s(t)", t, s, SeriesStyle::Dashed});
+  fig.series.push_back({"schedule parameter s(t)", t, s, SeriesStyle::Dashed});
   emit("anneal-trace", [&](const std::string& path) { render_figure(fig, path); });
 }
 
@@ -65,7 +65,7 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
   LinePlot levels;
   levels.title = "Lowest levels of H(s)";
   levels.note = fmt::format("sector: {}; minimum gap {:.4g} GHz at s* = {:.4f} (+- {:.1g})", sector, gap, s_star, s_unc);
-  levels.x_label = "anneal fraction s";
+  levels.x_label = "schedule parameter s";
   levels.y_label = "energy (GHz)";
   for (std::size_t j = 0; j < k; ++j) {
     PlotSeries ser{j < 6 ? fmt::format("E{}", j) : "", s, std::vector<double>(n), SeriesStyle::Line, static_cast<int>(j)};
@@ -79,7 +79,7 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
   gaps.title = "Spectral gap along the anneal";
   const std::string short_definition = definition.substr(0, definition.find(" ("));
   gaps.note = fmt::format("gap = {}; minimum {:.4g} GHz at s* = {:.4f}", short_definition, gap, s_star);
-  gaps.x_label = "anneal fraction s";
+  gaps.x_label = "schedule parameter s";
   gaps.y_label = "gap (GHz)";
   gaps.log_y = true;
   auto positive = [](std::vector<double> v) {
@@ -325,7 +325,7 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
   fp.legend = LinePlot::Legend::TopRight;
   fp.series.push_back({"p_logical (majority vote per chain)", c, in.read_finite(S + "/p_logical"), SeriesStyle::LinePoints, 0});
   fp.series.push_back({"p_physical (physical ground states)", c, in.read_finite(S + "/p_physical"), SeriesStyle::Dashed, 1});
-  fp.series.push_back({"expected fraction of broken chains", c, in.read_finite(S + "/chain_break_fraction"), SeriesStyle::LinePoints, 2});
+  fp.series.push_back({"expected broken-chain share", c, in.read_finite(S + "/broken_chain_share"), SeriesStyle::LinePoints, 2});
   fp.series.push_back({fmt::format("logical problem, unembedded: p = {:.4f}",
                                    in.attribute_finite(E + "/logical", "ground_probability")),
                        c_ends, constant(in.attribute_finite(E + "/logical", "ground_probability")), SeriesStyle::Dashed, 6});
@@ -389,7 +389,7 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
   LinePlot fg;
   fg.title = "Diagnosis: the gap that governs success, crossings marked";
   fg.note = fmt::format("minimum {:.4g} GHz at s* = {:.4f}", in.attribute_finite(D, "gap_ghz"), in.attribute_finite(D, "s_star"));
-  fg.x_label = "anneal fraction s";
+  fg.x_label = "schedule parameter s";
   fg.y_label = "gap (GHz)";
   fg.log_y = true;
   fg.legend = LinePlot::Legend::BottomLeft;
@@ -397,15 +397,15 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
                        s, gap, SeriesStyle::Line, 0});
   if (in.has(D + "/crossings/s_star")) {
     const auto xs = in.read_finite(D + "/crossings/s_star"), xd = in.read_finite(D + "/crossings/delta_min");
-    const auto late = in.read_finite(D + "/crossings/late_crossing_index"), end = in.read_finite(D + "/crossings/end_gap");
+    const auto late = in.read_finite(D + "/crossings/perturbative_crossing_index"), end = in.read_finite(D + "/crossings/end_gap");
     for (std::size_t k = 0; k < xs.size() && k < xd.size(); ++k) {
       if (!(xd[k] > 0)) continue;
-      const char* what = k < end.size() && end[k] != 0 ? "end gap" : k < late.size() && late[k] >= 0 ? "late crossing" : "crossing";
+      const char* what = k < end.size() && end[k] != 0 ? "end gap" : k < late.size() && late[k] >= 0 ? "perturbative crossing" : "crossing";
       fg.markers.push_back({xs[k], xd[k], fmt::format("{} {}: {:.3g} GHz", what, k + 1, xd[k])});
     }
   }
-  if (in.has(D + "/overlap/late_crossing_s")) fg.vertical_lines = in.read_finite(D + "/overlap/late_crossing_s");
-  if (!fg.vertical_lines.empty()) fg.note += "; dotted: where the ground level switches classical level (late crossing)";
+  if (in.has(D + "/overlap/perturbative_crossing_s")) fg.vertical_lines = in.read_finite(D + "/overlap/perturbative_crossing_s");
+  if (!fg.vertical_lines.empty()) fg.note += "; dotted: where the ground level switches classical level (perturbative crossing)";
   emit("diagnosis-gap", [&](const std::string& path) { render_figure(fg, path); });
 
   if (!in.has(D + "/overlap/ground_weight")) return;
@@ -416,7 +416,7 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
   LinePlot fw;
   fw.title = "Diagnosis: weight of each instantaneous level on the classical ground states";
   fw.note = "a level that ends in the ground manifold rises to 1 at s = 1; a late switch shows as a step";
-  fw.x_label = "anneal fraction s";
+  fw.x_label = "schedule parameter s";
   fw.y_label = "weight on the ground manifold";
   fw.y_range = std::pair{0.0, 1.05};
   fw.legend = LinePlot::Legend::TopLeft;

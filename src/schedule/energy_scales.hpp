@@ -1,6 +1,6 @@
 #pragma once
 // The energy scales A(s) (transverse) and B(s) (problem), in GHz, as functions of
-// the anneal fraction s in [0, 1].
+// the schedule parameter s in [0, 1].
 //
 //   auto lin = EnergyScales::linear(5.0, 5.0);      // A = 5 (1 - s), B = 5 s
 //   auto tab = EnergyScales::table(s, a, b, ScaleInterpolation::MonotoneCubic);

@@ -16,7 +16,7 @@ namespace {
 
 void check_fraction(double s, const std::string& key, const char* what) {
   if (!(s >= 0.0 && s <= 1.0))
-    refuse(key, fmt::format("{} s = {} is outside [0, 1]", what, s), "give an anneal fraction between 0 and 1");
+    refuse(key, fmt::format("{} s = {} is outside [0, 1]", what, s), "give a schedule parameter s between 0 and 1");
 }
 
 /// First time the path reaches s (linear interpolation inside the piece), and

@@ -5,7 +5,7 @@
 // problem/embedding.hpp), and on the physical problem gapwise measures
 //   - the minimum gap along the schedule (spectrum/gap_search.hpp),
 //   - one anneal of duration t_f: p_logical (decoded by majority vote into a
-//     logical ground state), p_physical, the chain-break fraction,
+//     logical ground state), p_physical, the broken-chain share,
 //   - the duration needed for p_logical >= target (studies/duration_needed.hpp,
 //     with the logical success set in place of the ground manifold).
 // The same is measured on the logical problem itself (held to the same term

@@ -81,7 +81,7 @@ OverlapTrack track_ground_overlap(const TransverseIsingHamiltonian& h, const Gro
     const LevelComposition& after = tr.points[i + 1].levels[0];
     if (!(before.ground_weight < 0.5 && after.ground_weight >= 0.5)) continue;
     if (before.dominant_excited_weight < o.dominance) continue;  // delocalized before: an ordinary crossing
-    LateCrossing x;
+    PerturbativeCrossing x;
     x.s_before = tr.points[i].s;
     x.s_after = tr.points[i + 1].s;
     x.excited_energy = before.dominant_excited_energy;
@@ -118,7 +118,7 @@ OverlapTrack track_ground_overlap(const TransverseIsingHamiltonian& h, const Gro
         dsum += w * d;
       }
     x.mean_hamming_before = wsum > 0 ? dsum / wsum : 0.0;
-    tr.late_crossings.push_back(x);
+    tr.perturbative_crossings.push_back(x);
   }
   return tr;
 }

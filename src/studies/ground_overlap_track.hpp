@@ -1,8 +1,8 @@
 #pragma once
-// Late crossings: where the instantaneous ground state stops overlapping the
+// Perturbative crossings: where the instantaneous ground state stops overlapping the
 // classical ground manifold. Along s, each of the lowest levels of H(s) is
 // decomposed by classical energy: its weight on the ground manifold, and its
-// largest weight on any one excited classical energy level. A late crossing is
+// largest weight on any one excited classical energy level. A perturbative crossing is
 // a switch of the ground level from being dominated by an excited classical
 // manifold (weight >= `dominance`) to holding most of its weight on the ground
 // manifold: the state the anneal follows before the switch leads to the excited
@@ -12,7 +12,7 @@
 // The switch point is refined by bisection on (ground weight - 1/2).
 //
 //   OverlapTrack tr = track_ground_overlap(H, ground, schedule.scales, {.grid_points = 200});
-//   for (const LateCrossing& x : tr.late_crossings)
+//   for (const PerturbativeCrossing& x : tr.perturbative_crossings)
 //     x.s_switch; x.excited_energy; x.hamming_to_ground; x.gap_at_switch_ghz;
 //   tr.points[i].levels[0].ground_weight;   // overlap curve of the ground level
 #include <functional>
@@ -50,7 +50,7 @@ struct OverlapPoint {
   std::vector<LevelComposition> levels;  ///< lowest levels, ascending
 };
 
-struct LateCrossing {
+struct PerturbativeCrossing {
   double s_switch = 0;               ///< ground weight of the ground level crosses 1/2 here
   double s_before = 0, s_after = 0;  ///< grid points that bracketed it
   double excited_energy = 0;         ///< classical level dominating the ground level before the switch
@@ -74,7 +74,7 @@ struct OverlapTrackOptions {
 
 struct OverlapTrack {
   std::vector<OverlapPoint> points;
-  std::vector<LateCrossing> late_crossings;  ///< ascending in s
+  std::vector<PerturbativeCrossing> perturbative_crossings;  ///< ascending in s
 };
 
 /// Composition of the lowest levels at one s.

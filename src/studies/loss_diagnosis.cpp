@@ -17,7 +17,7 @@ namespace gapwise {
 const char* channel_kind_name(ChannelKind k) {
   switch (k) {
     case ChannelKind::AvoidedCrossing: return "avoided crossing";
-    case ChannelKind::LateCrossing: return "late crossing";
+    case ChannelKind::PerturbativeCrossing: return "perturbative crossing";
     case ChannelKind::EndGap: return "end gap";
     case ChannelKind::Elsewhere: return "elsewhere";
     case ChannelKind::UnfairSampling: return "unfair sampling";
@@ -168,7 +168,7 @@ Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule,
   report("overlap track", 0, 1);
   d.overlap = track_ground_overlap(H, d.ground, schedule.scales, o.overlap);
 
-  // 2. Interior minima become crossings; late crossings are matched to them.
+  // 2. Interior minima become crossings; perturbative crossings are matched to them.
   std::vector<double> window_s;
   for (const GapMinimum& m : d.gap.minima) {
     if (m.at_end_point) continue;
@@ -188,11 +188,11 @@ Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule,
       c.broad = true;
     }
     double best = std::numeric_limits<double>::infinity();
-    for (std::size_t x = 0; x < d.overlap.late_crossings.size(); ++x) {
-      const double sx = d.overlap.late_crossings[x].s_switch;
+    for (std::size_t x = 0; x < d.overlap.perturbative_crossings.size(); ++x) {
+      const double sx = d.overlap.perturbative_crossings[x].s_switch;
       if (sx >= c.window_s_before && sx <= c.window_s_after && std::abs(sx - m.s) < best) {
         best = std::abs(sx - m.s);
-        c.late_crossing = x;
+        c.perturbative_crossing = x;
       }
     }
     window_s.push_back(c.window_s_before);
@@ -408,11 +408,11 @@ Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule,
             "path): not an isolated two-level crossing, so the loss counted here is all that leaves over that stretch "
             "and Landau-Zener is only indicative; ",
             o.window_factor, c.window_s_before, c.window_s_after, o.broad_window_fraction);
-      if (c.late_crossing) {
-        const LateCrossing& x = d.overlap.late_crossings[*c.late_crossing];
-        ch.kind = ChannelKind::LateCrossing;
+      if (c.perturbative_crossing) {
+        const PerturbativeCrossing& x = d.overlap.perturbative_crossings[*c.perturbative_crossing];
+        ch.kind = ChannelKind::PerturbativeCrossing;
         ch.verdict = fmt::format(
-            "{}late crossing at s = {:.4f} (Delta_min {:.4g} GHz at s* = {:.4f}): before it the ground level sits on the "
+            "{}perturbative crossing at s = {:.4f} (Delta_min {:.4g} GHz at s* = {:.4f}): before it the ground level sits on the "
             "excited classical level E = {:.6g} ({} states, {:.1f} spins from a ground state on average); {} "
             "(Landau-Zener {:.3f}); {}; faster anneals end on that excited level",
             broad, x.s_switch, delta, c.minimum.s, x.excited_energy, x.excited_degeneracy, x.mean_hamming_before, moved,

@@ -13,9 +13,10 @@
 //   end gap            the smallest gap at an end of the path (a small final
 //                      classical gap): the population lost between where the
 //                      gap has opened and the end (no Landau-Zener number);
-//   late crossing      an avoided crossing where the ground level switches from
-//                      an excited classical manifold to the ground manifold
-//                      (studies/ground_overlap_track.hpp);
+//   perturbative crossing  an avoided crossing where the ground level switches
+//                      from an excited classical manifold to the ground manifold
+//                      (Amin & Choi, Phys. Rev. A 80, 062326 (2009);
+//                      studies/ground_overlap_track.hpp);
 //   elsewhere          what the crossings do not account for: 1 - p minus the
 //                      population moved at the crossings;
 // Bookkeeping: a channel's `loss` is never negative. Population that returns to
@@ -56,8 +57,8 @@
 
 namespace gapwise {
 
-enum class ChannelKind { AvoidedCrossing, LateCrossing, EndGap, Elsewhere, UnfairSampling, ControlErrors };
-/// "avoided crossing", "late crossing", "end gap", "elsewhere", "unfair sampling", "control errors".
+enum class ChannelKind { AvoidedCrossing, PerturbativeCrossing, EndGap, Elsewhere, UnfairSampling, ControlErrors };
+/// "avoided crossing", "perturbative crossing", "end gap", "elsewhere", "unfair sampling", "control errors".
 const char* channel_kind_name(ChannelKind k);
 
 /// One passage of the anneal through one avoided crossing, at one duration.
@@ -76,7 +77,7 @@ struct AvoidedCrossing {
   GapMinimum minimum;                  ///< s*, Delta_min (GHz), uncertainties, curvature
   double diabatic_slope_ghz = 0;       ///< |d eps/ds| of the fitted crossing (GHz per unit s)
   double window_s_before = 0, window_s_after = 0;  ///< where the gap is window_factor * Delta_min
-  std::optional<std::size_t> late_crossing;       ///< index into the overlap track's late crossings
+  std::optional<std::size_t> perturbative_crossing;       ///< index into the overlap track's perturbative crossings
   /// An end gap: the minimum sits at an end of the path, or so close to one that
   /// the gap does not reopen to window_factor * Delta_min before the path ends.
   bool at_end_point = false;

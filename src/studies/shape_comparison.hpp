@@ -6,7 +6,7 @@
 // (AnnealPath::scaled_to ends at the duration bit for bit); the end times are
 // reported so the equality can be checked.
 //
-//   std::vector<ShapeCandidate> c{{"linear", linear}, {"pause 0.45", paused}, {"gap-adapted", g.schedule}};
+//   std::vector<ShapeCandidate> c{{"linear", linear}, {"pause 0.45", paused}, {"local adiabatic", g.schedule}};
 //   ShapeComparison r = compare_shapes(problem, c, {.durations_ns = {20, 50}});
 //   r.at(1, 0).ground_probability;  r.at(1, 0).tts.tts_ns;  r.at(1, 0).leak.s_from;
 //

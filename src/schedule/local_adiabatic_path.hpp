@@ -20,7 +20,7 @@
 // (so fast stretches still follow s(t) closely).
 //
 //   GapProfile prof{s, gap_ghz, m_ghz};                 // sorted by s, from 0 to 1
-//   GapAdaptedPath g = gap_adapted_path(prof, {.waypoints = 200});
+//   LocalAdiabaticPath g = local_adiabatic_path(prof, {.waypoints = 200});
 //   g.shape;                          // AnnealPath, t in [0, 1]
 //   double eps = g.integral_ns / 100; // the eps of a 100 ns run
 #include <vector>
@@ -36,12 +36,12 @@ struct GapProfile {
   std::vector<double> matrix_element_ghz;
 };
 
-struct GapAdaptedOptions {
+struct LocalAdiabaticOptions {
   int waypoints = 200;                ///< waypoints equally spaced in time (plus waypoints/4 in s)
   double matrix_element_floor = 0.01; ///< fraction of max |M| below which M is raised
 };
 
-struct GapAdaptedPath {
+struct LocalAdiabaticPath {
   AnnealPath shape;              ///< times are fractions of the duration
   double integral_ns = 0;        ///< I = int |M|/Delta^2 ds over the profile, with the floor (ns)
   double s_first = 0, s_last = 1;
@@ -51,6 +51,6 @@ struct GapAdaptedPath {
 
 /// Throws InputError (key "gap profile") for fewer than 2 samples, s not
 /// increasing, a gap <= 0 or non-finite values.
-GapAdaptedPath gap_adapted_path(const GapProfile& profile, const GapAdaptedOptions& options = {});
+LocalAdiabaticPath local_adiabatic_path(const GapProfile& profile, const LocalAdiabaticOptions& options = {});
 
 }  // namespace gapwise

@@ -1,4 +1,4 @@
-#include "schedule/gap_adapted_path.hpp"
+#include "schedule/local_adiabatic_path.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -26,7 +26,7 @@ double interpolate(const std::vector<double>& x, const std::vector<double>& y, d
 
 }  // namespace
 
-GapAdaptedPath gap_adapted_path(const GapProfile& prof, const GapAdaptedOptions& opt) {
+LocalAdiabaticPath local_adiabatic_path(const GapProfile& prof, const LocalAdiabaticOptions& opt) {
   const std::size_t n = prof.s.size();
   if (n < 2 || prof.gap_ghz.size() != n || prof.matrix_element_ghz.size() != n)
     refuse("the gap profile needs at least two points with a gap and a matrix element each",
@@ -48,7 +48,7 @@ GapAdaptedPath gap_adapted_path(const GapProfile& prof, const GapAdaptedOptions&
 
   // Time density w(s) = |M|/Delta^2 (ns per unit s) and its cumulative integral
   // tau(s) by the trapezoid rule on the samples (dense near the minimum).
-  GapAdaptedPath out;
+  LocalAdiabaticPath out;
   std::vector<double> w(n), tau(n, 0.0);
   for (std::size_t k = 0; k < n; ++k) {
     const double m = std::max(std::abs(prof.matrix_element_ghz[k]), opt.matrix_element_floor * m_max);

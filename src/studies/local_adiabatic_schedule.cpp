@@ -1,4 +1,4 @@
-#include "studies/gap_adapted_schedule.hpp"
+#include "studies/local_adiabatic_schedule.hpp"
 
 #include <fmt/format.h>
 
@@ -6,12 +6,12 @@
 
 namespace gapwise {
 
-GapAdaptedSchedule gap_adapted_schedule(const TransverseIsingHamiltonian& h, const Schedule& base,
-                                        const GapSearchOptions& search, const GapAdaptedOptions& options) {
+LocalAdiabaticSchedule local_adiabatic_schedule(const TransverseIsingHamiltonian& h, const Schedule& base,
+                                        const GapSearchOptions& search, const LocalAdiabaticOptions& options) {
   if (base.start.kind != StartKind::Ground)
-    throw InputError({base.source, 0, 0, "path.start"}, "a gap-adapted path is a forward anneal from the ground state",
+    throw InputError({base.source, 0, 0, "path.start"}, "a local adiabatic schedule is a forward anneal from the ground state",
                      "use a forward schedule (start = \"ground\") as the base");
-  GapAdaptedSchedule out;
+  LocalAdiabaticSchedule out;
   out.report = find_minimum_gap(h, base.scales, search);
   GapProfile prof;
   for (const SpectrumPoint& p : out.report.curve) {
@@ -20,7 +20,7 @@ GapAdaptedSchedule gap_adapted_schedule(const TransverseIsingHamiltonian& h, con
     prof.gap_ghz.push_back(p.gap_ghz);
     prof.matrix_element_ghz.push_back(p.matrix_element_ghz);
   }
-  out.path = gap_adapted_path(prof, options);
+  out.path = local_adiabatic_path(prof, options);
   out.schedule.scales = base.scales;
   out.schedule.shape = out.path.shape;
   out.schedule.time_in_ns = false;
@@ -28,7 +28,7 @@ GapAdaptedSchedule gap_adapted_schedule(const TransverseIsingHamiltonian& h, con
   out.schedule.start = {};
   out.schedule.source = base.source;
   out.schedule.description = fmt::format(
-      "gap-adapted path (local adiabatic condition, ds/dt ~ Delta^2/|M|): Delta_min = {:.6g} GHz at s = {:.6g}, "
+      "local adiabatic schedule (ds/dt ~ Delta^2/|M|): Delta_min = {:.6g} GHz at s = {:.6g}, "
       "I = {:.6g} ns",
       out.report.gap_ghz, out.report.s_star, out.path.integral_ns);
   return out;

@@ -1,4 +1,4 @@
-// The gap-adapted path (local adiabatic condition; Roland & Cerf, Phys. Rev. A
+// The local adiabatic schedule (local adiabatic condition; Roland & Cerf, Phys. Rev. A
 // 65, 042308 (2002)) on the two-level problem: one qubit in a weak field,
 //   H(s) = -(A/2) X + (B h/2) Z,  A = 5 (1 - s) GHz,  B h = 0.5 s GHz,
 // whose gap Delta = sqrt(A^2 + (Bh)^2) narrows from 5 GHz to 0.5 GHz near
@@ -16,7 +16,7 @@
 
 #include "dynamics/anneal_simulation.hpp"
 #include "io/input_error.hpp"
-#include "studies/gap_adapted_schedule.hpp"
+#include "studies/local_adiabatic_schedule.hpp"
 
 using namespace gapwise;
 
@@ -58,14 +58,14 @@ double first_order_excitation(const AnnealPath& path) {
 
 }  // namespace
 
-TEST_CASE("gap-adapted path on the two-level problem: beats linear at equal duration, error as predicted") {
+TEST_CASE("local adiabatic schedule on the two-level problem: beats linear at equal duration, error as predicted") {
   const TwoLevel tl;
   const TransverseIsingHamiltonian H(tl.problem);
   const GroundManifold gm = find_ground_manifold(tl.problem, H.diagonal());
   Schedule base;  // linear scales, 5 GHz; linear forward path
   GapSearchOptions search;
   search.coarse_points = 201;
-  const GapAdaptedSchedule g = gap_adapted_schedule(H, base, search, {.waypoints = 400});
+  const LocalAdiabaticSchedule g = local_adiabatic_schedule(H, base, search, {.waypoints = 400});
 
   // The profile integral I = int |M|/Delta^2 ds against the closed form
   // (Boost.Math Gauss-Kronrod), to the trapezoid rule's accuracy on the curve.
@@ -92,7 +92,7 @@ TEST_CASE("gap-adapted path on the two-level problem: beats linear at equal dura
     const QuantumState psi0 = uniform_superposition(1);
     const double p_lin = simulate_anneal(H, gm, base.scales, lin, psi0, sim).ground_probability;
     const double p_ga = simulate_anneal(H, gm, base.scales, ga, psi0, sim).ground_probability;
-    INFO("T = " << T << " ns: p_linear = " << p_lin << ", p_gap_adapted = " << p_ga);
+    INFO("T = " << T << " ns: p_linear = " << p_lin << ", p_local_adiabatic = " << p_ga);
 
     CHECK(p_ga > p_lin);
     CHECK(1 - p_ga < 0.5 * (1 - p_lin));
@@ -109,11 +109,11 @@ TEST_CASE("gap-adapted path on the two-level problem: beats linear at equal dura
 }
 
 TEST_CASE("gap profiles that admit no path are refused") {
-  CHECK_THROWS_AS(gap_adapted_path({{0, 1}, {1, 0}, {0.1, 0.1}}), InputError);
-  CHECK_THROWS_AS(gap_adapted_path({{0, 0.5, 0.4}, {1, 1, 1}, {0.1, 0.1, 0.1}}), InputError);
-  CHECK_THROWS_AS(gap_adapted_path({{0, 1}, {1, 1}, {0, 0}}), InputError);
+  CHECK_THROWS_AS(local_adiabatic_path({{0, 1}, {1, 0}, {0.1, 0.1}}), InputError);
+  CHECK_THROWS_AS(local_adiabatic_path({{0, 0.5, 0.4}, {1, 1, 1}, {0.1, 0.1, 0.1}}), InputError);
+  CHECK_THROWS_AS(local_adiabatic_path({{0, 1}, {1, 1}, {0, 0}}), InputError);
   // A constant gap and element give the linear path back (common practice).
-  const GapAdaptedPath flat = gap_adapted_path({{0, 0.5, 1}, {2, 2, 2}, {1, 1, 1}}, {.waypoints = 8});
+  const LocalAdiabaticPath flat = local_adiabatic_path({{0, 0.5, 1}, {2, 2, 2}, {1, 1, 1}}, {.waypoints = 8});
   for (const auto& w : flat.shape.points()) CHECK(w.s == doctest::Approx(w.t_ns).epsilon(1e-12));
   CHECK(flat.integral_ns == doctest::Approx(0.25));
 }

@@ -1,5 +1,5 @@
 #pragma once
-// The late-crossing instance shared by the diagnosis tests ("core and leaves"),
+// The perturbative-crossing instance shared by the diagnosis tests ("core and leaves"),
 // built for these tests in the spirit of the perturbative crossings of Amin &
 // Choi, Phys. Rev. A 80, 062326 (2009): a core qubit 0 and k leaves, each leaf
 // with field h_i = 1 and coupling J_0i = +1 to the core. With the core at spin
