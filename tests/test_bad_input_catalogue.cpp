@@ -136,6 +136,16 @@ std::vector<Row> rows() {
       {"R2B13", "", "", "durations TRIANGLE LINEAR --range 1:100:10000000"},
       {"R2B14", "", "", "gap TRIANGLE LINEAR --points 1000000000"},
       {"R2B15", "", "", "generate --count 2000000000 --out DIR/g.h5"},
+      // --- Round two, finished: each command names its own option; paths that stay at one s ---
+      {"R2K1", "", "", "gap-path TRIANGLE LINEAR --coarse 5000 --out DIR/g.toml"},
+      {"R2K2", "", "", "ensemble SRC/data-samples/ring-chords-glasses LINEAR --gap-points 5000 --out DIR/e.h5"},
+      {"R2K3", "p.toml", "qubits = 1\nfields = [0.5]\n", "compare-paths DIR/p.toml LINEAR -d 5 --levels 4"},
+      {"R2K4", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 5.0\n[path]\ntime = \"ns\"\n"
+                   "points = [[0.0, 1.0], [10.0, 1.0]]\nstart = \"classical\"\nstart_bits = [0, 1, 1]\n",
+       "durations TRIANGLE DIR/s.toml"},
+      {"R2K5", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 5.0\n[path]\ntime = \"ns\"\n"
+                   "points = [[0.0, 0.5], [10.0, 0.5]]\nstart = \"ground\"\n",
+       "diagnose TRIANGLE DIR/s.toml -d 10"},
   };
 }
 

@@ -65,6 +65,9 @@ void check_threads(long long threads, const std::string& option = "--threads");
 void check_sigma(double sigma, const std::string& option);
 void check_count(long long value, long long lo, long long hi, const std::string& option, const std::string& what);
 void check_levels_fit(int levels, int qubits, SpinFlipSector sector, const std::string& option = "--levels");
+/// A --levels the user typed must fit (check_levels_fit); a default that does not fit
+/// is lowered to the state count with a note on stderr. Returns the levels to use.
+int fit_levels(int levels, bool given, int qubits, SpinFlipSector sector, const std::string& option = "--levels");
 /// The one flag that lifts the work limit (studies/work_estimate.hpp), same name on every command.
 CLI::Option* add_allow_long_flag(CLI::App* sub, bool& allow_long);
 /// "FIRST:LAST:COUNT", log-spaced durations in ns, both ends included (durations, embed-cost).

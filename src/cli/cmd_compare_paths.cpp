@@ -29,7 +29,7 @@ struct CompareOptions {
   std::string problem;
   std::vector<std::string> schedules, pauses, quenches;
   std::string durations, out, csv, propagator = SimulationOptions{}.propagator;
-  bool local_adiabatic = false, allow_long = false;
+  bool local_adiabatic = false, allow_long = false, levels_given = false;
   int levels = 4, points = 60, threads = 0, waypoints = 200;
   double tolerance = 1e-6, target = kDefaultTargetProbability;
 };
@@ -84,9 +84,11 @@ void run_compare(const CompareOptions& o) {
     const auto [s, f] = two_numbers(text, "--quench");
     cands.push_back({fmt::format("quench from s={:g} in {:g}%", s, 100 * f), with_shape(base, {.quench = QuenchSpec{s, f}}, "--quench")});
   }
+  const TransverseIsingHamiltonian H(p);
+  // Levels beyond the states of the space followed would be empty columns.
+  const int levels = fit_levels(o.levels, o.levels_given, p.qubits, comparison_sector(H, cands));
   std::optional<LocalAdiabaticSchedule> gap;
   if (o.local_adiabatic) {
-    const TransverseIsingHamiltonian H(p);
     std::cerr << "computing the spectrum along s for the local adiabatic schedule...\n";
     gap = local_adiabatic_schedule(H, base, {}, {.waypoints = o.waypoints});
     cands.push_back({"local adiabatic", gap->schedule});
@@ -96,7 +98,7 @@ void run_compare(const CompareOptions& o) {
   co.target_probability = o.target;
   co.simulation.propagator = o.propagator;
   co.simulation.propagation.tolerance = o.tolerance;
-  co.levels = o.levels;
+  co.levels = levels;
   co.population_points = o.points;
   co.threads = o.threads;
   WorkEstimate work;
@@ -108,7 +110,7 @@ void run_compare(const CompareOptions& o) {
   const ShapeComparison r = compare_shapes(p, cands, co);
 
   std::cout << fmt::format("problem  {}: {} qubits; paths compared at equal total duration\n", terminal_text(o.problem), p.qubits);
-  std::cout << fmt::format("levels   populations of the lowest {} instantaneous levels ({})\n", o.levels,
+  std::cout << fmt::format("levels   populations of the lowest {} instantaneous levels ({})\n", levels,
                            describe_sector(r.sector));
   if (gap)
     std::cout << fmt::format("gap      {:.6g} GHz at s* = {:.6g} ({}); local adiabatic I = {:.6g} ns\n", gap->report.gap_ghz,
@@ -163,7 +165,7 @@ void run_compare(const CompareOptions& o) {
         for (const auto& row : x.populations) {
           tt.push_back(row.t_ns);
           ss.push_back(row.s);
-          for (int l = 0; l < o.levels; ++l) {
+          for (int l = 0; l < levels; ++l) {
             // A level group that runs past the computed levels is unresolved (NaN in
             // memory); files get 0 there and a mask, never a NaN.
             const double en = row.levels.energies_ghz[static_cast<std::size_t>(l)];
@@ -177,10 +179,10 @@ void run_compare(const CompareOptions& o) {
         }
         h5.write(g + "/t", tt, "ns");
         h5.write(g + "/s", ss, "1");
-        h5.write_matrix(g + "/level_energy", e, tt.size(), static_cast<std::size_t>(o.levels), "GHz");
-        h5.write_matrix(g + "/level_population", pop, tt.size(), static_cast<std::size_t>(o.levels), "1");
-        h5.write_matrix(g + "/level_degeneracy", deg, tt.size(), static_cast<std::size_t>(o.levels), "1");
-        h5.write_matrix(g + "/level_resolved", resolved, tt.size(), static_cast<std::size_t>(o.levels),
+        h5.write_matrix(g + "/level_energy", e, tt.size(), static_cast<std::size_t>(levels), "GHz");
+        h5.write_matrix(g + "/level_population", pop, tt.size(), static_cast<std::size_t>(levels), "1");
+        h5.write_matrix(g + "/level_degeneracy", deg, tt.size(), static_cast<std::size_t>(levels), "1");
+        h5.write_matrix(g + "/level_resolved", resolved, tt.size(), static_cast<std::size_t>(levels),
                         "1 resolved, 0 not (the level group runs past the levels computed; energy and population 0)");
         h5.attribute(g, "duration_ns", x.duration_ns);
         h5.attribute(g, "ground_probability", x.ground_probability);
@@ -212,7 +214,8 @@ void register_compare_paths(CLI::App& app) {
   sub->add_option("--quench", o->quenches, "add the base path quenched from s = S to 1 in FRACTION of the duration; repeatable");
   sub->add_flag("--local-adiabatic", o->local_adiabatic, "add the local adiabatic schedule (see `gapwise gap-path --help`)");
   sub->add_option("--waypoints", o->waypoints, "waypoints of the local adiabatic schedule")->capture_default_str();
-  sub->add_option("--levels", o->levels, "instantaneous levels whose populations are followed")->capture_default_str()->check(CLI::Range(1, 64));
+  sub->add_option("--levels", o->levels, "instantaneous levels whose populations are followed (a default above the\n"
+                  "number of states is lowered to it; a value you give must fit)")->capture_default_str()->check(CLI::Range(1, 64));
   sub->add_option("--points", o->points, "population observations along each run (about)")->capture_default_str()->check(CLI::Range(2, 100000));
   sub->add_option("--target", o->target, "target success probability of the time to solution")->capture_default_str();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of p")->capture_default_str();
@@ -222,7 +225,10 @@ void register_compare_paths(CLI::App& app) {
   sub->add_option("--out", o->out, "HDF5: p, TTS and end times per path and duration; level populations along each run");
   sub->add_option("--csv", o->csv, "the table as CSV");
   add_allow_long_flag(sub, o->allow_long);
-  sub->callback([o] { run_compare(*o); });
+  sub->callback([o, sub] {
+    o->levels_given = sub->count("--levels") > 0;
+    run_compare(*o);
+  });
 }
 
 }  // namespace gapwise::cli

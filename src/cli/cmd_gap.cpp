@@ -148,6 +148,8 @@ void run_gap(const GapOptions& o) {
   opt.method = o.solver == "dense" ? EigenMethod::Dense : o.solver == "lanczos" ? EigenMethod::Lanczos : EigenMethod::Auto;
   opt.coarse_points = o.points;
   opt.max_points = o.max_points;
+  opt.points_option = "--points";
+  opt.max_points_option = "--max-points";
   opt.s_tolerance = o.s_tolerance;
   opt.s_first = o.s_first;
   opt.s_last = o.s_last;
@@ -156,11 +158,7 @@ void run_gap(const GapOptions& o) {
 
   // Refuse a too-large problem before building anything of size 2^n.
   check_gap_search_size(p.qubits, opt.sector.value_or(default_sector(p)), o.levels, opt.method, pf.qubits_place);
-  if (o.points > o.max_points)  // the library refuses it too; here the message names the options
-    throw InputError({"--points", 0, 0, "--points"},
-                     fmt::format("{} coarse points are more than the budget of {} points for the whole search (--max-points)",
-                                 o.points, o.max_points),
-                     "ask for fewer coarse points (the default 101 suits most problems) or raise --max-points");
+  check_gap_point_budget(opt);  // before the work estimate, which would otherwise speak first
   // The coarse scan and typically about a hundred more points (never more than the budget).
   check_work_limit(spectrum_work(p.qubits, o.levels, std::min(static_cast<double>(o.max_points), o.points + 100.0)),
                    o.allow_long, {"--points", 0, 0, "--points"});

@@ -38,6 +38,8 @@ void run_gap_path(const GapPathOptions& o) {
   GapSearchOptions search;
   search.levels = o.levels;
   search.coarse_points = o.coarse;
+  search.points_option = "--coarse";
+  check_gap_point_budget(search);
   LocalAdiabaticSchedule g;
   try {
     g = local_adiabatic_schedule(H, base, search, {.waypoints = o.waypoints, .matrix_element_floor = o.floor});

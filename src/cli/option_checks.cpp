@@ -3,6 +3,7 @@
 // the --allow-long flag that lifts the work limit (studies/work_estimate.hpp).
 // Each check throws InputError naming the option, so bad input is exit 2.
 #include <cmath>
+#include <iostream>
 
 #include <fmt/format.h>
 
@@ -50,6 +51,18 @@ void check_levels_fit(int levels, int qubits, SpinFlipSector sector, const std::
   if (levels > states)
     throw InputError(option_place(option), fmt::format("{} levels asked for, but the {} has only {:.0f} states", levels, space, states),
                      fmt::format("give at most {:.0f} levels", states));
+}
+
+int fit_levels(int levels, bool given, int qubits, SpinFlipSector sector, const std::string& option) {
+  if (given) {
+    check_levels_fit(levels, qubits, sector, option);
+    return levels;
+  }
+  const double states = std::ldexp(1.0, qubits - (sector == SpinFlipSector::Full ? 0 : 1));
+  if (levels <= states) return levels;
+  std::cerr << fmt::format("note: {} lowered from the default {} to {}, the number of states of the {}\n", option,
+                           levels, states, describe_sector(sector));
+  return static_cast<int>(states);
 }
 
 CLI::Option* add_allow_long_flag(CLI::App* sub, bool& allow_long) {

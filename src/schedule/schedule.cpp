@@ -19,6 +19,13 @@ void check_duration_ns(double d, const SourcePlace& place) {
                      "check the unit: durations are in ns");
 }
 
+SourcePlace Schedule::path_file_place() const {
+  SourcePlace p = path_place;
+  p.file = source;
+  if (p.key.empty()) p.key = "path.points";
+  return p;
+}
+
 AnnealPath Schedule::path_for(std::optional<double> d) const {
   if (d) {
     check_duration_ns(*d, {source, 0, 0, "duration_ns"});

@@ -58,6 +58,8 @@ struct Schedule {
   /// lines, so that commands refusing a schedule can point at the right key.
   /// Empty keys when the schedule was not read from a file.
   SourcePlace path_place, start_place;
+  /// path_place with the file name, and "path.points" when the key is unknown.
+  SourcePlace path_file_place() const;
 
   /// Path for a run; `duration_ns` overrides the schedule's own. Throws InputError
   /// when no duration is known.

@@ -168,11 +168,24 @@ void check_gap_search_options(const GapSearchOptions& o, const EnergyScales& sca
                                  first, last, scales.s_first(), scales.s_last()),
                      "give --s-first < --s-last inside the range the schedule's scales cover");
   if (o.coarse_points < 3)
-    throw InputError({"--points", 0, 0, "--points"}, fmt::format("{} coarse points are too few", o.coarse_points),
+    throw InputError({o.points_option, 0, 0, o.points_option}, fmt::format("{} coarse points are too few", o.coarse_points),
                      "use at least 3 (the default 101 suits most problems)");
   if (!(o.s_tolerance > 0.0 && o.s_tolerance < 0.1))
     throw InputError({"--s-tolerance", 0, 0, "--s-tolerance"},
                      fmt::format("s tolerance {} is out of range", o.s_tolerance), "use a value in (0, 0.1), e.g. 1e-6");
+}
+
+void check_gap_point_budget(const GapSearchOptions& o) {
+  if (o.coarse_points <= o.max_points) return;
+  const SourcePlace place{o.points_option, 0, 0, o.points_option};
+  const std::string problem = fmt::format("{} coarse points are more than the budget of {} points for the whole search",
+                                          o.coarse_points, o.max_points);
+  if (o.max_points_option.empty())
+    throw InputError(place, problem + " (this command has no option to raise it)",
+                     fmt::format("give {} {} or fewer", o.points_option, o.max_points));
+  throw InputError(place, fmt::format("{} ({})", problem, o.max_points_option),
+                   fmt::format("ask for fewer coarse points (the default 101 suits most problems) or raise {}",
+                               o.max_points_option));
 }
 
 namespace {
@@ -625,11 +638,7 @@ GapSearchPlan plan_gap_search(const TransverseIsingHamiltonian& h, const GapSear
                                  "search",
                                  g, describe_sector(plan.sector), g + 1),
                      "lift the degeneracy with small fields or couplings");
-  if (o.coarse_points > o.max_points)
-    throw InputError({"points", 0, 0, "points"},
-                     fmt::format("{} coarse points are more than the budget of {} points for the whole search",
-                                 o.coarse_points, o.max_points),
-                     "ask for fewer coarse points (the default 101 suits most problems) or raise the point budget");
+  check_gap_point_budget(o);
   plan.ground_degeneracy = g;
   plan.levels = static_cast<int>(std::min<std::size_t>(static_cast<std::size_t>(std::max(o.levels, g + 1)), sh.dim()));
   EigenMethod m = o.method;

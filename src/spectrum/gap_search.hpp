@@ -86,6 +86,11 @@ struct GapSearchOptions {
   int coarse_points = 101;              ///< uniform scan points, end points included (>= 3)
   double s_tolerance = 1e-6;            ///< wanted precision of s* (Brent)
   int max_points = 3000;                ///< cap on all evaluated points; hitting it is flagged
+  /// The command-line options that set coarse_points and max_points, so that a
+  /// refusal names what the user typed; an empty max_points_option means the
+  /// command has no such option (the budget is fixed at max_points).
+  std::string points_option = "the gap search's coarse points";
+  std::string max_points_option;
   double bend_threshold = 0.25;         ///< split when |dE/ds(b) - dE/ds(a)| (b - a) > this * local gap
   bool other_sector = false;            ///< also the levels of the other spin-flip sector at each point
   bool check_missed_levels = true;      ///< Lanczos deflation check where degeneracies are possible (lowest_levels.hpp)
@@ -216,6 +221,11 @@ EigenvectorsAt eigenvectors_at(const TransverseIsingHamiltonian& h, const Energy
 /// Refuses (InputError naming the gap command's option) an empty s range or one
 /// outside the scales, fewer than 3 coarse points, an s tolerance outside (0, 0.1).
 void check_gap_search_options(const GapSearchOptions& options, const EnergyScales& scales);
+
+/// Refuses more coarse points than the point budget for the whole search, naming
+/// options.points_option and, where the command has one, options.max_points_option.
+/// plan_gap_search calls it too; commands call it early, before any work.
+void check_gap_point_budget(const GapSearchOptions& options);
 
 /// The full search. Throws InputError for an impossible request (sector with fields,
 /// no level outside the ground manifold, too many qubits), std::runtime_error when an

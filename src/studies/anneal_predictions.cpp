@@ -69,10 +69,22 @@ double AdiabaticEstimate::duration_for(double target) const {
   return time_ns / std::sqrt(1.0 - target);
 }
 
+void require_path_moves_in_s(const Schedule& schedule, const AnnealPath& shape, const std::string& purpose,
+                             const std::string& fix) {
+  if (shape.s_min() < shape.s_max()) return;
+  throw InputError(schedule.path_file_place(),
+                   fmt::format("the path stays at s = {} from start to end, so there is no range of s for {}",
+                               shape.s_min(), purpose),
+                   fix);
+}
+
 AnnealPredictions predict_anneal(const AnnealSetup& setup, const PredictionOptions& po) {
   AnnealPredictions pr;
   const auto unit = forward_shape(setup.schedule);
   const AnnealPath shape = setup.schedule.path_for(1.0);
+  require_path_moves_in_s(setup.schedule, shape, "the gap search behind the predictions",
+                          "let the path move in s (e.g. points from s = 0 to s = 1), or add --no-predictions to "
+                          "simulate this path without the gap search");
   GapSearchOptions go;
   go.s_tolerance = po.s_tolerance;
   go.coarse_points = po.coarse_points;

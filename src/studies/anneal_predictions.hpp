@@ -91,6 +91,11 @@ struct PredictionOptions {
   int coarse_points = 101;
 };
 
+/// Refuses (InputError at the schedule's path key) a path that stays at one s, where
+/// a gap search over the s range the path covers has no range; `fix` says what to do.
+void require_path_moves_in_s(const Schedule& schedule, const AnnealPath& shape, const std::string& purpose,
+                             const std::string& fix);
+
 /// Runs the gap search over the s range the path covers and fits the models.
 /// Throws InputError when the problem is too large for the spectrum tools.
 AnnealPredictions predict_anneal(const AnnealSetup& setup, const PredictionOptions& options = {});

@@ -75,11 +75,20 @@ void EnsembleSettings::validate() const {
                        "use e.g. 2000");
   if (gap_coarse_points < 3)
     throw option_error("--gap-points", "the gap scan needs at least 3 points", "use e.g. 101");
+  check_gap_point_budget(gap_search_options());
   if (!(gap_s_tolerance > 0 && gap_s_tolerance < 0.1))
     throw option_error("--gap-s-tolerance", "the precision of s* must lie in (0, 0.1)", "use e.g. 1e-6");
   if (!(simulation.propagation.tolerance >= 1e-12 && simulation.propagation.tolerance <= 1e-2))
     throw option_error("--tolerance", fmt::format("tolerance {} is out of range", simulation.propagation.tolerance),
                        "use a value between 1e-12 and 1e-2");
+}
+
+GapSearchOptions EnsembleSettings::gap_search_options() const {
+  GapSearchOptions g;
+  g.coarse_points = gap_coarse_points;
+  g.s_tolerance = gap_s_tolerance;
+  g.points_option = "--gap-points";
+  return g;
 }
 
 ShardSpec ShardSpec::parse(const std::string& text) {
@@ -168,9 +177,7 @@ InstanceOutcome evaluate_instance(const Instance& instance, std::size_t set_inde
                                   const EnsembleSettings& settings) {
   const auto t0 = std::chrono::steady_clock::now();
   const AnnealSetup setup(instance.problem, schedule, settings.simulation);
-  GapSearchOptions gopt;
-  gopt.coarse_points = settings.gap_coarse_points;
-  gopt.s_tolerance = settings.gap_s_tolerance;
+  const GapSearchOptions gopt = settings.gap_search_options();
   const MinimumGapReport gap = find_minimum_gap(setup.hamiltonian, schedule.scales, gopt);
   const std::vector<DurationPoint> pts = sweep_durations(setup, settings.durations_ns, 1);
 

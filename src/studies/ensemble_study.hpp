@@ -54,6 +54,8 @@ struct EnsembleSettings {
   std::string numerics_text() const;
   /// Throws InputError naming the option when a setting is out of range.
   void validate() const;
+  /// The per-instance gap search these settings ask for (options named as the CLI spells them).
+  GapSearchOptions gap_search_options() const;
 };
 
 /// Which instances a run computes: set index i with i % count == index.

@@ -11,6 +11,7 @@
 #include "dynamics/level_population_observer.hpp"
 #include "hamiltonian/spin_flip_sector.hpp"
 #include "io/input_error.hpp"
+#include "studies/anneal_predictions.hpp"
 
 namespace gapwise {
 
@@ -147,6 +148,8 @@ Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule,
   };
   const AnnealPath shape = schedule.path_for(o.durations_ns.front());
   require_forward(schedule, shape);
+  require_path_moves_in_s(schedule, shape, "the diagnosis (it follows the spectrum along the s the path covers)",
+                          "diagnose a path that moves in s, e.g. points from s = 0 to s = 1");
 
   Diagnosis d;
   d.durations_ns = o.durations_ns;

@@ -22,6 +22,17 @@ bool same_energy_scales(const EnergyScales& x, const EnergyScales& y) {
          x.table_b() == y.table_b();
 }
 
+SpinFlipSector comparison_sector(const TransverseIsingHamiltonian& h, const std::vector<ShapeCandidate>& cands) {
+  bool even = !h.problem().has_fields();
+  for (const auto& c : cands) {
+    if (!even) break;
+    const QuantumState psi = initial_state(h, c.schedule, c.schedule.path_for(1.0));
+    for (std::size_t b = 0; even && b < psi.size(); ++b)
+      if (std::abs(psi[b] - psi[psi.size() - 1 - b]) > 1e-12) even = false;
+  }
+  return even ? SpinFlipSector::Even : SpinFlipSector::Full;
+}
+
 ShapeComparison compare_shapes(const IsingProblem& problem, const std::vector<ShapeCandidate>& cands,
                                const ShapeComparisonOptions& o) {
   if (cands.empty()) throw InputError({"", 0, 0, "shapes"}, "no paths to compare", "give at least one schedule or shape");
@@ -45,17 +56,9 @@ ShapeComparison compare_shapes(const IsingProblem& problem, const std::vector<Sh
   const std::size_t nd = o.durations_ns.size();
   out.runs.resize(cands.size() * nd);
 
-  // Start states, and whether every run stays in the even spin-flip sector
-  // (no fields and a start state invariant under the global flip).
   std::vector<QuantumState> starts;
-  bool even = !problem.has_fields();
-  for (const auto& c : cands) {
-    starts.push_back(initial_state(H, c.schedule, c.schedule.path_for(1.0)));
-    const QuantumState& psi = starts.back();
-    for (std::size_t b = 0; even && b < psi.size(); ++b)
-      if (std::abs(psi[b] - psi[psi.size() - 1 - b]) > 1e-12) even = false;
-  }
-  out.sector = even ? SpinFlipSector::Even : SpinFlipSector::Full;
+  for (const auto& c : cands) starts.push_back(initial_state(H, c.schedule, c.schedule.path_for(1.0)));
+  out.sector = comparison_sector(H, cands);
 
   std::mutex lock;
   std::exception_ptr failure;

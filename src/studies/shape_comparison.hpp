@@ -61,6 +61,11 @@ struct ShapeComparison {
 ShapeComparison compare_shapes(const IsingProblem& problem, const std::vector<ShapeCandidate>& candidates,
                                const ShapeComparisonOptions& options);
 
+/// The space whose levels compare_shapes follows: the even spin-flip sector when the
+/// problem has no fields and every candidate's start state is invariant under the
+/// global flip, else the full space (its `levels` must not exceed that space's states).
+SpinFlipSector comparison_sector(const TransverseIsingHamiltonian& h, const std::vector<ShapeCandidate>& candidates);
+
 /// True when two energy-scale objects describe the same A(s), B(s).
 bool same_energy_scales(const EnergyScales& x, const EnergyScales& y);
 
