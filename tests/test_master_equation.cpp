@@ -204,3 +204,49 @@ TEST_CASE("Trace stays 1 and rho stays positive through a thermal anneal with a 
   CHECK(r.min_eigenvalue > -1e-10);
   CHECK(std::abs(r.ground_probability - fine.ground_probability) < 1e-6);
 }
+
+#include <fstream>
+
+#include "test_support.hpp"
+
+namespace {
+// A value inside the JSON text (a dotted path such as "open_system.ground_probability"), read by Python's json module.
+std::string json_at(const testing::TempDir& dir, const std::string& json, const std::string& dotted) {
+  const auto f = dir.write("summary.json", json);
+  const auto out = dir.path / "value.txt";
+  const std::string cmd = "/usr/bin/python3 -c \"import json,sys,functools; d=json.load(open(sys.argv[1])); "
+                          "print(functools.reduce(lambda x, k: x[k], sys.argv[2].split('.'), d))\" '" +
+                          f.string() + "' " + dotted + " > '" + out.string() + "'";
+  REQUIRE(std::system(cmd.c_str()) == 0);
+  std::ifstream in(out);
+  std::string v;
+  std::getline(in, v);
+  return v;
+}
+}  // namespace
+
+TEST_CASE("anneal --bath: the closed and open results side by side; eta = 0 in a bath file gives the closed p") {
+  // End to end through the command line: a bath file with coupling 0 is the closed system (common practice), and
+  // the JSON carries the bath and the open-system result with trace and positivity; a cold bath with coupling
+  // changes p (the check can fail).
+  testing::TempDir dir;
+  dir.write("closed.toml", "format = \"gapwise-bath\"\ntemperature_mk = 12\ncoupling = 0\n");
+  dir.write("warm.toml", "format = \"gapwise-bath\"\ntemperature_mk = 40\ncoupling = 5e-3\n");
+  const auto src = testing::source_dir();
+  const std::string base = "anneal '" + (src / "data-samples/triangle.toml").string() + "' '" +
+                           (src / "schedules/linear.toml").string() + "' -d 30 --json --tolerance 1e-8 --bath ";
+  const auto r0 = testing::run_gapwise(base + "'" + (dir.path / "closed.toml").string() + "'", dir);
+  REQUIRE(r0.exit_code == 0);
+  const double closed = std::stod(json_at(dir, r0.out, "ground_probability"));
+  const double open0 = std::stod(json_at(dir, r0.out, "open_system.ground_probability"));
+  CHECK(std::abs(open0 - closed) < 1e-7);
+  CHECK(json_at(dir, r0.out, "bath.illustrative_defaults_used") == "True");  // cutoff_ghz was left out
+  CHECK(std::stod(json_at(dir, r0.out, "bath.theta_ghz")) == doctest::Approx(0.2500394).epsilon(1e-6));
+  const auto r1 = testing::run_gapwise(base + "'" + (dir.path / "warm.toml").string() + "'", dir);
+  REQUIRE(r1.exit_code == 0);
+  const double open1 = std::stod(json_at(dir, r1.out, "open_system.ground_probability"));
+  INFO("closed p " << closed << ", open p (eta 0) " << open0 << ", open p (40 mK, eta 5e-3) " << open1);
+  CHECK(std::abs(open1 - closed) > 1e-3);
+  CHECK(std::stod(json_at(dir, r1.out, "open_system.max_trace_deviation")) < 1e-9);
+  CHECK(std::stod(json_at(dir, r1.out, "open_system.min_eigenvalue")) > -1e-10);
+}
