@@ -40,6 +40,7 @@ std::string deep_key(int n) {
 }
 
 const std::string kScheduleHead = "format = \"gapwise-schedule\"\n[scales]\nkind = \"linear\"\n";
+const std::string kBathHead = "format = \"gapwise-bath\"\n";
 
 // The last cell of the catalogue row "| id | ... | message |".
 std::string catalogued_message(const std::string& doc, const std::string& id) {
@@ -146,6 +147,17 @@ std::vector<Row> rows() {
       {"R2K5", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 5.0\n[path]\ntime = \"ns\"\n"
                    "points = [[0.0, 0.5], [10.0, 0.5]]\nstart = \"ground\"\n",
        "diagnose TRIANGLE DIR/s.toml -d 10"},
+      // --- thermal bath files (anneal --bath) ---
+      {"TB1", "b.toml", kBathHead + "temperature_mk = -12\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
+      {"TB2", "b.toml", kBathHead + "coupling = -1e-3\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
+      {"TB3", "b.toml", kBathHead + "cutoff_ghz = 0\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
+      {"TB4", "b.toml", kBathHead + "temperature_K = 0.012\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
+      {"TB5", "b.toml", "temperature_mk = 12\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
+      {"TB6", "b.toml", kBathHead + "coupling = 5\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
+      {"TB7", "b.toml", kBathHead + "temperature_mk = nan\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
+      {"TB8", "b.toml", kBathHead + "temperature_mk = \"12 mK\"\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
+      {"TB9", "p.toml", "qubits = 10\n", "anneal DIR/p.toml LINEAR -d 5 --bath SRC/data-samples/bath-12mk.toml"},
+      {"TB10", "", "", "anneal TRIANGLE LINEAR -d 5 --bath DIR/no-bath.toml"},
   };
 }
 

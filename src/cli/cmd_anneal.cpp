@@ -19,6 +19,7 @@
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
+#include "cli/bath_option.hpp"
 #include "io/json_summary.hpp"
 #include "io/progress_bar.hpp"
 #include "io/terminal_text.hpp"
@@ -29,7 +30,7 @@ namespace gapwise::cli {
 namespace {
 
 struct AnnealOptions {
-  std::string problem, schedule, out, csv, propagator = "split4", observe_s;
+  std::string problem, schedule, out, csv, propagator = "split4", observe_s, bath;
   std::optional<double> duration_ns;
   double tolerance = 1e-6;
   bool p_only = false;
@@ -41,10 +42,11 @@ struct AnnealOptions {
 constexpr double kProgressAfterSeconds = 2.0;
 
 void run_anneal(const AnnealOptions& o) {
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out").output(o.csv, "--csv"));
+  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").input(o.bath, "--bath").output(o.out, "--out").output(o.csv, "--csv"));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);
+  const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
   check_tolerance(o.tolerance);
   check_count(o.samples, 0, 10000, "--samples", "observations per piece");
   check_count(o.top, 0, 1000, "--top", "outcome count");
@@ -121,6 +123,12 @@ void run_anneal(const AnnealOptions& o) {
     delta_p = std::abs(simulate_anneal(H, gm, sch.scales, path, psi0, tight).ground_probability - r.ground_probability);
   }
 
+  std::optional<OpenAnnealResult> open;
+  if (bath) {
+    OpenPropagatorOptions oo{.tolerance = o.tolerance};
+    if (bar.enabled()) oo.progress = [&](const PropagationProgress& pp) { bar.stage("with the bath", pp.fraction); };
+    open = simulate_open_anneal(H, gm, sch.scales, path, psi0, *bath, oo);
+  }
   bar.done();
 
   const std::vector<AccuracyIssue> accuracy = check_accuracy(r, o.tolerance, delta_p);
@@ -210,6 +218,7 @@ void run_anneal(const AnnealOptions& o) {
       }
       j.insert_or_assign("observations", std::move(oa));
     }
+    if (open) put_open_system_json(j, *bath, *open);
     std::cout << to_json(j) << "\n";
   } else {
     std::cout << fmt::format("problem      {}: {} qubits, {} couplings; ground energy {:.10g}, degeneracy {}\n", terminal_text(o.problem),
@@ -236,8 +245,9 @@ void run_anneal(const AnnealOptions& o) {
                                o.p_only ? "--p-only: other outcomes not controlled"
                                         : "any other set of outcomes\n                          within 100x the tolerance");
     if (!accuracy.empty()) std::cout << "accuracy                  NOT within the tolerance (see warnings)\n";
+    if (open) std::cout << open_system_text(*bath, *open, r.ground_probability);
     std::cout << "\n";
-    std::cout << "most probable outcomes\n" << outcomes.render();
+    std::cout << "most probable outcomes" << (open ? " (closed system)" : "") << "\n" << outcomes.render();
     if (!requested_rows.empty()) {
       std::cout << "\nobservations at the requested s"
                 << (o.levels > 0 ? fmt::format(" (pop_levelJ: weight on the J-th lowest distinct level of H(s), {})",
@@ -304,6 +314,7 @@ void run_anneal(const AnnealOptions& o) {
     }
     const auto probs = probabilities(r.final_state);
     h5.write("/anneal/final_probabilities", probs, "1");
+    if (open) write_open_system_hdf5(h5, "/anneal/open_system", *bath, *open);
     h5.commit();
   }
 }
@@ -350,6 +361,7 @@ void register_anneal(CLI::App& app) {
   sub->add_option("--out", o->out, "write an HDF5 result file (trace, final probabilities, provenance)");
   sub->add_option("--csv", o->csv, "write the trace (t, s, p_ground, energy, norm) as CSV");
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
+  add_bath_option(sub, o->bath);
   add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
   sub->add_flag("--progress", o->progress,

@@ -1,0 +1,84 @@
+#include "cli/bath_option.hpp"
+
+#include <fmt/format.h>
+
+#include "cli/cli_common.hpp"
+#include "io/bath_file.hpp"
+#include "io/input_error.hpp"
+
+namespace gapwise::cli {
+
+CLI::Option* add_bath_option(CLI::App* sub, std::string& bath_file) {
+  return sub
+      ->add_option("--bath", bath_file,
+                   "also run the anneal coupled to a thermal bath described in FILE (format gapwise-bath:\n"
+                   "temperature_mk, coupling, cutoff_ghz; see the user guide) with the adiabatic master\n"
+                   "equation, full density matrix (at most 9 qubits), and report it beside the closed system")
+      ->check(readable_input_file());
+}
+
+std::optional<OhmicBath> load_bath(const std::string& bath_file, int qubits) {
+  if (bath_file.empty()) return std::nullopt;
+  OhmicBath bath = read_bath_file(bath_file);
+  if (qubits > kMaxFullSpaceOpenQubits)
+    throw InputError({"--bath", 0, 0, "--bath"},
+                     fmt::format("the problem has {} qubits; the open-system anneal keeps the full 2^n x 2^n "
+                                 "density matrix and holds at most {} qubits",
+                                 qubits, kMaxFullSpaceOpenQubits),
+                     fmt::format("leave out --bath, or use a problem of at most {} qubits", kMaxFullSpaceOpenQubits));
+  return bath;
+}
+
+std::string open_system_text(const OhmicBath& bath, const OpenAnnealResult& open, double p_closed) {
+  std::string out = "\nthermal bath (adiabatic master equation, sigma^z coupling on every qubit, Lamb shift neglected)\n";
+  out += fmt::format("bath                      {}{}\n", bath.source.empty() ? "" : bath.source + ": ", bath.summary());
+  out += fmt::format("                          closed system   with bath\n");
+  out += fmt::format("ground-state probability  {:<15.8f} {:.8f}\n", p_closed, open.ground_probability);
+  out += fmt::format("density matrix            trace error {:.1e} (largest along the run), smallest eigenvalue {:.1e}\n",
+                     open.stats.max_trace_deviation, open.stats.min_eigenvalue);
+  out += fmt::format("open-system run           {} steps ({} rejected), {} eigen-decompositions, error estimate {:.1e}, {:.2f} s\n",
+                     open.stats.steps, open.stats.rejected_steps, open.stats.eigen_solves, open.stats.error_estimate,
+                     open.wall_seconds);
+  return out;
+}
+
+void put_open_system_json(toml::table& j, const OhmicBath& bath, const OpenAnnealResult& open) {
+  toml::table b;
+  put(b, "file", bath.source);
+  put(b, "temperature_mk", bath.temperature_mk);
+  put(b, "theta_ghz", bath.theta_ghz());
+  put(b, "coupling", bath.coupling);
+  put(b, "cutoff_ghz", bath.cutoff_ghz);
+  put(b, "illustrative_defaults_used",
+      bath.temperature_defaulted || bath.coupling_defaulted || bath.cutoff_defaulted);
+  j.insert_or_assign("bath", std::move(b));
+  toml::table r;
+  put(r, "ground_probability", open.ground_probability);
+  put(r, "max_trace_deviation", open.stats.max_trace_deviation);
+  put(r, "min_eigenvalue", open.stats.min_eigenvalue);
+  put(r, "error_estimate", open.stats.error_estimate);
+  put(r, "steps", static_cast<long long>(open.stats.steps));
+  put(r, "rejected_steps", static_cast<long long>(open.stats.rejected_steps));
+  put(r, "eigen_solves", static_cast<long long>(open.stats.eigen_solves));
+  put(r, "propagator", open.propagator);
+  put(r, "wall_seconds", open.wall_seconds);
+  j.insert_or_assign("open_system", std::move(r));
+}
+
+void write_open_system_hdf5(Hdf5Output& h5, const std::string& group, const OhmicBath& bath,
+                            const OpenAnnealResult& open) {
+  h5.attribute(group, "bath_file", bath.source);
+  h5.attribute(group, "temperature_mk", bath.temperature_mk);
+  h5.attribute(group, "theta_ghz", bath.theta_ghz());
+  h5.attribute(group, "coupling", bath.coupling);
+  h5.attribute(group, "cutoff_ghz", bath.cutoff_ghz);
+  h5.attribute(group, "ground_probability", open.ground_probability);
+  h5.attribute(group, "max_trace_deviation", open.stats.max_trace_deviation);
+  h5.attribute(group, "min_eigenvalue", open.stats.min_eigenvalue);
+  h5.attribute(group, "error_estimate", open.stats.error_estimate);
+  h5.attribute(group, "steps", static_cast<long long>(open.stats.steps));
+  h5.attribute(group, "propagator", open.propagator);
+  h5.write(group + "/final_populations", open.populations, "1");
+}
+
+}  // namespace gapwise::cli

@@ -1,0 +1,33 @@
+#pragma once
+// The `--bath FILE` option the simulation commands share: reading and checking
+// the bath file against the problem, running the open-system anneal beside the
+// closed one, and reporting it (terminal lines, JSON and HDF5 keys) the same
+// way in every command.
+#include <optional>
+#include <string>
+
+#include <CLI/CLI.hpp>
+
+#include "dynamics/master_equation.hpp"
+#include "io/hdf5_output.hpp"
+#include "io/json_summary.hpp"
+
+namespace gapwise::cli {
+
+/// Adds `--bath FILE` to a command.
+CLI::Option* add_bath_option(CLI::App* sub, std::string& bath_file);
+
+/// The bath of `bath_file` ("" -> nullopt). InputError (key --bath) when the
+/// problem has more qubits than the full-space master equation holds.
+std::optional<OhmicBath> load_bath(const std::string& bath_file, int qubits);
+
+/// Terminal lines: the bath, p closed and open side by side, trace/positivity.
+std::string open_system_text(const OhmicBath& bath, const OpenAnnealResult& open, double p_closed);
+/// JSON table `bath` (inputs) and `open_system` (results).
+void put_open_system_json(toml::table& j, const OhmicBath& bath, const OpenAnnealResult& open);
+/// HDF5 group `group` (e.g. "/anneal/open_system"): bath and result attributes,
+/// final populations.
+void write_open_system_hdf5(Hdf5Output& h5, const std::string& group, const OhmicBath& bath,
+                            const OpenAnnealResult& open);
+
+}  // namespace gapwise::cli
