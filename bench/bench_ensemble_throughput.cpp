@@ -3,7 +3,7 @@
 // interleaved and repeated so that a load change on a shared machine hits every
 // configuration alike. Reports the median of the repeats and the speed-up ratios.
 //
-//   build/bench/bench_ensemble_throughput [--sizes 6-10:2] [--count 4] [--repeats 3]
+//   build/bench/bench_ensemble_throughput [--sizes lin:6:10:3] [--count 4] [--repeats 3]
 #include <algorithm>
 #include <chrono>
 #include <cstdlib>
@@ -39,7 +39,7 @@ double median(std::vector<double> v) {
 }  // namespace
 
 int main(int argc, char** argv) {
-  std::string sizes = "6-10:2", exe = GAPWISE_EXE_PATH, mpiexec = GAPWISE_MPIEXEC_PATH;
+  std::string sizes = "lin:6:10:3", exe = GAPWISE_EXE_PATH, mpiexec = GAPWISE_MPIEXEC_PATH;
   int count = 4, repeats = 3;
   for (int i = 1; i + 1 < argc; i += 2) {
     const std::string a = argv[i];
@@ -52,7 +52,7 @@ int main(int argc, char** argv) {
   fs::create_directories(dir);
   const std::string set = (dir / "set.h5").string();
   const std::string schedule = std::string(GAPWISE_SOURCE_PATH) + "/schedules/linear.toml";
-  run_seconds(fmt::format("'{}' generate --graph ring-chords --couplings gaussian --sizes {} --count {} --seed 3 -q --out '{}'",
+  run_seconds(fmt::format("'{}' generate --graph ring-chords --couplings gaussian --sizes {} --count {} --seed 3 --out '{}' > /dev/null",
                           exe, sizes, count, set));
   const int instances = static_cast<int>(gapwise::read_instance_set(set).instances.size());
   const std::string study = fmt::format("ensemble '{}' '{}' -d 1,3,10,30 -q --fresh", set, schedule);

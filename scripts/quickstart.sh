@@ -11,8 +11,8 @@ echo
 echo "== gapwise inspect data-samples/triangle.toml"
 build/gapwise inspect data-samples/triangle.toml
 echo
-echo "== gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20"
-build/gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20
+echo "== gapwise anneal data-samples/triangle.toml schedules/linear.toml -d 20"
+build/gapwise anneal data-samples/triangle.toml schedules/linear.toml -d 20
 echo
 echo "== gapwise durations data-samples/meeting-slots-qubo.toml schedules/linear.toml"
 build/gapwise durations data-samples/meeting-slots-qubo.toml schedules/linear.toml

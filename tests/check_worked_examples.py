@@ -6,7 +6,7 @@ A document under notebooks-free-docs/examples/ marks each quoted number in a
 comment block:
 
     <!-- gapwise-check
-    run: anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20 --json
+    run: anneal data-samples/triangle.toml schedules/linear.toml -d 20 --json
     ground_probability: 0.899084 +- 1e-5
     outcomes.0.bits: 101
     -->

@@ -20,7 +20,7 @@ TEST_CASE("mpirun -np 2 gives exactly the serial ensemble result") {
   TempDir dir;
   const auto p = [&](const char* f) { return (dir.path / f).string(); };
   const std::string schedule = (gapwise::testing::source_dir() / "schedules" / "linear.toml").string();
-  REQUIRE(run_gapwise("generate --graph square --couplings gaussian --sizes 4,6,8 --count 3 --seed 21 -q --out " + p("set.h5"), dir)
+  REQUIRE(run_gapwise("generate --graph square --couplings gaussian --sizes 4,6,8 --count 3 --seed 21 --out " + p("set.h5"), dir)
               .exit_code == 0);
   const std::string args = "ensemble " + p("set.h5") + " '" + schedule + "' -d 0.3,1,3 --gap-points 21 --resamples 300 -q ";
   const auto serial = run_gapwise(args + "--threads 1 --out " + p("serial.h5"), dir);

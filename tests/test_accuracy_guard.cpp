@@ -70,7 +70,7 @@ TEST_CASE("--strict exits 3 on a loose long run, warns, and still writes the mar
   const std::string out = (dir.path / "loose.h5").string();
   const auto res = testing::run_gapwise(
       "anneal '" + (src / "data-samples/triangle.toml").string() + "' '" + (src / "schedules/linear.toml").string() +
-          "' --duration-ns 300 --tolerance 1e-2 --propagator odeint --no-check --strict --out '" + out + "'",
+          "' -d 300 --tolerance 1e-2 --propagator odeint --no-check --strict --out '" + out + "'",
       dir);
   CHECK(res.exit_code == 3);
   CHECK(res.err.find("gapwise: warning: norm drift") != std::string::npos);
@@ -86,7 +86,7 @@ TEST_CASE("--strict exits 3 on a loose long run, warns, and still writes the mar
   // Without --strict the same run warns but exits 0.
   const auto lax = testing::run_gapwise(
       "anneal '" + (src / "data-samples/triangle.toml").string() + "' '" + (src / "schedules/linear.toml").string() +
-          "' --duration-ns 300 --tolerance 1e-2 --propagator odeint --no-check",
+          "' -d 300 --tolerance 1e-2 --propagator odeint --no-check",
       dir);
   CHECK(lax.exit_code == 0);
   CHECK(lax.err.find("gapwise: warning:") != std::string::npos);

@@ -95,8 +95,8 @@ std::vector<Row> rows() {
       {"O4", "", "", "anneal TRIANGLE LINEAR --csv DIR"},
       // --- options ---
       {"C1", "", "", "anneal TRIANGLE LINEAR --tolerance 0.5"},
-      {"C2", "", "", "anneal TRIANGLE LINEAR --duration-ns 0"},
-      {"C3", "", "", "anneal TRIANGLE LINEAR --duration-ns twenty"},
+      {"C2", "", "", "anneal TRIANGLE LINEAR -d 0"},
+      {"C3", "", "", "anneal TRIANGLE LINEAR -d twenty"},
       // --- round two: outputs never replace inputs or special files; journals and interrupts ---
       {"R2C1", "p.toml", "qubits = 2\ncouplings = [[0, 1, -1.0]]\nfields = [0.25, 0.0]\n",
        "anneal DIR/p.toml LINEAR -d 5 --csv DIR/p.toml"},
@@ -114,12 +114,12 @@ std::vector<Row> rows() {
       {"R2D8", "b.toml", "qubits = 25\n", "ensemble DIR LINEAR -d 5 -q --out DIR/study.h5"},
       {"R2D9", "p.toml", "qubits = 2\nlabels = [\"x\\u001b[2J\", \"x\\u001b[2J\"]\n", "inspect DIR/p.toml"},
       // --- round two: crashes, lost results, paths kept as written ---
-      {"R2A2", "", "", "anneal TRIANGLE PAUSE --duration-ns 5e-324"},
+      {"R2A2", "", "", "anneal TRIANGLE PAUSE -d 5e-324"},
       {"R2A4", "p.toml", "qubits = 2\n[" + deep_key(100) + "]\n", "inspect DIR/p.toml"},
       {"R2A6", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 0\n", "inspect TRIANGLE DIR/s.toml"},
       {"R2A7", "s.toml", "[scales]\nkind = \"table\"\ns = [0, 1]\na_ghz = [5, 0]\nb_ghz = [0, 0]\n", "inspect TRIANGLE DIR/s.toml"},
       {"R2A8", "s.toml", "[path]\nduration_ns = 10\nstart_bits = [0, 1, 1]\n", "anneal TRIANGLE DIR/s.toml"},
-      {"R2A9", "", "", "gap-path TRIANGLE LINEAR --duration-ns -5 --out DIR/g.toml"},
+      {"R2A9", "", "", "gap-path TRIANGLE LINEAR --durations=-5 --out DIR/g.toml"},
       // --- Round two: bad input is exit 2; runs that would never finish (one shared check per kind) ---
       {"R2B1", "", "", "pause-map TRIANGLE LINEAR -d 30 --target 2 --out DIR/m.h5"},
       {"R2B2", "", "", "pause-map TRIANGLE LINEAR -d 30 --tolerance 0.5 --out DIR/m.h5"},
@@ -127,14 +127,14 @@ std::vector<Row> rows() {
       {"R2B4", "", "", "embed-cost TRIANGLE SRC/data-samples/triangle-ring-embedding.toml LINEAR --strengths 1e308 --absolute"},
       {"R2B5", "", "", "pause-map TRIANGLE LINEAR -d 30 --threads -1 --out DIR/m.h5"},
       {"R2B6", "", "", "durations TRIANGLE LINEAR --threads 100000"},
-      {"R2B7", "", "", "anneal TRIANGLE LINEAR --samples 100000000"},
+      {"R2B7", "", "", "anneal TRIANGLE LINEAR --trace-points 100000000"},
       {"R2B8", "p.toml", "qubits = 1\nfields = [0.5]\n", "anneal DIR/p.toml LINEAR -d 10 --observe-s 0.5 --levels 4"},
       {"R2B9", "", "", "anneal TRIANGLE LINEAR -d 1e9"},
       {"R2B10", "p.toml", "qubits = 3\nfields = [1e6, 0, 0]\ncouplings = [[0, 1, 1.0], [1, 2, 1.0], [0, 2, 1.0]]\n",
        "anneal DIR/p.toml LINEAR -d 1000"},
       {"R2B11", "", "", "pause-map TRIANGLE LINEAR -d 10 --cost added --pause-ns 1e12 --out DIR/m.h5"},
       {"R2B12", "", "", "diagnose TRIANGLE LINEAR -d 10 --sigma-h 1e12"},
-      {"R2B13", "", "", "durations TRIANGLE LINEAR --range 1:100:10000000"},
+      {"R2B13", "", "", "durations TRIANGLE LINEAR -d log:1:100:10000000"},
       {"R2B14", "", "", "gap TRIANGLE LINEAR --points 1000000000"},
       {"R2B15", "", "", "generate --count 2000000000 --out DIR/g.h5"},
       // --- Round two, finished: each command names its own option; paths that stay at one s ---
@@ -158,6 +158,16 @@ std::vector<Row> rows() {
       {"TB8", "b.toml", kBathHead + "temperature_mk = \"12 mK\"\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
       {"TB9", "p.toml", "qubits = 10\n", "anneal DIR/p.toml LINEAR -d 5 --bath SRC/data-samples/bath-12mk.toml"},
       {"TB10", "", "", "anneal TRIANGLE LINEAR -d 5 --bath DIR/no-bath.toml"},
+      // --- One command-line grammar: lists, ranges, single durations, numbers a double cannot hold ---
+      {"G1", "", "", "pause-map TRIANGLE LINEAR -d 5 --at 1:1000:4 --out DIR/m.h5"},
+      {"G2", "", "", "durations TRIANGLE LINEAR -d log:0:10:3"},
+      {"G3", "", "", "durations TRIANGLE LINEAR -d 5e-324"},
+      {"G4", "", "", "pause-map TRIANGLE LINEAR -d 5 --pause-ns 0,1e400 --out DIR/m.h5"},
+      {"G5", "", "", "anneal TRIANGLE LINEAR -d 20 --observe-s 0.5,1e-400"},
+      {"G6", "", "", "anneal TRIANGLE LINEAR -d 5,10"},
+      {"G7", "", "", "pause-map TRIANGLE LINEAR -d lin:5:10:2 --out DIR/m.h5"},
+      {"G8", "", "", "generate --sizes 6-14:2 --out DIR/g.h5"},
+      {"G9", "", "", "ensemble SRC/data-samples/ring-chords-glasses LINEAR -d 1,2,x --out DIR/e.h5"},
   };
 }
 

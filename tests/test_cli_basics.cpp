@@ -55,7 +55,7 @@ TEST_CASE("anneal: text, JSON and HDF5 agree; the HDF5 file carries units and pr
   const std::string h5 = (dir.path / "run.h5").string();
   const std::string csv = (dir.path / "trace.csv").string();
   auto r = run_gapwise("anneal " + sample("data-samples/triangle.toml") + " " + sample("schedules/linear.toml") +
-                           " --duration-ns 10 --json --out '" + h5 + "' --csv '" + csv + "'",
+                           " -d 10 --json --out '" + h5 + "' --csv '" + csv + "'",
                        dir);
   INFO(r.err);
   REQUIRE(r.exit_code == 0);
@@ -107,7 +107,7 @@ TEST_CASE("exit codes: 2 for bad input with the place named, 0 for --help") {
   CHECK(d.err.find("directory") != std::string::npos);
   auto h = run_gapwise("anneal --help", dir);
   CHECK(h.exit_code == 0);
-  CHECK(h.out.find("--duration-ns") != std::string::npos);
+  CHECK(h.out.find("-d,--durations") != std::string::npos);
 }
 
 TEST_CASE("memory refusals of every subcommand name the line of `qubits` in the problem file") {
@@ -163,7 +163,7 @@ TEST_CASE("anneal --p-only: p still within the tolerance of a tight Boost.Odeint
   // general-purpose library) at tolerance 1e-9.
   TempDir dir;
   const std::string args = "anneal " + sample("data-samples/spin-glass-8.toml") + " " + sample("schedules/linear.toml") +
-                           " --duration-ns 20 --json --no-check ";
+                           " -d 20 --json --no-check ";
   auto ref = run_gapwise(args + "--propagator odeint --tolerance 1e-9", dir);
   auto all = run_gapwise(args + "--propagator split2 --tolerance 1e-6", dir);
   auto ponly = run_gapwise(args + "--propagator split2 --tolerance 1e-6 --p-only", dir);

@@ -39,10 +39,11 @@ TEST_CASE("command-line errors raised inside the library name the option, never 
   struct Case { std::string args, option; };
   const Case cases[] = {
       {"durations " + tri + " " + lin + " --durations 0", "--durations"},
-      {"durations " + tri + " " + lin + " --range 5:1:3", "--range"},
-      {"embed-cost " + tri + " " + sample("data-samples/triangle-ring-embedding.toml") + " " + lin + " --range 5:1:3",
-       "--range"},
-      {"compare-paths " + tri + " " + lin + " --duration-ns -1", "--duration-ns"},
+      {"durations " + tri + " " + lin + " -d 5:1:3", "--durations"},
+      {"embed-cost " + tri + " " + sample("data-samples/triangle-ring-embedding.toml") + " " + lin +
+           " --search-durations log:0:1:3",
+       "--search-durations"},
+      {"compare-paths " + tri + " " + lin + " --durations=-1", "--durations"},
       {"gap " + tri + " --points 2", "--points"},             // checked by the gap search
       {"gap " + tri + " --s-tolerance 0.5", "--s-tolerance"},
       {"gap " + tri + " --s-first 0.8 --s-last 0.2", "--s-first"},

@@ -101,24 +101,26 @@ TEST_CASE("a journal written for other inputs is refused with a fix") {
   CHECK(r.exit_code == 2);
   CHECK(r.err.find("other inputs") != std::string::npos);
   CHECK(r.err.find("a.csv.journal") != std::string::npos);
-  CHECK(run_gapwise(base + " --tolerance 1e-7 --restart", dir).exit_code == 0);
+  CHECK(run_gapwise(base + " --tolerance 1e-7 --fresh", dir).exit_code == 0);
   // --p-only changes the accuracy contract: a journal of the other choice is refused too.
   const auto p_only = run_gapwise(base + " --tolerance 1e-7 --p-only", dir);
   CHECK(p_only.exit_code == 2);
   CHECK(p_only.err.find("other inputs") != std::string::npos);
-  CHECK(run_gapwise(base + " --tolerance 1e-7 --p-only --restart", dir).exit_code == 0);
+  CHECK(run_gapwise(base + " --tolerance 1e-7 --p-only --fresh", dir).exit_code == 0);
 }
 
 TEST_CASE("input errors name the option and the fix") {
   TempDir dir;
   const std::string base =
       "durations '" + sample("data-samples/triangle.toml") + "' '" + sample("schedules/linear.toml") + "' --quiet ";
-  auto r = run_gapwise(base + "--range 10:1:3", dir);
+  // A range that does not say its spacing: both spellings in the fix (command-line grammar, user guide).
+  auto r = run_gapwise(base + "-d 10:1:3", dir);
   CHECK(r.exit_code == 2);
-  CHECK(r.err.find("FIRST <= LAST") != std::string::npos);
-  r = run_gapwise(base + "--range 1-10", dir);
+  CHECK(r.err.find("lin:10:1:3") != std::string::npos);
+  CHECK(r.err.find("log:10:1:3") != std::string::npos);
+  r = run_gapwise(base + "-d 1-10", dir);
   CHECK(r.exit_code == 2);
-  CHECK(r.err.find("--range") != std::string::npos);
+  CHECK(r.err.find("--durations") != std::string::npos);
   r = run_gapwise(base + "--target 1.0", dir);
   CHECK(r.exit_code == 2);
   CHECK(r.err.find("--target") != std::string::npos);

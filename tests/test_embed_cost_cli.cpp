@@ -22,8 +22,8 @@ namespace {
 std::string sample(const char* name) { return "'" + (source_dir() / "data-samples" / name).string() + "'"; }
 std::string schedule(const char* name) { return "'" + (source_dir() / "schedules" / name).string() + "'"; }
 
-std::string quick(const char* range = "2:16:3") {
-  return std::string(" --range ") + range + " --resolution 0.05 --threads 1 -q";
+std::string quick(const char* range = "log:2:16:3") {
+  return std::string(" --search-durations ") + range + " --resolution 0.05 --threads 1 -q";
 }
 
 }  // namespace
@@ -106,5 +106,5 @@ TEST_CASE("embed-cost input errors exit with 2 and name the file and key") {
                                  " " + schedule("linear.toml") + quick("10:1"),
                              dir);
   CHECK(t.exit_code == 2);
-  CHECK(t.err.find("FIRST:LAST:COUNT") != std::string::npos);
+  CHECK(t.err.find("log:FIRST:LAST:COUNT") != std::string::npos);
 }

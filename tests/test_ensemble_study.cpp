@@ -173,7 +173,7 @@ TEST_CASE("planted instances: the study confirms the planted ground energy") {
 TEST_CASE("settings and shards are validated with the option named") {
   EnsembleSettings st = quick_settings();
   st.durations_ns = {3.0, 1.0};
-  CHECK_THROWS_WITH_AS(st.validate(), doctest::Contains("--durations-ns"), InputError);
+  CHECK_THROWS_WITH_AS(st.validate(), doctest::Contains("--durations"), InputError);
   st = quick_settings();
   st.target_probability = 1.0;
   CHECK_THROWS_WITH_AS(st.validate(), doctest::Contains("--target"), InputError);
@@ -185,7 +185,7 @@ TEST_CASE("settings and shards are validated with the option named") {
 TEST_CASE("command line: shards merged equal the whole run") {
   TempDir dir;
   const auto p = [&](const char* f) { return (dir.path / f).string(); };
-  REQUIRE(run_gapwise("generate --graph ring-chords --couplings gaussian --sizes 3-5 --count 2 --seed 4 -q --out " + p("set.h5"), dir).exit_code == 0);
+  REQUIRE(run_gapwise("generate --graph ring-chords --couplings gaussian --sizes lin:3:5:3 --count 2 --seed 4 --out " + p("set.h5"), dir).exit_code == 0);
   const std::string common = " " + p("set.h5") + " '" + schedule_path() + "' -d 0.3,1,3 --gap-points 21 --resamples 300 -q ";
   REQUIRE(run_gapwise("ensemble" + common + "--out " + p("whole.h5"), dir).exit_code == 0);
   REQUIRE(run_gapwise("ensemble" + common + "--shard 0/2 --out " + p("s0.h5"), dir).exit_code == 0);
@@ -210,7 +210,7 @@ TEST_CASE("command line: shards merged equal the whole run") {
 TEST_CASE("command line: a run killed with SIGKILL and resumed equals an uninterrupted run") {
   TempDir dir;
   const auto p = [&](const char* f) { return (dir.path / f).string(); };
-  REQUIRE(run_gapwise("generate --graph complete --couplings gaussian --sizes 4-6 --count 4 --seed 9 -q --out " + p("set.h5"), dir).exit_code == 0);
+  REQUIRE(run_gapwise("generate --graph complete --couplings gaussian --sizes lin:4:6:3 --count 4 --seed 9 --out " + p("set.h5"), dir).exit_code == 0);
   const std::string args = p("set.h5") + " '" + schedule_path() + "' -d 0.3,1,3 --gap-points 21 --resamples 300 -q --threads 1 ";
   REQUIRE(run_gapwise("ensemble " + args + "--out " + p("straight.h5"), dir).exit_code == 0);
 

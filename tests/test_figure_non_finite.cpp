@@ -56,7 +56,7 @@ gapwise::testing::CommandResult draw(const TempDir& dir, const std::string& h5) 
 TEST_CASE("figure: a NaN in an anneal trace is refused, naming the file, the dataset and the entry") {
   TempDir dir;
   const auto h5 = write_result(dir, "anneal " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
-                                        " --duration-ns 5 --no-check", "run");
+                                        " -d 5 --no-check", "run");
   REQUIRE(draw(dir, h5).exit_code == 0);  // the file as written draws
   poke_dataset(h5, "/anneal/trace/ground_probability", 7, std::numeric_limits<double>::quiet_NaN());
   auto f = draw(dir, h5);
@@ -85,7 +85,7 @@ TEST_CASE("figure: an infinity in a matrix of levels (gap results) is refused wi
 TEST_CASE("figure: a NaN in an attribute a figure uses is refused, naming the attribute") {
   TempDir dir;
   const auto h5 = write_result(dir, "anneal " + src("data-samples/weak-field-ring.toml") + " " +
-                                        src("schedules/linear.toml") + " --duration-ns 3 --no-check", "ring");
+                                        src("schedules/linear.toml") + " -d 3 --no-check", "ring");
   poke_attribute(h5, "/anneal", "ground_probability", std::numeric_limits<double>::quiet_NaN());
   auto f = draw(dir, h5);
   INFO(f.err);
@@ -99,7 +99,7 @@ TEST_CASE("figure: the -1 marker of \"not applicable\" is data, not an error") {
   // prediction does not apply there and /durations/points/p_landau_zener holds -1.
   TempDir dir;
   const auto h5 = write_result(dir, "durations " + src("data-samples/triangle.toml") + " " +
-                                        src("schedules/linear.toml") + " --range 0.01:30:4 --no-search --quiet", "dur");
+                                        src("schedules/linear.toml") + " -d log:0.01:30:4 --no-search --quiet", "dur");
   {
     H5::H5File file(h5, H5F_ACC_RDONLY);
     H5::DataSet ds = file.openDataSet("/durations/points/p_landau_zener");

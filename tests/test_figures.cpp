@@ -75,7 +75,7 @@ using gapwise::testing::run_study;
 TEST_CASE("figure: anneal results give the trace figure") {
   TempDir dir;
   const auto h5 = run_study(dir, "anneal " + src("data-samples/triangle.toml") + " " + src("schedules/pause.toml") +
-                                     " --duration-ns 5 --no-check", "run");
+                                     " -d 5 --no-check", "run");
   check_figures(dir, h5, {"anneal-trace"});
 }
 
@@ -89,14 +89,14 @@ TEST_CASE("figure: gap results give the spectrum and gap figures") {
 TEST_CASE("figure: durations results give the probability and time-to-solution figures") {
   TempDir dir;
   const auto h5 = run_study(dir, "durations " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
-                                     " --range 1:30:4 --no-search --quiet", "dur");
+                                     " -d log:1:30:4 --no-search --quiet", "dur");
   check_figures(dir, h5, {"probability", "tts"});
 }
 
 TEST_CASE("figure: pause-map and reverse-map results give heat maps") {
   TempDir dir;
   const auto pm = run_study(dir, "pause-map " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
-                                     " --duration-ns 2 --at 0.3,0.6 --pause-ns 0,0.5,1.5", "pm");
+                                     " -d 2 --at 0.3,0.6 --pause-ns 0,0.5,1.5", "pm");
   check_figures(dir, pm, {"pause-map"});
   const auto rm = run_study(dir, "reverse-map " + src("data-samples/meeting-slots-qubo.toml") + " " +
                                      src("schedules/reverse-dwell.toml") + " --turn 0.4,0.7 --dwell-ns 0,5", "rm");
@@ -106,7 +106,7 @@ TEST_CASE("figure: pause-map and reverse-map results give heat maps") {
 TEST_CASE("figure: compare-paths results give one population figure per path and duration") {
   TempDir dir;
   const auto h5 = run_study(dir, "compare-paths " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
-                                     " --pause 0.5:0.2 --duration-ns 2,4", "cmp");
+                                     " --pause 0.5:0.2 -d 2,4", "cmp");
   check_figures(dir, h5, {"populations-linear-toml-0", "populations-linear-toml-1", "populations-pause-s-0-5-for-20--0",
                           "populations-pause-s-0-5-for-20--1"});
 }
@@ -115,7 +115,7 @@ TEST_CASE("figure: embed-cost results give p, duration needed and minimum gap ag
   TempDir dir;
   const auto h5 = run_study(dir, "embed-cost " + src("data-samples/garden-beds-qubo.toml") + " " +
                                      src("data-samples/garden-beds-square-embedding.toml") + " " +
-                                     src("schedules/linear.toml") + " --absolute --strengths 0.05,0.3 --range 1:100:5 -q",
+                                     src("schedules/linear.toml") + " --absolute --strengths 0.05,0.3 --search-durations log:1:100:5 -q",
                             "emb");
   check_figures(dir, h5, {"chain-probability", "chain-duration", "chain-gap"});
 }
@@ -138,7 +138,7 @@ TEST_CASE("figure: a file that is not a result is refused with exit code 2") {
 TEST_CASE("figure: an ensemble result gives the TTS-against-size and gap-against-size figures") {
   TempDir dir;
   const auto p = [&](const char* f) { return (dir.path / f).string(); };
-  REQUIRE(run_gapwise("generate --graph ring-chords --couplings gaussian --sizes 3-5 --count 3 --seed 4 -q --out " + p("set.h5"), dir)
+  REQUIRE(run_gapwise("generate --graph ring-chords --couplings gaussian --sizes lin:3:5:3 --count 3 --seed 4 --out " + p("set.h5"), dir)
               .exit_code == 0);
   auto e = run_gapwise("ensemble " + p("set.h5") + " '" + (source_dir() / "schedules/linear.toml").string() +
                            "' -d 0.3,1,3 --gap-points 21 --resamples 200 -q --threads 1 --out " + p("study.h5"),

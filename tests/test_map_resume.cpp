@@ -81,7 +81,7 @@ void check_kill_and_resume(const std::vector<std::string>& args, const std::vect
 
 TEST_CASE("a pause map killed half-way and rerun equals an uninterrupted map") {
   check_kill_and_resume({"pause-map", sample("data-samples/weak-field-ring.toml"), sample("schedules/linear.toml"),
-                         "--duration-ns", "300", "--at", "0.2:0.8:4", "--pause-ns", "0,50,100", "--threads", "1"},
+                         "-d", "300", "--at", "lin:0.2:0.8:4", "--pause-ns", "0,50,100", "--threads", "1"},
                         {"/pause_map/ground_probability", "/pause_map/tts_ns", "/pause_map/norm_drift",
                          "/pause_map/total_ns", "/pause_map/reference_ground_probability", "/pause_map/pause_s",
                          "/pause_map/pause_ns"});
@@ -89,7 +89,7 @@ TEST_CASE("a pause map killed half-way and rerun equals an uninterrupted map") {
 
 TEST_CASE("a reverse map killed half-way and rerun equals an uninterrupted map") {
   check_kill_and_resume({"reverse-map", sample("data-samples/meeting-slots-qubo.toml"),
-                         sample("schedules/reverse-dwell.toml"), "--turn", "0.3:0.9:4", "--dwell-ns", "0,100,200",
+                         sample("schedules/reverse-dwell.toml"), "--turn", "lin:0.3:0.9:4", "--dwell-ns", "0,100,200",
                          "--ramp-ns", "1000", "--threads", "1"},
                         {"/reverse_map/ground_probability", "/reverse_map/start_probability", "/reverse_map/tts_ns",
                          "/reverse_map/total_ns", "/reverse_map/turn_s", "/reverse_map/dwell_ns"});

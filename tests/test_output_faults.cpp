@@ -40,7 +40,7 @@ TEST_CASE("a full disk while writing the CSV: clear error, nothing partial under
   const std::string csv = (dir.path / "trace.csv").string();
   const auto r = run_limited("anneal '" + (src / "data-samples/triangle.toml").string() + "' '" +
                                  (src / "schedules/linear.toml").string() +
-                                 "' --duration-ns 5 --no-check --samples 400 --csv '" + csv + "'",
+                                 "' -d 5 --no-check --trace-points 400 --csv '" + csv + "'",
                              dir, 4);
   CHECK(r.exit_code == 1);
   CHECK(r.err.find("cannot write '" + csv + "': File too large") != std::string::npos);
@@ -59,7 +59,7 @@ void check_no_temporaries(const testing::TempDir& dir) {
 std::string triangle_anneal(const std::string& h5) {
   const auto src = testing::source_dir();
   return "anneal '" + (src / "data-samples/triangle.toml").string() + "' '" + (src / "schedules/linear.toml").string() +
-         "' --duration-ns 20 --samples 400 --out '" + h5 + "'";
+         "' -d 20 --trace-points 400 --out '" + h5 + "'";
 }
 }  // namespace
 
@@ -85,7 +85,7 @@ TEST_CASE("a full disk while writing an HDF5 result: exit 1 naming the file, no 
 TEST_CASE("a full disk while writing a sealed instance set: nothing under the final name, and a good write is sealed") {
   testing::TempDir dir;
   const std::string set = (dir.path / "set.h5").string();
-  const std::string args = "generate --sizes 6-8:2 --count 6 --seed 3 --quiet --out '" + set + "'";
+  const std::string args = "generate --sizes 6,8 --count 6 --seed 3 --out '" + set + "'";
   const auto r = run_limited(args, dir, 4);
   CHECK(r.exit_code == 1);
   CHECK(r.err.find("cannot write '" + set + "': File too large") != std::string::npos);

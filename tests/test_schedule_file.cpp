@@ -81,7 +81,7 @@ TEST_CASE("A fraction path without any duration asks for one") {
     (void)s.path_for(std::nullopt);
     FAIL("no error");
   } catch (const InputError& e) {
-    CHECK(std::string(e.what()).find("--duration-ns") != std::string::npos);
+    CHECK(std::string(e.what()).find("--durations") != std::string::npos);
   }
 }
 

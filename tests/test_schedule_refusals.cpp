@@ -73,20 +73,20 @@ TEST_CASE("format_schedule_toml refuses what the reader would refuse") {
   }
 }
 
-TEST_CASE("gap-path refuses a --duration-ns its file could not hold, writes nothing, and its files read back") {
+TEST_CASE("gap-path refuses a --durations its file could not hold, writes nothing, and its files read back") {
   testing::TempDir dir;
   const std::string out = (dir.path / "g.toml").string();
   for (const char* d : {"-5", "0", "nan", "1e300", "inf"}) {
     INFO(d);
     const auto r = testing::run_gapwise("gap-path " + sample("data-samples/triangle.toml") + sample("schedules/linear.toml") +
-                                            "--duration-ns " + d + " --out '" + out + "'",
+                                            "-d " + d + " --out '" + out + "'",
                                         dir);
     CHECK(r.exit_code == 2);
-    CHECK(r.err.find("--duration-ns") != std::string::npos);
+    CHECK(r.err.find("--durations") != std::string::npos);
     CHECK(!std::filesystem::exists(out));
   }
   const auto ok = testing::run_gapwise("gap-path " + sample("data-samples/weak-field-ring.toml") + sample("schedules/linear.toml") +
-                                           "--duration-ns 40 --out '" + out + "'",
+                                           "-d 40 --out '" + out + "'",
                                        dir);
   REQUIRE(ok.exit_code == 0);
   const Schedule back = read_schedule_file(out);

@@ -16,7 +16,7 @@ bool has(const std::string& text, const std::string& part) { return text.find(pa
 TEST_CASE("bad shapes on the command line and in files are refused with the place named") {
   const TempDir dir;
   auto r = run_gapwise("compare-paths " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
-                           " --pause 1.3:0.2 --duration-ns 2",
+                           " --pause 1.3:0.2 -d 2",
                        dir);
   CHECK(r.exit_code == 2);
   CHECK(has(r.err, "--pause"));
@@ -28,7 +28,7 @@ TEST_CASE("bad shapes on the command line and in files are refused with the plac
   CHECK(r.exit_code == 2);
   CHECK(has(r.err, "start_bits"));
   r = run_gapwise("pause-map " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
-                      " --duration-ns 2 --at 0.5 --pause-ns -1 --out " + (dir.path / "p.h5").string(),
+                      " -d 2 --at 0.5 --pause-ns -1 --out " + (dir.path / "p.h5").string(),
                   dir);
   CHECK(r.exit_code == 2);
   CHECK(has(r.err, "--pause-ns"));
@@ -49,16 +49,16 @@ TEST_CASE("gap-path writes a schedule that anneal and compare-paths run; pause-m
                        dir);
   REQUIRE(r.exit_code == 0);
   CHECK(has(r.out, "minimum gap"));
-  r = run_gapwise("anneal " + src("data-samples/triangle.toml") + " '" + out + "' --duration-ns 3 --no-check", dir);
+  r = run_gapwise("anneal " + src("data-samples/triangle.toml") + " '" + out + "' -d 3 --no-check", dir);
   CHECK(r.exit_code == 0);
   r = run_gapwise("compare-paths " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") + " '" + out +
-                      "' --duration-ns 3 --points 8",
+                      "' -d 3 --trace-points 8",
                   dir);
   CHECK(r.exit_code == 0);
   CHECK(has(r.out, "gap.toml"));
   const std::string map = (dir.path / "map.h5").string();
   const std::string cmd = "pause-map " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
-                          " --duration-ns 2 --at 0.4,0.8 --pause-ns 0,0.5 --out '" + map + "'";
+                          " -d 2 --at 0.4,0.8 --pause-ns 0,0.5 --out '" + map + "'";
   r = run_gapwise(cmd, dir);
   REQUIRE(r.exit_code == 0);
   CHECK(has(r.out, "3 simulated, 0 read back"));
@@ -77,7 +77,7 @@ TEST_CASE("pause-map --json: the grid, the references and the best cell; a pause
   const TempDir dir;
   const std::string map = (dir.path / "map.h5").string();
   auto r = run_gapwise("pause-map " + src("data-samples/weak-field-ring.toml") + " " + src("schedules/linear.toml") +
-                           " --duration-ns 3 --at 0,0.55 --pause-ns 0,0.7,2 --cost added --json --out '" + map + "'",
+                           " -d 3 --at 0,0.55 --pause-ns 0,0.7,2 --cost added --json --out '" + map + "'",
                        dir);
   INFO(r.err);
   REQUIRE(r.exit_code == 0);

@@ -91,7 +91,7 @@ TEST_CASE("every duration-taking command answers a 1e-13 ns run with the sudden 
       "compare-paths " + tri + lin + pause + "-d 1e-13" + out + "c.h5'",
       "diagnose " + tri + lin + "-d 1e-13" + out + "g.h5'",
       "embed-cost " + tri + "'" + sample("data-samples/triangle-ring-embedding.toml") + "' " + lin +
-          "--range 1e-14:1e-13:2 -d 1e-13",
+          "--search-durations log:1e-14:1e-13:2 -d 1e-13",
       "ensemble '" + sample("data-samples/ring-chords-glasses") + "' " + lin + "-d 1e-14,1e-13 --quiet" + out + "e.h5'",
   };
   for (const auto& c : commands) {
@@ -108,10 +108,16 @@ TEST_CASE("every duration-taking command answers a 1e-13 ns run with the sudden 
   CHECK(std::stod(r.out.substr(at + key.size())) == doctest::Approx(0.125).epsilon(1e-12));
 }
 
-TEST_CASE("too short to represent: exit 2 naming the schedule and the key") {
+TEST_CASE("too short to represent: the library names the schedule and the key; the command line refuses it first") {
+  // A subnormal duration (5e-324 ns) cannot keep the path's 4 waypoints apart.
+  const Schedule pause = read_schedule_file(sample("schedules/pause.toml"));
+  const auto e = testing::input_error_of([&] { (void)pause.path_for(5e-324); });
+  REQUIRE(e.has_value());
+  CHECK(std::string(e->what()).find("pause.toml: key 'duration_ns': a duration of 5e-324 ns cannot hold") != std::string::npos);
+  // On the command line such a number is below the smallest duration gapwise accepts (exit 2, naming the option).
   TempDir dir;
   const auto r = testing::run_gapwise(
       "anneal '" + sample("data-samples/triangle.toml") + "' '" + sample("schedules/pause.toml") + "' -d 5e-324", dir);
   CHECK(r.exit_code == 2);
-  CHECK(r.err.find("pause.toml: key 'duration_ns': a duration of 5e-324 ns cannot hold") != std::string::npos);
+  CHECK(r.err.find("--durations: 5e-324 ns is below the smallest duration gapwise accepts") != std::string::npos);
 }

@@ -45,7 +45,7 @@ TEST_CASE("the steps grow with the largest energy times the duration; the limit 
 
   const WorkEstimate w = anneal_work(p, sc, 1e4);
   REQUIRE(w.operations > kWorkLimitOperations);
-  const auto e = testing::input_error_of([&] { check_work_limit(w, false, {"--duration-ns", 0, 0, "--duration-ns"}); });
+  const auto e = testing::input_error_of([&] { check_work_limit(w, false, {"--durations", 0, 0, "--durations"}); });
   REQUIRE(e.has_value());
   CHECK(e->problem().find("time steps") != std::string::npos);
   CHECK(e->fix().find("--allow-long") != std::string::npos);

@@ -10,6 +10,7 @@
 #include "hamiltonian/spin_flip_sector.hpp"
 #include "io/problem_file.hpp"
 #include "io/schedule_file.hpp"
+#include "cli/value_lists.hpp"
 
 namespace gapwise {
 struct EnsembleResult;
@@ -30,6 +31,12 @@ int& exit_code();
 /// The command line as typed, for provenance.
 std::string& command_line();
 
+/// Help text wrapped to the terminal width (COLUMNS, else the terminal on stdout,
+/// else 100 columns; kept within 60..200). Set on the app before the subcommands
+/// are registered, so each inherits it.
+std::size_t help_width();
+void use_wrapped_help(CLI::App& app);
+
 /// One registration function per subcommand file.
 void register_inspect(CLI::App& app);
 void register_anneal(CLI::App& app);
@@ -47,9 +54,6 @@ void register_durations(CLI::App& app);
 /// Check for an input-file argument: InputError naming the path and why it cannot
 /// be read (link loop, name too long, missing, a directory, no permission).
 CLI::Validator readable_input_file();
-
-/// "20,50,100" or "0.3:0.7:9" (FIRST:LAST:COUNT, ends included); InputError naming `option`.
-std::vector<double> parse_value_list(const std::string& text, const std::string& option);
 
 /// Every output option of every subcommand (--out, --csv, --write-physical,
 /// --out-dir) refuses an empty value ("") while the command line is parsed,
@@ -70,8 +74,6 @@ void check_levels_fit(int levels, int qubits, SpinFlipSector sector, const std::
 int fit_levels(int levels, bool given, int qubits, SpinFlipSector sector, const std::string& option = "--levels");
 /// The one flag that lifts the work limit (studies/work_estimate.hpp), same name on every command.
 CLI::Option* add_allow_long_flag(CLI::App* sub, bool& allow_long);
-/// "FIRST:LAST:COUNT", log-spaced durations in ns, both ends included (durations, embed-cost).
-std::vector<double> parse_log_range(const std::string& text, const std::string& option);
 
 void register_ensemble(CLI::App& app);
 void register_merge_shards(CLI::App& app);

@@ -30,11 +30,10 @@ namespace gapwise::cli {
 namespace {
 
 struct AnnealOptions {
-  std::string problem, schedule, out, csv, propagator = "split4", observe_s, bath;
-  std::optional<double> duration_ns;
+  std::string problem, schedule, out, csv, propagator = "split4", observe_s, durations, bath;
   double tolerance = 1e-6;
   bool p_only = false;
-  int samples = 20, top = 8, levels = 0;
+  int trace_points = 20, top = 8, levels = 0;
   bool json = false, no_check = false, strict = false, allow_long = false, quiet = false, progress = false;
 };
 
@@ -48,17 +47,23 @@ void run_anneal(const AnnealOptions& o) {
   const Schedule sch = read_schedule_file(o.schedule);
   const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
   check_tolerance(o.tolerance);
-  check_count(o.samples, 0, 10000, "--samples", "observations per piece");
+  check_count(o.trace_points, 0, 10000, "--trace-points", "observations per piece");
   check_count(o.top, 0, 1000, "--top", "outcome count");
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
   check_memory(p.qubits, 10, 0, p_file.qubits_place);
   const TransverseIsingHamiltonian H(p);
   const GroundManifold gm = find_ground_manifold(p, H.diagonal());
-  const AnnealPath path = sch.path_for(o.duration_ns);
+  std::optional<double> duration_ns;
+  if (!o.durations.empty()) {
+    duration_ns = parse_single_value(o.durations, "--durations", ListOf::Durations, "anneal runs one duration",
+                                     "give one duration, or run `gapwise durations` for a list of them");
+    check_duration_ns(*duration_ns, {"--durations", 0, 0, "--durations"});
+  }
+  const AnnealPath path = sch.path_for(duration_ns);
   const WorkEstimate work = anneal_work(p, sch.scales, path.duration_ns(), o.no_check ? 1.0 : 2.0);
   check_work_limit(work, o.allow_long,
-                   o.duration_ns ? SourcePlace{"--duration-ns", 0, 0, "--duration-ns"} : SourcePlace{o.schedule, 0, 0, "path"});
+                   duration_ns ? SourcePlace{"--durations", 0, 0, "--durations"} : SourcePlace{o.schedule, 0, 0, "path"});
   const QuantumState psi0 = initial_state(H, sch, path);
 
   // Observations at chosen s: every passage of the path through each value.
@@ -84,7 +89,7 @@ void run_anneal(const AnnealOptions& o) {
   sim.propagator = o.propagator;
   sim.propagation.tolerance = o.tolerance;
   if (o.p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();
-  sim.samples_per_piece = std::max(0, o.samples);
+  sim.samples_per_piece = std::max(0, o.trace_points);
   sim.top_outcomes = o.top;
   sim.observe_s = observe_s;
   TraceObserver trace(H, gm);
@@ -328,20 +333,20 @@ void register_anneal(CLI::App& app) {
       "probability (all classical ground states together), the most probable outcomes,\n"
       "the norm drift, and how much p moves when the tolerance is tightened tenfold.\n"
       "Units: durations in ns, energy scales in GHz; d psi/dt = -i 2 pi H psi.\n"
-      "Example: gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20 --out run.h5");
+      "Example: gapwise anneal data-samples/triangle.toml schedules/linear.toml -d 20 --out run.h5");
   sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(readable_input_file());
-  sub->add_option("-d,--duration-ns", o->duration_ns,
-                  "anneal duration in ns; stretches the schedule's path (default: the schedule's own)");
+  add_durations_option(sub, o->durations,
+                       "anneal duration in ns, one value; stretches the schedule's path (default: the schedule's own)");
   sub->add_option("--tolerance", o->tolerance, "target accuracy of the ground-state probability (checked by a re-run at tolerance/10)")->capture_default_str();
   sub->add_option("--propagator", o->propagator,
                   "which propagator runs the dynamics: split4 (fast, fourth order, default), split2 (second\n"
                   "order), split4-yoshida (fourth order, triple jump), odeint (the generic reference)")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
-  sub->add_option("--samples", o->samples, "evenly spaced observations inside each piece of the path (trace)")->capture_default_str();
-  sub->add_option("--observe-s", o->observe_s,
-                  "also observe where the path passes these s values: a list 0.3,0.5,0.62 or a range\n"
-                  "FIRST:LAST:COUNT. Recorded in the trace (marked requested) and listed on their own\n"
+  sub->add_option("--trace-points", o->trace_points, "evenly spaced observations inside each piece of the path (trace)")->capture_default_str();
+  add_list_option(sub, "--observe-s", o->observe_s,
+                  "also observe where the path passes these s values: a LIST such as 0.3,0.5,0.62\n"
+                  "or lin:0.3:0.7:5. Recorded in the trace (marked requested) and listed on their own\n"
                   "(terminal, JSON `observations`, HDF5 /anneal/observations). A reverse anneal passes\n"
                   "most s twice: both passages are recorded. With a split propagator they do not change\n"
                   "the result (side branches off the step grid)");

@@ -1,5 +1,5 @@
 #include <cmath>
-// `gapwise compare-paths PROBLEM SCHEDULE [MORE...] --duration-ns T[,T2...]`:
+// `gapwise compare-paths PROBLEM SCHEDULE [MORE...] -d T[,T2...]`:
 // several paths on one problem at equal total duration: p, time to solution,
 // and where the instantaneous ground level loses population, per path.
 #include <filesystem>
@@ -29,8 +29,8 @@ struct CompareOptions {
   std::string problem;
   std::vector<std::string> schedules, pauses, quenches;
   std::string durations, out, csv, propagator = SimulationOptions{}.propagator;
-  bool local_adiabatic = false, allow_long = false, levels_given = false;
-  int levels = 4, points = 60, threads = 0, waypoints = 200;
+  bool local_adiabatic = false, allow_long = false, levels_given = false, quiet = false;
+  int levels = 4, trace_points = 60, threads = 0, waypoints = 200;
   double tolerance = 1e-6, target = kDefaultTargetProbability;
 };
 
@@ -89,23 +89,24 @@ void run_compare(const CompareOptions& o) {
   const int levels = fit_levels(o.levels, o.levels_given, p.qubits, comparison_sector(H, cands));
   std::optional<LocalAdiabaticSchedule> gap;
   if (o.local_adiabatic) {
-    std::cerr << "computing the spectrum along s for the local adiabatic schedule...\n";
+    if (!o.quiet) std::cerr << "computing the spectrum along s for the local adiabatic schedule...\n";
     gap = local_adiabatic_schedule(H, base, {}, {.waypoints = o.waypoints});
     cands.push_back({"local adiabatic", gap->schedule});
   }
   ShapeComparisonOptions co;
-  co.durations_ns = parse_value_list(o.durations, "--duration-ns");
+  co.durations_ns = parse_value_list(o.durations, "--durations", ListOf::Durations);
   co.target_probability = o.target;
   co.simulation.propagator = o.propagator;
   co.simulation.propagation.tolerance = o.tolerance;
   co.levels = levels;
-  co.population_points = o.points;
+  co.population_points = o.trace_points;
   co.threads = o.threads;
   WorkEstimate work;
   for (const auto& c : cands)
     for (double t : co.durations_ns) work += anneal_work(p, c.schedule.scales, t);
-  check_work_limit(work, o.allow_long, {"--duration-ns", 0, 0, "--duration-ns"});
-  std::cerr << fmt::format("running {} anneals ({} paths x {} durations)...\n", cands.size() * co.durations_ns.size(),
+  check_work_limit(work, o.allow_long, {"--durations", 0, 0, "--durations"});
+  if (!o.quiet)
+    std::cerr << fmt::format("running {} anneals ({} paths x {} durations)...\n", cands.size() * co.durations_ns.size(),
                            cands.size(), co.durations_ns.size());
   const ShapeComparison r = compare_shapes(p, cands, co);
 
@@ -205,18 +206,18 @@ void register_compare_paths(CLI::App& app) {
       "lowest instantaneous levels along s, so you see where population leaks out of the ground\n"
       "level. All schedules must share the same energy scales (paths are compared, not hardware).\n"
       "Example: gapwise compare-paths data-samples/weak-field-ring.toml schedules/linear.toml \\\n"
-      "           --pause 0.5:0.2 --local-adiabatic --duration-ns 10,20 --out cmp.h5");
+      "           --pause 0.5:0.2 --local-adiabatic -d 10,20 --out cmp.h5");
   sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedules", o->schedules, "schedule files; the first is the base for generated shapes")
       ->required()->check(readable_input_file());
-  sub->add_option("-d,--duration-ns", o->durations, "total durations: a list 10,20,50 or a range FIRST:LAST:COUNT")->required();
+  add_durations_option(sub, o->durations, "total durations in ns, a LIST such as 10,20,50 or log:5:80:5")->required();
   sub->add_option("--pause", o->pauses, "add the base path with a pause S:FRACTION (at s = S for FRACTION of the duration); repeatable");
   sub->add_option("--quench", o->quenches, "add the base path quenched from s = S to 1 in FRACTION of the duration; repeatable");
   sub->add_flag("--local-adiabatic", o->local_adiabatic, "add the local adiabatic schedule (see `gapwise gap-path --help`)");
   sub->add_option("--waypoints", o->waypoints, "waypoints of the local adiabatic schedule")->capture_default_str();
   sub->add_option("--levels", o->levels, "instantaneous levels whose populations are followed (a default above the\n"
                   "number of states is lowered to it; a value you give must fit)")->capture_default_str()->check(CLI::Range(1, 64));
-  sub->add_option("--points", o->points, "population observations along each run (about)")->capture_default_str()->check(CLI::Range(2, 100000));
+  sub->add_option("--trace-points", o->trace_points, "population observations along each run (about)")->capture_default_str()->check(CLI::Range(2, 100000));
   sub->add_option("--target", o->target, "target success probability of the time to solution")->capture_default_str();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of p")->capture_default_str();
   sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
@@ -224,6 +225,7 @@ void register_compare_paths(CLI::App& app) {
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default); results do not depend on it")->capture_default_str();
   sub->add_option("--out", o->out, "HDF5: p, TTS and end times per path and duration; level populations along each run");
   sub->add_option("--csv", o->csv, "the table as CSV");
+  sub->add_flag("-q,--quiet", o->quiet, "no progress lines on stderr");
   add_allow_long_flag(sub, o->allow_long);
   sub->callback([o, sub] {
     o->levels_given = sub->count("--levels") > 0;

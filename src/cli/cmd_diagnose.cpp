@@ -23,8 +23,7 @@ namespace gapwise::cli {
 namespace {
 
 struct DiagnoseOptions {
-  std::string problem, schedule, out, propagator = SimulationOptions{}.propagator;
-  std::vector<double> durations_ns;
+  std::string problem, schedule, out, durations, propagator = SimulationOptions{}.propagator;
   std::optional<double> control_tolerance;
   double tolerance = 1e-6, sigma_h = 0.03, sigma_j = 0.03, window = 5.0, target_loss = 0.01, check_max_ns = 10000.0;
   bool sigma_h_given = false, sigma_j_given = false;
@@ -35,6 +34,7 @@ struct DiagnoseOptions {
 };
 
 void run_diagnose(const DiagnoseOptions& o) {
+  const std::vector<double> durations_ns = parse_value_list(o.durations, "--durations", ListOf::Durations);
   check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out"));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
@@ -56,7 +56,7 @@ void run_diagnose(const DiagnoseOptions& o) {
   check_memory(p.qubits, 12, 0, p_file.qubits_place);
 
   DiagnosisOptions d;
-  d.durations_ns = o.durations_ns;
+  d.durations_ns = durations_ns;
   d.simulation.propagator = o.propagator;
   d.simulation.propagation.tolerance = o.tolerance;
   d.gap.levels = o.levels;
@@ -74,7 +74,7 @@ void run_diagnose(const DiagnoseOptions& o) {
     // limit, else the sigma(s) whose widened fields and couplings push it over.
     auto work_with = [&](double sigma_h, double sigma_j) {
       WorkEstimate work = spectrum_work(p.qubits, o.levels, 300.0);
-      for (double t : o.durations_ns) {
+      for (double t : durations_ns) {
         work += anneal_work(p, sch.scales, t);
         work += perturbed_anneal_work(p, sch.scales, sigma_h, sigma_j, o.relative, t, static_cast<double>(o.samples));
       }
@@ -82,7 +82,7 @@ void run_diagnose(const DiagnoseOptions& o) {
       return work;
     };
     const WorkEstimate work = work_with(o.sigma_h, o.sigma_j);
-    std::string key = "--duration-ns";
+    std::string key = "--durations";
     if (!(work_with(0, 0).operations > kWorkLimitOperations)) {
       const bool by_h = work_with(o.sigma_h, 0).operations > kWorkLimitOperations;
       const bool by_j = work_with(0, o.sigma_j).operations > kWorkLimitOperations;
@@ -140,10 +140,10 @@ void register_diagnose(CLI::App& app) {
       "two-level crossing, so Landau-Zener is only indicative there.\n"
       "Also where the lost probability goes (excited states, energies, spin flips to\n"
       "the nearest ground state). Forward anneals only (s never decreasing).\n"
-      "Example: gapwise diagnose data-samples/weak-field-ring.toml schedules/linear.toml -d 20 -d 200 --out why.h5");
+      "Example: gapwise diagnose data-samples/weak-field-ring.toml schedules/linear.toml -d 20,200 --out why.h5");
   sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(readable_input_file());
-  sub->add_option("-d,--duration-ns", o->durations_ns, "anneal duration(s) in ns; repeat for several")->required();
+  add_durations_option(sub, o->durations, "anneal durations in ns, a LIST such as 20,200")->required();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of the simulated probabilities")->capture_default_str();
   sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();

@@ -45,12 +45,11 @@ namespace gapwise::cli {
 namespace {
 
 struct DurationsOptions {
-  std::string problem, schedule, out, csv, range, propagator = SimulationOptions{}.propagator;
-  std::vector<double> durations;
+  std::string problem, schedule, out, csv, durations, propagator = SimulationOptions{}.propagator;
   bool p_only = false;
   double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3, agreement = kDefaultAgreementFactor;
   int threads = 0, probes = 2;
-  bool json = false, no_search = false, no_predictions = false, restart = false, quiet = false, allow_long = false;
+  bool json = false, no_search = false, no_predictions = false, fresh = false, quiet = false, allow_long = false;
 };
 
 std::string read_text(const std::string& path) {
@@ -84,11 +83,8 @@ void run_durations(const DurationsOptions& o) {
                      "give the factor within which 1 - p of a prediction and of the simulation must agree, e.g. 2");
   if (o.probes < 1 || o.probes > 64)
     throw InputError({"--probes", 0, 0, "--probes"}, fmt::format("{} probes per round", o.probes), "use 1 to 64");
-  if (!o.range.empty() && !o.durations.empty())
-    throw InputError({"--range", 0, 0, "--range"}, "both --durations and --range were given", "give one of them");
   std::vector<double> grid;
-  if (!o.durations.empty()) grid = normalised_grid(o.durations);
-  else if (!o.range.empty()) grid = parse_log_range(o.range, "--range");
+  if (!o.durations.empty()) grid = normalised_grid(parse_value_list(o.durations, "--durations", ListOf::Durations));
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
 #ifdef _OPENMP
@@ -112,7 +108,7 @@ void run_durations(const DurationsOptions& o) {
     // The grid, and about as much again for the search of the needed duration.
     WorkEstimate work;
     for (double t : grid) work += anneal_work(problem, schedule.scales, t, o.no_search ? 1.0 : 2.0);
-    check_work_limit(work, o.allow_long, {o.range.empty() ? "--durations" : "--range", 0, 0, o.range.empty() ? "--durations" : "--range"});
+    check_work_limit(work, o.allow_long, {"--durations", 0, 0, "--durations"});
   }
 
   DurationStudyInputs in;
@@ -136,7 +132,7 @@ void run_durations(const DurationsOptions& o) {
   std::unique_ptr<ResultJournal> journal;
   if (!keep.empty()) {
     const std::string jpath = journal_path_for(keep);
-    if (o.restart) std::filesystem::remove(jpath);
+    if (o.fresh) std::filesystem::remove(jpath);
     journal = std::make_unique<ResultJournal>(
         jpath, duration_journal_layout(),
         o.p_only ? input_fingerprint({read_text(o.problem), read_text(o.schedule), o.propagator,
@@ -332,8 +328,8 @@ void run_durations(const DurationsOptions& o) {
   std::cout << fmt::format("target      p* = {}\n", o.target);
   std::cout << fmt::format("durations   {} grid point(s), {} .. {} ns{}\n\n", grid.size(), ns_text(grid.front()),
                            ns_text(grid.back()),
-                           grid_chosen ? (predictions ? " (default: around the predicted durations; set --range to change)"
-                                                      : " (default; set --range to change)")
+                           grid_chosen ? (predictions ? " (default: around the predicted durations; set --durations to change)"
+                                                      : " (default; set --durations to change)")
                                        : "");
 
   TextTable table({"t_f_ns", "p_ground", "TTS_ns", "runs", "p_LZ", "p_adiab", "note"});
@@ -403,7 +399,7 @@ void run_durations(const DurationsOptions& o) {
   } else if (opt.at_range_edge) {
     std::cout << fmt::format("{}the optimum may lie beyond this end of the range: {}\n", pad,
                              grid_chosen ? "the grid could not be extended further (" + st.extension_stop + ")"
-                                         : std::string("widen --range / --durations, or leave both out for a grid that is "
+                                         : std::string("widen --durations, or leave it out for a grid that is "
                                                        "extended until the optimum is bracketed"));
     if (opt.local)
       std::cout << fmt::format("{}local optimum inside the range: t_f = {} ns, TTS = {} ns\n", pad,
@@ -484,20 +480,20 @@ void register_durations(CLI::App& app) {
       "  - beside the simulation: the Landau-Zener prediction at the minimum gap and the\n"
       "    adiabatic-condition estimate, judged on p and 1 - p (within --agreement, a factor)\n"
       "    and on the duration each predicts for p* against the simulated one.\n"
-      "Without --durations/--range the grid is chosen around the predictions and extended\n"
+      "Without --durations the grid is chosen around the predictions and extended\n"
       "(within 0.05 .. 10000 ns) until the TTS optimum is bracketed. The durations whose TTS\n"
       "is within 5 % of the best are reported (a flat TTS makes the optimum grid-dependent).\n" +
       std::string(kRandomGuessLimitText) + "\n"
       "Durations run in parallel (one anneal per thread); results equal a serial run.\n"
       "With --out or --csv, each finished duration is journaled to <file>.journal and the\n"
       "files are rewritten atomically; rerunning the same command skips finished points.\n"
-      "Example: gapwise durations data-samples/triangle.toml schedules/linear.toml --range 0.5:50:9 --out tri.h5");
+      "Example: gapwise durations data-samples/triangle.toml schedules/linear.toml -d log:0.5:50:9 --out tri.h5");
   sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedule", o->schedule, "schedule file (TOML); its path shape is stretched to each duration")
       ->required()->check(readable_input_file());
-  sub->add_option("--durations", o->durations, "durations in ns, comma separated (e.g. 5,10,20,40)")->delimiter(',');
-  sub->add_option("--range", o->range, "FIRST:LAST:COUNT, log-spaced durations in ns, both ends included (default: 10 points from a fifth of the\n"
-                  "smaller to 5 x the larger predicted duration; 1:300:10 with --no-predictions)");
+  add_durations_option(sub, o->durations,
+                       "durations in ns: a LIST such as 5,10,20,40 or log:1:1000:13 (default: 10 points from a fifth\n"
+                       "of the smaller to 5 x the larger predicted duration; log:1:300:10 with --no-predictions)");
   sub->add_option("--target", o->target, "target success probability p* for TTS and the duration needed")->capture_default_str();
   sub->add_option("--resolution", o->resolution, "bisection stops when the bracket's upper/lower - 1 is below this")
       ->capture_default_str();
@@ -519,8 +515,8 @@ void register_durations(CLI::App& app) {
   sub->add_option("--threads", o->threads, "threads (one duration each); 0: all cores (OMP_NUM_THREADS)")->capture_default_str();
   sub->add_option("--out", o->out, "HDF5 result file (all curves, predictions, inputs, tool version)");
   sub->add_option("--csv", o->csv, "CSV with one row per simulated duration");
-  sub->add_flag("--restart", o->restart, "discard the journal of an earlier run and start afresh");
-  sub->add_flag("--quiet", o->quiet, "no progress bar or resume message on stderr");
+  sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");
+  sub->add_flag("-q,--quiet", o->quiet, "no progress bar or resume message on stderr");
   add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   sub->callback([o] { run_durations(*o); });

@@ -26,17 +26,17 @@
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "studies/chain_strength_scan.hpp"
+#include "studies/duration_study.hpp"
 #include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
 
 struct EmbedCostOptions {
-  std::string problem, embedding, schedule, out, csv, write_physical, range = "1:1000:13";
+  std::string problem, embedding, schedule, out, csv, write_physical, search_durations = "log:1:1000:13", durations, strengths;
   std::string propagator = SimulationOptions{}.propagator;
-  std::vector<double> strengths;
   bool absolute = false, json = false, quiet = false, no_term_limit = false, allow_long = false;
-  std::optional<double> duration_ns, term_limit;
+  std::optional<double> term_limit;
   double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3;
   int threads = 0;
 };
@@ -69,7 +69,8 @@ long long needed_bound_code(const NeededDuration& n) {
   return 0;
 }
 
-void check_options(const EmbedCostOptions& o) {
+/// Checks the options; returns the chain strengths asked for (empty: the default scan).
+std::vector<double> check_options(const EmbedCostOptions& o) {
   check_tolerance(o.tolerance);
   check_target_probability(o.target);
   check_threads(o.threads);
@@ -77,7 +78,9 @@ void check_options(const EmbedCostOptions& o) {
     throw InputError({"--resolution", 0, 0, "--resolution"},
                      fmt::format("resolution {} is not inside (0, 1)", o.resolution),
                      "give the relative width at which bisection stops, e.g. 0.005");
-  for (double s : o.strengths)
+  const std::vector<double> strengths =
+      o.strengths.empty() ? std::vector<double>{} : parse_value_list(o.strengths, "--strengths");
+  for (double s : strengths)
     if (!(s > 0.0) || !std::isfinite(s))
       throw InputError({"--strengths", 0, 0, "--strengths"}, fmt::format("chain strength {} is not positive", s),
                        "give magnitudes > 0 (the chain coupling is always ferromagnetic)");
@@ -87,6 +90,7 @@ void check_options(const EmbedCostOptions& o) {
   for (const auto& [path, key] : {std::pair{&o.out, "--out"}, std::pair{&o.csv, "--csv"},
                                   std::pair{&o.write_physical, "--write-physical"}})
     if (!path->empty()) check_output_path(*path, key);
+  return strengths;
 }
 
 void run_embed_cost(const EmbedCostOptions& o) {
@@ -97,7 +101,7 @@ void run_embed_cost(const EmbedCostOptions& o) {
                       .output(o.out, "--out")
                       .output(o.csv, "--csv")
                       .output(o.write_physical, "--write-physical"));
-  check_options(o);
+  const std::vector<double> strengths = check_options(o);
   const IsingProblem logical = read_problem_file(o.problem);
   const Embedding embedding = read_embedding_file(o.embedding);
   const Schedule schedule = read_schedule_file(o.schedule);
@@ -105,13 +109,24 @@ void run_embed_cost(const EmbedCostOptions& o) {
   check_memory(embedding.physical_qubits, 10, 0, o.embedding);
 
   ChainScanOptions scan;
-  const std::vector<double> values = o.strengths.empty() ? std::vector<double>{0.5, 1, 1.5, 2, 3, 4} : o.strengths;
+  const std::vector<double> values = strengths.empty() ? std::vector<double>{0.5, 1, 1.5, 2, 3, 4} : strengths;
   for (double v : values)
     scan.strengths.push_back(o.absolute ? ChainStrength::absolute(v) : ChainStrength::relative_to_largest(v));
   if (embedding.chain_strength) scan.strengths.push_back(*embedding.chain_strength);  // the file's default, always
   scan.term_limit = o.no_term_limit ? std::nullopt : (o.term_limit ? o.term_limit : embedding.term_limit);
-  scan.duration_ns = schedule.path_for(o.duration_ns).duration_ns();
-  scan.grid_ns = parse_log_range(o.range, "--range");
+  std::optional<double> duration_ns;
+  if (!o.durations.empty()) {
+    duration_ns = parse_single_value(o.durations, "--durations", ListOf::Durations,
+                                     "the anneal that reports p_logical runs one duration",
+                                     "give one duration; the needed-duration search takes --search-durations");
+    check_duration_ns(*duration_ns, {"--durations", 0, 0, "--durations"});
+  }
+  scan.duration_ns = schedule.path_for(duration_ns).duration_ns();
+  try {
+    scan.grid_ns = normalised_grid(parse_value_list(o.search_durations, "--search-durations", ListOf::Durations));
+  } catch (const InputError& e) {  // the library names --durations
+    throw InputError({"--search-durations", 0, 0, "--search-durations"}, e.problem(), e.fix());
+  }
   scan.needed.target = o.target;
   scan.needed.relative_width = o.resolution;
   scan.needed.noise = std::max(10.0 * o.tolerance, 1e-5);
@@ -130,7 +145,7 @@ void run_embed_cost(const EmbedCostOptions& o) {
       work += anneal_work(physical, schedule.scales, scan.duration_ns);
       for (double t : scan.grid_ns) work += anneal_work(physical, schedule.scales, t, 2.0);
     }
-    check_work_limit(work, o.allow_long, {"--range", 0, 0, "--range"});
+    check_work_limit(work, o.allow_long, {"--search-durations", 0, 0, "--search-durations"});
   }
   if (!o.quiet) scan.progress = [](const std::string& what) { std::cerr << "gapwise embed-cost: " << what << "\n"; };
 
@@ -206,8 +221,8 @@ void run_embed_cost(const EmbedCostOptions& o) {
                              embedding.couplers_given ? std::to_string(embedding.couplers.size()) : "all pairs",
                              embedding.couplers_given ? " listed" : " (no coupler list)");
     std::cout << fmt::format("schedule     {}: {}\n", o.schedule, schedule.scales.describe());
-    std::cout << fmt::format("target       p >= {} ; durations {} (log-spaced, bisected to {:g}); t_f = {:g} ns\n", o.target,
-                             o.range, o.resolution, scan.duration_ns);
+    std::cout << fmt::format("target       p >= {} ; search seeded at {}, bisected to {:g}; t_f = {:g} ns\n", o.target,
+                             o.search_durations, o.resolution, scan.duration_ns);
     std::cout << fmt::format("term limit   {}\n", scan.term_limit
                                                       ? fmt::format("|h|, |J| <= {:g}: larger physical problems are scaled down", *scan.term_limit)
                                                       : std::string("none"));
@@ -297,20 +312,19 @@ void register_embed_cost(CLI::App& app) {
   sub->add_option("logical", o->problem, "logical problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("embedding", o->embedding, "embedding file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(readable_input_file());
-  sub->add_option("--strengths", o->strengths,
-                  "chain strengths to scan, comma-separated; multiples of the largest logical |h| or |J|\n"
-                  "unless --absolute (default 0.5,1,1.5,2,3,4; the embedding file's own strength is added)")
-      ->delimiter(',');
+  add_list_option(sub, "--strengths", o->strengths,
+                  "chain strengths to scan, a LIST such as 1,2,3 or lin:0.5:4:8; multiples of the largest logical |h| or |J|\n"
+                  "unless --absolute (default 0.5,1,1.5,2,3,4; the embedding file's own strength is added)");
   sub->add_flag("--absolute", o->absolute, "read --strengths as absolute magnitudes in problem units");
   sub->add_option("--term-limit", o->term_limit,
                   "largest |h| or |J| the device accepts; larger problems are scaled down (default: the file's)");
   sub->add_flag("--no-term-limit", o->no_term_limit, "ignore the embedding file's term limit");
   sub->add_option("--target", o->target, "success probability the needed duration must reach")->capture_default_str();
-  sub->add_option("--range", o->range, "FIRST:LAST:COUNT, log-spaced durations in ns seeding the search")
-      ->capture_default_str();
+  add_list_option(sub, "--search-durations", o->search_durations,
+                  "durations in ns seeding the search for the needed duration, a LIST")->capture_default_str();
   sub->add_option("--resolution", o->resolution, "relative width at which the bisection for the needed duration stops")
       ->capture_default_str();
-  sub->add_option("-d,--duration-ns", o->duration_ns, "t_f of the anneal reporting p_logical (default: the schedule's)");
+  add_durations_option(sub, o->durations, "t_f of the anneal reporting p_logical, one value (default: the schedule's)");
   sub->add_option("--tolerance", o->tolerance, "target accuracy of each anneal's probabilities")->capture_default_str();
   sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();

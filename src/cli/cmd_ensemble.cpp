@@ -163,7 +163,7 @@ void run_ensemble(const EnsembleOptions& o) {
     check_tolerance(o.tolerance);
     check_threads(o.threads);
     EnsembleSettings st;
-    st.durations_ns = parse_value_list(o.durations, "--durations-ns");
+    st.durations_ns = parse_value_list(o.durations, "--durations", ListOf::Durations);
     st.target_probability = o.target;
     st.simulation.propagator = o.propagator;
     st.simulation.propagation.tolerance = o.tolerance;
@@ -186,7 +186,7 @@ void run_ensemble(const EnsembleOptions& o) {
       for (double t : st.durations_ns) work += anneal_work(ip, sch.scales, t);
       work += spectrum_work(ip.qubits, 4, 3.0 * st.gap_coarse_points);
     }
-    check_work_limit(work, o.allow_long, {"--durations-ns", 0, 0, "--durations-ns"});
+    check_work_limit(work, o.allow_long, {"--durations", 0, 0, "--durations"});
     run.threads = o.threads > 0 ? o.threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
     run.journal_path = journal_path_for(o.out);
     if (o.fresh && group.is_collector()) std::remove(run.journal_path.c_str());
@@ -235,18 +235,18 @@ void register_ensemble(CLI::App& app) {
       "The TTS optimum is only bracketed when the durations reach below it: with GHz\n"
       "energy scales that means well below 1 ns (column `TTS at range edge`).\n" +
       std::string(kRandomGuessLimitText) + "\n"
-      "Example: gapwise ensemble glasses.h5 schedules/linear.toml --durations-ns 0.1,0.2,0.5,1,2,5,10,30 --out study.h5\n"
+      "Example: gapwise ensemble glasses.h5 schedules/linear.toml -d 0.1,0.2,0.5,1,2,5,10,30 --out study.h5\n"
       "         mpirun -np 8 gapwise ensemble glasses.h5 schedules/linear.toml --out study.h5");
   sub->add_option("set", o->set, "instance set: HDF5 file or directory of problem files")->required();
   sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(readable_input_file());
   sub->add_option("--out", o->out, "result file (HDF5); its journal is OUT.journal")->required();
-  sub->add_option("-d,--durations-ns", o->durations, "anneal durations in ns: a list 1,10,100 or an even range FIRST:LAST:COUNT")
+  add_durations_option(sub, o->durations, "anneal durations in ns, a LIST such as 1,10,100 or log:0.1:100:10")
       ->capture_default_str();
   sub->add_option("--target", o->target, "success probability p* the TTS aims at")->capture_default_str();
   sub->add_option("--threads", o->threads, "compute threads without MPI (0: one per core)")->capture_default_str();
   sub->add_option("--shard", o->shard, "compute only instances i with i % N == s: --shard s/N")->capture_default_str();
   sub->add_flag("--fresh", o->fresh, "ignore and delete the journal of an earlier run of this study");
-  sub->add_option("--quantiles", o->quantiles, "quantile levels reported per size")->capture_default_str();
+  add_list_option(sub, "--quantiles", o->quantiles, "quantile levels reported per size")->capture_default_str();
   sub->add_option("--confidence", o->confidence, "confidence level of the bootstrap intervals")->capture_default_str();
   sub->add_option("--resamples", o->resamples, "bootstrap resamples")->capture_default_str();
   sub->add_option("--bootstrap-seed", o->bootstrap_seed, "seed of the bootstrap resampling (stored in the result)")

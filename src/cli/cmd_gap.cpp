@@ -165,7 +165,7 @@ void run_gap(const GapOptions& o) {
   const TransverseIsingHamiltonian H(p);
   check_gap_search_options(opt, sch.scales);  // before anything is printed
   const GapSearchPlan plan = plan_gap_search(H, opt);
-  if (!o.json && !o.quiet)
+  if (!o.json)
     std::cout << fmt::format("plan         {} qubits, {} (dimension {}), {} levels, {} solver; memory about {} "
                              "(available {})\n",
                              p.qubits, describe_sector(plan.sector), plan.dimension, plan.levels,
@@ -193,7 +193,7 @@ void run_gap(const GapOptions& o) {
     };
     opt.record = [j](const SpectrumPoint& pt) { j->append({pt.s}, spectrum_point_values(pt)); };
     notice.emplace(*journal, std::vector<std::string>{o.out, o.csv});
-    if (journal->resumed() > 0 && !o.json && !o.quiet)
+    if (journal->resumed() > 0 && !o.json)
       std::cout << fmt::format("resume       {} points already computed in {}\n", journal->resumed(), jpath);
   }
   ProgressPrinter progress(o.progress);
@@ -261,7 +261,7 @@ void run_gap(const GapOptions& o) {
     for (const auto& f : r.flags) flags.push_back(f);
     j.insert_or_assign("notes", std::move(flags));
     std::cout << to_json(j) << "\n";
-  } else if (!o.quiet) {
+  } else {
     std::size_t by_origin[3] = {0, 0, 0};
     for (const auto& pt : r.curve) ++by_origin[pt.origin];
     std::cout << fmt::format("problem      {}: {} qubits, {} couplings, {}\n", terminal_text(o.problem), p.qubits, p.couplings.size(),
@@ -468,7 +468,7 @@ void register_gap(CLI::App& app) {
   sub->add_option("--csv", o->csv, "CSV of the curve: s, A, B, E_0..E_k-1, gaps, matrix elements");
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   sub->add_flag("--progress", o->progress, "report progress on stderr even when it is not a terminal");
-  sub->add_flag("-q,--quiet", o->quiet, "print nothing (files only)");
+  sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
   add_allow_long_flag(sub, o->allow_long);
   sub->callback([o] { run_gap(*o); });
 }

@@ -17,10 +17,9 @@ namespace gapwise::cli {
 namespace {
 
 struct GapPathOptions {
-  std::string problem, schedule, out;
+  std::string problem, schedule, out, durations;
   int waypoints = 200, levels = 4, coarse = 201;
   double floor = 0.01;
-  std::optional<double> duration_ns;
 };
 
 void run_gap_path(const GapPathOptions& o) {
@@ -29,9 +28,12 @@ void run_gap_path(const GapPathOptions& o) {
   const IsingProblem& p = p_file.ising;
   Schedule base = read_schedule_file(o.schedule);
   check_output_path(o.out, "--out");
-  if (o.duration_ns) {
-    check_duration_ns(*o.duration_ns, {"--duration-ns", 0, 0, "--duration-ns"});
-    base.duration_ns = *o.duration_ns;
+  if (!o.durations.empty()) {
+    const double d = parse_single_value(o.durations, "--durations", ListOf::Durations,
+                                        "a schedule file holds one default duration",
+                                        "give one duration; every command that runs the file can stretch it with -d");
+    check_duration_ns(d, {"--durations", 0, 0, "--durations"});
+    base.duration_ns = d;
   }
   check_gap_search_size(p.qubits, default_sector(p), o.levels, EigenMethod::Auto, p_file.qubits_place);
   const TransverseIsingHamiltonian H(p);
@@ -102,8 +104,9 @@ void register_gap_path(CLI::App& app) {
       ->capture_default_str();
   sub->add_option("--levels", o->levels, "levels followed by the spectrum search")->capture_default_str()->check(CLI::Range(2, 64));
   sub->add_option("--coarse", o->coarse, "uniform spectrum points before refinement")->capture_default_str()->check(CLI::Range(3, 100000));
-  sub->add_option("-d,--duration-ns", o->duration_ns,
-                  "default duration written into the file, ns: > 0 and at most 1e9 (default: the base schedule's)");
+  add_durations_option(sub, o->durations,
+                       "default duration written into the file, ns, one value: > 0 and at most 1e9 (default: the\n"
+                       "base schedule's)");
   sub->callback([o] { run_gap_path(*o); });
 }
 

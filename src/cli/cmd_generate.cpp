@@ -2,7 +2,10 @@
 // directory of problem files) from one family: +-1 or Gaussian spin glasses, or
 // planted-solution instances, on a ring, ring with chords, square lattice or
 // complete graph.
+#include <algorithm>
+#include <cmath>
 #include <iostream>
+#include <regex>
 #include <memory>
 
 #include <fmt/format.h>
@@ -20,47 +23,40 @@ namespace gapwise::cli {
 namespace {
 
 struct GenerateOptions {
-  std::string graph = "ring", couplings = "pm1", sizes = "6-10:2", out, out_dir;
+  std::string graph = "ring", couplings = "pm1", sizes = "lin:6:10:3", out, out_dir;
   int count = 10;
   unsigned long long seed = 1;
   double chords = 0.5, loops = 1.0;
   int ruggedness = 0;
-  bool quiet = false, allow_long = false;
+  bool allow_long = false;
 };
 
-// "6,8,10", "6-14" or "6-14:2" (ranges include both ends).
+// Qubit counts: a LIST of whole numbers (6,8,10 or lin:6:14:5), each 2..30.
 std::vector<int> parse_sizes(const std::string& text) {
   const SourcePlace place{"--sizes", 0, 0, "--sizes"};
-  const std::string fix = "write sizes as 6,8,10 or as a range 6-14 or 6-14:2 (step 2)";
-  std::vector<int> out;
-  std::size_t pos = 0;
-  auto number = [&](const std::string& s) {
-    std::size_t used = 0;
-    int v = 0;
-    try { v = std::stoi(s, &used); } catch (...) { used = 0; }
-    if (used == 0 || used != s.size()) throw InputError(place, fmt::format("\"{}\" is not a whole number", s), fix);
-    return v;
-  };
-  while (pos <= text.size()) {
-    std::size_t comma = text.find(',', pos);
-    if (comma == std::string::npos) comma = text.size();
+  // The old spelling FIRST-LAST[:STEP] gets the grammar's own spelling in the fix.
+  const std::regex dashed(R"((\d+)-(\d+)(?::(\d+))?)");
+  std::smatch m;
+  for (std::size_t pos = 0; pos <= text.size();) {
+    const std::size_t comma = std::min(text.find(',', pos), text.size());
     const std::string item = text.substr(pos, comma - pos);
-    const std::size_t dash = item.find('-');
-    if (dash == std::string::npos) {
-      out.push_back(number(item));
-    } else {
-      const std::size_t colon = item.find(':');
-      const int first = number(item.substr(0, dash));
-      const int last = number(item.substr(dash + 1, colon == std::string::npos ? std::string::npos : colon - dash - 1));
-      const int step = colon == std::string::npos ? 1 : number(item.substr(colon + 1));
-      if (step < 1 || last < first)
-        throw InputError(place, fmt::format("range \"{}\" is empty or has a step below 1", item), fix);
-      for (int n = first; n <= last; n += step) out.push_back(n);
+    if (std::regex_match(item, m, dashed)) {
+      const int first = std::stoi(m[1]), last = std::stoi(m[2]), step = m[3].matched ? std::stoi(m[3]) : 1;
+      const int count = step > 0 && last >= first ? (last - first) / step + 1 : 0;
+      throw InputError(place, fmt::format("\"{}\" is not a list of sizes", item),
+                       count > 0 && first + (count - 1) * step == last
+                           ? fmt::format("write lin:{}:{}:{} for sizes {} to {} in steps of {}", first, last, count, first, last, step)
+                           : "write sizes as 6,8,10 or as lin:6:14:5 (FIRST:LAST:COUNT, evenly spaced)");
     }
     pos = comma + 1;
   }
-  for (int n : out)
-    if (n < 2 || n > 30) throw InputError(place, fmt::format("size {} is outside 2..30", n), fix);
+  std::vector<int> out;
+  for (double v : parse_value_list(text, "--sizes")) {
+    if (v != std::floor(v) || v < 2 || v > 30)
+      throw InputError(place, fmt::format("size {} is not a whole number from 2 to 30", v),
+                       "write sizes as 6,8,10 or as lin:6:14:5 (evenly spaced, whole numbers)");
+    out.push_back(static_cast<int>(v));
+  }
   return out;
 }
 
@@ -92,7 +88,6 @@ void run_generate(const GenerateOptions& o) {
   set.instances = generate_family(f, sizes, o.count);
   if (!o.out.empty()) write_instance_set(o.out, set, command_line());
   else write_instance_directory(o.out_dir, set);
-  if (o.quiet) return;
   TextTable t({"qubits", "instances", "couplings (mean)", f.couplings == CouplingKind::PlantedLoops ? "planted E0 (mean)" : ""});
   for (int n : sizes) {
     double m = 0, e = 0;
@@ -122,11 +117,11 @@ void register_generate(CLI::App& app) {
       "Fields are zero; couplings are +-1 (pm1), N(0,1) (gaussian), or planted: sums of\n"
       "frustrated loops around a hidden spin state, whose ground energy is then known\n"
       "exactly (Hen et al., Phys. Rev. A 92, 042325 (2015)).\n"
-      "Example: gapwise generate --graph ring-chords --couplings gaussian --sizes 6-14:2 --count 24 --seed 7 --out glasses.h5");
+      "Example: gapwise generate --graph ring-chords --couplings gaussian --sizes lin:6:14:5 --count 24 --seed 7 --out glasses.h5");
   sub->add_option("--graph", o->graph, "ring | ring-chords (ring plus random chords) | square (open rows x cols lattice) | complete")
       ->capture_default_str();
   sub->add_option("--couplings", o->couplings, "pm1 | gaussian | planted")->capture_default_str();
-  sub->add_option("--sizes", o->sizes, "qubit counts: 6,8,10 or 6-14 or 6-14:2")->capture_default_str();
+  add_list_option(sub, "--sizes", o->sizes, "qubit counts, a LIST of whole numbers: 6,8,10 or lin:6:14:5")->capture_default_str();
   sub->add_option("--count", o->count, "instances per size")->capture_default_str();
   sub->add_option("--seed", o->seed, "family seed (stored in the set; every instance's own seed is stored too)")
       ->capture_default_str();
@@ -135,7 +130,6 @@ void register_generate(CLI::App& app) {
   sub->add_option("--ruggedness", o->ruggedness, "planted: largest |J_ij| allowed (0: no bound)")->capture_default_str();
   sub->add_option("--out", o->out, "write one HDF5 instance-set file (keeps seeds and planted ground energies)");
   sub->add_option("--out-dir", o->out_dir, "write one problem file per instance into this directory instead");
-  sub->add_flag("-q,--quiet", o->quiet, "print nothing on success");
   add_allow_long_flag(sub, o->allow_long);
   sub->callback([o] { run_generate(*o); });
 }

@@ -1,7 +1,8 @@
-// `gapwise pause-map PROBLEM SCHEDULE --duration-ns T --at S-LIST --pause-ns D-LIST --out map.h5`:
+// `gapwise pause-map PROBLEM SCHEDULE -d T --at S-LIST --pause-ns D-LIST --out map.h5`:
 // p over pause location x pause duration, at equal cost; threaded, resumable.
 #include <algorithm>
 #include <cmath>
+#include <filesystem>
 #include <iostream>
 #include <memory>
 #include <unistd.h>
@@ -28,10 +29,11 @@ namespace gapwise::cli {
 namespace {
 
 struct PauseMapCli {
-  std::string problem, schedule, out, at = "0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = SimulationOptions{}.propagator;
-  double duration_ns = 0, tolerance = 1e-6, target = kDefaultTargetProbability;
+  std::string problem, schedule, out, durations, at = "lin:0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = SimulationOptions{}.propagator;
+  double duration_ns = 0;  // from `durations`, one value
+  double tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0;
-  bool json = false, allow_long = false;
+  bool json = false, allow_long = false, fresh = false, quiet = false;
 };
 
 void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const PauseMap& m, std::size_t bi,
@@ -70,7 +72,7 @@ void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const
   std::cout << to_json(j) << "\n";
 }
 
-void run_pause_map(const PauseMapCli& o) {
+void run_pause_map(PauseMapCli o) {
   check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out").journal_of(o.out));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
@@ -81,8 +83,10 @@ void run_pause_map(const PauseMapCli& o) {
   check_threads(o.threads);
   check_memory(p.qubits, 10, 0, p_file.qubits_place);
   PauseMapOptions mo;
+  o.duration_ns = parse_single_value(o.durations, "--durations", ListOf::Durations, "a pause map holds one anneal duration",
+                                     "give one duration and run one map per duration");
   mo.pause_s = parse_value_list(o.at, "--at");
-  mo.pause_ns = parse_value_list(o.pause_ns, "--pause-ns");
+  mo.pause_ns = parse_value_list(o.pause_ns, "--pause-ns", ListOf::Durations);
   mo.duration_ns = o.duration_ns;
   mo.cost = o.cost == "added" ? PauseCost::AddedTime : PauseCost::EqualTotal;
   mo.target_probability = o.target;
@@ -97,11 +101,12 @@ void run_pause_map(const PauseMapCli& o) {
   }
   check_work_limit(work, o.allow_long, {"--pause-ns", 0, 0, "--pause-ns"});
   const AnnealSetup setup(p, sch, sim);
+  if (o.fresh) std::filesystem::remove(journal_path_for(o.out));
   ResultJournal journal(journal_path_for(o.out), pause_map_journal_layout(),
                         input_fingerprint({read_text_file(o.problem), read_text_file(o.schedule), fmt::format("{:a}", o.duration_ns),
                                            o.cost, fmt::format("{:a}", o.tolerance), o.propagator}));
   std::optional<InterruptNotice> notice(std::in_place, journal, std::vector<std::string>{o.out});
-  const bool tty = ::isatty(2);
+  const bool tty = ::isatty(2) && !o.quiet;
   const PauseMap m = pause_map(setup, mo, &journal, [&](std::size_t done, std::size_t total) {
     if (tty) std::cerr << fmt::format("\r{} / {} anneals", done, total) << std::flush;
   });
@@ -179,18 +184,18 @@ void register_pause_map(CLI::App& app) {
   CLI::App* sub = app.add_subcommand("pause-map",
       "Does a pause help, where and for how long? Ground-state probability over pause location\n"
       "(--at, schedule parameter s) x pause duration (--pause-ns), inserted into SCHEDULE's path, at\n"
-      "equal cost: with --cost total (default) every run takes --duration-ns and the pause eats\n"
-      "into the ramp; with --cost added the ramp keeps --duration-ns and the pause adds to it\n"
+      "equal cost: with --cost total (default) every run takes --durations and the pause eats\n"
+      "into the ramp; with --cost added the ramp keeps --durations and the pause adds to it\n"
       "(the unpaused reference is then stretched to the same total, and TTS counts the pause).\n"
       "Runs in parallel (OpenMP; same numbers at any thread count) and resumes: finished points\n"
       "are journaled beside --out and a rerun skips them (also after Ctrl-C).\n"
-      "Example: gapwise pause-map data-samples/triangle.toml schedules/linear.toml --duration-ns 5 \\\n"
-      "           --at 0.3:0.9:7 --pause-ns 0,1,2,4 --out pause-map.h5");
+      "Example: gapwise pause-map data-samples/triangle.toml schedules/linear.toml -d 5 \\\n"
+      "           --at lin:0.3:0.9:7 --pause-ns 0,1,2,4 --out pause-map.h5");
   sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedule", o->schedule, "forward schedule: its scales and path shape")->required()->check(readable_input_file());
-  sub->add_option("-d,--duration-ns", o->duration_ns, "anneal duration T in ns (see --cost)")->required();
-  sub->add_option("--at", o->at, "pause locations s: list 0.3,0.5 or range FIRST:LAST:COUNT")->capture_default_str();
-  sub->add_option("--pause-ns", o->pause_ns, "pause durations in ns (0: no pause): list or range")->capture_default_str();
+  add_durations_option(sub, o->durations, "anneal duration T in ns, one value (see --cost)")->required();
+  add_list_option(sub, "--at", o->at, "pause locations s, a LIST such as 0.3,0.5 or lin:0.3:0.9:7")->capture_default_str();
+  add_list_option(sub, "--pause-ns", o->pause_ns, "pause durations in ns (0: no pause), a LIST")->capture_default_str();
   sub->add_option("--cost", o->cost, "\"total\": runs take T; \"added\": runs take T + pause")
       ->check(CLI::IsMember({"total", "added"}))->capture_default_str();
   sub->add_option("--target", o->target, "target success probability of the time to solution")->capture_default_str();
@@ -199,6 +204,8 @@ void register_pause_map(CLI::App& app) {
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default)")->capture_default_str();
   sub->add_option("-o,--out", o->out, "HDF5 result (heat-map ready); the journal is <out>.journal")->required();
+  sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");
+  sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
   add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json,
                 "print a JSON summary instead of the table: the grid, p per cell (rows: --at), the unpaused\n"

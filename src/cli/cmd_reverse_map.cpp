@@ -1,5 +1,6 @@
 // `gapwise reverse-map PROBLEM SCHEDULE --turn S-LIST --dwell-ns D-LIST --ramp-ns R --out rev.h5`:
 // does a reverse anneal from a classical guess return the ground state?
+#include <filesystem>
 #include <iostream>
 #include <memory>
 #include <unistd.h>
@@ -25,10 +26,10 @@ namespace gapwise::cli {
 namespace {
 
 struct ReverseMapCli {
-  std::string problem, schedule, out, turn = "0.3:0.9:7", dwell_ns = "0,5,10,20", start_bits, propagator = SimulationOptions{}.propagator;
+  std::string problem, schedule, out, turn = "lin:0.3:0.9:7", dwell_ns = "0,5,10,20", start_bits, propagator = SimulationOptions{}.propagator;
   double ramp_ns = 5, tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0;
-  bool allow_long = false;
+  bool allow_long = false, fresh = false, quiet = false;
 };
 
 void run_reverse_map(const ReverseMapCli& o) {
@@ -61,7 +62,7 @@ void run_reverse_map(const ReverseMapCli& o) {
     throw InputError({"--ramp-ns", 0, 0, "--ramp-ns"}, fmt::format("ramp {} ns is not positive", o.ramp_ns), "give the ramp time in ns");
   ReverseMapOptions mo;
   mo.turn_s = parse_value_list(o.turn, "--turn");
-  mo.dwell_ns = parse_value_list(o.dwell_ns, "--dwell-ns");
+  mo.dwell_ns = parse_value_list(o.dwell_ns, "--dwell-ns", ListOf::Durations);
   mo.ramp_ns = o.ramp_ns;
   mo.target_probability = o.target;
   mo.threads = o.threads;
@@ -74,11 +75,12 @@ void run_reverse_map(const ReverseMapCli& o) {
   const AnnealSetup setup(p, sch, sim);
   std::string bits;
   for (int b : sch.start.bits) bits += static_cast<char>('0' + b);
+  if (o.fresh) std::filesystem::remove(journal_path_for(o.out));
   ResultJournal journal(journal_path_for(o.out), reverse_map_journal_layout(),
                         input_fingerprint({read_text_file(o.problem), read_text_file(o.schedule), bits,
                                            fmt::format("{:a}", o.ramp_ns), fmt::format("{:a}", o.tolerance), o.propagator}));
   std::optional<InterruptNotice> notice(std::in_place, journal, std::vector<std::string>{o.out});
-  const bool tty = ::isatty(2);
+  const bool tty = ::isatty(2) && !o.quiet;
   const ReverseMap m = reverse_map(setup, mo, &journal, [&](std::size_t done, std::size_t total) {
     if (tty) std::cerr << fmt::format("\r{} / {} anneals", done, total) << std::flush;
   });
@@ -148,12 +150,12 @@ void register_reverse_map(CLI::App& app) {
       "The guess comes from --start-bits or the schedule's start_bits; SCHEDULE gives the scales.\n"
       "Threaded and resumable like pause-map (journal beside --out).\n"
       "Example: gapwise reverse-map data-samples/meeting-slots-qubo.toml schedules/reverse-dwell.toml \\\n"
-      "           --turn 0.3:0.9:7 --dwell-ns 0,10,40 --out reverse-map.h5");
+      "           --turn lin:0.3:0.9:7 --dwell-ns 0,10,40 --out reverse-map.h5");
   sub->add_option("problem", o->problem, "problem file (TOML)")->required()->check(readable_input_file());
   sub->add_option("schedule", o->schedule, "schedule: its energy scales (and start_bits, if any)")->required()->check(readable_input_file());
   sub->add_option("--start-bits", o->start_bits, "the classical guess, qubit 0 first: 0,1,0 or 010");
-  sub->add_option("--turn", o->turn, "turn points s: list or range FIRST:LAST:COUNT")->capture_default_str();
-  sub->add_option("--dwell-ns", o->dwell_ns, "dwell times at the turn point, ns: list or range")->capture_default_str();
+  add_list_option(sub, "--turn", o->turn, "turn points s, a LIST such as 0.5,0.6 or lin:0.3:0.9:7")->capture_default_str();
+  add_list_option(sub, "--dwell-ns", o->dwell_ns, "dwell times at the turn point in ns, a LIST")->capture_default_str();
   sub->add_option("--ramp-ns", o->ramp_ns, "duration of each ramp (down and up), ns")->capture_default_str();
   sub->add_option("--target", o->target, "target success probability of the time to solution")->capture_default_str();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of p")->capture_default_str();
@@ -161,6 +163,8 @@ void register_reverse_map(CLI::App& app) {
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default)")->capture_default_str();
   sub->add_option("-o,--out", o->out, "HDF5 result; the journal is <out>.journal")->required();
+  sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");
+  sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
   add_allow_long_flag(sub, o->allow_long);
   sub->callback([o] { run_reverse_map(*o); });
 }

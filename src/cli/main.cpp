@@ -68,12 +68,13 @@ int main(int argc, char** argv) {
       "  H(s) = -(A(s)/2) sum_i X_i + (B(s)/2) [sum_i h_i Z_i + sum_{{i<j}} J_ij Z_i Z_j]   (GHz)\n"
       "along a schedule s(t), with its spectrum and minimum gap.\n\n"
       "Start with:  gapwise inspect data-samples/triangle.toml\n"
-      "             gapwise anneal data-samples/triangle.toml schedules/linear.toml --duration-ns 20\n"
+      "             gapwise anneal data-samples/triangle.toml schedules/linear.toml -d 20\n"
       "Every subcommand has its own --help. Exit codes: 0 ok, 2 bad input, 1 internal failure,\n"
       "3 accuracy check failed with --strict.",
       kVersion)};
   app.set_version_flag("--version", std::string(kVersion));
   app.require_subcommand(1);
+  cli::use_wrapped_help(app);
   cli::register_inspect(app);
   cli::register_anneal(app);
   cli::register_diagnose(app);

@@ -1,51 +1,176 @@
-// Number lists on the command line: "20,50,100" or a linear range "0.3:0.7:9"
-// (first:last:count, both ends included); output options that refuse "".
+// The command line's number lists (value_lists.hpp): one grammar for every
+// option that takes several numbers, and the shared check that output options
+// refuse an empty path.
+#include "cli/value_lists.hpp"
+
+#include <cerrno>
+#include <cfloat>
 #include <cmath>
-#include <sstream>
+#include <cstdlib>
 
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
 #include "io/input_error.hpp"
-#include "studies/duration_sweep.hpp"
+#include "io/terminal_text.hpp"
 
 namespace gapwise::cli {
+namespace {
 
-std::vector<double> parse_value_list(const std::string& text, const std::string& option) {
-  auto number = [&](const std::string& x) {
-    try {
-      std::size_t used = 0;
-      const double v = std::stod(x, &used);
-      if (used != x.size() || !std::isfinite(v)) throw std::invalid_argument(x);
-      return v;
-    } catch (const std::exception&) {
-      throw InputError({option, 0, 0, option}, fmt::format("\"{}\" is not a number", x),
-                       "write numbers like 0.45, a list 0.3,0.5 or a range FIRST:LAST:COUNT");
-    }
-  };
-  std::vector<double> out;
-  if (text.find(':') != std::string::npos) {
-    const auto a = text.find(':'), b = text.find(':', a + 1);
-    if (b == std::string::npos || text.find(':', b + 1) != std::string::npos)
-      throw InputError({option, 0, 0, option}, fmt::format("\"{}\" is not a range", text), "write FIRST:LAST:COUNT, e.g. 0.3:0.7:9");
-    const double first = number(text.substr(0, a)), last = number(text.substr(a + 1, b - a - 1));
-    const double count = number(text.substr(b + 1));
-    if (!(count >= 1) || count != std::floor(count) || count > 10000)
-      throw InputError({option, 0, 0, option}, fmt::format("count {} in \"{}\" is not a whole number from 1 to 10000", count, text),
-                       "write FIRST:LAST:COUNT with a whole COUNT");
-    const int n = static_cast<int>(count);
-    for (int k = 0; k < n; ++k) out.push_back(n == 1 ? first : first + (last - first) * k / (n - 1));
-    if (n > 1) out.back() = last;
-    return out;
+constexpr int kMaxCount = 10000;  // a longer list is a typo, not a study
+const char* const kGrammar = "write a number such as 20, a list 10,20,50, or a range lin:FIRST:LAST:COUNT (evenly spaced) "
+                             "or log:FIRST:LAST:COUNT (evenly spaced in log)";
+
+SourcePlace place(const std::string& option) { return {option, 0, 0, option}; }
+
+std::string trimmed(const std::string& s) {
+  const auto a = s.find_first_not_of(" \t"), b = s.find_last_not_of(" \t");
+  return a == std::string::npos ? std::string() : s.substr(a, b - a + 1);
+}
+
+/// One number; the refusals say what is wrong with it (not a number, not finite,
+/// beyond what a double holds) and the fix.
+double number(const std::string& x, const std::string& option, ListOf kind) {
+  const std::string shown = terminal_text(x);
+  if (x.empty()) throw InputError(place(option), "an item of the list is empty", kGrammar);
+  errno = 0;
+  char* end = nullptr;
+  const double v = std::strtod(x.c_str(), &end);
+  if (end != x.c_str() + x.size()) throw InputError(place(option), fmt::format("\"{}\" is not a number", shown), kGrammar);
+  if (!std::isfinite(v) && errno != ERANGE)
+    throw InputError(place(option), fmt::format("\"{}\" is not a finite number", shown), kGrammar);
+  const bool durations = kind == ListOf::Durations;
+  if (errno == ERANGE && std::fabs(v) > 1.0)
+    throw InputError(place(option),
+                     fmt::format("\"{}\" is too large for a double (the largest is about {:.2g})", shown, DBL_MAX),
+                     durations ? "give a duration in ns below 1e9 (a second), e.g. 20"
+                               : fmt::format("give a number below {:.2g} in magnitude", DBL_MAX));
+  if (errno == ERANGE || (v != 0.0 && std::fabs(v) < DBL_MIN)) {
+    if (durations)
+      throw InputError(place(option),
+                       fmt::format("{} ns is below the smallest duration gapwise accepts ({:.2g} ns, the smallest double "
+                                   "held at full precision)",
+                                   shown, DBL_MIN),
+                       "give a duration of at least 1e-12 ns: every shorter run gives the sudden limit (the start state, "
+                       "unchanged)");
+    throw InputError(place(option),
+                     fmt::format("\"{}\" is too small for a double: nonzero numbers below {:.2g} in magnitude lose their "
+                                 "precision or become 0",
+                                 shown, DBL_MIN),
+                     fmt::format("write 0, or a number of magnitude at least {:.2g}", DBL_MIN));
   }
+  return v;
+}
+
+std::vector<std::string> split(const std::string& text, char sep) {
+  std::vector<std::string> out;
   std::size_t pos = 0;
-  while (pos <= text.size()) {
-    const auto comma = text.find(',', pos);
-    out.push_back(number(text.substr(pos, comma == std::string::npos ? std::string::npos : comma - pos)));
-    if (comma == std::string::npos) break;
-    pos = comma + 1;
+  while (true) {
+    const auto at = text.find(sep, pos);
+    out.push_back(trimmed(text.substr(pos, at == std::string::npos ? std::string::npos : at - pos)));
+    if (at == std::string::npos) return out;
+    pos = at + 1;
+  }
+}
+
+std::vector<double> spaced(double first, double last, int n, bool log) {
+  std::vector<double> out;
+  const double a = log ? std::log(first) : first, b = log ? std::log(last) : last;
+  for (int k = 0; k < n; ++k) {
+    const double x = n == 1 ? a : a + (b - a) * k / (n - 1);
+    out.push_back(log ? std::exp(x) : x);
+  }
+  out.front() = first;  // the ends exactly as written
+  if (n > 1) out.back() = last;
+  return out;
+}
+
+/// "1, 10, 100, 1000" (the first three and the last when longer).
+std::string preview(const std::vector<double>& v) {
+  std::string s;
+  for (std::size_t k = 0; k < v.size(); ++k) {
+    if (v.size() > 4 && k == 3) { s += ", ..."; k = v.size() - 1; }
+    s += (s.empty() ? "" : ", ") + fmt::format("{:.4g}", v[k]);
+  }
+  return s;
+}
+
+int whole_count(const std::string& x, const std::string& item, const std::string& option, const std::string& fix) {
+  const double c = number(x, option, ListOf::Numbers);
+  if (!(c >= 1) || c != std::floor(c) || c > kMaxCount)
+    throw InputError(place(option),
+                     fmt::format("count {} in \"{}\" is not a whole number from 1 to {}", x, terminal_text(item), kMaxCount),
+                     fix);
+  return static_cast<int>(c);
+}
+
+/// lin:FIRST:LAST:COUNT, log:FIRST:LAST:COUNT; a bare FIRST:LAST:COUNT is refused with both spellings.
+std::vector<double> range(const std::string& item, const std::string& option, ListOf kind) {
+  const std::vector<std::string> parts = split(item, ':');
+  const std::string shown = terminal_text(item);
+  const bool has_spacing = parts[0] == "lin" || parts[0] == "log";
+  const std::size_t numbers = parts.size() - (has_spacing ? 1 : 0);
+  if (numbers != 3)
+    throw InputError(place(option), fmt::format("\"{}\" is neither a number nor a range", shown),
+                     "write a range as lin:FIRST:LAST:COUNT or log:FIRST:LAST:COUNT, e.g. log:1:1000:4");
+  if (!has_spacing) {
+    // Say what the two spellings would give, so the choice is an informed one.
+    std::string choices;
+    try {
+      const double first = number(parts[0], option, kind), last = number(parts[1], option, kind);
+      const int n = whole_count(parts[2], item, option, "");
+      choices = fmt::format("lin:{} (evenly spaced: {})", item, preview(spaced(first, last, n, false)));
+      if (first > 0 && last > 0)
+        choices += fmt::format(" or log:{} (evenly spaced in log: {})", item, preview(spaced(first, last, n, true)));
+      else choices += fmt::format(" (log:{} needs FIRST and LAST above 0)", item);
+    } catch (const InputError&) {
+      choices = fmt::format("lin:{} or log:{}", shown, shown);
+    }
+    throw InputError(place(option), fmt::format("the range \"{}\" does not say how its values are spaced", shown),
+                     "write " + choices);
+  }
+  const bool log = parts[0] == "log";
+  const double first = number(parts[1], option, kind), last = number(parts[2], option, kind);
+  const int n = whole_count(parts[3], item, option, fmt::format("write {}:FIRST:LAST:COUNT with a whole COUNT", parts[0]));
+  if (log && !(first > 0 && last > 0))
+    throw InputError(place(option), fmt::format("the log-spaced range \"{}\" needs FIRST and LAST above 0", shown),
+                     fmt::format("start it above 0 (e.g. log:0.1:{}:{}), or write lin:{}:{}:{} for even spacing", parts[2],
+                                 parts[3], parts[1], parts[2], parts[3]));
+  return spaced(first, last, n, log);
+}
+
+}  // namespace
+
+std::vector<double> parse_value_list(const std::string& text, const std::string& option, ListOf kind) {
+  if (trimmed(text).empty()) throw InputError(place(option), "no value given", kGrammar);
+  std::vector<double> out;
+  for (const std::string& item : split(text, ',')) {
+    if (item.find(':') != std::string::npos) {
+      for (double v : range(item, option, kind)) out.push_back(v);
+    } else {
+      out.push_back(number(item, option, kind));
+    }
+    if (out.size() > static_cast<std::size_t>(kMaxCount))
+      throw InputError(place(option), fmt::format("the list holds more than {} values", kMaxCount),
+                       "give fewer values: a longer list is a typo, not a study");
   }
   return out;
+}
+
+double parse_single_value(const std::string& text, const std::string& option, ListOf kind, const std::string& why,
+                          const std::string& fix) {
+  const std::vector<double> v = parse_value_list(text, option, kind);
+  if (v.size() != 1)
+    throw InputError(place(option), fmt::format("{} values given (\"{}\"), but {}", v.size(), terminal_text(text), why), fix);
+  return v[0];
+}
+
+CLI::Option* add_list_option(CLI::App* sub, const std::string& names, std::string& text, const std::string& help) {
+  return sub->add_option(names, text, help)->join(',')->type_name("LIST");
+}
+
+CLI::Option* add_durations_option(CLI::App* sub, std::string& text, const std::string& help) {
+  return add_list_option(sub, "-d,--durations", text, help);
 }
 
 void refuse_empty_output_paths(CLI::App& app) {
@@ -57,25 +182,6 @@ void refuse_empty_output_paths(CLI::App& app) {
   for (CLI::App* sub : app.get_subcommands([](CLI::App*) { return true; }))
     for (const char* name : {"--out", "--csv", "--write-physical", "--out-dir"})
       if (CLI::Option* opt = sub->get_option_no_throw(name)) opt->check(non_empty);
-}
-
-std::vector<double> parse_log_range(const std::string& text, const std::string& option) {
-  double first = 0, last = 0;
-  long long count = 0;
-  char c1 = 0, c2 = 0;
-  std::istringstream in(text);
-  if (!(in >> first >> c1 >> last >> c2 >> count) || c1 != ':' || c2 != ':' || !(in >> std::ws).eof())
-    throw InputError({option, 0, 0, option}, fmt::format("cannot read the range '{}'", text),
-                     fmt::format("write FIRST:LAST:COUNT in ns, e.g. {} 1:1000:13 (log-spaced, both ends included)", option));
-  // The same cap as a linear range: a longer list is a typo, not a study.
-  if (count < 1 || count > 10000)
-    throw InputError({option, 0, 0, option}, fmt::format("count {} in \"{}\" is not a whole number from 1 to 10000", count, text),
-                     "write FIRST:LAST:COUNT with a whole COUNT");
-  try {
-    return log_spaced_durations(first, last, static_cast<int>(count));
-  } catch (const InputError& e) {
-    throw InputError({option, 0, 0, option}, e.problem(), e.fix());
-  }
 }
 
 }  // namespace gapwise::cli

@@ -39,7 +39,7 @@ AnnealPath Schedule::path_for(std::optional<double> d) const {
   if (duration_ns) return shape.scaled_to(*duration_ns);
   throw InputError({source, 0, 0, "path.duration_ns"},
                    "the path's times are fractions of the duration, but no duration is given",
-                   "pass --duration-ns or add `duration_ns = <ns>` to [path]");
+                   "pass --durations (-d) or add `duration_ns = <ns>` to [path]");
 }
 
 BasisIndex start_basis_state(const Schedule& schedule, int qubits) {

@@ -27,7 +27,7 @@ inline constexpr double kMaxEnergyScaleGhz = 1000.0;
 inline constexpr double kMaxDurationNs = 1e9;
 
 /// The one check of a run's duration, shared by the schedule reader, the
-/// writers of schedule files and --duration-ns overrides: finite, > 0 and at most
+/// writers of schedule files and -d, --durations overrides: finite, > 0 and at most
 /// kMaxDurationNs, else InputError at `place`.
 void check_duration_ns(double duration_ns, const SourcePlace& place);
 

@@ -12,7 +12,7 @@
 namespace gapwise {
 
 std::vector<double> normalised_grid(std::vector<double> t) {
-  if (t.empty()) throw InputError({"--durations", 0, 0, "--durations"}, "no durations to simulate", "give --durations or --range");
+  if (t.empty()) throw InputError({"--durations", 0, 0, "--durations"}, "no durations to simulate", "give --durations");
   for (double d : t)
     if (!(d > 0.0) || !std::isfinite(d))
       throw InputError({"--durations", 0, 0, "--durations"}, fmt::format("duration {} ns is not positive", d), "give durations > 0 ns");

@@ -42,13 +42,13 @@ DurationPoint anneal_for_duration(const AnnealSetup& setup, double duration_ns) 
 
 std::vector<double> log_spaced_durations(double first, double last, int count) {
   if (!(first > 0.0) || !std::isfinite(first) || !std::isfinite(last))
-    throw InputError({"--range", 0, 0, "--range"}, fmt::format("the first duration {} ns is not positive", first),
+    throw InputError({"--durations", 0, 0, "--durations"}, fmt::format("the first duration {} ns is not positive", first),
                      "give durations > 0 ns");
   if (!(last >= first))
-    throw InputError({"--range", 0, 0, "--range"}, fmt::format("the last duration {} ns is below the first {} ns", last, first),
-                     "give the range as FIRST:LAST:COUNT with FIRST <= LAST");
+    throw InputError({"--durations", 0, 0, "--durations"}, fmt::format("the last duration {} ns is below the first {} ns", last, first),
+                     "give the range as log:FIRST:LAST:COUNT with FIRST <= LAST");
   if (count < 1)
-    throw InputError({"--range", 0, 0, "--range"}, fmt::format("{} durations requested", count), "ask for at least one");
+    throw InputError({"--durations", 0, 0, "--durations"}, fmt::format("{} durations requested", count), "ask for at least one");
   if (count == 1) return {first};
   std::vector<double> t(static_cast<std::size_t>(count));
   const double l0 = std::log(first), l1 = std::log(last);

@@ -52,13 +52,13 @@ std::string EnsembleSettings::numerics_text() const {
 
 void EnsembleSettings::validate() const {
   if (durations_ns.empty())
-    throw option_error("--durations-ns", "no durations given", "give durations such as 1,10,100 or a range 1:1000:10");
+    throw option_error("--durations", "no durations given", "give durations such as 1,10,100 or a range log:1:1000:10");
   for (std::size_t k = 0; k < durations_ns.size(); ++k) {
     if (!(durations_ns[k] > 0) || !std::isfinite(durations_ns[k]))
-      throw option_error("--durations-ns", fmt::format("duration {} must be a positive number of ns", durations_ns[k]),
+      throw option_error("--durations", fmt::format("duration {} must be a positive number of ns", durations_ns[k]),
                          "give positive durations");
     if (k && !(durations_ns[k] > durations_ns[k - 1]))
-      throw option_error("--durations-ns", "durations must be strictly ascending", "sort them and drop repeats");
+      throw option_error("--durations", "durations must be strictly ascending", "sort them and drop repeats");
   }
   if (!(target_probability > 0 && target_probability < 1))
     throw option_error("--target", fmt::format("target probability {} is outside (0, 1)", target_probability),

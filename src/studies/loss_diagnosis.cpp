@@ -138,10 +138,10 @@ AnnealPath with_waypoints_at(const AnnealPath& path, const std::vector<double>& 
 }
 
 Diagnosis diagnose_anneal(const IsingProblem& problem, const Schedule& schedule, const DiagnosisOptions& o) {
-  if (o.durations_ns.empty()) throw InputError({"--duration-ns", 0, 0, "--duration-ns"}, "no duration given",
+  if (o.durations_ns.empty()) throw InputError({"--durations", 0, 0, "--durations"}, "no duration given",
                                                "give one or more durations, e.g. -d 20 -d 100");
   for (double d : o.durations_ns)
-    if (!(d > 0)) throw InputError({"--duration-ns", 0, 0, "--duration-ns"}, fmt::format("duration {} ns is not positive", d),
+    if (!(d > 0)) throw InputError({"--durations", 0, 0, "--durations"}, fmt::format("duration {} ns is not positive", d),
                                    "durations are in ns and must be > 0");
   auto report = [&](const std::string& stage, std::size_t done, std::size_t total) {
     if (o.progress) o.progress({stage, done, total});

@@ -37,10 +37,10 @@ ShapeComparison compare_shapes(const IsingProblem& problem, const std::vector<Sh
                                const ShapeComparisonOptions& o) {
   if (cands.empty()) throw InputError({"", 0, 0, "shapes"}, "no paths to compare", "give at least one schedule or shape");
   if (o.durations_ns.empty())
-    throw InputError({"--duration-ns", 0, 0, "--duration-ns"}, "no durations given", "give one or more durations in ns");
+    throw InputError({"--durations", 0, 0, "--durations"}, "no durations given", "give one or more durations in ns");
   for (double d : o.durations_ns)
     if (!(d > 0.0) || !std::isfinite(d))
-      throw InputError({"--duration-ns", 0, 0, "--duration-ns"}, fmt::format("duration {} ns is not positive", d), "give durations > 0 ns");
+      throw InputError({"--durations", 0, 0, "--durations"}, fmt::format("duration {} ns is not positive", d), "give durations > 0 ns");
   for (const auto& c : cands)
     if (!same_energy_scales(c.schedule.scales, cands.front().schedule.scales))
       throw InputError({c.schedule.source, 0, 0, "scales"},

@@ -112,7 +112,7 @@ PauseMap pause_map(const AnnealSetup& setup, const PauseMapOptions& o, ResultJou
                      "use a forward schedule (for reverse anneals see `gapwise reverse-map`)");
   check_list(o.pause_s, 0.0, 1.0, "--at", "pause location s");
   check_list(o.pause_ns, 0.0, 1e12, "--pause-ns", "pause duration (ns)");
-  check_duration_ns(o.duration_ns, {"--duration-ns", 0, 0, "--duration-ns"});
+  check_duration_ns(o.duration_ns, {"--durations", 0, 0, "--durations"});
   const AnnealPath base = setup.schedule.shape.scaled_to(1.0);
   PauseMap m;
   m.options = o;
@@ -120,7 +120,7 @@ PauseMap pause_map(const AnnealSetup& setup, const PauseMapOptions& o, ResultJou
   auto total = [&](double d) { return o.cost == PauseCost::EqualTotal ? o.duration_ns : o.duration_ns + d; };
   auto ref_key = [&](double d) { return std::vector<double>{-1.0, o.cost == PauseCost::EqualTotal ? 0.0 : d}; };
   for (double d : o.pause_ns)
-    jobs.emplace(ref_key(d), shape_or_refuse([&] { return base.scaled_to(total(d)); }, "--duration-ns"));
+    jobs.emplace(ref_key(d), shape_or_refuse([&] { return base.scaled_to(total(d)); }, "--durations"));
   for (double s : o.pause_s)
     for (double d : o.pause_ns)
       if (d > 0)

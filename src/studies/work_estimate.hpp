@@ -15,7 +15,7 @@
 //
 //   WorkEstimate w = anneal_work(problem, schedule.scales, 1e9);   // one anneal of one second
 //   w += anneal_work(problem, schedule.scales, 100.0, 50);          // fifty more of 100 ns
-//   check_work_limit(w, allow_long, {"--duration-ns", 0, 0, "--duration-ns"});  // InputError above the limit
+//   check_work_limit(w, allow_long, {"--durations", 0, 0, "--durations"});  // InputError above the limit
 #include <string>
 
 #include "io/input_error.hpp"
