@@ -50,7 +50,7 @@ def fail(where, what):
 
 # Attributes of the HDF5 dimension-scale specification, written by the HDF5
 # library itself (fixed-length ASCII by that specification), not by gapwise.
-DIMENSION_SCALE_ATTRS = {"CLASS", "NAME", "REFERENCE_LIST", "DIMENSION_LIST"}
+DIMENSION_SCALE_ATTRS = {"CLASS", "NAME", "REFERENCE_LIST", "DIMENSION_LIST", "DIMENSION_LABELS"}
 
 
 def check_string_attrs(fname, name, obj):
