@@ -390,7 +390,7 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
     h5.write(root + "/crossings/delta_min", delta, "GHz");
     h5.write(root + "/crossings/diabatic_slope", slope, "GHz");
     h5.write(root + "/crossings/perturbative_crossing_index", late,
-             DataMeaning("1").flagged({-1}, "none").described("index into overlap/perturbative_crossing_s, -1 for none"));
+             DataMeaning("1").described("index into overlap/perturbative_crossing_s, -1 for none"));
     std::vector<long long> crossing(m);
     for (std::size_t i = 0; i < m; ++i) crossing[i] = static_cast<long long>(i);
     h5.write(root + "/crossings/crossing", crossing, DataMeaning("1").described("crossing index (rows of the crossing matrices)"));

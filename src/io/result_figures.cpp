@@ -416,7 +416,7 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
   if (!n || !k || w.size() != n * k) return;
   LinePlot fw;
   fw.title = "Diagnosis: weight of each instantaneous level on the classical ground states";
-  fw.note = "a level that ends in the ground manifold rises to 1 at s = 1; a late switch shows as a step";
+  fw.note = "a level that ends in the ground manifold rises to 1 at s = 1; a perturbative crossing shows as a step";
   fw.x_label = "schedule parameter s";
   fw.y_label = "weight on the ground manifold";
   fw.y_range = std::pair{0.0, 1.05};
