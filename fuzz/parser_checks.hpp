@@ -222,7 +222,7 @@ inline std::string build_instance_set_image(ByteFeed in) {
   static const char* const datasets[] = {"fields", "coupling_i", "coupling_j", "coupling_value"};
   static const char* const names[] = {"n03-000", "n03-001", "a", "", ".", "..", "x y", "a/b"};
   std::set<std::string> written;  // HDF5 refuses an object or attribute twice; skip repeats
-  Hdf5Output out("fuzz-set-image.h5", "gapwise-instance-set");
+  Hdf5Output out("fuzz-set-image.h5", {"gapwise-instance-set", 1, true});
   out.permit_non_finite();  // another HDF5 client may write them; the reader must refuse them
   auto attribute = [&](const std::string& object, const std::string& key) {
     const unsigned kind = in.byte() % 3;
@@ -302,7 +302,7 @@ inline void check_instance_set_input(std::string_view data, const InstanceSetFuz
   std::string bytes(data.substr(1));
   if (mode == 1) {
     if (!options.reseal_images) return;
-    bytes.insert(0, hdf5_seal_header(bytes, "gapwise-instance-set"));
+    bytes.insert(0, hdf5_seal_header(bytes, "gapwise-instance-set", 0));
   } else if (mode == 3) {
     bytes = build_instance_set_image(ByteFeed{data.substr(1)});
     if (bytes.empty()) return;

@@ -6,7 +6,7 @@ pkgs=(cmake g++ make pkg-config
       libspectra-dev libtomlplusplus-dev libfmt-dev
       libopenmpi-dev openmpi-bin libplplot-dev plplot-driver-cairo hdf5-tools
       clang libclang-rt-14-dev ccache
-      python3 python3-numpy python3-scipy python3-h5py)
+      python3 python3-numpy python3-scipy python3-h5py python3-matplotlib)
 missing=()
 for p in "${pkgs[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")

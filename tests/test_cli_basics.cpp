@@ -71,10 +71,12 @@ TEST_CASE("anneal: text, JSON and HDF5 agree; the HDF5 file carries units and pr
   CHECK(p_h5 == doctest::Approx(p).epsilon(1e-12));
   H5::DataSet t = f.openDataSet("/anneal/trace/t");
   std::string unit;
-  t.openAttribute("unit").read(H5::StrType(H5::PredType::C_S1, H5T_VARIABLE), unit);
+  H5::StrType utf8(H5::PredType::C_S1, H5T_VARIABLE);
+  utf8.setCset(H5T_CSET_UTF8);  // every string gapwise writes is UTF-8
+  t.openAttribute("units").read(utf8, unit);
   CHECK(unit == "ns");
   std::string version;
-  f.openGroup("/provenance").openAttribute("version").read(H5::StrType(H5::PredType::C_S1, H5T_VARIABLE), version);
+  f.openGroup("/provenance").openAttribute("version").read(utf8, version);
   CHECK(!version.empty());
   // final probabilities sum to the norm
   H5::DataSet fp = f.openDataSet("/anneal/final_probabilities");

@@ -1,12 +1,14 @@
-// `figure` refuses a result file holding a NaN or an infinity (exit 2, the file,
-// the dataset or attribute and the first bad entry named) instead of drawing a
-// curve with a silent gap. gapwise never writes non-finite numbers (its HDF5
-// writer refuses them; "not available" and infinite TTS are stored as -1), so the
-// files here are written by the real tool and then altered with the HDF5 C++ API.
+// `figure` refuses a result file holding a NaN or an infinity where the dataset
+// does not declare one (exit 2, the file, the dataset or attribute and the first
+// bad entry named) instead of drawing a curve with a silent gap. gapwise writes
+// NaN ("not applicable") and +inf (infinite TTS) only in datasets whose
+// `nan_meaning` / `inf_meaning` attribute says so, so the files here are written
+// by the real tool and then altered with the HDF5 C++ API.
 #include <doctest/doctest.h>
 
 #include <H5Cpp.h>
 
+#include <cmath>
 #include <filesystem>
 #include <limits>
 #include <string>
@@ -94,9 +96,9 @@ TEST_CASE("figure: a NaN in an attribute a figure uses is refused, naming the at
   CHECK(f.err.find("ground_probability") != std::string::npos);
 }
 
-TEST_CASE("figure: the -1 marker of \"not applicable\" is data, not an error") {
+TEST_CASE("figure: a declared NaN (\"not applicable\") is data, not an error") {
   // durations on the triangle with a linear schedule: the Landau-Zener
-  // prediction does not apply there and /durations/points/p_landau_zener holds -1.
+  // prediction does not apply there and /durations/points/p_landau_zener holds NaN.
   TempDir dir;
   const auto h5 = write_result(dir, "durations " + src("data-samples/triangle.toml") + " " +
                                         src("schedules/linear.toml") + " -d log:0.01:30:4 --no-search --quiet", "dur");
@@ -106,7 +108,8 @@ TEST_CASE("figure: the -1 marker of \"not applicable\" is data, not an error") {
     std::vector<double> v(static_cast<std::size_t>(ds.getSpace().getSimpleExtentNpoints()));
     ds.read(v.data(), H5::PredType::NATIVE_DOUBLE);
     REQUIRE(!v.empty());
-    CHECK(v.front() == -1.0);  // the marker is really there
+    CHECK(std::isnan(v.front()));  // the NaN is really there, and declared
+    CHECK(ds.attrExists("nan_meaning"));
   }
   auto f = draw(dir, h5);
   INFO(f.err);

@@ -2,6 +2,8 @@
 // reads problem files, and damaged input is an InputError naming place and fix.
 #include <doctest/doctest.h>
 
+#include <H5Cpp.h>
+
 #include <cstring>
 #include <filesystem>
 #include <fstream>
@@ -51,7 +53,7 @@ void check_same_problems(const InstanceSet& a, const InstanceSet& b) {
 template <class F>
 std::string hand_written(const TempDir& dir, const std::string& format, long long version, F extra) {
   const auto path = (dir.path / "hand.h5").string();
-  Hdf5Output out(path, "gapwise-instance-set");
+  Hdf5Output out(path, {"gapwise-instance-set", 1, true});
   out.attribute("/", "format", format);
   out.attribute("/", "format_version", version);
   out.write_strings("/instance_names", {"a"});
@@ -141,7 +143,8 @@ TEST_CASE("damaged or foreign bytes are InputErrors with the place and a fix") {
     plain.commit();
     CHECK_THROWS_WITH_AS(read_instance_set(path), doctest::Contains("no gapwise seal"), InputError);
   }
-  CHECK_THROWS_WITH_AS(parse_instance_set_bytes(good + "x", "long.h5"), doctest::Contains("appended"), InputError);
+  // Bytes appended leave every object gapwise wrote intact: read as annotated.
+  CHECK(parse_instance_set_bytes(good + "x", "long.h5").instances.size() == 1);
   // Objects the reader does not know are ignored (room for later additions).
   CHECK(message("gapwise-instance-set", 1, [](Hdf5Output& o) { o.write_strings("/notes", {"x"}); }) == "no error");
 }
@@ -150,7 +153,7 @@ TEST_CASE("validation names the instance and the dataset") {
   TempDir dir;
   auto write_bad = [&](const std::string& what) {
     const auto path = (dir.path / (what + ".h5")).string();
-    Hdf5Output out(path, "gapwise-instance-set");
+    Hdf5Output out(path, {"gapwise-instance-set", 1, true});
     out.attribute("/", "format", std::string("gapwise-instance-set"));
     out.attribute("/", "format_version", 1LL);
     out.write_strings("/instance_names", {what == "missing" ? "ghost" : "a"});
@@ -172,4 +175,52 @@ TEST_CASE("validation names the instance and the dataset") {
   CHECK(write_bad("range").find("out of range") != std::string::npos);
   CHECK(write_bad("order").find("i < j") != std::string::npos);
   CHECK(write_bad("missing").find("/instances/ghost") != std::string::npos);
+}
+
+// The seal (io/hdf5_seal.hpp) lets another HDF5 client annotate a set (here the
+// HDF5 C++ API, as h5py would: one attribute added in place) and still refuses a
+// truncated file and a changed dataset. Common practice for data files that
+// other tools annotate: check the content that matters, not the bytes.
+TEST_CASE("the seal accepts an annotated instance set and refuses a truncated or altered one") {
+  TempDir dir;
+  InstanceSet set;
+  set.family = "pair";
+  set.generator = "hand";
+  Instance inst;
+  inst.name = "a";
+  inst.problem.qubits = 2;
+  inst.problem.h = {0.25, -0.5};
+  inst.problem.couplings = {{0, 1, -1.0}};
+  inst.problem.description = "Zweierkette \u2014 ein Paar";  // UTF-8 text
+  set.instances.push_back(inst);
+  const std::string path = (dir.path / "set.h5").string();
+  write_instance_set(path, set, "test");
+  const std::string whole = read_text_file(path);
+  {
+    H5::H5File f(path, H5F_ACC_RDWR);
+    H5::Group g = f.openGroup("/instances/a");
+    H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
+    st.setCset(H5T_CSET_UTF8);
+    g.createAttribute("reviewed_by", st, H5::DataSpace(H5S_SCALAR)).write(st, std::string("Ren\u00e9e"));
+  }
+  REQUIRE(read_text_file(path) != whole);  // the bytes changed, so the whole-file checksum no longer holds
+  const InstanceSet back = read_instance_set(path);
+  REQUIRE(back.instances.size() == 1);
+  CHECK(back.instances[0].problem.h == inst.problem.h);
+  CHECK(back.instances[0].problem.description == inst.problem.description);
+  CHECK(back.fingerprint() == set.fingerprint());
+  // Truncated: refused before HDF5 sees a byte.
+  const std::string annotated = read_text_file(path);
+  CHECK_THROWS_WITH_AS(parse_instance_set_bytes(annotated.substr(0, annotated.size() - 40), "cut.h5"),
+                       doctest::Contains("truncated"), InputError);
+  CHECK_THROWS_WITH_AS(parse_instance_set_bytes(whole.substr(0, whole.size() - 1), "cut.h5"),
+                       doctest::Contains("truncated"), InputError);
+  // A dataset gapwise wrote, changed by the other client: refused, the dataset named.
+  {
+    H5::H5File f(path, H5F_ACC_RDWR);
+    const std::vector<double> h{0.25, 0.5};
+    f.openDataSet("/instances/a/fields").write(h.data(), H5::PredType::NATIVE_DOUBLE);
+  }
+  CHECK_THROWS_WITH_AS(read_instance_set(path), doctest::Contains("/instances/a/fields"), InputError);
+  CHECK_THROWS_WITH_AS(read_instance_set(path), doctest::Contains("differs from what gapwise wrote"), InputError);
 }

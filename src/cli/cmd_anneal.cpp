@@ -265,7 +265,7 @@ void run_anneal(const AnnealOptions& o) {
 
   if (!o.csv.empty()) write_file_atomically(o.csv, tr.csv());
   if (!o.out.empty()) {
-    Hdf5Output h5(o.out);
+    Hdf5Output h5(o.out, {"gapwise-anneal", 1});
     write_provenance(h5, command_line(), {o.problem, o.schedule});
     h5.attribute("/anneal", "duration_ns", r.duration_ns);
     h5.attribute("/anneal", "ground_probability", r.ground_probability);
@@ -280,7 +280,7 @@ void run_anneal(const AnnealOptions& o) {
     if (delta_p) h5.attribute("/anneal", "convergence_delta_p", *delta_p);
     h5.attribute("/anneal", "ground_energy", gm.energy);
     std::vector<long long> gstates(gm.states.begin(), gm.states.end());
-    h5.write("/anneal/ground_states", gstates, "basis index (bit i = qubit i)");
+    h5.write("/anneal/ground_states", gstates, DataMeaning("1").described("basis index (bit i = qubit i)"));
     std::vector<double> t, s, pg, e, nrm;
     for (const auto& row : trace.rows()) {
       t.push_back(row.t_ns); s.push_back(row.s); pg.push_back(row.ground_probability);
@@ -294,7 +294,7 @@ void run_anneal(const AnnealOptions& o) {
     if (!observe_s.empty()) {
       std::vector<long long> req;
       for (const auto& row : trace.rows()) req.push_back(row.requested ? 1 : 0);
-      h5.write("/anneal/trace/requested", req, "1 at an --observe-s value, 0 otherwise");
+      h5.write("/anneal/trace/requested", req, DataMeaning("1").flagged({0, 1}, "sampled observe_s_value"));
       std::vector<double> ot, os, op, oe, on, le, lp;
       for (std::size_t i = 0; i < requested_rows.size(); ++i) {
         const auto& row = requested_rows[i];
@@ -312,13 +312,13 @@ void run_anneal(const AnnealOptions& o) {
       h5.write("/anneal/observations/norm", on, "1");
       if (o.levels > 0) {
         const std::size_t m = requested_rows.size(), kk = static_cast<std::size_t>(o.levels);
-        h5.write_matrix("/anneal/observations/level_energies", le, m, kk, "GHz");
-        h5.write_matrix("/anneal/observations/level_populations", lp, m, kk, "1");
+        h5.write_matrix("/anneal/observations/level_energies", le, m, kk, "GHz", {"/anneal/observations/s", h5.level_axis("/anneal/observations", kk)});
+        h5.write_matrix("/anneal/observations/level_populations", lp, m, kk, "1", {"/anneal/observations/s", h5.level_axis("/anneal/observations", kk)});
         h5.attribute("/anneal/observations/level_populations", "sector", sector_name(lpo.sector));
       }
     }
     const auto probs = probabilities(r.final_state);
-    h5.write("/anneal/final_probabilities", probs, "1");
+    h5.write("/anneal/final_probabilities", probs, DataMeaning("1").described("probability of basis state b at the end (index b, bit i = qubit i)"));
     if (open) write_open_system_hdf5(h5, "/anneal/open_system", *bath, *open);
     h5.commit();
   }

@@ -4,6 +4,7 @@
 // and where the instantaneous ground level loses population, per path.
 #include <filesystem>
 #include <iostream>
+#include <limits>
 #include <memory>
 
 #include <fmt/format.h>
@@ -131,11 +132,11 @@ void run_compare(const CompareOptions& o) {
                "and where along s it happened; level0_end: that population at the end (= p_ground when A(1) = 0).\n";
   if (!o.csv.empty()) write_file_atomically(o.csv, t.csv());
   if (!o.out.empty()) {
-    Hdf5Output h5(o.out);
+    Hdf5Output h5(o.out, {"gapwise-compare-paths", 1});
     std::vector<std::string> inputs{o.problem};
     for (const auto& f : o.schedules) inputs.push_back(f);
     write_provenance(h5, command_line(), inputs);
-    h5.write_strings("/compare/paths", r.names);
+    h5.write_strings("/compare/paths", r.names, "the compared paths (rows of the matrices)");
     h5.write("/compare/durations_ns", r.durations_ns, "ns");
     std::vector<double> pg, tts, end;
     for (const auto& x : r.runs) {
@@ -144,9 +145,9 @@ void run_compare(const CompareOptions& o) {
       end.push_back(x.end_time_ns);
     }
     const std::size_t ni = r.names.size(), nj = r.durations_ns.size();
-    h5.write_matrix("/compare/ground_probability", pg, ni, nj, "1");
-    h5.write_matrix("/compare/tts_ns", tts, ni, nj, tts_unit("ns"));
-    h5.write_matrix("/compare/end_time_ns", end, ni, nj, "ns");
+    h5.write_matrix("/compare/ground_probability", pg, ni, nj, "1", {"/compare/paths", "/compare/durations_ns"});
+    h5.write_matrix("/compare/tts_ns", tts, ni, nj, tts_meaning("ns"), {"/compare/paths", "/compare/durations_ns"});
+    h5.write_matrix("/compare/end_time_ns", end, ni, nj, "ns", {"/compare/paths", "/compare/durations_ns"});
     h5.attribute("/compare", "target_probability", o.target);
     h5.attribute("/compare", "level_sector", sector_name(r.sector));
     for (std::size_t i = 0; i < ni; ++i) {
@@ -168,23 +169,25 @@ void run_compare(const CompareOptions& o) {
           ss.push_back(row.s);
           for (int l = 0; l < levels; ++l) {
             // A level group that runs past the computed levels is unresolved (NaN in
-            // memory); files get 0 there and a mask, never a NaN.
+            // memory); files get NaN there (nan_meaning) and the mask level_resolved.
             const double en = row.levels.energies_ghz[static_cast<std::size_t>(l)];
             const double po = row.levels.populations[static_cast<std::size_t>(l)];
             const bool ok = std::isfinite(en) && std::isfinite(po);
-            e.push_back(ok ? en : 0.0);
-            pop.push_back(ok ? po : 0.0);
+            e.push_back(ok ? en : std::numeric_limits<double>::quiet_NaN());
+            pop.push_back(ok ? po : std::numeric_limits<double>::quiet_NaN());
             deg.push_back(row.levels.degeneracy[static_cast<std::size_t>(l)]);
             resolved.push_back(ok ? 1.0 : 0.0);
           }
         }
         h5.write(g + "/t", tt, "ns");
         h5.write(g + "/s", ss, "1");
-        h5.write_matrix(g + "/level_energy", e, tt.size(), static_cast<std::size_t>(levels), "GHz");
-        h5.write_matrix(g + "/level_population", pop, tt.size(), static_cast<std::size_t>(levels), "1");
-        h5.write_matrix(g + "/level_degeneracy", deg, tt.size(), static_cast<std::size_t>(levels), "1");
-        h5.write_matrix(g + "/level_resolved", resolved, tt.size(), static_cast<std::size_t>(levels),
-                        "1 resolved, 0 not (the level group runs past the levels computed; energy and population 0)");
+        const std::size_t nl = static_cast<std::size_t>(levels);
+        const std::vector<std::string> axes{g + "/t", h5.level_axis(g, nl)};
+        const std::string unresolved = "the level group runs past the levels computed (level_resolved 0)";
+        h5.write_matrix(g + "/level_energy", e, tt.size(), nl, not_applicable("GHz", unresolved), axes);
+        h5.write_matrix(g + "/level_population", pop, tt.size(), nl, not_applicable("1", unresolved), axes);
+        h5.write_matrix(g + "/level_degeneracy", deg, tt.size(), nl, "1", axes);
+        h5.write_matrix(g + "/level_resolved", resolved, tt.size(), nl, DataMeaning("1").flagged({0, 1}, "unresolved resolved"), axes);
         h5.attribute(g, "duration_ns", x.duration_ns);
         h5.attribute(g, "ground_probability", x.ground_probability);
         h5.attribute(g, "norm_drift", x.norm_drift);

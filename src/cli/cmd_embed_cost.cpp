@@ -254,7 +254,7 @@ void run_embed_cost(const EmbedCostOptions& o) {
     write_file_atomically(o.write_physical, format_problem_toml(phys));
   }
   if (!o.out.empty()) {
-    Hdf5Output h5(o.out);
+    Hdf5Output h5(o.out, {"gapwise-embed-cost", 1});
     write_provenance(h5, command_line(), {o.problem, o.embedding, o.schedule});
     h5.attribute("/embedding", "target", o.target);
     h5.attribute("/embedding", "duration_ns", scan.duration_ns);
@@ -287,8 +287,12 @@ void run_embed_cost(const EmbedCostOptions& o) {
       intact.push_back(p.ground_intact ? 1 : 0);
     }
     h5.write("/embedding/scan/needed_bound", bound,
-             "0: bracketed, -1: at most needed_duration (reached at the shortest), 1: more than needed_duration");
-    h5.write("/embedding/scan/ground_intact", intact, "1: every physical ground state has intact chains");
+             DataMeaning("1")
+                 .flagged({-1, 0, 1}, "at_most bracketed more_than")
+                 .described("what needed_duration is: -1 at most that (reached at the shortest duration tried), "
+                            "0 bracketed, 1 more than that"));
+    h5.write("/embedding/scan/ground_intact", intact,
+             DataMeaning("1").flagged({0, 1}, "broken intact").described("1: every physical ground state has intact chains"));
     h5.attribute("/embedding", "best_index", static_cast<long long>(r.best));
     h5.attribute("/embedding/logical", "needed_bound", needed_bound_code(r.logical_m.needed));
     h5.commit();

@@ -315,7 +315,7 @@ void run_gap(const GapOptions& o) {
 
   if (!o.csv.empty()) write_file_atomically(o.csv, curve.csv());
   if (!o.out.empty()) {
-    Hdf5Output h5(o.out);
+    Hdf5Output h5(o.out, {"gapwise-gap", 1});
     std::vector<std::string> inputs{o.problem};
     if (!o.schedule.empty()) inputs.push_back(o.schedule);
     write_provenance(h5, command_line(), inputs);
@@ -352,16 +352,16 @@ void run_gap(const GapOptions& o) {
     h5.write(G + "/curve/s", s, "1");
     h5.write(G + "/curve/a", a, "GHz");
     h5.write(G + "/curve/b", b, "GHz");
-    h5.write_matrix(G + "/curve/energies", energies, n, kk, "GHz");
-    h5.write_matrix(G + "/curve/slopes", slopes, n, kk, "GHz");
+    h5.write_matrix(G + "/curve/energies", energies, n, kk, "GHz", {G + "/curve/s", h5.level_axis(G + "/curve", kk)});
+    h5.write_matrix(G + "/curve/slopes", slopes, n, kk, DataMeaning("GHz").described("dE_k/ds"), {G + "/curve/s", h5.level_axis(G + "/curve", kk)});
     h5.write(G + "/curve/gap", gap, "GHz");
     h5.attribute(G + "/curve/gap", "definition", r.definition);
     h5.write(G + "/curve/gap_e1_e0", gap10, "GHz");
     h5.write(G + "/curve/matrix_element", m, "GHz");
     h5.write(G + "/curve/matrix_element_10", m10, "GHz");
     h5.write(G + "/curve/error_bound", err, "GHz");
-    h5.write(G + "/curve/origin", origin, "0 grid, 1 subdivision, 2 refinement");
-    if (others.size() == n * kk) h5.write_matrix(G + "/curve/other_sector_energies", others, n, kk, "GHz");
+    h5.write(G + "/curve/origin", origin, DataMeaning("1").flagged({0, 1, 2}, "grid subdivision refinement"));
+    if (others.size() == n * kk) h5.write_matrix(G + "/curve/other_sector_energies", others, n, kk, "GHz", {G + "/curve/s", h5.level_axis(G + "/curve", kk)});
     std::vector<double> ms, msu, mg, mgu;
     for (const auto& mm : r.minima) {
       ms.push_back(mm.s); msu.push_back(mm.s_uncertainty); mg.push_back(mm.gap_ghz); mgu.push_back(mm.gap_uncertainty_ghz);
@@ -378,10 +378,10 @@ void run_gap(const GapOptions& o) {
       fground.push_back(fl.in_ground_manifold);
     }
     h5.write(G + "/final_levels/energy", fe, "GHz");
-    h5.write(G + "/final_levels/problem_energy", fpe, "1");
-    h5.write(G + "/final_levels/dominant_state", fstate, "basis index (bit i = qubit i)");
-    h5.write(G + "/final_levels/in_ground_manifold", fground, "1 yes, 0 no");
-    h5.write_strings(G + "/notes", r.flags.empty() ? std::vector<std::string>{"none"} : r.flags);
+    h5.write(G + "/final_levels/problem_energy", fpe, DataMeaning("1").described("classical problem energy, in the problem's own units"));
+    h5.write(G + "/final_levels/dominant_state", fstate, DataMeaning("1").described("basis index (bit i = qubit i), -1 when none"));
+    h5.write(G + "/final_levels/in_ground_manifold", fground, DataMeaning("1").flagged({0, 1}, "no yes"));
+    h5.write_strings(G + "/notes", r.flags.empty() ? std::vector<std::string>{"none"} : r.flags, "caveats of the gap search");
     if (!vectors.empty()) {
       // Layout documented in the user guide (gap, "Eigenvectors").
       const std::string V = G + "/eigenvectors";
@@ -410,7 +410,11 @@ void run_gap(const GapOptions& o) {
         h5.attribute(P, "at", vreq.star && i == 0 ? std::string("s_star") : std::string("requested s"));
         h5.write(P + "/energies", v.energies_ghz, "GHz");
         h5.write(P + "/residuals", v.residuals_ghz, "GHz");
-        h5.write_matrix(P + "/vectors", v.vectors, v.energies_ghz.size(), v.dimension, "1");
+        std::vector<long long> basis(v.dimension);
+        for (std::size_t b = 0; b < v.dimension; ++b) basis[b] = static_cast<long long>(b);
+        h5.write(P + "/basis_state", basis, DataMeaning("1").described("computational basis state b (bit i = qubit i)"));
+        h5.write_matrix(P + "/vectors", v.vectors, v.energies_ghz.size(), v.dimension, "1",
+                        {h5.level_axis(P, v.energies_ghz.size()), P + "/basis_state"});
         h5.attribute(P + "/vectors", "layout", "row j = level j (ascending energy), column b = basis state b");
       }
     }

@@ -148,7 +148,7 @@ void run_pause_map(PauseMapCli o) {
                              tts_text(m.tts_ns(bi, bj), 6), tts_text(reference_tts, 6));
   }
 
-  Hdf5Output h5(o.out);
+  Hdf5Output h5(o.out, {"gapwise-pause-map", 1});
   write_provenance(h5, command_line(), {o.problem, o.schedule});
   std::vector<double> pg, tts, tot, nd;
   for (std::size_t i = 0; i < mo.pause_s.size(); ++i)
@@ -161,10 +161,10 @@ void run_pause_map(PauseMapCli o) {
   const std::size_t ni = mo.pause_s.size(), nj = mo.pause_ns.size();
   h5.write("/pause_map/pause_s", mo.pause_s, "1");
   h5.write("/pause_map/pause_ns", mo.pause_ns, "ns");
-  h5.write_matrix("/pause_map/ground_probability", pg, ni, nj, "1");
-  h5.write_matrix("/pause_map/tts_ns", tts, ni, nj, tts_unit("ns"));
-  h5.write_matrix("/pause_map/total_ns", tot, ni, nj, "ns");
-  h5.write_matrix("/pause_map/norm_drift", nd, ni, nj, "1");
+  h5.write_matrix("/pause_map/ground_probability", pg, ni, nj, "1", {"/pause_map/pause_s", "/pause_map/pause_ns"});
+  h5.write_matrix("/pause_map/tts_ns", tts, ni, nj, tts_meaning("ns"), {"/pause_map/pause_s", "/pause_map/pause_ns"});
+  h5.write_matrix("/pause_map/total_ns", tot, ni, nj, "ns", {"/pause_map/pause_s", "/pause_map/pause_ns"});
+  h5.write_matrix("/pause_map/norm_drift", nd, ni, nj, "1", {"/pause_map/pause_s", "/pause_map/pause_ns"});
   std::vector<double> rp, rt;
   for (const auto& r : m.reference) { rp.push_back(r.ground_probability); rt.push_back(r.total_ns); }
   h5.write("/pause_map/reference_ground_probability", rp, "1");

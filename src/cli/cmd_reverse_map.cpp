@@ -115,7 +115,7 @@ void run_reverse_map(const ReverseMapCli& o) {
                            fmt_num(mo.turn_s[bi], 6), fmt_num(mo.dwell_ns[bj], 6), b.ground_probability, b.total_ns,
                            tts_text(time_to_solution(b.total_ns, std::clamp(b.ground_probability, 0.0, 1.0), o.target).tts_ns, 6));
 
-  Hdf5Output h5(o.out);
+  Hdf5Output h5(o.out, {"gapwise-reverse-map", 1});
   write_provenance(h5, command_line(), {o.problem, o.schedule});
   std::vector<double> pg, ps, tot, tts;
   for (const auto& x : m.points) {
@@ -127,10 +127,10 @@ void run_reverse_map(const ReverseMapCli& o) {
   const std::size_t ni = mo.turn_s.size(), nj = mo.dwell_ns.size();
   h5.write("/reverse_map/turn_s", mo.turn_s, "1");
   h5.write("/reverse_map/dwell_ns", mo.dwell_ns, "ns");
-  h5.write_matrix("/reverse_map/ground_probability", pg, ni, nj, "1");
-  h5.write_matrix("/reverse_map/start_probability", ps, ni, nj, "1");
-  h5.write_matrix("/reverse_map/total_ns", tot, ni, nj, "ns");
-  h5.write_matrix("/reverse_map/tts_ns", tts, ni, nj, tts_unit("ns"));
+  h5.write_matrix("/reverse_map/ground_probability", pg, ni, nj, "1", {"/reverse_map/turn_s", "/reverse_map/dwell_ns"});
+  h5.write_matrix("/reverse_map/start_probability", ps, ni, nj, "1", {"/reverse_map/turn_s", "/reverse_map/dwell_ns"});
+  h5.write_matrix("/reverse_map/total_ns", tot, ni, nj, "ns", {"/reverse_map/turn_s", "/reverse_map/dwell_ns"});
+  h5.write_matrix("/reverse_map/tts_ns", tts, ni, nj, tts_meaning("ns"), {"/reverse_map/turn_s", "/reverse_map/dwell_ns"});
   h5.attribute("/reverse_map", "start_bits", bits);
   h5.attribute("/reverse_map", "ramp_ns", o.ramp_ns);
   h5.attribute("/reverse_map", "target_probability", o.target);

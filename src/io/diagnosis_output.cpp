@@ -1,10 +1,12 @@
 #include "io/diagnosis_output.hpp"
 
 #include <cmath>
+#include <limits>
 
 #include <fmt/format.h>
 
 #include "io/hdf5_output.hpp"
+#include "io/infinite_tts.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 
@@ -324,7 +326,7 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
 }
 
 void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const std::string& path) {
-  Hdf5Output h5(path);
+  Hdf5Output h5(path, {"gapwise-diagnosis", 1});
   write_provenance(h5, c.command_line, {c.problem_file, c.schedule_file});
   const std::string root = "/diagnosis";
   h5.group(root);
@@ -335,7 +337,7 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
   h5.attribute(root, "sector", sector_name(d.gap.sector));
   h5.write(root + "/durations", d.durations_ns, "ns");
   h5.write(root + "/ground_states", std::vector<long long>(d.ground.states.begin(), d.ground.states.end()),
-           "basis index (bit i = qubit i)");
+           DataMeaning("1").described("basis index (bit i = qubit i)"));
   {
     std::vector<double> s, gap;
     for (const SpectrumPoint& p : d.gap.curve) {
@@ -352,15 +354,18 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
       s.push_back(p.s);
       for (std::size_t q = 0; q < k; ++q) {
         const bool has = q < p.levels.size();
-        w.push_back(has ? p.levels[q].ground_weight : -1.0);
-        e.push_back(has ? p.levels[q].energy_ghz : 0.0);
-        dom.push_back(has ? p.levels[q].dominant_excited_weight : -1.0);
+        constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+        w.push_back(has ? p.levels[q].ground_weight : kNaN);
+        e.push_back(has ? p.levels[q].energy_ghz : kNaN);
+        dom.push_back(has ? p.levels[q].dominant_excited_weight : kNaN);
       }
     }
     h5.write(root + "/overlap/s", s, "1");
-    h5.write_matrix(root + "/overlap/ground_weight", w, s.size(), k, "1");
-    h5.write_matrix(root + "/overlap/energy", e, s.size(), k, "GHz");
-    h5.write_matrix(root + "/overlap/dominant_excited_weight", dom, s.size(), k, "1");
+    const std::vector<std::string> axes{root + "/overlap/s", h5.level_axis(root + "/overlap", k)};
+    const std::string untracked = "level not tracked at this s";
+    h5.write_matrix(root + "/overlap/ground_weight", w, s.size(), k, not_applicable("1", untracked), axes);
+    h5.write_matrix(root + "/overlap/energy", e, s.size(), k, not_applicable("GHz", untracked), axes);
+    h5.write_matrix(root + "/overlap/dominant_excited_weight", dom, s.size(), k, not_applicable("1", untracked), axes);
     std::vector<double> sw;
     for (const PerturbativeCrossing& l : d.overlap.perturbative_crossings) sw.push_back(l.s_switch);
     h5.write(root + "/overlap/perturbative_crossing_s", sw, "1");
@@ -378,34 +383,45 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
         before.push_back(p.population_before);
         after.push_back(p.population_after);
         transferred.push_back(p.transferred);
-        lz.push_back(std::isfinite(p.landau_zener_loss) ? p.landau_zener_loss : -1.0);
+        lz.push_back(std::isfinite(p.landau_zener_loss) ? p.landau_zener_loss : std::numeric_limits<double>::quiet_NaN());
       }
     }
     h5.write(root + "/crossings/s_star", s, "1");
     h5.write(root + "/crossings/delta_min", delta, "GHz");
     h5.write(root + "/crossings/diabatic_slope", slope, "GHz");
-    h5.write(root + "/crossings/perturbative_crossing_index", late, "index into overlap/perturbative_crossing_s, -1 for none");
-    h5.write_matrix(root + "/crossings/population_before", before, m, r, "1");
-    h5.write_matrix(root + "/crossings/population_after", after, m, r, "1");
-    h5.write_matrix(root + "/crossings/transferred", transferred, m, r, "1");
-    h5.write_matrix(root + "/crossings/landau_zener_loss", lz, m, r, "1 (-1: not applicable, end gap)");
+    h5.write(root + "/crossings/perturbative_crossing_index", late,
+             DataMeaning("1").described("index into overlap/perturbative_crossing_s, -1 for none"));
+    std::vector<long long> crossing(m);
+    for (std::size_t i = 0; i < m; ++i) crossing[i] = static_cast<long long>(i);
+    h5.write(root + "/crossings/crossing", crossing, DataMeaning("1").described("crossing index (rows of the crossing matrices)"));
+    const std::vector<std::string> axes{root + "/crossings/crossing", root + "/durations"};
+    h5.write_matrix(root + "/crossings/population_before", before, m, r, "1", axes);
+    h5.write_matrix(root + "/crossings/population_after", after, m, r, "1", axes);
+    h5.write_matrix(root + "/crossings/transferred", transferred, m, r, "1", axes);
+    h5.write_matrix(root + "/crossings/landau_zener_loss", lz, m, r, not_applicable("1", "end gap (no Landau-Zener number)"), axes);
     std::vector<long long> end;
     for (const AvoidedCrossing& x : d.crossings) end.push_back(x.at_end_point);
-    h5.write(root + "/crossings/end_gap", end, "1 (1: smallest gap at an end of the path)");
+    h5.write(root + "/crossings/end_gap", end,
+             DataMeaning("1").flagged({0, 1}, "interior end_gap").described("1: smallest gap at an end of the path"));
     std::vector<long long> broad, check_run;
     std::vector<double> lz_t, check_p, check_loss;
     for (const AvoidedCrossing& x : d.crossings) {
       broad.push_back(x.broad);
       check_run.push_back(x.check.has_value());
-      lz_t.push_back(std::isfinite(x.landau_zener_duration_ns) ? x.landau_zener_duration_ns : -1.0);
-      check_p.push_back(x.check ? x.check_ground_probability : -1.0);
+      lz_t.push_back(std::isfinite(x.landau_zener_duration_ns) ? x.landau_zener_duration_ns
+                                                               : std::numeric_limits<double>::quiet_NaN());
+      check_p.push_back(x.check ? x.check_ground_probability : std::numeric_limits<double>::quiet_NaN());
       check_loss.push_back(x.check ? x.check->transferred : 0.0);
     }
-    h5.write(root + "/crossings/broad", broad, "1 (1: window narrowed, not an isolated crossing)");
-    h5.write(root + "/crossings/landau_zener_duration", lz_t, "ns (-1: not applicable, end gap)");
-    h5.write(root + "/crossings/check_run", check_run, "1 (1: an anneal was simulated at landau_zener_duration)");
-    h5.write(root + "/crossings/check_ground_probability", check_p, "1 (p simulated at landau_zener_duration; -1: not run)");
-    h5.write(root + "/crossings/check_transferred", check_loss, "1 (loss at this crossing there; 0 when check_run is 0)");
+    h5.write(root + "/crossings/broad", broad,
+             DataMeaning("1").flagged({0, 1}, "isolated broad").described("1: window narrowed, not an isolated crossing"));
+    h5.write(root + "/crossings/landau_zener_duration", lz_t, not_applicable("ns", "end gap (no Landau-Zener number)"));
+    h5.write(root + "/crossings/check_run", check_run,
+             DataMeaning("1").flagged({0, 1}, "not_run run").described("1: an anneal was simulated at landau_zener_duration"));
+    h5.write(root + "/crossings/check_ground_probability", check_p,
+             not_applicable("1", "no anneal was simulated (check_run 0)").described("p simulated at landau_zener_duration"));
+    h5.write(root + "/crossings/check_transferred", check_loss,
+             DataMeaning("1").described("loss at this crossing in that run; 0 when check_run is 0"));
   }
   for (std::size_t r = 0; r < d.runs.size(); ++r) {
     const DurationDiagnosis& run = d.runs[r];
@@ -422,8 +438,8 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
       verdicts.push_back(k.verdict);
       losses.push_back(k.loss);
     }
-    h5.write_strings(g + "/channel_kind", kinds);
-    h5.write_strings(g + "/channel_verdict", verdicts);
+    h5.write_strings(g + "/channel_kind", kinds, "loss channel, ranked");
+    h5.write_strings(g + "/channel_verdict", verdicts, "one-line verdict per channel");
     h5.write(g + "/channel_loss", losses, "1");
     std::vector<double> regained;
     for (const Channel& k : run.channels) regained.push_back(k.regained);
@@ -444,16 +460,19 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
     for (const ControlSample& s : e.samples) {
       idx.push_back(static_cast<long long>(s.index));
       changed.push_back(s.ground_changed);
-      for (std::size_t r = 0; r < d.runs.size(); ++r) p.push_back(r < s.p_intended.size() ? s.p_intended[r] : -1.0);
+      for (std::size_t r = 0; r < d.runs.size(); ++r)
+        p.push_back(r < s.p_intended.size() ? s.p_intended[r] : std::numeric_limits<double>::quiet_NaN());
     }
-    h5.write(g + "/sample", idx, "1");
-    h5.write(g + "/ground_changed", changed, "1");
-    h5.write(g + "/classical_margin", e.column(&ControlSample::classical_margin), "problem energy");
+    h5.write(g + "/sample", idx, DataMeaning("1").described("Monte Carlo sample index"));
+    h5.write(g + "/ground_changed", changed, DataMeaning("1").flagged({0, 1}, "kept changed"));
+    h5.write(g + "/classical_margin", e.column(&ControlSample::classical_margin),
+             DataMeaning("1").described("classical energy margin, in the problem's own units"));
     if (!e.samples.empty() && std::isfinite(e.samples.front().delta_min_ghz)) {
       h5.write(g + "/delta_min", e.column(&ControlSample::delta_min_ghz), "GHz");
       h5.write(g + "/s_star", e.column(&ControlSample::s_star), "1");
     }
-    h5.write_matrix(g + "/ground_probability", p, e.samples.size(), d.runs.size(), "1");
+    h5.write_matrix(g + "/ground_probability", p, e.samples.size(), d.runs.size(),
+                    not_applicable("1", "no run at this duration for this sample"), {g + "/sample", root + "/durations"});
   }
   h5.commit();
 }

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <optional>
 #include <set>
 
@@ -37,7 +38,7 @@ double clamp01(double p) { return std::clamp(p, 0.0, 1.0); }
 
 void write_duration_study_hdf5(const std::string& path, const DurationStudyInputs& in,
                                const std::map<double, DurationPoint>& known, const DurationStudy* finished) {
-  Hdf5Output h5(path);
+  Hdf5Output h5(path, {"gapwise-durations", 1});
   write_provenance(h5, in.command_line, {in.problem_file, in.schedule_file});
   const std::string root = "/durations";
   h5.group(root);
@@ -52,10 +53,12 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     h5.attribute(root, "ground_energy", in.setup->ground.energy);
     h5.attribute(root, "ground_degeneracy", static_cast<long long>(in.setup->ground.degeneracy()));
     std::vector<long long> gs(in.setup->ground.states.begin(), in.setup->ground.states.end());
-    h5.write(root + "/ground_states", gs, "basis index (bit i = qubit i)");
+    h5.write(root + "/ground_states", gs, DataMeaning("1").described("basis index (bit i = qubit i)"));
     std::vector<double> ps, pt;
     for (const auto& w : in.setup->schedule.shape.points()) { pt.push_back(w.t_ns); ps.push_back(w.s); }
-    h5.write(root + "/path_shape/t", pt, in.setup->schedule.time_in_ns ? "ns (stretched to each duration)" : "fraction of t_f");
+    h5.write(root + "/path_shape/t", pt,
+             in.setup->schedule.time_in_ns ? DataMeaning("ns").described("stretched to each duration")
+                                           : DataMeaning("1").described("fraction of t_f"));
     h5.write(root + "/path_shape/s", ps, "1");
   }
   h5.write(root + "/grid_ns", in.grid_ns, "ns");
@@ -76,30 +79,33 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     steps.push_back(pt.steps);
     wall.push_back(pt.wall_seconds);
     if (in.predictions) {
-      lz.push_back(in.predictions->lz.applicable ? in.predictions->lz.p_at(d) : -1.0);
-      ad.push_back(in.predictions->adiabatic.applicable ? in.predictions->adiabatic.p_at(d) : -1.0);
+      constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+      lz.push_back(in.predictions->lz.applicable ? in.predictions->lz.p_at(d) : kNaN);
+      ad.push_back(in.predictions->adiabatic.applicable ? in.predictions->adiabatic.p_at(d) : kNaN);
     }
   }
   const std::string pts = root + "/points";
   h5.write(pts + "/duration_ns", t, "ns");
   h5.write(pts + "/ground_probability", p, "1");
-  h5.write(pts + "/tts_ns", tts, tts_unit("ns"));
-  h5.write(pts + "/repetitions", reps, tts_unit("1"));
-  h5.write(pts + "/tts_case", kind, "0 never (p = 0), 1 repeated (0 < p < p*), 2 single run (p >= p*)");
-  h5.write(pts + "/on_grid", on_grid, "1 sampled grid point, 0 bisection probe");
+  h5.write(pts + "/tts_ns", tts, tts_meaning("ns"));
+  h5.write(pts + "/repetitions", reps, tts_meaning("1"));
+  h5.write(pts + "/tts_case", kind,
+           DataMeaning("1").flagged({0, 1, 2}, "never repeated single_run")
+               .described("0 never (p = 0), 1 repeated (0 < p < p*), 2 single run (p >= p*)"));
+  h5.write(pts + "/on_grid", on_grid, DataMeaning("1").flagged({0, 1}, "bisection_probe grid_point"));
   h5.write(pts + "/norm_drift", drift, "1");
-  h5.write(pts + "/steps", steps, "accepted propagator steps");
+  h5.write(pts + "/steps", steps, DataMeaning("1").described("accepted propagator steps"));
   h5.write(pts + "/wall_seconds", wall, "s");
   if (in.predictions) {
-    h5.write(pts + "/p_landau_zener", lz, "1 (-1: not applicable)");
-    h5.write(pts + "/p_adiabatic", ad, "1 (-1: not applicable)");
+    h5.write(pts + "/p_landau_zener", lz, not_applicable("1", "see /durations/predictions/landau_zener@why_not"));
+    h5.write(pts + "/p_adiabatic", ad, not_applicable("1", "see /durations/predictions/adiabatic@why_not"));
   }
 
   if (finished) {
     const std::string opt = root + "/tts_optimum";
     h5.group(opt);
     h5.attribute(opt, "duration_ns", finished->optimum.duration_ns);
-    h5.attribute(opt, "tts_ns", stored_tts(finished->optimum.tts_ns));
+    h5.attribute_allowing_inf_nan(opt, "tts_ns", stored_tts(finished->optimum.tts_ns));
     h5.attribute(opt, "at_range_edge", static_cast<long long>(finished->optimum.at_range_edge));
     h5.attribute(opt, "lower_ns", finished->optimum.lower_ns);
     h5.attribute(opt, "upper_ns", finished->optimum.upper_ns);
@@ -109,13 +115,13 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     h5.attribute(opt, "near_to_ns", o.near_to_ns);
     h5.attribute(opt, "near_count", static_cast<long long>(o.near_count));
     h5.attribute(opt, "near_contiguous", static_cast<long long>(o.near_contiguous));
-    h5.attribute(opt, "random_guess_probability", std::isfinite(o.random_guess_probability) ? o.random_guess_probability : -1.0);
+    h5.attribute_allowing_inf_nan(opt, "random_guess_probability", o.random_guess_probability);  // NaN: not known
     h5.attribute(opt, "random_guess_limited", static_cast<long long>(o.random_guess_limited));
     if (o.random_guess_limited) h5.attribute(opt, "random_guess_note", std::string(kRandomGuessLimitText));
     h5.attribute(opt, "has_local_optimum", static_cast<long long>(o.local.has_value()));
     if (o.local) {
       h5.attribute(opt, "local_duration_ns", o.local->duration_ns);
-      h5.attribute(opt, "local_tts_ns", stored_tts(o.local->tts_ns));
+      h5.attribute_allowing_inf_nan(opt, "local_tts_ns", stored_tts(o.local->tts_ns));
       h5.attribute(opt, "local_lower_ns", o.local->lower_ns);
       h5.attribute(opt, "local_upper_ns", o.local->upper_ns);
     }
@@ -130,9 +136,17 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
       h5.attribute(g, "lost_at_longest", static_cast<long long>(dn.lost_at_longest));
       write_bracket(h5, g + "/first_crossing", dn.first);
       if (dn.stays_reached) write_bracket(h5, g + "/stays_reached", *dn.stays_reached);
-      std::vector<double> m;
-      for (const auto& s : dn.decreasing) m.insert(m.end(), {s.from_ns, s.to_ns, s.p_from, s.p_to});
-      h5.write_matrix(g + "/decreasing_stretches", m, dn.decreasing.size(), 4, "columns: from_ns, to_ns, p_from, p_to");
+      // Stretches of durations over which p decreases: one entry per stretch
+      // (the columns have different units, so one dataset each).
+      const std::string ds = g + "/decreasing_stretches";
+      std::vector<double> from, to, p_from, p_to;
+      for (const auto& s : dn.decreasing) {
+        from.push_back(s.from_ns); to.push_back(s.to_ns); p_from.push_back(s.p_from); p_to.push_back(s.p_to);
+      }
+      h5.write(ds + "/from_ns", from, "ns");
+      h5.write(ds + "/to_ns", to, "ns");
+      h5.write(ds + "/p_from", p_from, "1");
+      h5.write(ds + "/p_to", p_to, "1");
     }
   }
 
@@ -146,9 +160,10 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
       if (!v) return;
       std::vector<double> from, to;
       for (const auto& r : v->ranges) { from.push_back(r.from_ns); to.push_back(r.to_ns); }
-      h5.write(grp + "/agreement_from_ns", from, "ns (ranges of simulated durations where 1 - p agrees within the factor)");
+      h5.write(grp + "/agreement_from_ns", from,
+               DataMeaning("ns").described("ranges of simulated durations where 1 - p agrees within the factor"));
       h5.write(grp + "/agreement_to_ns", to, "ns");
-      h5.attribute(grp, "duration_ratio", std::isfinite(v->duration_ratio) ? v->duration_ratio : -1.0);
+      h5.attribute_allowing_inf_nan(grp, "duration_ratio", v->duration_ratio);  // NaN: either duration unknown
       h5.attribute(grp, "duration_agrees", static_cast<long long>(v->duration_agrees));
     };
     h5.attribute(g, "agreement_factor", in.agreement_factor);
@@ -162,10 +177,10 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     h5.attribute(g, "gap_at_end_point", static_cast<long long>(pr.gap_at_end_point));
     h5.write(g + "/gap_curve/s", pr.curve_s, "1");
     h5.write(g + "/gap_curve/gap", pr.curve_gap_ghz, "GHz");
-    h5.write(g + "/gap_curve/matrix_element", pr.curve_matrix_element_ghz, "GHz (|<g|dH/ds|0>|)");
+    h5.write(g + "/gap_curve/matrix_element", pr.curve_matrix_element_ghz, DataMeaning("GHz").described("|<g|dH/ds|0>|"));
     h5.write(g + "/gap_minima/s", pr.minima_s, "1");
     h5.write(g + "/gap_minima/gap", pr.minima_gap_ghz, "GHz");
-    h5.write_strings(g + "/notes", pr.notes);
+    h5.write_strings(g + "/notes", pr.notes, "caveats of the predictions");
     const std::string l = g + "/landau_zener";
     h5.group(l);
     h5.attribute(l, "applicable", static_cast<long long>(pr.lz.applicable));

@@ -32,10 +32,8 @@ std::vector<long long> int_column(const std::vector<InstanceOutcome>& v, F f) {
 
 void write_ensemble_result(const std::string& path, const EnsembleResult& r, const std::string& command_line,
                            const std::vector<std::string>& input_files) {
-  Hdf5Output out(path, kFormat);
+  Hdf5Output out(path, {kFormat, 2, /*sealed=*/true});  // version 2: infinite TTS as +inf (was -1)
   write_provenance(out, command_line, input_files);
-  out.attribute("/", "format", std::string(kFormat));
-  out.attribute("/", "format_version", 1LL);
   const std::string e = "/ensemble";
   const EnsembleSettings& st = r.settings;
   out.attribute(e, "instance_set", r.set_source);
@@ -59,28 +57,29 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
   const auto& v = r.instances;
   const std::string g = e + "/instances";
   out.group(g);
-  out.write(g + "/set_index", int_column(v, [](auto& o) { return o.set_index; }), "index into the instance set");
+  out.write(g + "/set_index", int_column(v, [](auto& o) { return o.set_index; }), DataMeaning("1").described("index into the instance set"));
   std::vector<std::string> names;
   for (const auto& o : v) names.push_back(o.name);
-  out.write_strings(g + "/name", names);
+  out.write_strings(g + "/name", names, "instance names");
   out.write(g + "/qubits", int_column(v, [](auto& o) { return o.qubits; }), "1");
-  out.write(g + "/ground_energy", column(v, [](auto& o) { return o.ground_energy; }), "1 (problem units)");
+  out.write(g + "/ground_energy", column(v, [](auto& o) { return o.ground_energy; }), DataMeaning("1").described("in the problem's own units"));
   out.write(g + "/ground_states", int_column(v, [](auto& o) { return o.ground_states; }), "1");
   out.write(g + "/planted_check", int_column(v, [](auto& o) { return o.planted_check; }),
-            "-1 not planted, 1 brute force equals planted energy, 0 it does not");
+            DataMeaning("1").flagged({-1, 0, 1}, "not_planted differs equals")
+                .described("-1 not planted, 1 brute force equals planted energy, 0 it does not"));
   out.write(g + "/gap_ghz", column(v, [](auto& o) { return o.gap_ghz; }), "GHz");
   out.write(g + "/gap_uncertainty_ghz", column(v, [](auto& o) { return o.gap_uncertainty_ghz; }), "GHz");
   out.write(g + "/gap_s", column(v, [](auto& o) { return o.gap_s; }), "1");
-  out.write(g + "/gap_degeneracy", int_column(v, [](auto& o) { return o.gap_degeneracy; }), "1 (g of E_g - E_0)");
-  out.write(g + "/gap_at_end_point", int_column(v, [](auto& o) { return o.gap_at_end_point; }), "1 = yes");
+  out.write(g + "/gap_degeneracy", int_column(v, [](auto& o) { return o.gap_degeneracy; }), DataMeaning("1").described("g of E_g - E_0"));
+  out.write(g + "/gap_at_end_point", int_column(v, [](auto& o) { return o.gap_at_end_point; }), DataMeaning("1").flagged({0, 1}, "no yes"));
   out.write(g + "/max_norm_drift", column(v, [](auto& o) { return o.max_norm_drift; }), "1");
-  out.write(g + "/tts_ns", column(v, [](auto& o) { return stored_tts(o.tts_ns); }), tts_unit("ns") + ", see tts_never");
-  out.write(g + "/tts_never", int_column(v, [](auto& o) { return std::isinf(o.tts_ns); }), "1 = p was 0 at every duration");
+  out.write(g + "/tts_ns", column(v, [](auto& o) { return stored_tts(o.tts_ns); }), tts_meaning("ns").described("+inf exactly where tts_never is 1"));
+  out.write(g + "/tts_never", int_column(v, [](auto& o) { return std::isinf(o.tts_ns); }), DataMeaning("1").flagged({0, 1}, "solved never").described("1: p was 0 at every duration"));
   out.write(g + "/tts_duration_ns", column(v, [](auto& o) { return o.tts_duration_ns; }), "ns");
-  out.write(g + "/tts_at_range_edge", int_column(v, [](auto& o) { return o.tts_at_range_edge; }), "1 = yes");
+  out.write(g + "/tts_at_range_edge", int_column(v, [](auto& o) { return o.tts_at_range_edge; }), DataMeaning("1").flagged({0, 1}, "no yes"));
   std::vector<double> p;
   for (const auto& o : v) p.insert(p.end(), o.ground_probability.begin(), o.ground_probability.end());
-  out.write_matrix(g + "/ground_probability", p, v.size(), st.durations_ns.size(), "1");
+  out.write_matrix(g + "/ground_probability", p, v.size(), st.durations_ns.size(), "1", {g + "/set_index", e + "/durations_ns"});
 
   const std::string b = e + "/by_size";
   out.group(b);
@@ -92,24 +91,24 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
     never.push_back(static_cast<long long>(s.never_solved));
   }
   out.write(b + "/qubits", qubits, "1");
-  out.write(b + "/count", count, "instances");
-  out.write(b + "/tts_at_range_edge", edge, "instances");
-  out.write(b + "/never_solved", never, "instances");
+  out.write(b + "/count", count, DataMeaning("1").described("number of instances"));
+  out.write(b + "/tts_at_range_edge", edge, DataMeaning("1").described("number of instances"));
+  out.write(b + "/never_solved", never, DataMeaning("1").described("number of instances"));
   const std::size_t rows = r.sizes.size(), cols = st.quantile_levels.size();
-  auto table = [&](const std::string& name, auto pick, auto value, const std::string& unit) {
+  auto table = [&](const std::string& name, auto pick, auto value, const DataMeaning& unit) {
     std::vector<double> t;
     for (const auto& s : r.sizes)
       for (const auto& q : pick(s).quantiles) t.push_back(stored_tts(value(q)));
-    out.write_matrix(b + "/" + name, t, rows, cols, unit);
+    out.write_matrix(b + "/" + name, t, rows, cols, unit, {b + "/qubits", e + "/quantile_levels"});
   };
   auto tts = [](const SizeSummary& s) -> const SampleSummary& { return s.tts_ns; };
   auto gap = [](const SizeSummary& s) -> const SampleSummary& { return s.gap_ghz; };
   auto val = [](const QuantileEstimate& q) { return q.value; };
   auto low = [](const QuantileEstimate& q) { return q.interval.low; };
   auto high = [](const QuantileEstimate& q) { return q.interval.high; };
-  table("tts_quantile_ns", tts, val, tts_unit("ns"));
-  table("tts_low_ns", tts, low, tts_unit("ns"));
-  table("tts_high_ns", tts, high, tts_unit("ns"));
+  table("tts_quantile_ns", tts, val, tts_meaning("ns"));
+  table("tts_low_ns", tts, low, tts_meaning("ns"));
+  table("tts_high_ns", tts, high, tts_meaning("ns"));
   table("gap_quantile_ghz", gap, val, "GHz");
   table("gap_low_ghz", gap, low, "GHz");
   table("gap_high_ghz", gap, high, "GHz");
@@ -125,7 +124,8 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
 EnsembleResult read_ensemble_result(const std::string& path) {
   const Hdf5Input in(path, kFormat);
   const std::string e = "/ensemble";
-  if (in.attribute_int("/", "format_version") != 1)
+  const long long version = in.attribute_int("/", "format_version");
+  if (version != 1 && version != 2)  // 1 stored an infinite TTS as -1; tts_never says which, as in 2
     in.fail("@format_version", "this ensemble result format version is not known", "write it with this gapwise");
   EnsembleResult r;
   EnsembleSettings& st = r.settings;

@@ -1,11 +1,14 @@
 #include "io/hdf5_input.hpp"
 
 #include <atomic>
+#include <cerrno>
+#include <csignal>
 #include <cmath>
 #include <cstring>
 
 #include <H5Cpp.h>
 #include <fmt/format.h>
+#include <sys/wait.h>
 #include <unistd.h>
 
 #include "io/hdf5_seal.hpp"
@@ -47,7 +50,7 @@ Hdf5Input::Hdf5Input(const std::string& path, const std::string& sealed_format)
 
 Hdf5Input Hdf5Input::from_bytes(std::string_view bytes, const std::string& name, const std::string& sealed_format) {
   H5::Exception::dontPrint();
-  if (!sealed_format.empty()) check_hdf5_seal(bytes, name, sealed_format);
+  const bool annotated = !sealed_format.empty() && check_hdf5_seal(bytes, name, sealed_format) == SealMatch::Annotated;
   if (!looks_like_hdf5(bytes))
     throw InputError({name, 0, 0, ""}, "this is not an HDF5 file (no HDF5 signature)", "give an HDF5 file written by gapwise");
   Hdf5Input in;
@@ -66,7 +69,115 @@ Hdf5Input Hdf5Input::from_bytes(std::string_view bytes, const std::string& name,
     throw InputError({name, 0, 0, ""}, "the HDF5 file is damaged or truncated and cannot be opened",
                      "write it again (gapwise writes atomically, so a finished file is whole)");
   }
+  if (annotated) {
+    check_annotated_in_child(bytes, name);  // HDF5 may crash on damaged bytes: find out in a child process
+    in.check_manifest(hdf5_seal_manifest(bytes));
+  }
   return in;
+}
+
+// A sealed file another client changed is parsed by HDF5 first in a forked
+// child: HDF5 1.10 aborts or loops on some damaged images
+// (fuzz/known-hdf5-crashes/), and a damaged file must be an InputError, never a
+// crash. The child opens the image and checks the manifest; its InputError
+// comes back through a pipe, a crash or a time-out becomes an InputError here.
+void Hdf5Input::check_annotated_in_child(std::string_view bytes, const std::string& name) {
+  const std::string fix = "write the file again with gapwise (other HDF5 clients may add attributes and datasets, "
+                          "not change gapwise's)";
+  int fds[2];
+  if (::pipe(fds) != 0) throw std::runtime_error("cannot create a pipe to check '" + name + "'");
+  const pid_t pid = ::fork();
+  if (pid < 0) throw std::runtime_error("cannot fork to check '" + name + "'");
+  if (pid == 0) {
+    ::close(fds[0]);
+    for (int sig : {SIGABRT, SIGSEGV, SIGBUS, SIGFPE, SIGILL, SIGALRM}) std::signal(sig, SIG_DFL);  // no inherited handlers
+    ::alarm(120);
+    int status = 0;
+    std::string report;
+    try {
+      Hdf5Input in = from_bytes(bytes, name);
+      in.check_manifest(hdf5_seal_manifest(bytes));
+    } catch (const InputError& e) {
+      report = e.place().key + '\0' + e.problem() + '\0' + e.fix();
+      status = 1;
+    } catch (...) {
+      status = 2;
+    }
+    for (std::size_t done = 0; done < report.size();) {
+      const ssize_t n = ::write(fds[1], report.data() + done, report.size() - done);
+      if (n <= 0) break;
+      done += static_cast<std::size_t>(n);
+    }
+    ::_exit(status);
+  }
+  ::close(fds[1]);
+  std::string report;
+  char buf[4096];
+  for (ssize_t n; (n = ::read(fds[0], buf, sizeof buf)) > 0;) report.append(buf, static_cast<std::size_t>(n));
+  ::close(fds[0]);
+  int status = 0;
+  while (::waitpid(pid, &status, 0) < 0 && errno == EINTR) {}
+  if (WIFEXITED(status) && WEXITSTATUS(status) == 0) return;
+  if (WIFEXITED(status) && WEXITSTATUS(status) == 1) {
+    const auto a = report.find('\0'), b = report.find('\0', a == std::string::npos ? 0 : a + 1);
+    if (a != std::string::npos && b != std::string::npos)
+      throw InputError({name, 0, 0, report.substr(0, a)}, report.substr(a + 1, b - a - 1), report.substr(b + 1));
+  }
+  throw InputError({name, 0, 0, ""},
+                   "the file was changed after gapwise wrote it and the HDF5 library cannot read it (it "
+                   "crashed or stalled on these bytes)",
+                   fix);
+}
+
+namespace {
+std::uint64_t hash_of(const void* data, std::size_t n) {
+  return fnv1a64(std::string_view(static_cast<const char*>(data), n));
+}
+}  // namespace
+
+// An annotated sealed file (io/hdf5_seal.hpp): every object gapwise wrote must
+// still be there with the checksum it had.
+void Hdf5Input::check_manifest(std::uint64_t expected) const {
+  const std::string fix = "the file was changed after gapwise wrote it: write it again with gapwise "
+                          "(other HDF5 clients may add attributes and datasets, not change gapwise's)";
+  if (!has(kSealManifest)) fail(kSealManifest, "the seal's manifest is missing", fix);
+  const auto lines = read_strings(kSealManifest);
+  if (hdf5_strings_checksum(lines) != expected) fail(kSealManifest, "the seal's manifest does not match the seal", fix);
+  for (const auto& line : lines) {
+    if (line.size() < 18 || line[16] != ' ') fail(kSealManifest, "a manifest line is malformed", fix);
+    const std::uint64_t want = std::stoull(line.substr(0, 16), nullptr, 16);
+    const std::string key = line.substr(17);
+    const auto at = key.find('@');
+    std::uint64_t got = 0;
+    try {
+      if (at == std::string::npos) {
+        if (!has(key)) fail(key, "a dataset gapwise wrote is missing", fix);
+        H5::DataSet ds = impl_->file->openDataSet(key);
+        const H5T_class_t c = ds.getTypeClass();
+        if (c == H5T_STRING) {
+          got = hdf5_strings_checksum(read_strings(key));
+        } else if (c == H5T_INTEGER) {
+          const auto n = static_cast<std::size_t>(ds.getSpace().getSimpleExtentNpoints());
+          std::vector<long long> v(n);
+          if (n) ds.read(v.data(), H5::PredType::NATIVE_LLONG);
+          got = hash_of(v.data(), n * sizeof(long long));
+        } else {
+          const auto v = read(key);
+          got = hash_of(v.data(), v.size() * sizeof(double));
+        }
+      } else {
+        const std::string object = at == 0 ? "/" : key.substr(0, at), name = key.substr(at + 1);
+        if (!has_attribute(object, name)) fail(attr_key_text(object, name), "an attribute gapwise wrote is missing", fix);
+        got = with_attribute_class(object, name) == H5T_STRING ? [&] { const auto v = attribute_string(object, name); return hash_of(v.data(), v.size()); }()
+              : with_attribute_class(object, name) == H5T_INTEGER ? [&] { const long long v = attribute_int(object, name); return hash_of(&v, sizeof v); }()
+                                                                 : [&] { const double v = attribute_double(object, name); return hash_of(&v, sizeof v); }();
+      }
+    } catch (const H5::Exception& e) {
+      fail(key, "cannot read it back: " + e.getDetailMsg(), fix);
+    }
+    if (got != want) fail(at == std::string::npos ? key : attr_key_text(key.substr(0, at == 0 ? 1 : at), key.substr(at + 1)),
+                          "its content differs from what gapwise wrote", fix);
+  }
 }
 
 Hdf5Input::~Hdf5Input() = default;
@@ -110,7 +221,20 @@ auto with_object(H5::H5File& f, const std::string& path, F fn) {
 std::string attr_key(const std::string& object, const std::string& name) {
   return object == "/" ? "@" + name : object + "@" + name;
 }
+// The in-memory string type that reads a stored one without a character-set
+// conversion (HDF5 refuses ASCII <-> UTF-8).
+H5::StrType memory_string_type(H5T_cset_t cset) {
+  H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
+  st.setCset(cset);
+  return st;
+}
 }  // namespace
+
+std::string Hdf5Input::attr_key_text(const std::string& object, const std::string& name) { return attr_key(object, name); }
+
+int Hdf5Input::with_attribute_class(const std::string& object, const std::string& name) const {
+  return with_object(*impl_->file, object, [&](H5::H5Object& o) { return static_cast<int>(o.openAttribute(name).getTypeClass()); });
+}
 
 bool Hdf5Input::has_attribute(const std::string& object, const std::string& name) const {
   if (!has(object)) return false;
@@ -152,14 +276,15 @@ std::vector<double> Hdf5Input::read(const std::string& dataset) const {
 
 namespace {
 const char* kNonFiniteFix =
-    "gapwise writes finite numbers only (-1 marks \"not available\" or an infinite TTS); "
-    "the file was changed after it was written: run the command again to rewrite it";
+    "gapwise writes NaN or infinity only in datasets that say what they mean (attributes nan_meaning, "
+    "inf_meaning); the file was changed after it was written: run the command again to rewrite it";
 }  // namespace
 
 std::vector<double> Hdf5Input::read_finite(const std::string& dataset) const {
   std::vector<double> v = read(dataset);
+  const bool nan_ok = has_attribute(dataset, "nan_meaning"), inf_ok = has_attribute(dataset, "inf_meaning");
   for (std::size_t k = 0; k < v.size(); ++k)
-    if (!std::isfinite(v[k]))
+    if (!std::isfinite(v[k]) && !(std::isnan(v[k]) && nan_ok) && !(std::isinf(v[k]) && v[k] > 0 && inf_ok))
       fail(dataset, fmt::format("entry {} (0-based, of {}{}) is {}: a figure would draw a silent gap there", k, v.size(),
                                 shape(dataset).size() > 1 ? ", row-major" : "", v[k]),
            kNonFiniteFix);
@@ -210,7 +335,7 @@ std::vector<std::string> Hdf5Input::read_strings(const std::string& dataset, std
     if (ds.getTypeClass() != H5T_STRING || !ds.getStrType().isVariableStr())
       fail(dataset, "expected variable-length strings", kRewrite);
     std::vector<char*> raw(n, nullptr);
-    H5::StrType st(H5::PredType::C_S1, H5T_VARIABLE);
+    const H5::StrType st = memory_string_type(ds.getStrType().getCset());
     if (n) ds.read(raw.data(), st, H5::DataSpace::ALL, H5::DataSpace::ALL, small_conversion_buffer());
     std::vector<std::string> out;
     for (char* c : raw) out.emplace_back(c ? c : "");
@@ -259,7 +384,7 @@ std::string Hdf5Input::attribute_string(const std::string& object, const std::st
       if (a.getTypeClass() != H5T_STRING || a.getSpace().getSimpleExtentNpoints() != 1 || !a.getStrType().isVariableStr())
         fail(attr_key(object, name), "expected a single string", kRewrite);
       std::string v;
-      a.read(H5::StrType(H5::PredType::C_S1, H5T_VARIABLE), v);
+      a.read(memory_string_type(a.getStrType().getCset()), v);
       return v;
     });
   } catch (const H5::Exception&) {

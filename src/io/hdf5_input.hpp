@@ -14,6 +14,7 @@
 //
 //   Hdf5Input set = Hdf5Input::from_bytes(bytes, "set.h5", "gapwise-instance-set");
 //   std::vector<double> h = set.read_list("/instances/n08-003/fields", 8);   // length checked
+#include <cstdint>
 #include <memory>
 #include <optional>
 #include <string>
@@ -47,14 +48,15 @@ class Hdf5Input {
   /// Variable-length strings; `expected` checks the count when given.
   std::vector<std::string> read_strings(const std::string& dataset, std::optional<std::size_t> expected = {}) const;
   /// read(), refusing (InputError naming the dataset and the first bad index) a
-  /// NaN or an infinity. gapwise never writes either (Hdf5Output refuses them;
-  /// "not available" and infinite TTS are stored as -1), so one in a file means
-  /// the file was altered or damaged.
+  /// NaN or an infinity the dataset does not declare: gapwise writes NaN ("not
+  /// applicable") only with a `nan_meaning` attribute and +inf (an infinite time
+  /// to solution) only with `inf_meaning`, so any other one means the file was
+  /// altered or damaged.
   std::vector<double> read_finite(const std::string& dataset) const;
   /// Dimensions of a dataset.
   std::vector<std::size_t> shape(const std::string& dataset) const;
   double attribute_double(const std::string& object, const std::string& name) const;
-  /// attribute_double(), refusing a NaN or an infinity as read_finite does.
+  /// attribute_double(), refusing a NaN or an infinity.
   double attribute_finite(const std::string& object, const std::string& name) const;
   std::string attribute_string(const std::string& object, const std::string& name) const;
   /// An integer attribute (a floating-point one is refused).
@@ -73,6 +75,10 @@ class Hdf5Input {
 
  private:
   Hdf5Input();
+  void check_manifest(std::uint64_t expected) const;
+  static void check_annotated_in_child(std::string_view bytes, const std::string& name);
+  int with_attribute_class(const std::string& object, const std::string& name) const;
+  static std::string attr_key_text(const std::string& object, const std::string& name);
   struct Impl;
   std::unique_ptr<Impl> impl_;
   std::string path_;

@@ -9,18 +9,17 @@
 
 namespace gapwise {
 
-double stored_tts(double tts) { return std::isinf(tts) && tts > 0 ? kInfiniteTtsMarker : tts; }
+double stored_tts(double tts) { return tts; }
 
-std::vector<double> stored_tts(std::vector<double> tts) {
-  for (double& x : tts) x = stored_tts(x);
-  return tts;
+std::vector<double> stored_tts(std::vector<double> tts) { return tts; }
+
+DataMeaning tts_meaning(std::string units) {
+  return DataMeaning(std::move(units)).inf_means("infinite: p = 0, no number of repetitions reaches the target");
 }
 
-double tts_from_stored(double stored) {
-  return stored == kInfiniteTtsMarker ? std::numeric_limits<double>::infinity() : stored;
+DataMeaning not_applicable(std::string units, std::string why) {
+  return DataMeaning(std::move(units)).nan_means("not applicable: " + why);
 }
-
-std::string tts_unit(std::string_view unit) { return fmt::format("{} ({:g}: infinite, p = 0)", unit, kInfiniteTtsMarker); }
 
 std::string tts_text(double tts, int digits) { return std::isinf(tts) && tts > 0 ? "inf" : fmt_num(tts, digits); }
 

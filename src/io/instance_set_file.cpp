@@ -142,7 +142,7 @@ InstanceSet parse_instance_set_bytes(std::string_view bytes, const std::string& 
     in.fail("@format", fmt::format("this HDF5 file is a \"{}\", not an instance set", format),
             "give a file written by `gapwise generate`");
   const long long version = in.attribute_int("/", "format_version");
-  if (version != 1)
+  if (version != 1 && version != 2)
     in.fail("@format_version", fmt::format("format_version {} is not known to this gapwise", version),
             "write the set again with this gapwise, or update gapwise");
   InstanceSet set;
@@ -174,10 +174,8 @@ InstanceSet read_instance_set(const std::string& path) {
 }
 
 void write_instance_set(const std::string& path, const InstanceSet& set, const std::string& command_line) {
-  Hdf5Output out(path, kFormat);
+  Hdf5Output out(path, {kFormat, 2, /*sealed=*/true});  // version 2: UTF-8 strings, a seal with a manifest
   write_provenance(out, command_line, {});
-  out.attribute("/", "format", std::string(kFormat));
-  out.attribute("/", "format_version", 1LL);
   out.attribute("/", "family", set.family);
   if (set.family_seed) out.attribute("/", "family_seed", static_cast<long long>(*set.family_seed));
   out.attribute("/", "generator", set.generator);
@@ -200,11 +198,11 @@ void write_instance_set(const std::string& path, const InstanceSet& set, const s
     std::vector<long long> ci, cj;
     std::vector<double> cv;
     for (const auto& c : p.couplings) { ci.push_back(c.i); cj.push_back(c.j); cv.push_back(c.value); }
-    out.write(g + "/coupling_i", ci, "qubit index");
-    out.write(g + "/coupling_j", cj, "qubit index");
+    out.write(g + "/coupling_i", ci, DataMeaning("1").described("qubit index"));
+    out.write(g + "/coupling_j", cj, DataMeaning("1").described("qubit index"));
     out.write(g + "/coupling_value", cv, "1");
   }
-  out.write_strings("/instance_names", names);
+  out.write_strings("/instance_names", names, "instance names, in set order");
   out.commit();
 }
 

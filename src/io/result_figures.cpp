@@ -21,7 +21,7 @@ namespace {
 using Emit = std::function<void(const std::string& kind, const std::function<void(const std::string&)>& draw)>;
 
 // One series per level from a rows x levels matrix (row-major, as written by
-// Hdf5Output::write_matrix); negative entries mark "not available" and become gaps.
+// Hdf5Output::write_matrix); NaN entries (not available) become gaps.
 void add_level_series(LinePlot& fig, const std::vector<double>& x, const std::vector<double>& matrix, std::size_t levels) {
   const std::size_t n = x.size();
   for (std::size_t l = 0; l < levels; ++l) {
@@ -106,7 +106,7 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   if (!in.has(P + "/duration_ns")) return;
   const auto t = in.read_finite(P + "/duration_ns"), p = in.read_finite(P + "/ground_probability");
   const double target = in.attribute_finite(R, "target_probability");
-  auto applicable = [](std::vector<double> v) {  // -1 marks "not applicable"
+  auto applicable = [](std::vector<double> v) {  // NaN marks "not applicable" (-1 in files before format 1)
     for (double& x : v) if (x < 0) x = std::numeric_limits<double>::quiet_NaN();
     return v;
   };
@@ -134,11 +134,12 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   ft.y_label = "TTS (ns)";
   ft.log_x = ft.log_y = true;
   auto tts = in.read_finite(P + "/tts_ns");
-  for (double& x : tts) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
+  for (double& x : tts) if (!(x > 0) || std::isinf(x)) x = std::numeric_limits<double>::quiet_NaN();  // +inf: p = 0
   ft.series.push_back({"TTS(t_f) = t_f ln(1-p*)/ln(1-p)", t, tts, SeriesStyle::LinePoints, 0});
   if (in.has(R + "/tts_optimum")) {
-    const double d = in.attribute_finite(R + "/tts_optimum", "duration_ns"), v = in.attribute_finite(R + "/tts_optimum", "tts_ns");
-    if (v > 0) {
+    // tts_ns is +inf when p = 0 at every duration: no optimum to mark.
+    const double d = in.attribute_finite(R + "/tts_optimum", "duration_ns"), v = in.attribute_double(R + "/tts_optimum", "tts_ns");
+    if (v > 0 && std::isfinite(v)) {
       ft.markers.push_back({d, v, fmt::format("optimum {:.3g} ns at t_f = {:.3g} ns", v, d)});
       ft.note = fmt::format("optimal t_f = {:.4g} ns, TTS = {:.4g} ns", d, v);
     }
@@ -415,7 +416,7 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
   if (!n || !k || w.size() != n * k) return;
   LinePlot fw;
   fw.title = "Diagnosis: weight of each instantaneous level on the classical ground states";
-  fw.note = "a level that ends in the ground manifold rises to 1 at s = 1; a late switch shows as a step";
+  fw.note = "a level that ends in the ground manifold rises to 1 at s = 1; a perturbative crossing shows as a step";
   fw.x_label = "schedule parameter s";
   fw.y_label = "weight on the ground manifold";
   fw.y_range = std::pair{0.0, 1.05};
