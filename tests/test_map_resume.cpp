@@ -9,6 +9,7 @@
 #include <chrono>
 #include <csignal>
 #include <cstring>
+#include <filesystem>
 #include <fstream>
 #include <thread>
 
@@ -93,4 +94,28 @@ TEST_CASE("a reverse map killed half-way and rerun equals an uninterrupted map")
                          "--ramp-ns", "1000", "--threads", "1"},
                         {"/reverse_map/ground_probability", "/reverse_map/start_probability", "/reverse_map/tts_ns",
                          "/reverse_map/total_ns", "/reverse_map/turn_s", "/reverse_map/dwell_ns"});
+}
+
+TEST_CASE("--fresh discards a map's journal written for other inputs, which is refused without it") {
+  // Every journaled command takes --fresh (user guide, command-line grammar); the refusal points to it.
+  TempDir dir;
+  const std::string out = (dir.path / "map.h5").string();
+  for (const std::string& cmd :
+       {"pause-map '" + sample("data-samples/triangle.toml") + "' '" + sample("schedules/linear.toml") +
+            "' -d 2 --at 0.5 --pause-ns 0,0.5 --threads 1 -q --out '" + out + "'",
+        "reverse-map '" + sample("data-samples/meeting-slots-qubo.toml") + "' '" + sample("schedules/reverse-dwell.toml") +
+            "' --turn 0.5 --dwell-ns 0,1 --ramp-ns 2 --threads 1 -q --out '" + out + "'"}) {
+    INFO(cmd);
+    std::filesystem::remove(out + ".journal");
+    REQUIRE(run_gapwise(cmd, dir).exit_code == 0);
+    REQUIRE(std::filesystem::exists(out + ".journal"));
+    const auto other = run_gapwise(cmd + " --tolerance 1e-7", dir);
+    CHECK(other.exit_code == 2);
+    CHECK(other.err.find("written for other inputs") != std::string::npos);
+    CHECK(other.err.find("--fresh") != std::string::npos);
+    const auto fresh = run_gapwise(cmd + " --tolerance 1e-7 --fresh", dir);
+    CHECK(fresh.exit_code == 0);
+    CHECK(fresh.out.find("0 read back") != std::string::npos);
+    CHECK(fresh.err.empty());  // -q: no counter, no notice
+  }
 }

@@ -21,12 +21,13 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "cli/journaled_run.hpp"
 #include "io/infinite_tts.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
 #include "io/duration_study_file.hpp"
 #include "io/input_error.hpp"
-#include "io/interrupt_notice.hpp"
+#include "io/toml_reader.hpp"
 #include "io/output_paths.hpp"
 #include "io/json_summary.hpp"
 #include "io/progress_bar.hpp"
@@ -51,13 +52,6 @@ struct DurationsOptions {
   int threads = 0, probes = 2;
   bool json = false, no_search = false, no_predictions = false, fresh = false, quiet = false, allow_long = false;
 };
-
-std::string read_text(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::ostringstream t;
-  t << in.rdbuf();
-  return t.str();
-}
 
 std::string p_text(double p) { return fmt::format("{:.6f}", std::clamp(p, 0.0, 1.0)); }
 std::string ns_text(double t) { return std::isinf(t) ? "inf" : fmt_num(t, 5); }
@@ -128,21 +122,13 @@ void run_durations(const DurationsOptions& o) {
   in.agreement_floor = p_noise;
 
   // The journal lives beside the first output file; without one nothing is kept.
-  const std::string keep = !o.out.empty() ? o.out : o.csv;
-  std::unique_ptr<ResultJournal> journal;
-  if (!keep.empty()) {
-    const std::string jpath = journal_path_for(keep);
-    if (o.fresh) std::filesystem::remove(jpath);
-    journal = std::make_unique<ResultJournal>(
-        jpath, duration_journal_layout(),
-        o.p_only ? input_fingerprint({read_text(o.problem), read_text(o.schedule), o.propagator,
-                                       fmt::format("{:a}", o.tolerance), "p-only"})
-                 : input_fingerprint({read_text(o.problem), read_text(o.schedule), o.propagator,
-                                      fmt::format("{:a}", o.tolerance)}));
-  }
-  std::optional<InterruptNotice> notice;  // Ctrl-C: says what is saved (or that nothing is)
-  if (journal) notice.emplace(*journal, std::vector<std::string>{o.out, o.csv});
-  DurationEvaluator ev(setup, journal.get());
+  std::vector<std::string> inputs{read_text_file(o.problem), read_text_file(o.schedule), o.propagator,
+                                  fmt::format("{:a}", o.tolerance)};
+  if (o.p_only) inputs.push_back("p-only");
+  JournaledRun run(!o.out.empty() ? o.out : o.csv, o.fresh, duration_journal_layout(), input_fingerprint(inputs),
+                   {o.out, o.csv});
+  ResultJournal* journal = run.journal();
+  DurationEvaluator ev(setup, journal);
   if (journal && journal->resumed() > 0 && !o.quiet)
     std::cerr << fmt::format("gapwise: resuming from {}: {} finished duration(s) reused\n", journal->path(),
                              journal->resumed());
@@ -179,7 +165,7 @@ void run_durations(const DurationsOptions& o) {
   in.grid_ns = grid;
   bar.done();
   write_outputs(&st);
-  notice.reset();
+  run.results_written();
 
   // ---- report
   const auto& known = ev.known();
@@ -457,7 +443,7 @@ void run_durations(const DurationsOptions& o) {
     std::cout << "\nnotes\n";
     for (const auto& n : notes) std::cout << "  - " << n << "\n";
   }
-  if (!keep.empty()) {
+  if (journal) {
     std::cout << "\nwritten     ";
     if (!o.out.empty()) std::cout << o.out << " ";
     if (!o.csv.empty()) std::cout << o.csv << " ";

@@ -13,7 +13,8 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
-#include "io/interrupt_notice.hpp"
+#include "cli/journaled_run.hpp"
+#include "io/toml_reader.hpp"
 #include "io/output_paths.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
@@ -37,11 +38,6 @@ struct GapOptions {
   bool json = false, other_sector = false, progress = false, quiet = false, no_level_check = false, fresh = false;
   bool allow_long = false;
 };
-
-std::string slurp(const std::string& path) {
-  std::ifstream f(path);
-  return std::string((std::istreambuf_iterator<char>(f)), {});
-}
 
 /// Progress on stderr: a rewritten line on a terminal, a line every few seconds otherwise.
 class ProgressPrinter {
@@ -174,27 +170,22 @@ void run_gap(const GapOptions& o) {
               << std::flush;
 
   // Resumable: with --out, every finished point goes to a journal beside it.
-  std::unique_ptr<ResultJournal> journal;
-  std::optional<InterruptNotice> notice;  // Ctrl-C: says what is saved (or that nothing is)
-  if (!o.out.empty()) {
-    const std::string jpath = journal_path_for(o.out);
-    if (o.fresh) std::filesystem::remove(jpath);
-    const std::string fingerprint = input_fingerprint(
-        {slurp(o.problem), o.schedule.empty() ? std::string("default linear 5 GHz") : slurp(o.schedule),
-         fmt::format("{} {} {} {} {}", sector_name(plan.sector), plan.levels, eigen_method_name(plan.method),
-                     opt.lanczos_tolerance, opt.check_missed_levels)});
-    journal = std::make_unique<ResultJournal>(
-        jpath, JournalLayout{"gap-search", {"s"}, spectrum_point_value_names(plan.levels)}, fingerprint);
-    ResultJournal* j = journal.get();
+  JournaledRun run(o.out, o.fresh, JournalLayout{"gap-search", {"s"}, spectrum_point_value_names(plan.levels)},
+                   input_fingerprint({read_text_file(o.problem),
+                                      o.schedule.empty() ? std::string("default linear 5 GHz") : read_text_file(o.schedule),
+                                      fmt::format("{} {} {} {} {}", sector_name(plan.sector), plan.levels,
+                                                  eigen_method_name(plan.method), opt.lanczos_tolerance,
+                                                  opt.check_missed_levels)}),
+                   {o.out, o.csv});
+  if (ResultJournal* j = run.journal()) {
     const int k = plan.levels;
     opt.lookup = [j, k](double s) -> std::optional<SpectrumPoint> {
       if (auto v = j->find({s})) return spectrum_point_from_values(s, *v, k);
       return std::nullopt;
     };
     opt.record = [j](const SpectrumPoint& pt) { j->append({pt.s}, spectrum_point_values(pt)); };
-    notice.emplace(*journal, std::vector<std::string>{o.out, o.csv});
-    if (journal->resumed() > 0 && !o.json)
-      std::cout << fmt::format("resume       {} points already computed in {}\n", journal->resumed(), jpath);
+    if (j->resumed() > 0 && !o.json)
+      std::cout << fmt::format("resume       {} points already computed in {}\n", j->resumed(), j->path());
   }
   ProgressPrinter progress(o.progress);
   if (!o.quiet) opt.progress = [&progress](const GapSearchProgress& g) { progress(g); };
@@ -419,9 +410,7 @@ void run_gap(const GapOptions& o) {
       }
     }
     h5.commit();
-    notice.reset();
-    journal.reset();
-    std::filesystem::remove(journal_path_for(o.out));  // the result file now holds everything
+    run.remove_journal();  // the result file now holds everything
   }
 }
 

@@ -2,15 +2,13 @@
 // p over pause location x pause duration, at equal cost; threaded, resumable.
 #include <algorithm>
 #include <cmath>
-#include <filesystem>
 #include <iostream>
 #include <memory>
-#include <unistd.h>
 
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
-#include "io/interrupt_notice.hpp"
+#include "cli/journaled_run.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
@@ -101,16 +99,11 @@ void run_pause_map(PauseMapCli o) {
   }
   check_work_limit(work, o.allow_long, {"--pause-ns", 0, 0, "--pause-ns"});
   const AnnealSetup setup(p, sch, sim);
-  if (o.fresh) std::filesystem::remove(journal_path_for(o.out));
-  ResultJournal journal(journal_path_for(o.out), pause_map_journal_layout(),
-                        input_fingerprint({read_text_file(o.problem), read_text_file(o.schedule), fmt::format("{:a}", o.duration_ns),
-                                           o.cost, fmt::format("{:a}", o.tolerance), o.propagator}));
-  std::optional<InterruptNotice> notice(std::in_place, journal, std::vector<std::string>{o.out});
-  const bool tty = ::isatty(2) && !o.quiet;
-  const PauseMap m = pause_map(setup, mo, &journal, [&](std::size_t done, std::size_t total) {
-    if (tty) std::cerr << fmt::format("\r{} / {} anneals", done, total) << std::flush;
-  });
-  if (tty) std::cerr << "\n";
+  JournaledRun run(o.out, o.fresh, pause_map_journal_layout(),
+                   input_fingerprint({read_text_file(o.problem), read_text_file(o.schedule), fmt::format("{:a}", o.duration_ns),
+                                      o.cost, fmt::format("{:a}", o.tolerance), o.propagator}),
+                   {o.out});
+  const PauseMap m = pause_map(setup, mo, run.journal(), AnnealCounter(o.quiet));
 
   std::size_t bi = 0, bj = 0;  // the largest gain over the unpaused run of the same cost
   double best = -1;
@@ -129,7 +122,7 @@ void run_pause_map(PauseMapCli o) {
     std::cout << fmt::format("cost      {}\n", mo.cost == PauseCost::EqualTotal
                                                   ? fmt::format("equal total: every run takes {} ns, the pause eats into the ramp", o.duration_ns)
                                                   : fmt::format("added time: the ramp takes {} ns, the run {} ns + pause", o.duration_ns, o.duration_ns));
-    std::cout << fmt::format("points    {} simulated, {} read back from {}\n\n", m.simulated, m.resumed, journal.path());
+    std::cout << fmt::format("points    {} simulated, {} read back from {}\n\n", m.simulated, m.resumed, run.journal()->path());
     std::vector<std::string> head{"pause at s \\ pause ns"};
     for (double d : mo.pause_ns) head.push_back(fmt_num(d, 6));
     TextTable t(head);

@@ -1,14 +1,12 @@
 // `gapwise reverse-map PROBLEM SCHEDULE --turn S-LIST --dwell-ns D-LIST --ramp-ns R --out rev.h5`:
 // does a reverse anneal from a classical guess return the ground state?
-#include <filesystem>
 #include <iostream>
 #include <memory>
-#include <unistd.h>
 
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
-#include "io/interrupt_notice.hpp"
+#include "cli/journaled_run.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
@@ -75,23 +73,18 @@ void run_reverse_map(const ReverseMapCli& o) {
   const AnnealSetup setup(p, sch, sim);
   std::string bits;
   for (int b : sch.start.bits) bits += static_cast<char>('0' + b);
-  if (o.fresh) std::filesystem::remove(journal_path_for(o.out));
-  ResultJournal journal(journal_path_for(o.out), reverse_map_journal_layout(),
-                        input_fingerprint({read_text_file(o.problem), read_text_file(o.schedule), bits,
-                                           fmt::format("{:a}", o.ramp_ns), fmt::format("{:a}", o.tolerance), o.propagator}));
-  std::optional<InterruptNotice> notice(std::in_place, journal, std::vector<std::string>{o.out});
-  const bool tty = ::isatty(2) && !o.quiet;
-  const ReverseMap m = reverse_map(setup, mo, &journal, [&](std::size_t done, std::size_t total) {
-    if (tty) std::cerr << fmt::format("\r{} / {} anneals", done, total) << std::flush;
-  });
-  if (tty) std::cerr << "\n";
+  JournaledRun run(o.out, o.fresh, reverse_map_journal_layout(),
+                   input_fingerprint({read_text_file(o.problem), read_text_file(o.schedule), bits,
+                                      fmt::format("{:a}", o.ramp_ns), fmt::format("{:a}", o.tolerance), o.propagator}),
+                   {o.out});
+  const ReverseMap m = reverse_map(setup, mo, run.journal(), AnnealCounter(o.quiet));
 
   const double e_start = p.energy(m.start_state);
   std::cout << fmt::format("problem   {} ({} qubits): ground energy {:.10g}\n", terminal_text(o.problem), p.qubits, setup.ground.energy);
   std::cout << fmt::format("start     bits {} (qubit 0 first), energy {:.10g}{}\n", bits, e_start,
                            m.start_in_ground_manifold ? " (already a ground state)" : "");
   std::cout << fmt::format("path      s = 1 -> turn point in {} ns, dwell, back to s = 1 in {} ns\n", o.ramp_ns, o.ramp_ns);
-  std::cout << fmt::format("points    {} simulated, {} read back from {}\n\n", m.simulated, m.resumed, journal.path());
+  std::cout << fmt::format("points    {} simulated, {} read back from {}\n\n", m.simulated, m.resumed, run.journal()->path());
   std::vector<std::string> head{"turn s \\ dwell ns"};
   for (double d : mo.dwell_ns) head.push_back(fmt_num(d, 6));
   TextTable tp(head), ts(head);

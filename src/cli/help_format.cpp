@@ -2,9 +2,9 @@
 // the terminal on stdout (ioctl TIOCGWINSZ), else 100 columns (a pipe, a file,
 // a test). Descriptions are written with line breaks for an 80-100 column
 // reader; here those breaks inside a paragraph are undone and the text is
-// wrapped again at the width. Lines that start with spaces (lists, examples
-// continued with a backslash) and lines starting "Example" keep their breaks,
-// so a copied example still runs.
+// wrapped again at the width. Lines that start with spaces (lists, tables,
+// formulas, examples continued with a backslash) and lines starting "Example"
+// are kept as written, so their columns line up and a copied example runs.
 #include <sys/ioctl.h>
 #include <unistd.h>
 
@@ -38,7 +38,7 @@ std::string wrap(const std::string& text, std::size_t width) {
   std::string out;
   for (const std::string& line : lines) {
     if (!out.empty()) out += '\n';
-    if (line.size() <= width || line.back() == '\\' || line.rfind("Example", 0) == 0) { out += line; continue; }
+    if (line.size() <= width || kept_as_is(line)) { out += line; continue; }
     const std::size_t text_at = line.find_first_not_of(' ');
     std::size_t indent = text_at == std::string::npos ? 0 : text_at;
     if (line.compare(indent, 2, "- ") == 0) indent += 2;  // a list item: continue under its text

@@ -116,7 +116,7 @@ JournalContents parse_journal_text(std::string_view text, const std::string& pat
     throw InputError({path, 1, 1, "journal"},
                      "this journal was written for other inputs (problem, schedule or numerical options "
                      "changed since), so its points cannot be reused",
-                     fmt::format("delete '{}' to start afresh, or write to another output file", path));
+                     fmt::format("rerun with --fresh (or delete '{}') to start afresh, or write to another output file", path));
   std::size_t keep = header.size();
   bool dropped = false;
   int line_no = 3;
