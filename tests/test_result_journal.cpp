@@ -1,7 +1,9 @@
 // The journal of finished points: exact round trip, resume, torn last line,
 // refusal of foreign or locked journals. Common practice (append-only log with
 // per-record checksums), no outside source.
+#include <cerrno>
 #include <cmath>
+#include <cstring>
 #include <fstream>
 #include <limits>
 
@@ -107,4 +109,34 @@ TEST_CASE("parse_journal_text: records from text, NaN refused, a damaged middle 
   REQUIRE(d.warnings.size() == 1);
   CHECK(d.warnings[0] == "x.journal:3: a damaged record was dropped: it holds a NaN, which no study writes; its point "
                          "will be computed again");
+}
+
+// flock(2) (Linux man-pages): EWOULDBLOCK when another process holds the lock,
+// ENOLCK when the kernel (or an NFS mount without a lock daemon) has no lock
+// records; file systems that cannot lock at all answer EOPNOTSUPP/ENOSYS/EINVAL.
+// Before: every failure said "another gapwise run is using this journal".
+TEST_CASE("journal locking failures: another run, or a file system without locks, named as such") {
+  const InputError busy = journal_lock_error("/scratch/run.h5.journal", EWOULDBLOCK);
+  CHECK(busy.problem() == "another gapwise run is using this journal right now");
+  for (int err : {ENOLCK, EOPNOTSUPP, ENOSYS, EINVAL}) {
+    const InputError e = journal_lock_error("/scratch/run.h5.journal", err);
+    CHECK(e.place().file == "/scratch/run.h5.journal");
+    CHECK(e.problem().find(std::strerror(err)) != std::string::npos);
+    CHECK(e.problem().find("does not support file locks") != std::string::npos);
+    CHECK(e.problem().find("another gapwise run") == std::string::npos);
+    CHECK(e.fix().find("file system with locks") != std::string::npos);
+  }
+}
+
+TEST_CASE("a journal held by another open journal is refused as in use") {
+  testing::TempDir dir;
+  const std::string path = (dir.path / "j.journal").string();
+  const JournalLayout layout{"test", {"k"}, {"v"}};
+  ResultJournal first(path, layout, "fp");
+  try {
+    ResultJournal second(path, layout, "fp");
+    FAIL("the second open was not refused");
+  } catch (const InputError& e) {
+    CHECK(e.problem() == "another gapwise run is using this journal right now");
+  }
 }

@@ -37,6 +37,7 @@
 #include "studies/anneal_predictions.hpp"
 #include "studies/duration_study.hpp"
 #include "studies/work_estimate.hpp"
+#include "platform/thread_count.hpp"
 
 #ifdef _OPENMP
 #include <omp.h>
@@ -82,7 +83,7 @@ void run_durations(const DurationsOptions& o) {
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
 #ifdef _OPENMP
-  const int threads = o.threads > 0 ? o.threads : omp_get_max_threads();
+  const int threads = thread_count_or_default(o.threads);
 #else
   const int threads = 1;
 #endif

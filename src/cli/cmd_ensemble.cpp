@@ -23,6 +23,7 @@
 #include "studies/ensemble_study.hpp"
 #include "studies/work_distribution.hpp"
 #include "studies/work_estimate.hpp"
+#include "platform/thread_count.hpp"
 
 namespace gapwise::cli {
 namespace {
@@ -187,7 +188,7 @@ void run_ensemble(const EnsembleOptions& o) {
       work += spectrum_work(ip.qubits, 4, 3.0 * st.gap_coarse_points);
     }
     check_work_limit(work, o.allow_long, {"--durations", 0, 0, "--durations"});
-    run.threads = o.threads > 0 ? o.threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+    run.threads = thread_count_or_default(o.threads);
     run.journal_path = journal_path_for(o.out);
     if (o.fresh && group.is_collector()) std::remove(run.journal_path.c_str());
     if (!o.quiet)

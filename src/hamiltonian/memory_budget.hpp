@@ -16,8 +16,23 @@ inline constexpr int kMaxQubits = 30;
 /// `real_vectors` real vectors of length 2^n.
 double estimate_bytes(int qubits, int complex_vectors, int real_vectors);
 
-/// Bytes the kernel reports as available (MemAvailable), or 0 when unknown.
+/// Where the memory check reads the machine's state; tests point these at fake files.
+struct SystemFiles {
+  std::string meminfo = "/proc/meminfo";
+  std::string self_cgroup = "/proc/self/cgroup";
+  std::string cgroup_root = "/sys/fs/cgroup";
+};
+
+/// Bytes this process may still allocate: the smallest of MemAvailable and the
+/// room left under the memory limits of its cgroup and every ancestor (v2:
+/// memory.max - memory.current; v1: memory/.../memory.limit_in_bytes -
+/// memory.usage_in_bytes), divided by OMPI_COMM_WORLD_LOCAL_SIZE (the MPI ranks
+/// of this job on this node, which each need as much). 0 when unknown.
+double available_bytes(const SystemFiles& files, int ranks_on_node);
+/// available_bytes() for this process (the real files and the environment).
 double available_bytes();
+/// The ranks sharing this node under mpirun (OMPI_COMM_WORLD_LOCAL_SIZE), else 1.
+int ranks_on_this_node();
 
 /// "1.5 GiB"
 std::string human_bytes(double bytes);

@@ -159,6 +159,21 @@ ResultJournal::WarningSink ResultJournal::set_warning_sink(WarningSink sink) {
   return old;
 }
 
+InputError journal_lock_error(const std::string& path, int err) {
+  if (err == EWOULDBLOCK || err == EAGAIN || err == EINTR)
+    return InputError({path, 0, 0, "journal"}, "another gapwise run is using this journal right now",
+                      "wait for it to finish, or write to another output file");
+  // ENOLCK (NFS mounted without a lock daemon, or out of lock records),
+  // EOPNOTSUPP/ENOSYS/EINVAL (file systems that do not lock at all).
+  return InputError({path, 0, 0, "journal"},
+                    fmt::format("cannot lock the journal: {} (errno {}); the file system holding it does not support "
+                                "file locks, and without a lock two runs could write the same journal",
+                                std::strerror(err), err),
+                    "write --out to a folder on a file system with locks (a local disk such as node-local /tmp or "
+                    "$TMPDIR, then copy the result), or ask for the file system to be mounted with locking (NFS: "
+                    "with a running lock daemon, not `nolock`)");
+}
+
 ResultJournal::ResultJournal(std::string path, JournalLayout layout, std::string fingerprint)
     : path_(std::move(path)), layout_(std::move(layout)), fingerprint_(std::move(fingerprint)) {
   fd_ = ::open(path_.c_str(), O_RDWR | O_CREAT | O_CLOEXEC, 0644);
@@ -166,10 +181,10 @@ ResultJournal::ResultJournal(std::string path, JournalLayout layout, std::string
     throw InputError({path_, 0, 0, "journal"}, fmt::format("cannot open the journal: {}", std::strerror(errno)),
                      "check that the folder exists and is writable");
   if (::flock(fd_, LOCK_EX | LOCK_NB) != 0) {
+    const int err = errno;
     ::close(fd_);
     fd_ = -1;
-    throw InputError({path_, 0, 0, "journal"}, "another gapwise run is using this journal right now",
-                     "wait for it to finish, or write to another output file");
+    throw journal_lock_error(path_, err);
   }
   try {
     std::string text;

@@ -43,6 +43,8 @@
 #include <string_view>
 #include <vector>
 
+#include "io/input_error.hpp"
+
 namespace gapwise {
 
 struct JournalLayout {
@@ -50,6 +52,11 @@ struct JournalLayout {
   std::vector<std::string> key_columns;  ///< numbers that identify a point
   std::vector<std::string> value_columns;
 };
+
+/// The refusal when flock() on the journal `path` fails with `err`: another run
+/// holds it (EWOULDBLOCK), or the file system does not lock (ENOLCK, EOPNOTSUPP,
+/// ...), named as such with the errno text and the way out.
+InputError journal_lock_error(const std::string& path, int err);
 
 class ResultJournal {
  public:

@@ -1,4 +1,5 @@
 #include "studies/control_error_ensemble.hpp"
+#include "platform/thread_count.hpp"
 
 #include <algorithm>
 #include <atomic>
@@ -64,7 +65,7 @@ ControlEnsemble run_control_error_ensemble(const IsingProblem& problem, const Gr
   auto last_report = std::chrono::steady_clock::now();
   const long long n = static_cast<long long>(options.samples);
 #ifdef _OPENMP
-  const int threads = options.threads > 0 ? options.threads : omp_get_max_threads();
+  const int threads = thread_count_or_default(options.threads);
 #pragma omp parallel for schedule(dynamic, 1) num_threads(threads)
 #endif
   for (long long k = 0; k < n; ++k) {

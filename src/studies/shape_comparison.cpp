@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "io/input_error.hpp"
+#include "platform/thread_count.hpp"
 
 #ifdef _OPENMP
 #include <omp.h>
@@ -64,7 +65,7 @@ ShapeComparison compare_shapes(const IsingProblem& problem, const std::vector<Sh
   std::exception_ptr failure;
   const long n = static_cast<long>(out.runs.size());
 #ifdef _OPENMP
-  const int nthreads = o.threads > 0 ? o.threads : omp_get_max_threads();
+  const int nthreads = thread_count_or_default(o.threads);
 #pragma omp parallel for schedule(dynamic, 1) num_threads(nthreads)
 #endif
   for (long k = 0; k < n; ++k) {

@@ -9,6 +9,7 @@
 #include <fmt/format.h>
 
 #include "io/input_error.hpp"
+#include "platform/thread_count.hpp"
 
 #ifdef _OPENMP
 #include <omp.h>
@@ -46,7 +47,7 @@ std::map<std::vector<double>, MapPoint> evaluate_paths(const AnnealSetup& setup,
   std::size_t done = 0;
   const long n = static_cast<long>(todo.size());
 #ifdef _OPENMP
-  const int nthreads = threads > 0 ? threads : omp_get_max_threads();
+  const int nthreads = thread_count_or_default(threads);
 #pragma omp parallel for schedule(dynamic, 1) num_threads(nthreads)
 #endif
   for (long k = 0; k < n; ++k) {
