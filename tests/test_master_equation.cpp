@@ -248,7 +248,7 @@ std::string json_at(const testing::TempDir& dir, const std::string& json, const 
   const auto f = dir.write("summary.json", json);
   const auto out = dir.path / "value.txt";
   const std::string cmd = "/usr/bin/python3 -c \"import json,sys,functools; d=json.load(open(sys.argv[1])); "
-                          "print(functools.reduce(lambda x, k: x[k], sys.argv[2].split('.'), d))\" '" +
+                          "print(functools.reduce(lambda x, k: x[int(k)] if k.isdigit() else x[k], sys.argv[2].split('.'), d))\" '" +
                           f.string() + "' " + dotted + " > '" + out.string() + "'";
   REQUIRE(std::system(cmd.c_str()) == 0);
   std::ifstream in(out);
@@ -282,4 +282,31 @@ TEST_CASE("anneal --bath: the closed and open results side by side; eta = 0 in a
   CHECK(std::abs(open1 - closed) > 1e-3);
   CHECK(std::stod(json_at(dir, r1.out, "open_system.max_trace_deviation")) < 1e-9);
   CHECK(std::stod(json_at(dir, r1.out, "open_system.min_eigenvalue")) > -1e-10);
+}
+
+TEST_CASE("durations --bath: open and closed p(t_f) side by side; coupling 0 gives the closed p at every duration") {
+  // eta = 0 is the closed system (common practice): p with the "bath" must equal the closed study's p at each
+  // grid duration, to the tolerances of the two propagators; TTS = t_f ln(1 - p*) / ln(1 - p) (Ronnow et al.,
+  // Science 345, 420 (2014)) must follow from the printed p.
+  testing::TempDir dir;
+  dir.write("closed.toml", "format = \"gapwise-bath\"\ncoupling = 0\n");
+  const auto src = testing::source_dir();
+  const auto r = testing::run_gapwise("durations '" + (src / "data-samples/triangle.toml").string() + "' '" +
+                                          (src / "schedules/linear.toml").string() +
+                                          "' --durations 2,6 --no-search --no-predictions --tolerance 1e-8 --json --bath '" +
+                                          (dir.path / "closed.toml").string() + "'",
+                                      dir);
+  REQUIRE(r.exit_code == 0);
+  for (int k = 0; k < 2; ++k) {
+    const std::string at = "open_system.points." + std::to_string(k) + ".";
+    auto value = [&](const std::string& key) {
+      // json_at takes a dotted path; list indices are digits
+      return std::stod(json_at(dir, r.out, at + key));
+    };
+    const double t = value("duration_ns"), closed = value("closed_ground_probability"), open = value("ground_probability");
+    INFO("t_f " << t << ": closed " << closed << ", open " << open);
+    CHECK(closed < 0.99);
+    CHECK(std::abs(open - closed) < 1e-6);
+    CHECK(value("tts_ns") == doctest::Approx(t * std::log(0.01) / std::log(1 - open)).epsilon(1e-6));
+  }
 }
