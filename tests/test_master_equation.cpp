@@ -310,3 +310,43 @@ TEST_CASE("durations --bath: open and closed p(t_f) side by side; coupling 0 giv
     CHECK(value("tts_ns") == doctest::Approx(t * std::log(0.01) / std::log(1 - open)).epsilon(1e-6));
   }
 }
+
+#include "studies/shape_maps.hpp"
+
+TEST_CASE("pause-map --bath runs the pause map's own paths: coupling 0 reproduces the closed map; a bath after the gap helps") {
+  // eta = 0 is the closed system (common practice); with a bath comparable to the gap the best pause lies after
+  // the minimum gap (s* = 0.39 for this invented problem, gapwise gap), as in Marshall et al. 2019 (from memory).
+  IsingProblem p(2);
+  p.h = {0.5, -0.3};
+  p.couplings = {{0, 1, -1.0}};
+  Schedule sch;
+  sch.scales = EnergyScales::linear(5.0, 20.0);
+  SimulationOptions sim;
+  sim.propagation.tolerance = 1e-8;
+  const AnnealSetup setup(p, sch, sim);
+  PauseMapOptions mo;
+  mo.pause_s = {0.3, 0.6};
+  mo.pause_ns = {0, 100};
+  mo.duration_ns = 20;
+  mo.cost = PauseCost::AddedTime;
+  const PauseMap closed = pause_map(setup, mo);
+  const auto paths = pause_map_paths(setup, mo);
+  CHECK(paths.size() == 4);  // two references (0 and 100 ns added) and two paused paths
+  for (std::size_t i = 0; i < 2; ++i) {
+    const auto& path = paths.at({mo.pause_s[i], 100.0});
+    const double open0 =
+        simulate_open_anneal(setup.hamiltonian, setup.ground, sch.scales, path, setup.start, bath_at(40, 0.0), {.tolerance = 1e-8})
+            .ground_probability;
+    CHECK(std::abs(open0 - closed.at(i, 1).ground_probability) < 1e-6);
+  }
+  const OhmicBath warm = bath_at(40.0, 1e-2);
+  auto open_p = [&](const AnnealPath& path) {
+    return simulate_open_anneal(setup.hamiltonian, setup.ground, sch.scales, path, setup.start, warm, {.tolerance = 1e-7})
+        .ground_probability;
+  };
+  const double before_gap = open_p(paths.at({0.3, 100.0})), after_gap = open_p(paths.at({0.6, 100.0}));
+  const double reference = open_p(paths.at(pause_map_reference_key(mo, 100.0)));
+  INFO("with the bath: pause at 0.3 " << before_gap << ", at 0.6 " << after_gap << ", no pause " << reference);
+  CHECK(after_gap > before_gap + 0.01);
+  CHECK(after_gap > reference + 0.005);
+}
