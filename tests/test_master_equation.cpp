@@ -248,7 +248,7 @@ std::string json_at(const testing::TempDir& dir, const std::string& json, const 
   const auto f = dir.write("summary.json", json);
   const auto out = dir.path / "value.txt";
   const std::string cmd = "/usr/bin/python3 -c \"import json,sys,functools; d=json.load(open(sys.argv[1])); "
-                          "print(functools.reduce(lambda x, k: x[k], sys.argv[2].split('.'), d))\" '" +
+                          "print(functools.reduce(lambda x, k: x[int(k)] if k.isdigit() else x[k], sys.argv[2].split('.'), d))\" '" +
                           f.string() + "' " + dotted + " > '" + out.string() + "'";
   REQUIRE(std::system(cmd.c_str()) == 0);
   std::ifstream in(out);
@@ -282,4 +282,71 @@ TEST_CASE("anneal --bath: the closed and open results side by side; eta = 0 in a
   CHECK(std::abs(open1 - closed) > 1e-3);
   CHECK(std::stod(json_at(dir, r1.out, "open_system.max_trace_deviation")) < 1e-9);
   CHECK(std::stod(json_at(dir, r1.out, "open_system.min_eigenvalue")) > -1e-10);
+}
+
+TEST_CASE("durations --bath: open and closed p(t_f) side by side; coupling 0 gives the closed p at every duration") {
+  // eta = 0 is the closed system (common practice): p with the "bath" must equal the closed study's p at each
+  // grid duration, to the tolerances of the two propagators; TTS = t_f ln(1 - p*) / ln(1 - p) (Ronnow et al.,
+  // Science 345, 420 (2014)) must follow from the printed p.
+  testing::TempDir dir;
+  dir.write("closed.toml", "format = \"gapwise-bath\"\ncoupling = 0\n");
+  const auto src = testing::source_dir();
+  const auto r = testing::run_gapwise("durations '" + (src / "data-samples/triangle.toml").string() + "' '" +
+                                          (src / "schedules/linear.toml").string() +
+                                          "' --durations 2,6 --no-search --no-predictions --tolerance 1e-8 --json --bath '" +
+                                          (dir.path / "closed.toml").string() + "'",
+                                      dir);
+  REQUIRE(r.exit_code == 0);
+  for (int k = 0; k < 2; ++k) {
+    const std::string at = "open_system.points." + std::to_string(k) + ".";
+    auto value = [&](const std::string& key) {
+      // json_at takes a dotted path; list indices are digits
+      return std::stod(json_at(dir, r.out, at + key));
+    };
+    const double t = value("duration_ns"), closed = value("closed_ground_probability"), open = value("ground_probability");
+    INFO("t_f " << t << ": closed " << closed << ", open " << open);
+    CHECK(closed < 0.99);
+    CHECK(std::abs(open - closed) < 1e-6);
+    CHECK(value("tts_ns") == doctest::Approx(t * std::log(0.01) / std::log(1 - open)).epsilon(1e-6));
+  }
+}
+
+#include "studies/shape_maps.hpp"
+
+TEST_CASE("pause-map --bath runs the pause map's own paths: coupling 0 reproduces the closed map; a bath after the gap helps") {
+  // eta = 0 is the closed system (common practice); with a bath comparable to the gap the best pause lies after
+  // the minimum gap (s* = 0.39 for this invented problem, gapwise gap), as in Marshall et al. 2019 (from memory).
+  IsingProblem p(2);
+  p.h = {0.5, -0.3};
+  p.couplings = {{0, 1, -1.0}};
+  Schedule sch;
+  sch.scales = EnergyScales::linear(5.0, 20.0);
+  SimulationOptions sim;
+  sim.propagation.tolerance = 1e-8;
+  const AnnealSetup setup(p, sch, sim);
+  PauseMapOptions mo;
+  mo.pause_s = {0.3, 0.6};
+  mo.pause_ns = {0, 100};
+  mo.duration_ns = 20;
+  mo.cost = PauseCost::AddedTime;
+  const PauseMap closed = pause_map(setup, mo);
+  const auto paths = pause_map_paths(setup, mo);
+  CHECK(paths.size() == 4);  // two references (0 and 100 ns added) and two paused paths
+  for (std::size_t i = 0; i < 2; ++i) {
+    const auto& path = paths.at({mo.pause_s[i], 100.0});
+    const double open0 =
+        simulate_open_anneal(setup.hamiltonian, setup.ground, sch.scales, path, setup.start, bath_at(40, 0.0), {.tolerance = 1e-8})
+            .ground_probability;
+    CHECK(std::abs(open0 - closed.at(i, 1).ground_probability) < 1e-6);
+  }
+  const OhmicBath warm = bath_at(40.0, 1e-2);
+  auto open_p = [&](const AnnealPath& path) {
+    return simulate_open_anneal(setup.hamiltonian, setup.ground, sch.scales, path, setup.start, warm, {.tolerance = 1e-7})
+        .ground_probability;
+  };
+  const double before_gap = open_p(paths.at({0.3, 100.0})), after_gap = open_p(paths.at({0.6, 100.0}));
+  const double reference = open_p(paths.at(pause_map_reference_key(mo, 100.0)));
+  INFO("with the bath: pause at 0.3 " << before_gap << ", at 0.6 " << after_gap << ", no pause " << reference);
+  CHECK(after_gap > before_gap + 0.01);
+  CHECK(after_gap > reference + 0.005);
 }

@@ -1,12 +1,30 @@
 #include "cli/bath_option.hpp"
 
+#include <cmath>
+
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
 #include "io/bath_file.hpp"
+#include "io/infinite_tts.hpp"
 #include "io/input_error.hpp"
+#include "io/text_table.hpp"
 
 namespace gapwise::cli {
+
+namespace {
+void put_bath_json(toml::table& j, const OhmicBath& bath) {
+  toml::table b;
+  put(b, "file", bath.source);
+  put(b, "temperature_mk", bath.temperature_mk);
+  put(b, "theta_ghz", bath.theta_ghz());
+  put(b, "coupling", bath.coupling);
+  put(b, "cutoff_ghz", bath.cutoff_ghz);
+  put(b, "illustrative_defaults_used",
+      bath.temperature_defaulted || bath.coupling_defaulted || bath.cutoff_defaulted);
+  j.insert_or_assign("bath", std::move(b));
+}
+}  // namespace
 
 CLI::Option* add_bath_option(CLI::App* sub, std::string& bath_file) {
   return sub
@@ -43,15 +61,7 @@ std::string open_system_text(const OhmicBath& bath, const OpenAnnealResult& open
 }
 
 void put_open_system_json(toml::table& j, const OhmicBath& bath, const OpenAnnealResult& open) {
-  toml::table b;
-  put(b, "file", bath.source);
-  put(b, "temperature_mk", bath.temperature_mk);
-  put(b, "theta_ghz", bath.theta_ghz());
-  put(b, "coupling", bath.coupling);
-  put(b, "cutoff_ghz", bath.cutoff_ghz);
-  put(b, "illustrative_defaults_used",
-      bath.temperature_defaulted || bath.coupling_defaulted || bath.cutoff_defaulted);
-  j.insert_or_assign("bath", std::move(b));
+  put_bath_json(j, bath);
   toml::table r;
   put(r, "ground_probability", open.ground_probability);
   put(r, "max_trace_deviation", open.stats.max_trace_deviation);
@@ -79,6 +89,50 @@ void write_open_system_hdf5(Hdf5Output& h5, const std::string& group, const Ohmi
   h5.attribute(group, "steps", static_cast<long long>(open.stats.steps));
   h5.attribute(group, "propagator", open.propagator);
   h5.write(group + "/final_populations", open.populations, "1");
+}
+
+
+std::string open_durations_text(const OhmicBath& bath, const std::vector<OpenDurationPoint>& rows) {
+  std::string out = "with the bath (adiabatic master equation, sigma^z coupling on every qubit, Lamb shift neglected)\n";
+  out += fmt::format("bath        {}{}\n", bath.source.empty() ? "" : bath.source + ": ", bath.summary());
+  TextTable t({"t_f_ns", "p_closed", "p_bath", "TTS_closed_ns", "TTS_bath_ns", "trace_err", "min_eig", "wall_s"});
+  double best_tts = INFINITY, best_t = 0;
+  for (const auto& r : rows) {
+    t.add({fmt::format("{:.5g}", r.duration_ns), fmt::format("{:.6f}", r.closed_probability),
+           fmt::format("{:.6f}", r.open.ground_probability), tts_text(r.closed_tts.tts_ns), tts_text(r.open_tts.tts_ns),
+           fmt::format("{:.1e}", r.open.stats.max_trace_deviation), fmt::format("{:.1e}", r.open.stats.min_eigenvalue),
+           fmt::format("{:.2f}", r.open.wall_seconds)});
+    if (r.open_tts.tts_ns < best_tts) best_tts = r.open_tts.tts_ns, best_t = r.duration_ns;
+  }
+  out += t.render();
+  if (std::isfinite(best_tts))
+    out += fmt::format("TTS optimum with the bath (grid only): t_f = {:.5g} ns, TTS = {} ns\n", best_t, tts_text(best_tts));
+  else
+    out += "TTS with the bath is infinite at every grid duration (p = 0)\n";
+  return out;
+}
+
+void put_open_durations_json(toml::table& j, const OhmicBath& bath, const std::vector<OpenDurationPoint>& rows) {
+  put_bath_json(j, bath);
+  toml::array pts;
+  for (const auto& r : rows) {
+    toml::table e;
+    put(e, "duration_ns", r.duration_ns);
+    put(e, "closed_ground_probability", r.closed_probability);
+    put(e, "ground_probability", r.open.ground_probability);
+    put_tts(e, "closed_tts_ns", r.closed_tts.tts_ns);
+    put_tts(e, "tts_ns", r.open_tts.tts_ns);
+    put(e, "max_trace_deviation", r.open.stats.max_trace_deviation);
+    put(e, "min_eigenvalue", r.open.stats.min_eigenvalue);
+    put(e, "error_estimate", r.open.stats.error_estimate);
+    put(e, "steps", static_cast<long long>(r.open.stats.steps));
+    put(e, "wall_seconds", r.open.wall_seconds);
+    pts.push_back(std::move(e));
+  }
+  toml::table o;
+  put(o, "propagator", std::string("ame-full"));
+  o.insert_or_assign("points", std::move(pts));
+  j.insert_or_assign("open_system", std::move(o));
 }
 
 }  // namespace gapwise::cli

@@ -11,6 +11,7 @@
 #include "dynamics/master_equation.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/json_summary.hpp"
+#include "studies/open_duration_scan.hpp"
 
 namespace gapwise::cli {
 
@@ -29,5 +30,10 @@ void put_open_system_json(toml::table& j, const OhmicBath& bath, const OpenAnnea
 /// final populations.
 void write_open_system_hdf5(Hdf5Output& h5, const std::string& group, const OhmicBath& bath,
                             const OpenAnnealResult& open);
+
+/// `durations --bath`: the table of p closed and open and both TTS per grid duration.
+std::string open_durations_text(const OhmicBath& bath, const std::vector<OpenDurationPoint>& rows);
+/// JSON tables `bath` and `open_system` (with `points`: one entry per grid duration).
+void put_open_durations_json(toml::table& j, const OhmicBath& bath, const std::vector<OpenDurationPoint>& rows);
 
 }  // namespace gapwise::cli

@@ -107,7 +107,8 @@ void run_anneal(const AnnealOptions& o) {
   if (o.levels > 0) observers.push_back(&pops.emplace(H, lpo));
   // Progress on stderr for long runs (the passes of the propagator over the path).
   const int runs = o.no_check ? 1 : 2;
-  const bool show = !o.quiet && (o.progress || work.core_seconds() > kProgressAfterSeconds);
+  // With a bath the open-system run dominates and is not in the estimate: always show on a terminal.
+  const bool show = !o.quiet && (o.progress || bath || work.core_seconds() > kProgressAfterSeconds);
   ProgressBar bar("anneal", 0, 0.0, !show ? 0 : (o.progress ? 1 : -1));
   int run = 1;
   if (bar.enabled())

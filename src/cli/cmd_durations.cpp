@@ -36,6 +36,8 @@
 #include "io/text_table.hpp"
 #include "studies/anneal_predictions.hpp"
 #include "studies/duration_study.hpp"
+#include "studies/open_duration_scan.hpp"
+#include "cli/bath_option.hpp"
 #include "studies/work_estimate.hpp"
 #include "platform/thread_count.hpp"
 
@@ -47,7 +49,7 @@ namespace gapwise::cli {
 namespace {
 
 struct DurationsOptions {
-  std::string problem, schedule, out, csv, durations, propagator = SimulationOptions{}.propagator;
+  std::string problem, schedule, out, csv, durations, propagator = SimulationOptions{}.propagator, bath;
   bool p_only = false;
   double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3, agreement = kDefaultAgreementFactor;
   int threads = 0, probes = 2;
@@ -61,12 +63,14 @@ void run_durations(const DurationsOptions& o) {
   check_file_plan(FilePlan{}
                       .input(o.problem, "problem")
                       .input(o.schedule, "schedule")
+                      .input(o.bath, "--bath")
                       .output(o.out, "--out")
                       .output(o.csv, "--csv")
                       .journal_of(!o.out.empty() ? o.out : o.csv));
   const ProblemFile problem_file = parse_problem_file(o.problem);
   const IsingProblem& problem = problem_file.ising;
   const Schedule schedule = read_schedule_file(o.schedule);
+  const std::optional<OhmicBath> bath = load_bath(o.bath, problem.qubits);
   check_tolerance(o.tolerance);
   check_target_probability(o.target);
   check_threads(o.threads);
@@ -167,6 +171,16 @@ void run_durations(const DurationsOptions& o) {
   bar.done();
   write_outputs(&st);
   run.results_written();
+
+  // ---- with the bath: the grid durations again, open system (not journaled)
+  std::vector<OpenDurationPoint> open_rows;
+  if (bath) {
+    ProgressBar open_bar("durations with the bath", grid.size(), static_cast<double>(grid.size()), o.quiet ? 0 : -1);
+    open_rows = open_duration_scan(setup, *bath, grid, o.tolerance, o.target,
+                                   [&](double t) { return ev.known().at(t).ground_probability; },
+                                   [&](std::size_t) { open_bar.finished_item(1.0); });
+    open_bar.done();
+  }
 
   // ---- report
   const auto& known = ev.known();
@@ -298,6 +312,7 @@ void run_durations(const DurationsOptions& o) {
       }
       j.insert_or_assign("predictions", std::move(pr));
     }
+    if (bath) put_open_durations_json(j, *bath, open_rows);
     std::cout << to_json(j) << "\n";
     return;
   }
@@ -332,6 +347,7 @@ void run_durations(const DurationsOptions& o) {
                predictions && predictions->adiabatic.applicable ? p_text(predictions->adiabatic.p_at(t)) : "-", note});
   }
   std::cout << table.render() << "\n";
+  if (bath) std::cout << open_durations_text(*bath, open_rows) << "\n";
 
   std::cout << fmt::format("duration needed for p >= {}\n", o.target);
   if (st.needed) {
@@ -504,6 +520,7 @@ void register_durations(CLI::App& app) {
   sub->add_option("--csv", o->csv, "CSV with one row per simulated duration");
   sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");
   sub->add_flag("-q,--quiet", o->quiet, "no progress bar or resume message on stderr");
+  add_bath_option(sub, o->bath);
   add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   sub->callback([o] { run_durations(*o); });

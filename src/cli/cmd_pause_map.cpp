@@ -20,6 +20,7 @@
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "io/toml_reader.hpp"
+#include "cli/bath_option.hpp"
 #include "studies/shape_maps.hpp"
 #include "studies/work_estimate.hpp"
 
@@ -27,7 +28,7 @@ namespace gapwise::cli {
 namespace {
 
 struct PauseMapCli {
-  std::string problem, schedule, out, durations, at = "lin:0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = SimulationOptions{}.propagator;
+  std::string problem, schedule, out, durations, at = "lin:0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = SimulationOptions{}.propagator, bath;
   double duration_ns = 0;  // from `durations`, one value
   double tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0;
@@ -71,10 +72,11 @@ void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const
 }
 
 void run_pause_map(PauseMapCli o) {
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out").journal_of(o.out));
+  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").input(o.bath, "--bath").output(o.out, "--out").journal_of(o.out));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
   const Schedule sch = read_schedule_file(o.schedule);
+  const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
   check_output_path(o.out, "--out");
   check_target_probability(o.target);
   check_tolerance(o.tolerance);
@@ -104,6 +106,24 @@ void run_pause_map(PauseMapCli o) {
                                       o.cost, fmt::format("{:a}", o.tolerance), o.propagator}),
                    {o.out});
   const PauseMap m = pause_map(setup, mo, run.journal(), AnnealCounter(o.quiet));
+  const bool tty = ::isatty(2) && !o.quiet;
+  // With the bath: the same paths once more, open system (serial, not journaled).
+  std::vector<double> open_p, open_ref;
+  if (bath) {
+    const auto paths = pause_map_paths(setup, mo);
+    std::size_t done = 0;
+    std::map<std::vector<double>, double> value;
+    for (const auto& [key, path] : paths) {
+      value[key] = simulate_open_anneal(setup.hamiltonian, setup.ground, sch.scales, path, setup.start, *bath,
+                                        {.tolerance = o.tolerance})
+                       .ground_probability;
+      if (tty) std::cerr << fmt::format("\r{} / {} anneals with the bath", ++done, paths.size()) << std::flush;
+    }
+    if (tty) std::cerr << "\n";
+    for (double d : mo.pause_ns) open_ref.push_back(value.at(pause_map_reference_key(mo, d)));
+    for (double s : mo.pause_s)
+      for (double d : mo.pause_ns) open_p.push_back(d > 0 ? value.at({s, d}) : value.at(pause_map_reference_key(mo, d)));
+  }
 
   std::size_t bi = 0, bj = 0;  // the largest gain over the unpaused run of the same cost
   double best = -1;
@@ -139,6 +159,29 @@ void run_pause_map(PauseMapCli o) {
                              "TTS {} ns against {} ns\n",
                              fmt_num(mo.pause_s[bi], 6), fmt_num(mo.pause_ns[bj], 6), b.ground_probability, m.reference[bj].ground_probability, best,
                              tts_text(m.tts_ns(bi, bj), 6), tts_text(reference_tts, 6));
+    if (bath) {
+      std::cout << "\nwith the bath (adiabatic master equation; " << bath->summary() << ")\n";
+      TextTable tb(head);
+      std::vector<std::string> rref{"no pause (same cost)"};
+      for (double v : open_ref) rref.push_back(fmt_num(v, 6));
+      tb.add(rref);
+      std::size_t oi = 0, oj = 0;
+      double obest = -2;
+      for (std::size_t i = 0; i < mo.pause_s.size(); ++i) {
+        std::vector<std::string> row{fmt_num(mo.pause_s[i], 6)};
+        for (std::size_t j = 0; j < mo.pause_ns.size(); ++j) {
+          const double v = open_p[i * mo.pause_ns.size() + j];
+          row.push_back(fmt_num(v, 6));
+          if (v - open_ref[j] > obest) { obest = v - open_ref[j]; oi = i; oj = j; }
+        }
+        tb.add(row);
+      }
+      std::cout << "ground-state probability p with the bath\n" << tb.render();
+      std::cout << fmt::format("best pause with the bath: s = {}, {} ns: p = {:.6f} against {:.6f} without a pause at the same "
+                               "cost ({:+.6f})\n",
+                               fmt_num(mo.pause_s[oi], 6), fmt_num(mo.pause_ns[oj], 6),
+                               open_p[oi * mo.pause_ns.size() + oj], open_ref[oj], obest);
+    }
   }
 
   Hdf5Output h5(o.out, {"gapwise-pause-map", 1});
@@ -166,6 +209,14 @@ void run_pause_map(PauseMapCli o) {
   h5.attribute("/pause_map", "cost", mo.cost == PauseCost::EqualTotal ? "equal-total" : "added-time");
   h5.attribute("/pause_map", "target_probability", o.target);
   h5.attribute("/pause_map", "tolerance", o.tolerance);
+  if (bath) {
+    h5.write_matrix("/pause_map/open_system/ground_probability", open_p, ni, nj, "1");
+    h5.write("/pause_map/open_system/reference_ground_probability", open_ref, "1");
+    h5.attribute("/pause_map/open_system", "bath_file", bath->source);
+    h5.attribute("/pause_map/open_system", "temperature_mk", bath->temperature_mk);
+    h5.attribute("/pause_map/open_system", "coupling", bath->coupling);
+    h5.attribute("/pause_map/open_system", "cutoff_ghz", bath->cutoff_ghz);
+  }
   h5.commit();
   if (!o.json) std::cout << fmt::format("wrote {}\n", o.out);
 }
@@ -199,6 +250,7 @@ void register_pause_map(CLI::App& app) {
   sub->add_option("-o,--out", o->out, "HDF5 result (heat-map ready); the journal is <out>.journal")->required();
   sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");
   sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
+  add_bath_option(sub, o->bath);
   add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json,
                 "print a JSON summary instead of the table: the grid, p per cell (rows: --at), the unpaused\n"

@@ -107,7 +107,7 @@ double PauseMap::tts_ns(std::size_t i, std::size_t j) const {
   return time_to_solution(p.total_ns, std::clamp(p.ground_probability, 0.0, 1.0), options.target_probability).tts_ns;
 }
 
-PauseMap pause_map(const AnnealSetup& setup, const PauseMapOptions& o, ResultJournal* journal, const MapProgress& progress) {
+std::map<std::vector<double>, AnnealPath> pause_map_paths(const AnnealSetup& setup, const PauseMapOptions& o) {
   if (setup.schedule.start.kind != StartKind::Ground || setup.schedule.shape.points().front().s != 0.0)
     throw InputError({setup.schedule.source, 0, 0, "path"}, "a pause map needs a forward anneal from s = 0",
                      "use a forward schedule (for reverse anneals see `gapwise reverse-map`)");
@@ -115,23 +115,31 @@ PauseMap pause_map(const AnnealSetup& setup, const PauseMapOptions& o, ResultJou
   check_list(o.pause_ns, 0.0, 1e12, "--pause-ns", "pause duration (ns)");
   check_duration_ns(o.duration_ns, {"--durations", 0, 0, "--durations"});
   const AnnealPath base = setup.schedule.shape.scaled_to(1.0);
-  PauseMap m;
-  m.options = o;
   std::map<std::vector<double>, AnnealPath> jobs;
   auto total = [&](double d) { return o.cost == PauseCost::EqualTotal ? o.duration_ns : o.duration_ns + d; };
-  auto ref_key = [&](double d) { return std::vector<double>{-1.0, o.cost == PauseCost::EqualTotal ? 0.0 : d}; };
   for (double d : o.pause_ns)
-    jobs.emplace(ref_key(d), shape_or_refuse([&] { return base.scaled_to(total(d)); }, "--durations"));
+    jobs.emplace(pause_map_reference_key(o, d), shape_or_refuse([&] { return base.scaled_to(total(d)); }, "--durations"));
   for (double s : o.pause_s)
     for (double d : o.pause_ns)
       if (d > 0)
         jobs.emplace(std::vector<double>{s, d}, shape_or_refuse([&] {
                        return forward_shape(base, {.pause = PauseSpec{s, d}}, total(d));
                      }, "--pause-ns"));
+  return jobs;
+}
+
+std::vector<double> pause_map_reference_key(const PauseMapOptions& o, double pause_ns) {
+  return {-1.0, o.cost == PauseCost::EqualTotal ? 0.0 : pause_ns};
+}
+
+PauseMap pause_map(const AnnealSetup& setup, const PauseMapOptions& o, ResultJournal* journal, const MapProgress& progress) {
+  const auto jobs = pause_map_paths(setup, o);
+  PauseMap m;
+  m.options = o;
   const auto values = evaluate_paths(setup, jobs, std::nullopt, journal, o.threads, progress, m.simulated, m.resumed);
-  for (double d : o.pause_ns) m.reference.push_back(values.at(ref_key(d)));
+  for (double d : o.pause_ns) m.reference.push_back(values.at(pause_map_reference_key(o, d)));
   for (double s : o.pause_s)
-    for (double d : o.pause_ns) m.points.push_back(d > 0 ? values.at({s, d}) : values.at(ref_key(d)));
+    for (double d : o.pause_ns) m.points.push_back(d > 0 ? values.at({s, d}) : values.at(pause_map_reference_key(o, d)));
   return m;
 }
 

@@ -21,6 +21,7 @@
 //   m.at(1, 1).ground_probability;   m.reference[1];  // unpaused at the same cost
 //   ReverseMap r = reverse_map(setup, {.turn_s = {0.4, 0.6}, .dwell_ns = {0, 10}, .ramp_ns = 5});
 #include <functional>
+#include <map>
 #include <vector>
 
 #include "io/result_journal.hpp"
@@ -82,6 +83,11 @@ JournalLayout reverse_map_journal_layout();
 
 /// Throws InputError for a bad grid (the option named), a start state that is not
 /// forward (pause map) or not classical (reverse map).
+/// The paths a pause map simulates, keyed {s, pause_ns} for paused runs and
+/// pause_map_reference_key for the unpaused run of the same cost (same refusals
+/// as pause_map). For studies that run the same paths another way (with a bath).
+std::map<std::vector<double>, AnnealPath> pause_map_paths(const AnnealSetup& setup, const PauseMapOptions& options);
+std::vector<double> pause_map_reference_key(const PauseMapOptions& options, double pause_ns);
 PauseMap pause_map(const AnnealSetup& setup, const PauseMapOptions& options, ResultJournal* journal = nullptr,
                    const MapProgress& progress = {});
 ReverseMap reverse_map(const AnnealSetup& setup, const ReverseMapOptions& options, ResultJournal* journal = nullptr,

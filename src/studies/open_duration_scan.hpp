@@ -1,0 +1,29 @@
+#pragma once
+// The duration study's thermal companion: p(t_f) with a bath at each duration
+// of a grid, beside the closed-system value, and the time to solution of both.
+//
+//   auto rows = open_duration_scan(setup, bath, {10, 30, 100}, 1e-6, 0.99, closed_p);
+#include <functional>
+#include <vector>
+
+#include "dynamics/master_equation.hpp"
+#include "studies/duration_sweep.hpp"
+#include "studies/time_to_solution.hpp"
+
+namespace gapwise {
+
+struct OpenDurationPoint {
+  double duration_ns = 0;
+  double closed_probability = 0;  ///< from the closed-system study (same duration)
+  OpenAnnealResult open;
+  TimeToSolution closed_tts, open_tts;
+};
+
+/// One open-system anneal per duration (the schedule's shape stretched to it),
+/// from the setup's start state. `closed_p(t)` gives the closed-system p there.
+std::vector<OpenDurationPoint> open_duration_scan(const AnnealSetup& setup, const OhmicBath& bath,
+                                                  const std::vector<double>& durations_ns, double tolerance,
+                                                  double target, const std::function<double(double)>& closed_p,
+                                                  const std::function<void(std::size_t done)>& on_point = {});
+
+}  // namespace gapwise
