@@ -175,7 +175,7 @@ void check_gap_search_options(const GapSearchOptions& o, const EnergyScales& sca
                      "give --s-first < --s-last inside the range the schedule's scales cover");
   if (o.coarse_points < 3)
     throw InputError({"--points", 0, 0, "--points"}, fmt::format("{} coarse points are too few", o.coarse_points),
-                     "use at least 3 (the default 101 suits most problems)");
+                     "use at least 3 (the default 26, refined where levels bend, suits most problems)");
   if (!(o.s_tolerance > 0.0 && o.s_tolerance < 0.1))
     throw InputError({"--s-tolerance", 0, 0, "--s-tolerance"},
                      fmt::format("s tolerance {} is out of range", o.s_tolerance), "use a value in (0, 0.1), e.g. 1e-6");

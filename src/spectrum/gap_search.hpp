@@ -87,7 +87,7 @@ struct GapSearchOptions {
   int levels = 4;                       ///< k; raised to g + 1 when the ground manifold needs it
   std::optional<SpinFlipSector> sector; ///< unset: even sector when no fields, else full space
   EigenMethod method = EigenMethod::Auto;
-  int coarse_points = 101;              ///< uniform scan points, end points included (>= 3)
+  int coarse_points = 26;               ///< uniform scan points, end points included (>= 3); subdivision adds more where levels bend
   double s_tolerance = 1e-6;            ///< wanted precision of s* (Brent)
   int max_points = 3000;                ///< cap on all evaluated points; hitting it is flagged
   double bend_threshold = 0.25;         ///< split when |dE/ds(b) - dE/ds(a)| (b - a) > this * local gap
