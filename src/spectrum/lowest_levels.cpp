@@ -283,7 +283,9 @@ Levels lowest_levels(const SectorHamiltonian& h, double a, double b, const Level
       for (int j = 0; j < bounded && j < static_cast<int>(kt.size()); ++j)
         ok = ok && kt[static_cast<std::size_t>(j)] <= opt.tolerance * std::max(1.0, std::abs(e[static_cast<std::size_t>(j)]));
       if (ok) break;
-      tol = std::max(opt.tolerance, tol * 1e-2);
+      // A level the deflation check merged in is exactly degenerate with a found one:
+      // no quadratic bound helps there, so go straight to the wanted tolerance.
+      tol = added > 0 ? opt.tolerance : std::max(opt.tolerance, tol * 1e-2);
       previous = r.vectors;  // the next, tighter solve starts from these
       seed = &previous;
     }
