@@ -7,6 +7,12 @@
 //
 //   build/bench/bench_gap_scan                 # n = 10..18, dense up to n = 10
 //   build/bench/bench_gap_scan --max-n 14 --dense-max-n 10 --points 11
+//
+// Problem classes (--classes): the default gap search (warm-started, adaptive
+// grid), the cold search on the old 101-point grid, and bench/scipy_gap_scan.py
+// (eigsh on 101 points plus bounded Brent to the tool's s uncertainty) on the
+// same problem, side by side in one run, with ratios:
+//   build/bench/bench_gap_scan --classes --sizes 12,14 [--python /usr/bin/python3]
 #include <sys/resource.h>
 #include <sys/wait.h>
 #include <unistd.h>
@@ -19,9 +25,11 @@
 #include <limits>
 #include <random>
 #include <string>
+#include <vector>
 
 #include <fmt/format.h>
 
+#include "problem/instance_families.hpp"
 #include "spectrum/gap_search.hpp"
 
 using namespace gapwise;
@@ -106,9 +114,146 @@ bool run_forked(const Case& c, int points, CaseResult& res, double& peak_mib) {
   return ok && WIFEXITED(status) && WEXITSTATUS(status) == 0;
 }
 
+// ---- problem classes -------------------------------------------------------
+
+/// Invented benchmark classes (seeded). "glass-fields": +-1 ring plus n/2 chords,
+/// fields +-0.15, one coupling 0.3; "gaussian": N(0,1) couplings on ring plus chords,
+/// N(0, 0.3^2) fields; "qubo": random QUBO (diagonal in [-2, 1], a third of the pairs
+/// in [-1, 1]) converted exactly; "glass": the +-1 glass without fields (even sector).
+IsingProblem class_problem(const std::string& kind, int n) {
+  std::mt19937 rng(20261204u + static_cast<unsigned>(n));
+  if (kind == "gaussian") {
+    FamilySpec f;
+    f.graph = GraphKind::RingPlusChords;
+    f.couplings = CouplingKind::Gaussian;
+    f.seed = 2026;
+    IsingProblem p = generate_instance(f, n, 0).problem;
+    std::normal_distribution<double> g(0.0, 0.3);
+    for (auto& h : p.h) h = g(rng);
+    return p;
+  }
+  if (kind == "qubo") {
+    std::uniform_real_distribution<double> u(-1.0, 1.0), d(-2.0, 1.0);
+    QuboProblem q;
+    q.variables = n;
+    for (int i = 0; i < n; ++i)
+      for (int j = i; j < n; ++j)
+        if (i == j || rng() % 3 == 0) q.terms.push_back({i, j, i == j ? d(rng) : u(rng)});
+    return qubo_to_ising(q);
+  }
+  IsingProblem p(n);
+  for (int i = 0; i < n; ++i) p.couplings.push_back({std::min(i, (i + 1) % n), std::max(i, (i + 1) % n), 1.0});
+  while (static_cast<int>(p.couplings.size()) < n + n / 2) {
+    int i = static_cast<int>(rng() % n), j = static_cast<int>(rng() % n);
+    if (i > j) std::swap(i, j);
+    bool dup = i == j;
+    for (const auto& c : p.couplings) dup = dup || (c.i == i && c.j == j);
+    if (!dup) p.couplings.push_back({i, j, 1.0});
+  }
+  for (auto& c : p.couplings) c.value = rng() % 2 ? 1.0 : -1.0;
+  if (kind == "glass-fields") {
+    p.couplings[0].value = 0.3;
+    for (auto& h : p.h) h = rng() % 2 ? 0.15 : -0.15;
+  }
+  return p;
+}
+
+struct ClassRun {
+  double seconds = 0, gap = 0, gap_unc = 0, s_star = 0, s_unc = 0;
+  long evaluations = 0, operations = 0;
+};
+
+ClassRun run_class(const IsingProblem& p, bool warm, int points) {
+  const TransverseIsingHamiltonian h(p);
+  GapSearchOptions o;
+  o.warm_start = warm;
+  if (points > 0) o.coarse_points = points;
+  const auto t0 = std::chrono::steady_clock::now();
+  const MinimumGapReport r = find_minimum_gap(h, EnergyScales::linear(5.0, 5.0), o);
+  ClassRun c;
+  c.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  c.gap = r.gap_ghz;
+  c.gap_unc = r.gap_uncertainty_ghz;
+  c.s_star = r.s_star;
+  c.s_unc = r.s_star_uncertainty;
+  c.evaluations = static_cast<long>(r.evaluations);
+  c.operations = r.operator_applications;
+  return c;
+}
+
+int class_rows(const std::vector<int>& sizes, const std::string& python, const std::string& script, bool scipy) {
+  std::printf("gap search by problem class: linear 5 GHz scales, k = 4, s tolerance 1e-6; times in one run, "
+              "side by side (busy machine: the ratios are what count)\n");
+  std::printf("  default = warm-started LevelTracker, default grid; cold101 = every point a cold Lanczos solve on "
+              "101 grid points (the previous default);\n  scipy = eigsh (tol 0) on 101 points + bounded Brent "
+              "(xatol = the tool's s uncertainty), bench/scipy_gap_scan.py\n");
+  std::printf("%3s %-13s %-8s %6s %8s %9s %17s %9s %14s %9s %8s\n", "n", "class", "run", "evals", "H_ops", "time_s",
+              "gap_ghz", "+-", "s*", "+-", "scipy/x");
+  for (int n : sizes)
+    for (const std::string kind : {"glass-fields", "gaussian", "qubo", "glass"}) {
+      const IsingProblem p = class_problem(kind, n);
+      const ClassRun w = run_class(p, true, 0);
+      const ClassRun c = run_class(p, false, 101);
+      double scipy_s = std::numeric_limits<double>::quiet_NaN(), scipy_gap = 0, scipy_star = 0;
+      long scipy_evals = 0;
+      if (scipy) {
+        std::string cpl, fld;
+        for (const auto& e : p.couplings) cpl += fmt::format("{},{},{:.17g};", e.i, e.j, e.value);
+        if (p.has_fields())
+          for (double h : p.h) fld += fmt::format("{:.17g},", h);
+        const std::string out = fmt::format("/tmp/gapwise-scipy-gap-{}.txt", getpid());
+        const std::string cmd =
+            fmt::format("{} {} --qubits {} --couplings '{}' {} --points 101 --xatol {:.3g} > '{}'", python, script, n,
+                        cpl, fld.empty() ? "" : "--fields='" + fld + "'", std::max(w.s_unc, 1e-9), out);
+        if (std::system(cmd.c_str()) == 0) {
+          if (FILE* f = std::fopen(out.c_str(), "r")) {
+            if (std::fscanf(f, "s_star %lf gap %lf evaluations %ld wall %lf", &scipy_star, &scipy_gap, &scipy_evals,
+                            &scipy_s) != 4)
+              scipy_s = std::numeric_limits<double>::quiet_NaN();
+            std::fclose(f);
+          }
+        }
+        std::remove(out.c_str());
+      }
+      auto row = [&](const char* name, long ev, long ops, double t, double gap, double gu, double ss, double su) {
+        std::printf("%3d %-13s %-8s %6ld %8s %9.3f %17.12f %9.1e %14.9f %9.1e %8s\n", n, kind.c_str(), name, ev,
+                    ops > 0 ? fmt::format("{}", ops).c_str() : "-", t, gap, gu, ss, su,
+                    std::isfinite(scipy_s) ? fmt::format("{:.1f}x", scipy_s / t).c_str() : "-");
+      };
+      row("default", w.evaluations, w.operations, w.seconds, w.gap, w.gap_unc, w.s_star, w.s_unc);
+      row("cold101", c.evaluations, 0, c.seconds, c.gap, c.gap_unc, c.s_star, c.s_unc);
+      if (std::isfinite(scipy_s)) {
+        row("scipy", scipy_evals, 0, scipy_s, scipy_gap, 0.0, scipy_star, 0.0);
+        std::printf("    |gap - scipy| = %.1e GHz, |s* - scipy| = %.1e\n", std::abs(w.gap - scipy_gap),
+                    std::abs(w.s_star - scipy_star));
+      }
+      std::fflush(stdout);
+    }
+  return 0;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
+  for (int i = 1; i < argc; ++i)
+    if (std::string(argv[i]) == "--classes") {
+      std::vector<int> sizes{12, 14};
+      std::string python = "/usr/bin/python3", script = GAPWISE_SOURCE_DIR "/bench/scipy_gap_scan.py";
+      bool scipy = true;
+      for (int j = 1; j < argc; ++j) {
+        const std::string a = argv[j];
+        if (a == "--sizes" && j + 1 < argc) {
+          sizes.clear();
+          for (const char* q = argv[++j]; *q;) {
+            sizes.push_back(std::atoi(q));
+            while (*q && *q != ',') ++q;
+            if (*q == ',') ++q;
+          }
+        } else if (a == "--python" && j + 1 < argc) python = argv[++j];
+        else if (a == "--no-scipy") scipy = false;
+      }
+      return class_rows(sizes, python, script, scipy);
+    }
   int min_n = 10, max_n = 18, dense_max_n = 10, points = 21;
   bool sectors = true, no_check = true;
   for (int i = 1; i < argc; ++i) {
@@ -122,7 +267,7 @@ int main(int argc, char** argv) {
     else if (a == "--no-unchecked") no_check = false;
     else {
       std::printf("usage: bench_gap_scan [--min-n N] [--max-n N] [--dense-max-n N] [--points P] [--no-sectors] "
-                  "[--no-unchecked]\n");
+                  "[--no-unchecked]\n       bench_gap_scan --classes [--sizes 12,14] [--python PY] [--no-scipy]\n");
       return a == "--help" ? 0 : 2;
     }
   }

@@ -32,7 +32,7 @@ namespace {
 
 struct GapOptions {
   std::string problem, schedule, out, csv, sector = "auto", solver = "auto", vectors_at;
-  int levels = 4, points = 101, max_points = 3000, vector_levels = 0;
+  int levels = 4, points = 26, max_points = 3000, vector_levels = 0;
   double s_tolerance = 1e-6;
   std::optional<double> s_first, s_last;
   bool json = false, other_sector = false, progress = false, quiet = false, no_level_check = false, fresh = false;
@@ -441,7 +441,7 @@ void register_gap(CLI::App& app) {
   sub->add_flag("--other-sector", o->other_sector, "also compute the levels of the other spin-flip sector at every point");
   sub->add_option("--solver", o->solver, "auto: dense up to dimension 128, Lanczos above; or dense, lanczos")
       ->check(CLI::IsMember({"auto", "dense", "lanczos"}))->capture_default_str();
-  sub->add_option("--points", o->points, "uniform coarse-scan points over the s range")->capture_default_str();
+  sub->add_option("--points", o->points, "uniform coarse-scan points over the s range (subdivision adds more where levels bend)")->capture_default_str();
   sub->add_option("--max-points", o->max_points, "budget for all points (grid + subdivision + refinement)")->capture_default_str();
   sub->add_option("--s-tolerance", o->s_tolerance, "wanted precision of s*")->capture_default_str();
   sub->add_option("--s-first", o->s_first, "start of the s range (default: where the scales start)");

@@ -44,6 +44,7 @@
 #include "hamiltonian/transverse_ising.hpp"
 #include "problem/classical_spectrum.hpp"
 #include "schedule/energy_scales.hpp"
+#include "spectrum/level_tracker.hpp"
 #include "spectrum/lowest_levels.hpp"
 
 namespace gapwise {
@@ -71,6 +72,9 @@ struct SpectrumPoint {
 /// Levels, slopes, gaps and matrix elements at one s; g is the ground degeneracy in the sector.
 SpectrumPoint spectrum_at(const SectorHamiltonian& h, const EnergyScales& scales, double s, int levels, int g,
                           const LevelOptions& base);
+/// The same from levels already computed at s (with vectors), e.g. by a LevelTracker.
+SpectrumPoint spectrum_from_levels(const SectorHamiltonian& h, const EnergyScales& scales, double s, int g,
+                                   const Levels& levels);
 
 struct GapSearchProgress {
   std::size_t evaluations = 0;  ///< eigenproblems solved so far
@@ -83,7 +87,7 @@ struct GapSearchOptions {
   int levels = 4;                       ///< k; raised to g + 1 when the ground manifold needs it
   std::optional<SpinFlipSector> sector; ///< unset: even sector when no fields, else full space
   EigenMethod method = EigenMethod::Auto;
-  int coarse_points = 101;              ///< uniform scan points, end points included (>= 3)
+  int coarse_points = 26;               ///< uniform scan points, end points included (>= 3); subdivision adds more where levels bend
   double s_tolerance = 1e-6;            ///< wanted precision of s* (Brent)
   int max_points = 3000;                ///< cap on all evaluated points; hitting it is flagged
   /// The command-line options that set coarse_points and max_points, so that a
@@ -95,6 +99,11 @@ struct GapSearchOptions {
   bool other_sector = false;            ///< also the levels of the other spin-flip sector at each point
   bool check_missed_levels = true;      ///< Lanczos deflation check where degeneracies are possible (lowest_levels.hpp)
   double lanczos_tolerance = 1e-12;
+  /// Lanczos: follow the levels with a LevelTracker (each point warm-started from
+  /// the previous one's vectors, tolerance relaxed under Kato-Temple bounds, the
+  /// deflation check skipped during refinement when the scan never needed it).
+  /// false: every point a cold solve at lanczos_tolerance (the reference).
+  bool warm_start = true;
   std::optional<double> s_first, s_last;  ///< default: the range the energy scales cover
   std::function<void(const GapSearchProgress&)> progress;  ///< called after each point
   /// Resuming a long search: `lookup` is asked before each eigenproblem (return the
@@ -165,6 +174,8 @@ struct MinimumGapReport {
   double s_first = 0.0, s_last = 1.0;
   std::size_t evaluations = 0;              ///< eigenproblems solved (main sector)
   std::size_t resumed_points = 0;           ///< points taken from `lookup` instead
+  long operator_applications = 0;           ///< H x products of the main-sector solves (Lanczos only)
+  std::size_t warm_solves = 0;              ///< main-sector solves that were warm-started
   double wall_seconds = 0.0;
 };
 

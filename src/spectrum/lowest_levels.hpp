@@ -23,6 +23,17 @@
 // none (only phases commute with D, and only a constant phase also commutes with
 // sum X), so for such problems the check is skipped unless B = 0.
 // Dense results need no such check.
+//
+// Error bounds: every level gets the residual (Weinstein) bound ||H v - E v||
+// and, where the found neighbours leave room, the quadratic Kato-Temple bound
+// r^2 / delta (delta: distance to the nearest other level's interval E_i +- r_i;
+// Kato, J. Phys. Soc. Japan 4, 334 (1949); Temple, Proc. R. Soc. A 119, 276
+// (1928)); error_bounds_ghz holds the smaller. With `quadratic_bounds` the
+// Lanczos tolerance is relaxed as far as these bounds still meet `tolerance`
+// (relative) for the first `bounded_levels` levels, and tightened step by step
+// to `tolerance` itself where they do not (tight clusters). A warm start
+// (`start`: the previous point's vectors as columns) seeds Lanczos with their
+// sum; see level_tracker.hpp for the object that carries it along s.
 #include <cstddef>
 #include <string>
 #include <vector>
@@ -45,12 +56,19 @@ struct LevelOptions {
   EigenMethod method = EigenMethod::Auto;
   bool check_missed_levels = true; ///< Lanczos only: deflation check for missed degenerate partners
   double tolerance = 1e-12;        ///< Lanczos: relative residual of each Ritz pair
+  /// Lanczos: relax the residual tolerance while the Kato-Temple bounds of the first
+  /// `bounded_levels` levels (0: all) stay within tolerance * max(1, |E|) (see above).
+  bool quadratic_bounds = false;
+  int bounded_levels = 0;
 };
 
 struct Levels {
   std::vector<double> energies_ghz;   ///< ascending
   Eigen::MatrixXd vectors;            ///< columns, when requested (sector basis)
   std::vector<double> residuals_ghz;  ///< ||H v - E v|| per level when vectors were computed (error bound on E)
+  /// min(residual, Kato-Temple bound) per level when vectors were computed: |E - exact| <= this.
+  std::vector<double> error_bounds_ghz;
+  int operator_applications = 0;      ///< H x products spent (Lanczos, deflation check and residuals)
   EigenMethod method_used = EigenMethod::Auto;
   int iterations = 0;                 ///< Lanczos restarts (main solve)
   int missed_levels_found = 0;        ///< levels the deflation check added
@@ -65,6 +83,16 @@ inline constexpr std::size_t kDenseHardMaxDim = 8192;
 /// Throws std::runtime_error when Lanczos does not converge (never a silent result),
 /// InputError when the dense solver is forced on a dimension above kDenseHardMaxDim.
 Levels lowest_levels(const SectorHamiltonian& h, double a_ghz, double b_ghz, const LevelOptions& options);
+/// The same, warm-started from `start` (columns: approximate eigenvectors, e.g. those
+/// of a nearby s; nullptr or an empty matrix: cold start).
+Levels lowest_levels(const SectorHamiltonian& h, double a_ghz, double b_ghz, const LevelOptions& options,
+                     const Eigen::MatrixXd* start);
+
+/// Per-level error bounds from energies (ascending) and residual norms:
+/// min(r_j, r_j^2 / delta_j), delta_j the distance from E_j to the nearest other
+/// level's interval [E_i - r_i, E_i + r_i]; the highest level has no known
+/// neighbour above and keeps r_j. Assumes no level between the ones given is missing.
+std::vector<double> kato_temple_bounds(const std::vector<double>& energies, const std::vector<double>& residuals);
 
 /// Full space.
 Levels lowest_levels(const TransverseIsingHamiltonian& h, double a_ghz, double b_ghz, int k, bool vectors,
