@@ -130,6 +130,9 @@ TEST_CASE("fused phase + rotation: tangent and plain rotation forms, permute, ga
   // +-1 couplings: at most 32 levels at 12 qubits; couplings scaled by 1/16 of
   // random integers give more than 32 table levels; real random couplings at
   // 17 qubits give more than 65536 (per-state).
+  // The level table forced (the default would compute the 1/16 case's phases
+  // per state; tests/test_phase_kernels.cpp covers every method).
+  SplitExponentials::set_phase_method(PhaseMethod::Table);
   for (const Case c : {Case{12, 3, true, 1.0}, Case{11, 4, false, 0.0}, Case{17, 11, false, -1.0}}) {
     IsingProblem p = random_problem(c.n, c.seed, c.integer);
     if (c.scale == 0.0)  // integer multiples of 1/16 (exactly representable) in [-2, 2]
@@ -168,6 +171,7 @@ TEST_CASE("fused phase + rotation: tangent and plain rotation forms, permute, ga
       CHECK(worst < 1e-12 * std::max(1.0, norm));
     }
   }
+  SplitExponentials::set_phase_method(PhaseMethod::Auto);
 }
 
 TEST_CASE("phase table and per-state phases agree (few distinct levels versus many)") {
