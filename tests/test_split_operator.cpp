@@ -206,7 +206,7 @@ TEST_CASE("split propagators agree with the odeint reference on random problems"
     for (bool integer : {true, false}) {
       IsingProblem prob = random_problem(5, seed, integer);
       Run ref = anneal(prob, path, "odeint", 1e-10);
-      for (const char* name : {"split4", "split2", "split4-yoshida"}) {
+      for (const char* name : {"split4", "split2", "split4-yoshida", "split4-bm"}) {
         Run r = anneal(prob, path, name, 1e-6);
         CAPTURE(seed);
         CAPTURE(integer);
@@ -274,7 +274,8 @@ TEST_CASE("order of convergence: error ratio ~4 (second order) and ~16 (fourth o
   }
   const SplitState ref_split = SplitState::from(ref);
   for (auto [comp, want] : {std::pair{SplitComposition::Strang2, 4.0}, std::pair{SplitComposition::Suzuki4, 16.0},
-                            std::pair{SplitComposition::Yoshida4, 16.0}}) {
+                            std::pair{SplitComposition::Yoshida4, 16.0},
+                            std::pair{SplitComposition::BlanesMoan4, 16.0}}) {
     SplitOperatorPropagator prop(H, {}, comp);
     auto error = [&](long steps) {
       SplitState x = SplitState::from(uniform_superposition(4));

@@ -29,7 +29,7 @@ namespace gapwise::cli {
 namespace {
 
 struct AnnealOptions {
-  std::string problem, schedule, out, csv, propagator = "split4", observe_s;
+  std::string problem, schedule, out, csv, propagator = "split-auto", observe_s;
   std::optional<double> duration_ns;
   double tolerance = 1e-6;
   bool p_only = false;
@@ -324,8 +324,10 @@ void register_anneal(CLI::App& app) {
                   "anneal duration in ns; stretches the schedule's path (default: the schedule's own)");
   sub->add_option("--tolerance", o->tolerance, "target accuracy of the ground-state probability (checked by a re-run at tolerance/10)")->capture_default_str();
   sub->add_option("--propagator", o->propagator,
-                  "which propagator runs the dynamics: split4 (fast, fourth order, default), split2 (second\n"
-                  "order), split4-yoshida (fourth order, triple jump), odeint (the generic reference)")
+                  "which propagator runs the dynamics: split-auto (default: second-order split steps while the\n"
+                  "splitting threshold sets the step, Blanes-Moan fourth order when accuracy does), split4 (Suzuki\n"
+                  "fourth order), split2 (second order), split4-yoshida (triple jump), split4-bm (Blanes-Moan\n"
+                  "fourth order: smallest error per step), odeint (the generic reference)")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
   sub->add_option("--samples", o->samples, "evenly spaced observations inside each piece of the path (trace)")->capture_default_str();
   sub->add_option("--observe-s", o->observe_s,
