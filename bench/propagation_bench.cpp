@@ -19,6 +19,7 @@
 #include <cstdio>
 #include <cstdlib>
 #include <cstring>
+#include <unistd.h>
 #include <fstream>
 #include <functional>
 #include <iostream>
@@ -26,6 +27,7 @@
 #include <sstream>
 #include <limits>
 #include <string>
+#include <random>
 #include <vector>
 
 #include <fmt/format.h>
@@ -34,7 +36,9 @@
 #include "dynamics/split_operator_propagator.hpp"
 #include "io/atomic_file.hpp"
 #include "problem/classical_spectrum.hpp"
+#include "problem/embedding.hpp"
 #include "problem/instance_families.hpp"
+#include "problem/seeded_random.hpp"
 
 using namespace gapwise;
 using Clock = std::chrono::steady_clock;
@@ -51,12 +55,67 @@ std::vector<double> parse_list(const char* s) {
   return v;
 }
 
-IsingProblem bench_problem(int n) {
+// The problem classes of the benchmark (all invented, seeded). The field-free
+// +-1 glass is the easiest case for the kernels (few distinct diagonal values,
+// spin-flip symmetry); the others are what users run: fields, real-valued
+// couplings, QUBO-derived problems, embedded problems with chains.
+const std::vector<std::string> kClasses{"glass", "glass-fields", "gaussian", "qubo", "embedded"};
+
+std::string class_description(const std::string& c) {
+  if (c == "glass") return "+-1 couplings on a ring + 0.5 chords/qubit, no fields";
+  if (c == "glass-fields") return "the same glass with fields +-0.15 and one coupling set to 0.3";
+  if (c == "gaussian") return "N(0,1) couplings on a ring + 0.5 chords/qubit, N(0,0.3^2) fields";
+  if (c == "qubo") return "random integer QUBO (Q_ii in -3..3, Q_ij in -2..2 on ring + chords), converted exactly";
+  if (c == "embedded") return "+-1 glass with fields on n/2 variables, chains of 2 qubits, chain coupling 2x largest term";
+  return "?";
+}
+
+IsingProblem bench_problem(const std::string& cls, int n) {
   FamilySpec f;
   f.graph = GraphKind::RingPlusChords;
-  f.couplings = CouplingKind::PlusMinusOne;
+  f.couplings = cls == "gaussian" ? CouplingKind::Gaussian : CouplingKind::PlusMinusOne;
   f.seed = 2026;
-  return generate_instance(f, n, 0).problem;
+  if (cls == "glass" || cls == "gaussian" || cls == "glass-fields") {
+    IsingProblem p = generate_instance(f, n, 0).problem;
+    std::mt19937_64 rng(derive_seed(2026, {static_cast<std::uint64_t>(n), 77}));
+    if (cls == "glass-fields") {
+      for (double& h : p.h) h = (rng() & 1) ? 0.15 : -0.15;
+      p.couplings[rng() % p.couplings.size()].value = 0.3;
+    } else if (cls == "gaussian") {
+      std::normal_distribution<double> g(0.0, 0.3);
+      for (double& h : p.h) h = g(rng);
+    }
+    return p;
+  }
+  if (cls == "qubo") {
+    std::mt19937_64 rng(derive_seed(2026, {static_cast<std::uint64_t>(n), 78}));
+    QuboProblem q;
+    q.variables = n;
+    for (int i = 0; i < n; ++i) q.terms.push_back({i, i, static_cast<double>(static_cast<int>(rng() % 7) - 3)});
+    for (const Edge& e : make_graph(GraphKind::RingPlusChords, n, 0.5, 2026 + n)) {
+      int v = static_cast<int>(rng() % 4) - 2;
+      if (v >= 0) ++v;  // -2, -1, 1, 2
+      q.terms.push_back({e.i, e.j, static_cast<double>(v)});
+    }
+    q.offset = 1.5;
+    return qubo_to_ising(q);
+  }
+  if (cls == "embedded") {
+    if (n % 2) throw std::invalid_argument("the embedded class needs an even qubit count");
+    const int m = n / 2;
+    IsingProblem logical = bench_problem("glass-fields", m);
+    Embedding e;
+    e.physical_qubits = n;
+    e.couplers_given = true;
+    for (int v = 0; v < m; ++v) {
+      e.chains.push_back({2 * v, 2 * v + 1});
+      e.couplers.push_back({2 * v, 2 * v + 1});
+    }
+    for (const Coupling& c : logical.couplings) e.couplers.push_back({2 * c.i + 1, 2 * c.j});
+    std::sort(e.couplers.begin(), e.couplers.end());
+    return embed_problem(logical, e, ChainStrength::relative_to_largest(2.0)).physical;
+  }
+  throw std::invalid_argument("unknown problem class '" + cls + "' (classes: glass, glass-fields, gaussian, qubo, embedded)");
 }
 
 long peak_rss_kib() {
@@ -88,10 +147,9 @@ double time_per_call(const std::function<void()>& f, double batch_s = 0.03) {
 }
 
 struct Row {
-  int n;
-  double duration_ns;
-  double p, wall_s, est, err_vs_tight, stages_per_s;
-  long steps;
+  std::string method;
+  double p = 0, wall_s = 0, est = 0, err_vs_tight = 0, stages_per_s = 0;
+  long steps = 0;
 };
 
 Row run_split(const IsingProblem& prob, double duration, double tol, const std::string& name) {
@@ -102,26 +160,66 @@ Row run_split(const IsingProblem& prob, double duration, double tol, const std::
   SimulationOptions o;
   // "NAME:p" controls p alone (as the SciPy script does), not also every
   // outcome set to 100x the tolerance as simulate_anneal does by default.
+  // "default": whatever simulate_anneal uses when nothing is chosen.
   const auto colon = name.find(':');
-  o.propagator = name.substr(0, colon);
+  const std::string base = name.substr(0, colon);
+  if (base != "default") o.propagator = base;
   if (colon != std::string::npos) o.propagation.others_factor = std::numeric_limits<double>::infinity();
   o.propagation.tolerance = tol;
   const auto t0 = Clock::now();
   AnnealResult r = simulate_anneal(H, gm, scales, path, uniform_superposition(prob.qubits), o);
   const double wall = seconds_since(t0);
-  return {prob.qubits, duration, r.ground_probability, wall, r.stats.error_estimate, 0.0,
-          static_cast<double>(r.stats.hamiltonian_applications) / wall, r.stats.steps};
+  return {name == "default" ? "default(" + r.propagator + ")" : name, r.ground_probability, wall,
+          r.stats.error_estimate, 0.0, static_cast<double>(r.stats.hamiltonian_applications) / wall, r.stats.steps};
+}
+
+// A peer script (SciPy or QuTiP) on the same problem: one line
+// "steps N p P error E wall SECONDS" (steps: the accepted step count or the
+// accepted tolerance). Returns wall < 0 when it failed.
+struct PeerResult {
+  double wall = -1, p = 0, steps = 0, err = 0;
+  std::string text;
+};
+
+PeerResult run_peer(const std::string& python, const std::string& script, const IsingProblem& prob, double duration,
+                    double p_ref, double target, double budget_s) {
+  std::string couplings, fields;
+  for (const auto& c : prob.couplings) couplings += fmt::format("{},{},{:.17g};", c.i, c.j, c.value);
+  for (std::size_t i = 0; i < prob.h.size(); ++i) fields += fmt::format("{}{:.17g}", i ? "," : "", prob.h[i]);
+  const std::string out = fmt::format("/tmp/gapwise-bench-peer-{}-{}.txt", ::getpid(), prob.qubits);
+  const std::string cmd =
+      fmt::format("'{}' '{}' --qubits {} --couplings='{}' --fields='{}' --duration-ns {} --reference-p {:.15f} "
+                  "--target {} --budget-s {} > '{}' 2>&1",
+                  python, script, prob.qubits, couplings, fields, duration, p_ref, target, budget_s, out);
+  PeerResult r;
+  const int rc = std::system(cmd.c_str());
+  std::ifstream f(out);
+  r.text.assign(std::istreambuf_iterator<char>(f), {});
+  std::remove(out.c_str());
+  if (rc != 0 || std::sscanf(r.text.c_str(), "steps %lf p %lf error %lf wall %lf", &r.steps, &r.p, &r.err, &r.wall) != 4)
+    r.wall = -1;
+  while (!r.text.empty() && (r.text.back() == '\n' || r.text.back() == ' ')) r.text.pop_back();
+  return r;
+}
+
+std::vector<std::string> split_names(const std::string& s) {
+  std::vector<std::string> v;
+  std::stringstream ss(s);
+  for (std::string item; std::getline(ss, item, ',');) v.push_back(item);
+  return v;
 }
 
 }  // namespace
 
 int main(int argc, char** argv) {
-  std::vector<double> sizes{8, 10, 12, 14, 16}, durations{10, 100, 1000};
-  int odeint_max_n = 10, scipy_max_n = 0, big_n = 20;
-  double odeint_max_t = 100;
+  std::vector<double> sizes{8, 10, 12, 14}, durations{100};
+  std::vector<std::string> classes = kClasses;
+  int odeint_max_n = 0, scipy_max_n = 14, qutip_max_n = 10, big_n = 16;
+  double odeint_max_t = 100, peer_budget_s = 300;
   double tol = 1e-6;
-  std::string scipy;
-  std::vector<std::string> props{"split2:p", "split2", "split4"};
+  bool kernels = true, rows_wanted = true;
+  std::string scipy = "bench/scipy_midpoint_anneal.py", qutip = "bench/qutip_sesolve_anneal.py";
+  std::vector<std::string> props{"default", "split2", "split4", "split4-bm", "split4-yoshida"};
   std::string python = "/usr/bin/python3";
   for (int i = 1; i < argc; ++i) {
     const std::string a = argv[i];
@@ -131,140 +229,166 @@ int main(int argc, char** argv) {
     };
     if (a == "--sizes") sizes = parse_list(next());
     else if (a == "--durations") durations = parse_list(next());
+    else if (a == "--classes") classes = split_names(next());
     else if (a == "--odeint-max-n") odeint_max_n = std::atoi(next());
     else if (a == "--odeint-max-ns") odeint_max_t = std::atof(next());
     else if (a == "--scipy") scipy = next();
     else if (a == "--scipy-max-n") scipy_max_n = std::atoi(next());
+    else if (a == "--qutip") qutip = next();
+    else if (a == "--qutip-max-n") qutip_max_n = std::atoi(next());
+    else if (a == "--peer-budget-s") peer_budget_s = std::atof(next());
     else if (a == "--python") python = next();
     else if (a == "--big-n") big_n = std::atoi(next());
     else if (a == "--tolerance") tol = std::atof(next());
-    else if (a == "--propagators") {
-      props.clear();
-      std::stringstream ss(next());
-      for (std::string item; std::getline(ss, item, ',');) props.push_back(item);
+    else if (a == "--no-kernels") kernels = false;
+    else if (a == "--kernels-only") rows_wanted = false;
+    else if (a == "--phase-method") {
+      const std::string m = next();
+      if (m == "table") SplitExponentials::set_phase_method(PhaseMethod::Table);
+      else if (m == "direct") SplitExponentials::set_phase_method(PhaseMethod::Direct);
+      else if (m != "auto") { std::fprintf(stderr, "--phase-method: auto, table or direct\n"); return 2; }
     }
-    else {
+    else if (a == "--propagators") props = split_names(next());
+    else if (a == "--quick") {
+      sizes = {8, 10};
+      scipy_max_n = 8;
+      qutip_max_n = 8;
+      big_n = 0;
+      peer_budget_s = 60;
+    } else {
       std::printf(
-          "bench_propagation [--sizes 8,10,...] [--durations 10,100,1000] [--tolerance 1e-6]\n"
-          "  [--odeint-max-n N]   run the odeint reference for n <= N (slow: minutes at n = 14, 100 ns)\n"
+          "bench_propagation: propagation speed on problem classes, side by side with SciPy and QuTiP peers\n"
+          "  [--classes glass,glass-fields,gaussian,qubo,embedded]  problem classes (all by default)\n"
+          "  [--sizes 8,10,12,14] [--durations 100] [--tolerance 1e-6]\n"
+          "  [--propagators default,split2,split4,split4-bm,split4-yoshida]  rows per problem; 'default' is what the anneal\n"
+          "                       command uses unchosen; NAME:p controls the error of p alone (as the peers do)\n"
+          "  [--odeint-max-n N]   also time the odeint reference for n <= N (slow; 0: never, the default)\n"
           "  [--odeint-max-ns T]  ... and for durations <= T ns (default 100)\n"
-          "  [--scipy SCRIPT --scipy-max-n N] [--python /usr/bin/python3]  SciPy comparison at 100 ns\n"
-          "  [--big-n N]          one extra run at 100 ns on N qubits (memory and time; 0 to skip)\n"
-          "  [--propagators split2:p,split2,split4]  fast propagators to time (each row: one); NAME:p controls\n"
-          "                       the error of p alone, as the SciPy side does (default: p to the tolerance and\n"
-          "                       every outcome set to 100x it)\n");
+          "  [--scipy SCRIPT] [--scipy-max-n N]  SciPy midpoint-exponential peer (default bench/scipy_midpoint_anneal.py, n <= 14)\n"
+          "  [--qutip SCRIPT] [--qutip-max-n N]  QuTiP sesolve peer (default bench/qutip_sesolve_anneal.py, n <= 10)\n"
+          "  [--peer-budget-s S]  a peer's search for its accepted settings gives up after S s (default 300)\n"
+          "  [--python /usr/bin/python3]\n"
+          "  [--big-n N]          one extra run of the default propagator at 100 ns on N qubits of the glass\n"
+          "                       with fields (default 16; 0 to skip)\n"
+          "  [--no-kernels]       skip the kernel bandwidth table; [--kernels-only] print only that table\n"
+          "  [--phase-method auto|table|direct]  force how phases are found (to compare; default auto)\n"
+          "  [--quick]            smoke run: n = 8, 10; peers at n = 8 only; no big run\n"
+          "Peers are skipped above their -max-n (they take minutes there); the output says so.\n");
       return a == "--help" || a == "-h" ? 0 : 2;
     }
   }
+  for (const auto& c : classes) (void)bench_problem(c, 8);  // unknown names fail before any work
   const char* threads = std::getenv("OMP_NUM_THREADS");
-  std::printf("gapwise propagation benchmark: +-1 spin glass (ring + 0.5 chords/qubit, seed 2026), linear 5 GHz scales, "
-              "tolerance %.0e, OMP_NUM_THREADS=%s\n\n", tol, threads ? threads : "(unset)");
+  std::printf("gapwise propagation benchmark: linear 5 GHz scales, tolerance %.0e on p, OMP_NUM_THREADS=%s\n",
+              tol, threads ? threads : "(unset)");
+  for (const auto& c : classes) std::printf("  %-13s %s (seed 2026)\n", c.c_str(), class_description(c).c_str());
 
-  // Kernels: rotation sweep and phase pass against a copy of the same bytes.
-  std::printf("%-3s %10s %12s %12s %12s %9s %9s\n", "n", "state", "copy GB/s", "rotate GB/s", "phase GB/s", "rot/copy",
-              "phase/copy");
-  for (double nd : sizes) {
-    const int n = static_cast<int>(nd);
-    IsingProblem prob = bench_problem(n);
-    TransverseIsingHamiltonian H(prob);
-    SplitExponentials ex(H);
-    SplitState x = SplitState::from(uniform_superposition(n));
-    SplitState y(H.dim());
-    const double bytes = 16.0 * static_cast<double>(H.dim());  // re + im arrays
-    const double t_copy = time_per_call([&] { y.copy_from(x); });
-    const double t_rot = time_per_call([&] { ex.rotate(x, 0.01); });
-    const double t_ph = time_per_call([&] { ex.phase(x, 0.01); });
-    // copy: read + write of the state; rotation: rotate_passes() sweeps, each a
-    // read + write; phase: read + write plus the 2-byte level index.
-    const double bw_copy = 2 * bytes / t_copy / 1e9;
-    const double bw_rot = 2 * bytes * ex.rotate_passes() / t_rot / 1e9;
-    const double bw_ph = (2 * bytes + 2.0 * static_cast<double>(H.dim())) / t_ph / 1e9;
-    std::printf("%-3d %10s %12.1f %12.1f %12.1f %8.0f%% %8.0f%%\n", n, fmt::format("{} KiB", bytes / 1024).c_str(),
-                bw_copy, bw_rot, bw_ph, 100 * bw_rot / bw_copy, 100 * bw_ph / bw_copy);
+  if (kernels) {
+    // Kernels: rotation sweep, phase pass and the fused phase + rotation sweep
+    // against a copy of the same bytes, measured right before.
+    std::printf("\n%-13s %-3s %9s %9s %8s %9s %9s %9s %8s %8s %8s\n", "class", "n", "state", "levels", "copy GB/s",
+                "rot GB/s", "phase GB/s", "fused GB/s", "rot/cp", "ph/cp", "fused/cp");
+    for (const auto& cls : classes)
+      for (double nd : sizes) {
+        const int n = static_cast<int>(nd);
+        IsingProblem prob = bench_problem(cls, n);
+        TransverseIsingHamiltonian H(prob);
+        SplitExponentials ex(H);
+        SplitState x = SplitState::from(uniform_superposition(n));
+        SplitState y(H.dim());
+        const double bytes = 16.0 * static_cast<double>(H.dim());  // re + im arrays
+        const double t_copy = time_per_call([&] { y.copy_from(x); });
+        const double t_rot = time_per_call([&] { ex.rotate(x, 0.01); });
+        const double t_ph = time_per_call([&] { ex.phase(x, 0.01); });
+        const double t_fu = time_per_call([&] { ex.phase_then_rotate(x, 0.01, 0.01); });
+        // Bandwidth counts the state's bytes only (read + write per pass), so a
+        // kernel that also reads tables or an index shows that as lost speed.
+        const double bw_copy = 2 * bytes / t_copy / 1e9;
+        const double bw_rot = 2 * bytes * ex.rotate_passes() / t_rot / 1e9;
+        const double bw_ph = 2 * bytes / t_ph / 1e9;
+        const double bw_fu = 2 * bytes * ex.rotate_passes() / t_fu / 1e9;
+        std::printf("%-13s %-3d %9s %9zu %8.1f %9.1f %9.1f %9.1f %7.0f%% %7.0f%% %7.0f%%\n", cls.c_str(), n,
+                    fmt::format("{} KiB", bytes / 1024).c_str(), ex.distinct_levels(), bw_copy, bw_rot, bw_ph, bw_fu,
+                    100 * bw_rot / bw_copy, 100 * bw_ph / bw_copy, 100 * bw_fu / bw_copy);
+        std::fflush(stdout);
+      }
   }
 
-  std::printf("\n%-3s %8s %-8s %14s %9s %8s %10s %10s %12s %10s %10s\n", "n", "T (ns)", "method", "p_ground", "wall s", "steps",
-              "stages/s", "est. err", "err vs tight", "odeint s", "odeint x");
-  for (double nd : sizes) {
-    const int n = static_cast<int>(nd);
-    IsingProblem prob = bench_problem(n);
-    for (double T : durations) {
-      Row tight = run_split(prob, T, tol / 1000, "split4");
-      std::vector<Row> rows;
-      for (const auto& name : props) {
-        rows.push_back(run_split(prob, T, tol, name));
-        rows.back().err_vs_tight = std::abs(rows.back().p - tight.p);
-      }
-      double od_wall = -1;
-      if (n <= odeint_max_n && T <= odeint_max_t) {
-        Row o = run_split(prob, T, tol, "odeint");
-        od_wall = o.wall_s;
-        std::printf("    (odeint p = %.10f, |p - p_tight| = %.1e, %.2f s)\n", o.p, std::abs(o.p - tight.p), o.wall_s);
-      }
-      for (std::size_t k = 0; k < rows.size(); ++k) {
-        const Row& r = rows[k];
-        const std::string od = od_wall < 0 ? "-" : fmt::format("{:.2f}", od_wall);
-        const std::string ratio = od_wall < 0 ? "-" : fmt::format("{:.1f}", od_wall / r.wall_s);
-        std::printf("%-3d %8.0f %-8s %14.10f %9.3f %8ld %10.3g %10.1e %12.1e %10s %10s\n", n, T, props[k].c_str(), r.p,
-                    r.wall_s, r.steps, r.stages_per_s, r.est, r.err_vs_tight, od.c_str(), ratio.c_str());
-      }
-      std::fflush(stdout);
-    }
-  }
-
-  if (!scipy.empty()) {
-    std::printf("\nSciPy (%s, %s): 100 ns, matched accuracy 1e-6 on p\n", scipy.c_str(), python.c_str());
+  if (!rows_wanted) return 0;
+  std::printf("\nPer problem: the default settings first, then each propagator; p_tight from split4 at tolerance/1000.\n"
+              "Peers (same problem, 100 ns, |p - p_tight| <= %.0e and converged against a finer run): SciPy's\n"
+              "expm_multiply at the largest midpoint step that meets it, QuTiP sesolve (array coefficients) at the\n"
+              "loosest tolerance that meets it. 'x SciPy' = SciPy wall / this row's wall (same run, same machine).\n",
+              tol);
+  for (const auto& cls : classes) {
+    std::printf("\n[%s] %s\n", cls.c_str(), class_description(cls).c_str());
+    std::printf("%-3s %6s %-20s %14s %9s %8s %9s %9s %10s %8s %8s\n", "n", "T ns", "method", "p_ground", "wall s",
+                "steps", "stages/s", "est. err", "err/tight", "x SciPy", "x QuTiP");
     for (double nd : sizes) {
       const int n = static_cast<int>(nd);
-      if (n > scipy_max_n) continue;
-      IsingProblem prob = bench_problem(n);
-      Row tight = run_split(prob, 100.0, tol / 1000, "split4");
-      std::vector<Row> rows;
-      for (const auto& name : props) {
-        rows.push_back(run_split(prob, 100.0, tol, name));
-        rows.back().err_vs_tight = std::abs(rows.back().p - tight.p);
-      }
-      // The script takes the problem as a list of couplings and the reference p.
-      std::string couplings;
-      for (const auto& c : prob.couplings) couplings += fmt::format("{},{},{};", c.i, c.j, c.value);
-      const std::string out = fmt::format("/tmp/gapwise-bench-scipy-{}.txt", n);
-      const std::string cmd = fmt::format("'{}' '{}' --qubits {} --couplings '{}' --duration-ns 100 --reference-p {:.15f} "
-                                          "--target 1e-6 > '{}'", python, scipy, n, couplings, tight.p, out);
-      const int rc = std::system(cmd.c_str());
-      std::ifstream f(out);
-      std::string text((std::istreambuf_iterator<char>(f)), {});
-      double sp_wall = -1, sp_p = 0, sp_steps = 0, sp_err = 0;
-      std::sscanf(text.c_str(), "steps %lf p %lf error %lf wall %lf", &sp_steps, &sp_p, &sp_err, &sp_wall);
-      if (rc != 0 || sp_wall < 0) {
-        std::printf("  n=%d: the SciPy script failed (exit %d): %s\n", n, rc, text.c_str());
+      IsingProblem prob;
+      try {
+        prob = bench_problem(cls, n);
+      } catch (const std::exception& e) {
+        std::printf("%-3d (skipped: %s)\n", n, e.what());
         continue;
       }
-      std::printf("  n=%-3d SciPy %6.0f steps, p = %.10f (|p - p_tight| %.1e), %.2f s\n", n, sp_steps, sp_p, sp_err, sp_wall);
-      for (std::size_t k = 0; k < rows.size(); ++k)
-        std::printf("         %-8s %.3f s (est. err %.1e, |p - p_tight| %.1e)  ->  %.0fx faster than SciPy\n",
-                    props[k].c_str(), rows[k].wall_s, rows[k].est, rows[k].err_vs_tight, sp_wall / rows[k].wall_s);
-      std::fflush(stdout);
+      for (double T : durations) {
+        Row tight = run_split(prob, T, tol / 1000, "split4");
+        std::vector<Row> rows;
+        for (const auto& name : props) {
+          rows.push_back(run_split(prob, T, tol, name));
+          rows.back().err_vs_tight = std::abs(rows.back().p - tight.p);
+        }
+        if (n <= odeint_max_n && T <= odeint_max_t) {
+          rows.push_back(run_split(prob, T, tol, "odeint"));
+          rows.back().err_vs_tight = std::abs(rows.back().p - tight.p);
+        }
+        PeerResult sp, qt;
+        std::string notes;
+        if (!scipy.empty() && n <= scipy_max_n) {
+          sp = run_peer(python, scipy, prob, T, tight.p, tol, peer_budget_s);
+          notes += sp.wall < 0 ? fmt::format("    SciPy failed: {}\n", sp.text)
+                               : fmt::format("    SciPy  {:.0f} steps, p = {:.10f}, |p - p_tight| {:.1e}, {:.2f} s\n",
+                                             sp.steps, sp.p, sp.err, sp.wall);
+        } else if (!scipy.empty()) {
+          notes += fmt::format("    SciPy  not run above n = {} (minutes per run; --scipy-max-n)\n", scipy_max_n);
+        }
+        if (!qutip.empty() && n <= qutip_max_n) {
+          qt = run_peer(python, qutip, prob, T, tight.p, tol, peer_budget_s);
+          notes += qt.wall < 0 ? fmt::format("    QuTiP  failed: {}\n", qt.text)
+                               : fmt::format("    QuTiP  tolerance {:.0e}, p = {:.10f}, |p - p_tight| {:.1e}, {:.2f} s\n",
+                                             qt.steps, qt.p, qt.err, qt.wall);
+        } else if (!qutip.empty()) {
+          notes += fmt::format("    QuTiP  not run above n = {} (minutes per run; --qutip-max-n)\n", qutip_max_n);
+        }
+        for (const Row& r : rows) {
+          const std::string xs = sp.wall < 0 ? "-" : fmt::format("{:.0f}", sp.wall / r.wall_s);
+          const std::string xq = qt.wall < 0 ? "-" : fmt::format("{:.0f}", qt.wall / r.wall_s);
+          std::printf("%-3d %6.0f %-20s %14.10f %9.3f %8ld %9.3g %9.1e %10.1e %8s %8s\n", n, T, r.method.c_str(), r.p,
+                      r.wall_s, r.steps, r.stages_per_s, r.est, r.err_vs_tight, xs.c_str(), xq.c_str());
+        }
+        std::printf("%s", notes.c_str());
+        std::fflush(stdout);
+      }
     }
   }
 
   if (big_n > 0) {
-    IsingProblem prob = bench_problem(big_n);
-    TransverseIsingHamiltonian H(prob);
-    GroundManifold gm = find_ground_manifold(prob, H.diagonal());
-    PropagatorOptions popt;
-    popt.tolerance = tol;
-    popt.watched_states.assign(gm.states.begin(), gm.states.end());  // as simulate_anneal does: p to the tolerance
-    SplitOperatorPropagator prop(H, popt, SplitComposition::Strang2);
-    const EnergyScales scales = EnergyScales::linear(5.0, 5.0);
-    const AnnealDrive drive{&scales, AnnealPath({{0.0, 0.0}, {100.0, 1.0}})};
-    QuantumState psi = uniform_superposition(big_n);
-    PropagationStats st;
-    const auto t0 = Clock::now();
-    prop.advance(drive, 0.0, 100.0, psi, st);
-    const double wall = seconds_since(t0);
-    std::printf("\nn=%d, 100 ns, split2 (p to the tolerance, other outcomes to 100x): p = %.8f, est. err %.1e, %ld steps, %.1f s; propagator holds %.0f MiB, peak RSS %.0f MiB\n",
-                big_n, ground_probability(psi, gm), st.error_estimate, st.steps, wall,
-                static_cast<double>(prop.memory_bytes()) / 1048576.0, static_cast<double>(peak_rss_kib()) / 1024.0);
+    std::printf("\nLarge runs: the default settings, 100 ns, n = %d\n", big_n);
+    for (const auto& cls : classes) {
+      if (cls != "glass-fields") continue;
+      IsingProblem prob;
+      try {
+        prob = bench_problem(cls, big_n);
+      } catch (const std::exception& e) {
+        continue;
+      }
+      Row r = run_split(prob, 100.0, tol, "default");
+      std::printf("  %-13s p = %.8f, est. err %.1e, %ld steps, %.2f s, peak RSS %.0f MiB\n", cls.c_str(), r.p, r.est,
+                  r.steps, r.wall_s, static_cast<double>(peak_rss_kib()) / 1024.0);
+      std::fflush(stdout);
+    }
   }
   return 0;
 }

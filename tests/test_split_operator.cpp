@@ -130,6 +130,9 @@ TEST_CASE("fused phase + rotation: tangent and plain rotation forms, permute, ga
   // +-1 couplings: at most 32 levels at 12 qubits; couplings scaled by 1/16 of
   // random integers give more than 32 table levels; real random couplings at
   // 17 qubits give more than 65536 (per-state).
+  // The level table forced (the default would compute the 1/16 case's phases
+  // per state; tests/test_phase_kernels.cpp covers every method).
+  SplitExponentials::set_phase_method(PhaseMethod::Table);
   for (const Case c : {Case{12, 3, true, 1.0}, Case{11, 4, false, 0.0}, Case{17, 11, false, -1.0}}) {
     IsingProblem p = random_problem(c.n, c.seed, c.integer);
     if (c.scale == 0.0)  // integer multiples of 1/16 (exactly representable) in [-2, 2]
@@ -168,6 +171,7 @@ TEST_CASE("fused phase + rotation: tangent and plain rotation forms, permute, ga
       CHECK(worst < 1e-12 * std::max(1.0, norm));
     }
   }
+  SplitExponentials::set_phase_method(PhaseMethod::Auto);
 }
 
 TEST_CASE("phase table and per-state phases agree (few distinct levels versus many)") {
@@ -202,7 +206,7 @@ TEST_CASE("split propagators agree with the odeint reference on random problems"
     for (bool integer : {true, false}) {
       IsingProblem prob = random_problem(5, seed, integer);
       Run ref = anneal(prob, path, "odeint", 1e-10);
-      for (const char* name : {"split4", "split2", "split4-yoshida"}) {
+      for (const char* name : {"split4", "split2", "split4-yoshida", "split4-bm"}) {
         Run r = anneal(prob, path, name, 1e-6);
         CAPTURE(seed);
         CAPTURE(integer);
@@ -270,7 +274,8 @@ TEST_CASE("order of convergence: error ratio ~4 (second order) and ~16 (fourth o
   }
   const SplitState ref_split = SplitState::from(ref);
   for (auto [comp, want] : {std::pair{SplitComposition::Strang2, 4.0}, std::pair{SplitComposition::Suzuki4, 16.0},
-                            std::pair{SplitComposition::Yoshida4, 16.0}}) {
+                            std::pair{SplitComposition::Yoshida4, 16.0},
+                            std::pair{SplitComposition::BlanesMoan4, 16.0}}) {
     SplitOperatorPropagator prop(H, {}, comp);
     auto error = [&](long steps) {
       SplitState x = SplitState::from(uniform_superposition(4));

@@ -30,7 +30,7 @@ namespace gapwise::cli {
 namespace {
 
 struct AnnealOptions {
-  std::string problem, schedule, out, csv, propagator = "split4", observe_s, durations, bath;
+  std::string problem, schedule, out, csv, propagator = "split-auto", observe_s, durations, bath;
   double tolerance = 1e-6;
   bool p_only = false;
   int trace_points = 20, top = 8, levels = 0;
@@ -341,8 +341,10 @@ void register_anneal(CLI::App& app) {
                        "anneal duration in ns, one value; stretches the schedule's path (default: the schedule's own)");
   sub->add_option("--tolerance", o->tolerance, "target accuracy of the ground-state probability (checked by a re-run at tolerance/10)")->capture_default_str();
   sub->add_option("--propagator", o->propagator,
-                  "which propagator runs the dynamics: split4 (fast, fourth order, default), split2 (second\n"
-                  "order), split4-yoshida (fourth order, triple jump), odeint (the generic reference)")
+                  "which propagator runs the dynamics: split-auto (default: second-order split steps while the\n"
+                  "splitting threshold sets the step, Blanes-Moan fourth order when accuracy does), split4 (Suzuki\n"
+                  "fourth order), split2 (second order), split4-yoshida (triple jump), split4-bm (Blanes-Moan\n"
+                  "fourth order: smallest error per step), odeint (the generic reference)")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str();
   sub->add_option("--trace-points", o->trace_points, "evenly spaced observations inside each piece of the path (trace)")->capture_default_str();
   add_list_option(sub, "--observe-s", o->observe_s,

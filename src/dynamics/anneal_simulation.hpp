@@ -18,7 +18,7 @@
 namespace gapwise {
 
 struct SimulationOptions {
-  std::string propagator = "split4";  // the fast split-operator propagator; "odeint" is the reference
+  std::string propagator = "split-auto";  // the fast split-operator propagator (method notes: "Choosing the default"); "odeint" is the reference
   PropagatorOptions propagation;
   int samples_per_piece = 0;  ///< observations inside each piece, besides the waypoints
   /// Further observations wherever the path passes these s values (every

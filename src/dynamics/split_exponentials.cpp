@@ -26,6 +26,7 @@ namespace {
 // than they save. Settable (SplitExponentials::set_parallel_threshold) so tests
 // reach the threaded code with small states.
 std::atomic<std::size_t> g_parallel_dim{std::size_t{1} << 18};
+std::atomic<int> g_phase_method{static_cast<int>(PhaseMethod::Auto)};
 
 // Sums are taken over fixed blocks of this many amplitudes, then added in block
 // order, so they have the same bits whatever the number of threads (an OpenMP
@@ -233,6 +234,73 @@ inline void rotate_block_above3_unit(double* re, double* im, int qubits, double 
 }
 #endif
 
+// exp(-i x) without a library call, for loops the compiler vectorizes (a
+// library sincos per element stops vectorization and costs 15-40 ns). Cody-Waite
+// reduction by pi/2 (Cody and Waite, "Software Manual for the Elementary
+// Functions", 1980: the constant split in three parts so that k * part1 is
+// exact) to |r| <= pi/4, then the Taylor series of sin and cos to r^17 and r^16
+// (next terms below 1e-18 on |r| <= pi/4: textbook bound, no fitted digits),
+// and the quadrant's swap and signs. Valid for |x| <= kDirectPhaseLimit, where
+// k * kPio2Hi is exact (|k| < 2^20); callers check that bound.
+constexpr double kDirectPhaseLimit = 1e5;
+constexpr double kTwoOverPi = 0.63661977236758134308;  // 2/pi
+// pi/2 in three parts: kPio2Hi = pi/2 rounded to 33 bits; kPio2Mid = the rest of
+// the double nearest pi/2; the tail pi/2 - double(pi/2) is cos(double(pi/2))
+// (to double precision), taken from the library at start-up.
+constexpr double kPio2Double = 1.57079632679489661923;
+constexpr double kPio2Hi = static_cast<double>(static_cast<long long>(kPio2Double * 4294967296.0)) / 4294967296.0;
+constexpr double kPio2Mid = kPio2Double - kPio2Hi;  // exact (Sterbenz)
+const double kPio2Tail = std::cos(kPio2Double);
+constexpr double kRoundMagic = 6755399441055744.0;  // 1.5 * 2^52: adding and subtracting rounds to an integer
+
+inline void exp_minus_i(double x, double& c, double& s) {
+  const double kf = (x * kTwoOverPi + kRoundMagic) - kRoundMagic;  // nearest integer (|x| < 2^50)
+  double r = std::fma(-kf, kPio2Hi, x);
+  r = std::fma(-kf, kPio2Mid, r);
+  r = std::fma(-kf, kPio2Tail, r);
+  const double z = r * r;
+  // sin r = r (1 - z/3! + z^2/5! - ... - z^8/17!), cos r = 1 - z/2! + ... + z^8/16!
+  double p = -1.0 / 355687428096000.0;
+  p = std::fma(p, z, 1.0 / 1307674368000.0);
+  p = std::fma(p, z, -1.0 / 6227020800.0);
+  p = std::fma(p, z, 1.0 / 39916800.0);
+  p = std::fma(p, z, -1.0 / 362880.0);
+  p = std::fma(p, z, 1.0 / 5040.0);
+  p = std::fma(p, z, -1.0 / 120.0);
+  p = std::fma(p, z, 1.0 / 6.0);
+  const double sr = std::fma(-r * z, p, r);
+  double q = 1.0 / 20922789888000.0;                     //  1/16!
+  q = std::fma(q, z, -1.0 / 87178291200.0);              // -1/14!
+  q = std::fma(q, z, 1.0 / 479001600.0);                 //  1/12!
+  q = std::fma(q, z, -1.0 / 3628800.0);                  // -1/10!
+  q = std::fma(q, z, 1.0 / 40320.0);                     //  1/8!
+  q = std::fma(q, z, -1.0 / 720.0);                      // -1/6!
+  q = std::fma(q, z, 1.0 / 24.0);                        //  1/4!
+  const double cr = std::fma(z * z, q, std::fma(-0.5, z, 1.0));
+  // x = k pi/2 + r: quadrant j = k mod 4 rotates (cos r, sin r) by j quarter turns.
+  const long long j = static_cast<long long>(kf) & 3;
+  const double cw = (j & 1) ? sr : cr, sw = (j & 1) ? cr : sr;
+  c = ((j + 1) & 2) ? -cw : cw;
+  s = (j & 2) ? -sw : sw;
+  // exp(-i x) = cos x - i sin x
+  s = -s;
+}
+
+// psi_k <- scale * exp(-i phi d_k) psi_k on count amplitudes (|phi d_k| <= kDirectPhaseLimit).
+inline void phase_direct(double* __restrict re, double* __restrict im, const double* __restrict d, std::size_t count,
+                         double phi, double scale) {
+#pragma omp simd
+  for (std::size_t k = 0; k < count; ++k) {
+    double c, s;
+    exp_minus_i(phi * d[k], c, s);
+    c *= scale;
+    s *= scale;
+    const double a = re[k], b = im[k];
+    re[k] = a * c - b * s;
+    im[k] = a * s + b * c;
+  }
+}
+
 inline void scale_block(double* __restrict re, double* __restrict im, std::size_t count, double f) {
 #pragma omp simd
   for (std::size_t k = 0; k < count; ++k) {
@@ -361,18 +429,38 @@ double SplitState::probability_of(const std::vector<std::size_t>& states) const 
   return sum;
 }
 
+void SplitExponentials::set_phase_method(PhaseMethod m) {
+  g_phase_method.store(static_cast<int>(m), std::memory_order_relaxed);
+}
+
+PhaseMethod SplitExponentials::phase_method() {
+  return static_cast<PhaseMethod>(g_phase_method.load(std::memory_order_relaxed));
+}
+
 SplitExponentials::SplitExponentials(const TransverseIsingHamiltonian& h)
     : h_(&h), n_(h.qubits()), dim_(h.dim()) {
   const std::vector<double>& d = h.diagonal();
+  for (const double x : d) max_abs_d_ = std::max(max_abs_d_, std::abs(x));
+  const PhaseMethod method = phase_method();
+  if (method == PhaseMethod::Direct) {
+    direct_ = true;
+    return;
+  }
   std::vector<double> lv(d.begin(), d.end());
   std::sort(lv.begin(), lv.end());
   lv.erase(std::unique(lv.begin(), lv.end()), lv.end());  // exact equality: no level is ever merged
-  if (lv.size() <= 65536) {
-    levels_ = std::move(lv);
-    index_.resize(dim_);
-    for (std::size_t b = 0; b < dim_; ++b)
-      index_[b] = static_cast<std::uint16_t>(std::lower_bound(levels_.begin(), levels_.end(), d[b]) - levels_.begin());
+  // Auto: the table while its refill (one vectorized sine/cosine per level and
+  // stage) is small beside the pass and the lookups are permutes or gathers
+  // from a table in L1; the per-state computation beyond (measured, see the header).
+  const std::size_t table_limit = std::max(kDirectLevels, dim_ / 16);
+  if (lv.size() > 65536 || (method == PhaseMethod::Auto && lv.size() > table_limit)) {
+    direct_ = true;
+    return;
   }
+  levels_ = std::move(lv);
+  index_.resize(dim_);
+  for (std::size_t b = 0; b < dim_; ++b)
+    index_[b] = static_cast<std::uint16_t>(std::lower_bound(levels_.begin(), levels_.end(), d[b]) - levels_.begin());
 }
 
 std::size_t SplitExponentials::memory_bytes() const {
@@ -411,10 +499,14 @@ void SplitExponentials::phase_block(double* re, double* im, std::size_t begin, s
       r[m] = a * c - b * s;
       i[m] = a * s + b * c;
     }
-  } else {
+  } else if (std::abs(phi) * max_abs_d_ <= kDirectPhaseLimit) {
+    phase_direct(r, i, h_->diagonal().data() + begin, count, phi, scale);
+  } else {  // phases too large for the vectorized reduction: the library's sincos
     const double* __restrict d = h_->diagonal().data() + begin;
     for (std::size_t k = 0; k < count; ++k) {
-      const double c = scale * std::cos(phi * d[k]), s = -scale * std::sin(phi * d[k]);
+      double sn = 0, cs = 0;
+      ::sincos(phi * d[k], &sn, &cs);
+      const double c = scale * cs, s = -scale * sn;
       const double a = r[k], b = i[k];
       r[k] = a * c - b * s;
       i[k] = a * s + b * c;
@@ -423,16 +515,31 @@ void SplitExponentials::phase_block(double* re, double* im, std::size_t begin, s
 }
 
 void SplitExponentials::fill_tables(double phi, double scale) const {
+  if (direct_) return;  // no table: phase_block computes the factors per state
   // At least 32 entries (the permute lookup reads 32; the padding is never indexed).
   cs_.assign(std::max<std::size_t>(levels_.size(), 32), 0.0);
   sn_.assign(cs_.size(), 0.0);
-  // One sincos per level: on small problems (a few dozen amplitudes) these
-  // tables, refilled every step, are most of the propagation time.
-  for (std::size_t j = 0; j < levels_.size(); ++j) {
-    double sn = 0, cs = 0;
-    ::sincos(phi * levels_[j], &sn, &cs);
-    cs_[j] = scale * cs;
-    sn_[j] = -scale * sn;
+  // Refilled every stage: on small problems (a few dozen amplitudes) these
+  // tables are most of the propagation time, so the vectorized sine/cosine.
+  double* __restrict cs = cs_.data();
+  double* __restrict sn = sn_.data();
+  const double* __restrict lv = levels_.data();
+  const std::size_t count = levels_.size();
+  if (std::abs(phi) * max_abs_d_ <= kDirectPhaseLimit) {
+#pragma omp simd
+    for (std::size_t j = 0; j < count; ++j) {
+      double c, s;
+      exp_minus_i(phi * lv[j], c, s);
+      cs[j] = scale * c;
+      sn[j] = scale * s;
+    }
+  } else {
+    for (std::size_t j = 0; j < count; ++j) {
+      double s = 0, c = 0;
+      ::sincos(phi * lv[j], &s, &c);
+      cs[j] = scale * c;
+      sn[j] = -scale * s;
+    }
   }
 }
 

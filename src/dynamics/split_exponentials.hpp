@@ -18,7 +18,10 @@
 //       Problem energies usually take few distinct values (integer couplings:
 //       at most a few hundred): D is stored as a 16-bit index into its distinct
 //       levels, and each call evaluates cos/sin once per level, not per state.
-//       With more than 65536 distinct levels the phases are computed per state.
+//       With many distinct levels (real-valued couplings and fields: up to one
+//       per state) the factors are computed per state instead, from D itself, by
+//       a vectorized sine/cosine (no table, no gathers; see PhaseMethod).
+//       Tables are filled by the same vectorized sine/cosine.
 //       Built with AVX-512 and at most 32 levels, the factors are looked up by
 //       in-register permutes rather than memory gathers, in the same pass as
 //       the rotations of qubits 0-2 (lane permutes); the block's other qubits
@@ -82,6 +85,14 @@ struct SplitState {
   double probability_of(const std::vector<std::size_t>& states) const;
 };
 
+/// How phase() finds exp(-i phi D_b): through the table of distinct levels
+/// (16-bit index per state; permutes for at most 32 levels with AVX-512,
+/// gathers above), or directly per state from D (a vectorized sine/cosine).
+/// Auto: the table up to max(kDirectLevels, dim/16) levels, direct above
+/// (measured, see notebooks-free-docs/method-notes.md, "Phases of many-valued
+/// diagonals").
+enum class PhaseMethod { Auto, Table, Direct };
+
 /// Not to be shared between threads (it keeps per-call scratch tables); each
 /// propagator owns its own.
 class SplitExponentials {
@@ -98,9 +109,18 @@ class SplitExponentials {
   static void set_parallel_threshold(std::size_t dim);
   static std::size_t parallel_threshold();
 
+  /// Auto's switch: more distinct levels than max(this, dim/16) and the phases are computed per state.
+  static constexpr std::size_t kDirectLevels = 64;
+  /// Process-wide override of the phase method, for tests and benchmarks;
+  /// applies to objects constructed afterwards.
+  static void set_phase_method(PhaseMethod m);
+  static PhaseMethod phase_method();
+  /// True when this object computes phases per state (no level table).
+  bool direct_phases() const { return direct_; }
+
   int qubits() const { return n_; }
   std::size_t dim() const { return dim_; }
-  /// Distinct values of the problem diagonal (0 when the per-state fallback is used).
+  /// Distinct values of the problem diagonal (0 when phases are computed per state).
   std::size_t distinct_levels() const { return levels_.size(); }
   /// Bytes this object holds (the level index and table).
   std::size_t memory_bytes() const;
@@ -120,6 +140,8 @@ class SplitExponentials {
   std::size_t dim_;
   std::vector<double> levels_;       ///< distinct values of D (empty: per-state fallback)
   std::vector<std::uint16_t> index_; ///< D_b == levels_[index_[b]]
+  bool direct_ = false;              ///< phases per state from D (index_ and levels_ empty)
+  double max_abs_d_ = 0.0;           ///< largest |D_b| (range of the vectorized sine/cosine)
 
   mutable std::vector<double> cs_, sn_;  ///< per-call phase tables (one object per thread)
   /// Tables of scale * exp(-i phi level), padded to at least 32 entries.

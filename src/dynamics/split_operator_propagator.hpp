@@ -61,12 +61,29 @@ enum class SplitComposition {
   Strang2,   ///< second order, one stage
   Yoshida4,  ///< fourth order, triple jump (3 stages)
   Suzuki4,   ///< fourth order, Suzuki's fractal (5 stages, smaller error constant)
+  /// fourth order, the optimized 6-stage method S6 of Blanes and Moan (J. Comput.
+  /// Appl. Math. 142, 313 (2002), coefficients from memory, order checked by
+  /// tests): phases and rotations alternate with their own coefficients
+  /// (phase, rotation, ..., phase: 7 phases, 6 rotations), not a composition of
+  /// Strang stages; time advances with the phases, each of which integrates
+  /// b(t) over its substep (2-point Gauss-Legendre), the rotations take a(t) at
+  /// their instant.
+  BlanesMoan4,
+  /// "split-auto": Strang (one stage per step) while the splitting threshold,
+  /// not the tolerance, sets the step; when the first pair of runs predicts that
+  /// second order would need more than kSwitchSteps times the steps, the run
+  /// continues with BlanesMoan4 (smallest error per stage). See prepare().
+  Auto,
 };
 
 class SplitOperatorPropagator final : public Propagator {
  public:
   SplitOperatorPropagator(const TransverseIsingHamiltonian& h, PropagatorOptions options, SplitComposition composition);
   std::string name() const override;
+  /// Auto: the step-count factor second order may still need before the switch.
+  static constexpr double kSwitchSteps = 6.0;
+  /// The composition in use (Auto: Strang2 until it switches to BlanesMoan4).
+  SplitComposition composition() const { return composition_; }
   void advance(const AnnealDrive& drive, double t0_ns, double t1_ns, QuantumState& psi,
                PropagationStats& stats) override;
 
@@ -79,7 +96,7 @@ class SplitOperatorPropagator final : public Propagator {
   /// consecutive steps share one phase pass; settle with exponentials().phase().
   void open_step(const AnnealDrive& drive, double t_ns, double h_ns, SplitState& x, double& pending_phi) const;
   /// Exponential stages per step (each one rotation sweep and one phase).
-  int stages() const { return static_cast<int>(weights_.size()); }
+  int stages() const { return static_cast<int>(aba_rot_.empty() ? weights_.size() : aba_rot_.size()); }
   const SplitExponentials& exponentials() const { return ex_; }
   /// Bytes held besides the caller's state (work states, kept waypoint states,
   /// the level index); valid after the first advance().
@@ -99,6 +116,7 @@ class SplitOperatorPropagator final : public Propagator {
     double h() const { return (t1 - t0) / static_cast<double>(steps); }
     double at(long j) const { return j == steps ? t1 : t0 + static_cast<double>(j) * h(); }
   };
+  void open_step_aba(const AnnealDrive& drive, double t_ns, double h_ns, SplitState& x, double& pending_phi) const;
   void prepare(const AnnealDrive& drive, double t_start, const QuantumState& psi, PropagationStats& stats);
   /// Runs x through the pieces with `factor` times the grid's steps; keeps the
   /// states at the piece ends in kept_ when `keep`.
@@ -107,7 +125,9 @@ class SplitOperatorPropagator final : public Propagator {
   SplitExponentials ex_;
   PropagatorOptions opt_;
   SplitComposition composition_;
-  std::vector<double> weights_;
+  bool adaptive_ = false;  ///< constructed as Auto
+  std::vector<double> weights_;       ///< Strang-stage weights (compositions of Strang stages)
+  std::vector<double> aba_phase_, aba_rot_;  ///< phase and rotation coefficients (BlanesMoan4)
   double flip_max_ = 0.0;
   double others_error_ = 0.0;
   // The accepted grid and the main trajectory on it.
