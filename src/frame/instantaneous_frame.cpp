@@ -2,6 +2,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
+#include <tuple>
 #include <numbers>
 #include <stdexcept>
 #include <utility>
@@ -29,11 +31,12 @@ struct Group {
   int first, last;  // levels [first, last]
 };
 
-/// Consecutive levels closer than `gap` form a group.
+/// Consecutive levels closer than `gap` form a group (the order is that of the
+/// frame's columns, energy order unless levels crossed).
 std::vector<Group> groups_of(const std::vector<double>& e, int k, double gap) {
   std::vector<Group> g;
   for (int i = 0; i < k; ++i) {
-    if (!g.empty() && e[static_cast<std::size_t>(i)] - e[static_cast<std::size_t>(i - 1)] < gap)
+    if (!g.empty() && std::abs(e[static_cast<std::size_t>(i)] - e[static_cast<std::size_t>(i - 1)]) < gap)
       g.back().last = i;
     else
       g.push_back({i, i});
@@ -73,7 +76,9 @@ struct Trial {
   Eigen::MatrixXd v_out, v_in;    // dim x K
   Eigen::MatrixXd rebase;         // K x K, v_in = v_out * rebase
   std::vector<Group> groups;      // at this point
+  std::vector<Group> linked_groups;  // groups of this point joined with the previous point's (the in basis)
   bool top_cut = false;           // the top group continues beyond K
+  bool crossed = false;           // kept levels crossed in the interval arriving here
 };
 
 }  // namespace
@@ -112,12 +117,76 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
       t.v_out.middleCols(g.first, g.last - g.first + 1) = t.v_out.middleCols(g.first, g.last - g.first + 1) * r;
     }
     t.rebase = Eigen::MatrixXd::Identity(k, k);
-    for (const Group& g : linked(prev.groups, t.groups, k)) {
+    t.linked_groups = linked(prev.groups, t.groups, k);
+    for (const Group& g : t.linked_groups) {
       if (g.first == g.last) continue;
       const int w = g.last - g.first + 1;
       t.rebase.block(g.first, g.first, w, w) = procrustes(prev.v_out, t.v_out, g);
     }
+    // Levels that cross (exactly, or so narrowly that one interval steps over
+    // the crossing) swap ranks in energy. The interval arriving here must end
+    // in the continuation of the previous point's columns, so V_in follows each
+    // level by continuity (largest overlap, clear matches > 1/2 only; a partial
+    // turn is left to the grid) and the rebase re-labels the amplitudes into the
+    // energy order of V_out. Only levels outside near-degenerate groups on both
+    // sides are followed this way (groups are aligned as subspaces above).
+    const Eigen::MatrixXd o = prev.v_out.transpose() * t.v_out;
+    std::vector<std::tuple<double, int, int>> cand;
+    for (int i = 0; i < k; ++i)
+      for (int j = 0; j < k; ++j)
+        if (std::abs(o(i, j)) > 0.5) cand.emplace_back(std::abs(o(i, j)), i, j);
+    std::sort(cand.begin(), cand.end(), [](const auto& x, const auto& y) { return std::get<0>(x) > std::get<0>(y); });
+    std::vector<int> perm(static_cast<std::size_t>(k), -1);
+    std::vector<bool> used(static_cast<std::size_t>(k), false);
+    for (const auto& [v, i, j] : cand)
+      if (perm[static_cast<std::size_t>(i)] < 0 && !used[static_cast<std::size_t>(j)]) {
+        perm[static_cast<std::size_t>(i)] = j;
+        used[static_cast<std::size_t>(j)] = true;
+      }
+    auto singleton = [](const std::vector<Group>& gs, int i) {
+      for (const Group& g : gs)
+        if (g.first <= i && i <= g.last) return g.first == g.last;
+      return true;
+    };
+    bool complete = true, identity = true, clean = true;
+    for (int i = 0; i < k; ++i) {
+      const int j = perm[static_cast<std::size_t>(i)];
+      complete = complete && j >= 0;
+      if (j >= 0 && j != i) {
+        identity = false;
+        clean = clean && singleton(prev.groups, i) && singleton(t.groups, i) && singleton(prev.groups, j) &&
+                singleton(t.groups, j);
+      }
+    }
+    if (complete && !identity && clean) {
+      for (int i = 0; i < k; ++i) {
+        const int j = perm[static_cast<std::size_t>(i)];
+        if (j == i) continue;
+        t.rebase.col(i).setZero();
+        t.rebase(j, i) = o(i, j) < 0 ? -1.0 : 1.0;
+      }
+      t.crossed = true;
+    }
     t.v_in = t.v_out * t.rebase;
+  };
+  // Pointwise <m|dn/ds> = <m|dH/ds|n> / (E_n - E_m) (first-order perturbation
+  // theory, from differentiating H|n> = E_n|n>), NaN inside groups.
+  auto connection = [&](const Eigen::MatrixXd& hp, const Eigen::MatrixXd& dp, const std::vector<Group>& groups) {
+    Eigen::MatrixXd c = Eigen::MatrixXd::Zero(k, k);
+    std::vector<int> group_of(static_cast<std::size_t>(k));
+    for (std::size_t gi = 0; gi < groups.size(); ++gi)
+      for (int i = groups[gi].first; i <= groups[gi].last; ++i) group_of[static_cast<std::size_t>(i)] = static_cast<int>(gi);
+    for (int m = 0; m < k; ++m)
+      for (int n = 0; n < k; ++n) {
+        if (m == n) continue;
+        const double de = hp(n, n) - hp(m, m);
+        if (group_of[static_cast<std::size_t>(m)] == group_of[static_cast<std::size_t>(n)] ||
+            std::abs(de) < 10.0 * options.group_gap_ghz)
+          c(m, n) = std::numeric_limits<double>::quiet_NaN();
+        else
+          c(m, n) = dp(m, n) / de;
+      }
+    return c;
   };
   // K x K projections of H and dH/ds in the outgoing basis.
   auto project = [&](const Trial& t, FramePoint& p) {
@@ -135,7 +204,10 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
     p.dh_out = d_out.diagonal();
     p.rebase = t.rebase;
     p.h_in = t.rebase.transpose() * p.h_out * t.rebase;
-    p.dh_in = (t.rebase.transpose() * d_out * t.rebase).diagonal();
+    const Eigen::MatrixXd d_in = t.rebase.transpose() * d_out * t.rebase;
+    p.dh_in = d_in.diagonal();
+    p.conn_out = connection(p.h_out, d_out, t.groups);
+    p.conn_in = connection(p.h_in, d_in, t.linked_groups.empty() ? t.groups : t.linked_groups);
   };
   auto to_full = [&](const Eigen::MatrixXd& v) {
     Eigen::MatrixXd f(static_cast<Eigen::Index>(h.full().dim()), k);
@@ -209,6 +281,7 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
           turn, phase, step, prev.s));
     if (static_cast<long>(points_.size()) >= options.max_points)
       throw std::runtime_error(fmt::format("instantaneous frame: more than {} grid points needed", options.max_points));
+    if (t.crossed) ++crossings_;
     FrameInterval iv;
     iv.generator = l;
     Eigen::JacobiSVD<Eigen::MatrixXd> svd(o);

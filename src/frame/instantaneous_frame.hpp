@@ -18,6 +18,10 @@
 //    (orthogonal Procrustes: SVD of the group's overlap matrix). Inside a group
 //    the basis is then no eigenbasis, so each point also keeps the projected
 //    Hamiltonian V^T H V (diagonal outside groups).
+//  - levels that cross inside the kept set (exactly, or too narrowly for one
+//    interval) are followed by continuity: the interval arriving at the point
+//    ends in the previous columns' continuation (largest overlap) and the
+//    point's rebase (a signed permutation) re-labels them in energy order.
 // Between neighbouring points the frame turns by Q = polar factor of
 // V_j^T V_{j+1}; its logarithm L (real antisymmetric) is the integrated
 // connection A(s) ds with A_mn = <m|d n/ds>. The grid is refined until the
@@ -56,6 +60,10 @@ struct FramePoint {
   Eigen::MatrixXd rebase;                ///< K x K orthogonal (identity almost everywhere)
   Eigen::MatrixXd h_out, h_in;           ///< K x K, V^T H V (GHz) in either basis
   Eigen::VectorXd dh_out, dh_in;         ///< K, diagonal of V^T (dH/ds) V (GHz per unit s)
+  /// K x K pointwise connection <m|d n/ds> = <m|dH/ds|n> / (E_n - E_m) in either
+  /// basis; NaN for pairs inside a near-degenerate group (or closer than
+  /// 10 x group_gap_ghz), where only the interval's integrated turn is known.
+  Eigen::MatrixXd conn_out, conn_in;
   /// K x K: V_out(j-2)^T V_in(j) (zero-size for j < 2); for the coarse-grid check.
   Eigen::MatrixXd overlap_two_back;
 };
@@ -77,6 +85,8 @@ class InstantaneousFrame {
   const std::vector<FrameInterval>& intervals() const { return intervals_; }
   /// Eigen-decompositions done (accepted and rejected trial points).
   long eigen_solves() const { return solves_; }
+  /// Accepted points whose arriving interval saw kept levels cross (re-labelled there).
+  long level_crossings() const { return crossings_; }
   /// Columns: the aligned frame vectors at the first / last point, in the 2^n basis.
   const Eigen::MatrixXd& first_vectors_full() const { return first_full_; }
   const Eigen::MatrixXd& last_vectors_full() const { return last_full_; }
@@ -84,6 +94,7 @@ class InstantaneousFrame {
  private:
   int k_ = 0;
   long solves_ = 0;
+  long crossings_ = 0;
   std::vector<FramePoint> points_;
   std::vector<FrameInterval> intervals_;
   Eigen::MatrixXd first_full_, last_full_;
