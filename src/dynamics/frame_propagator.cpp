@@ -87,11 +87,24 @@ void oscillatory_step(const FramePoint& a, const FramePoint& b, const Eigen::Mat
       for (int n = 0; n < kk; ++n) g(m, n) = -kI * l(m, n) + f * 0.5 * (m == n ? 0.0 : a.h_out(m, n) + b.h_in(m, n));
     Eigen::VectorXd omega(kk);
     for (int n = 0; n < kk; ++n) omega(n) = ph[static_cast<std::size_t>(n)].at(1.0);
-    // I(p, q) = int_0^1 dx1 int_0^x1 dx2 exp(i p x1 + i q x2).
-    auto triangle = [](double pp, double q) {
-      const auto mp = oscillatory_moments(pp);
-      if (std::abs(q) < 1e-3) return mp[1] + Complex(0.0, 0.5 * q) * mp[2];
-      return (oscillatory_moments(pp + q)[0] - mp[0]) / Complex(0.0, q);
+    // I(p, q) = int_0^1 dx1 int_0^x1 dx2 exp(i p x1 + i q x2)
+    //         = (mu0(p + q) - mu0(p)) / (i q)  (mu_j: moments of exp(i p x)),
+    // and for the pair of triangles of one triple (m, k, n) p + q = w_m - w_n:
+    // tables of mu0, mu1, mu2 over the K^2 phase differences make each triple a
+    // few operations.
+    Eigen::MatrixXcd mu0(kk, kk), mu1(kk, kk), mu2(kk, kk);
+    for (int m = 0; m < kk; ++m)
+      for (int n = 0; n < kk; ++n) {
+        const auto mu = oscillatory_moments(omega(m) - omega(n));
+        mu0(m, n) = mu[0];
+        mu1(m, n) = mu[1];
+        mu2(m, n) = mu[2];
+      }
+    // I(w_a - w_b, w_b - w_c) for a triple a, b, c.
+    auto triangle = [&](int ia, int ib, int ic) {
+      const double q = omega(ib) - omega(ic);
+      if (std::abs(q) < 1e-3) return mu1(ia, ib) + Complex(0.0, 0.5 * q) * mu2(ia, ib);
+      return (mu0(ia, ic) - mu0(ia, ib)) / Complex(0.0, q);
     };
     Eigen::MatrixXcd c2 = Eigen::MatrixXcd::Zero(kk, kk);
     for (int m = 0; m < kk; ++m)
@@ -100,8 +113,13 @@ void oscillatory_step(const FramePoint& a, const FramePoint& b, const Eigen::Mat
         for (int k = 0; k < kk; ++k) {
           const Complex gg = g(m, k) * g(k, n);
           if (gg == Complex(0.0, 0.0)) continue;
-          const double wmk = omega(m) - omega(k), wkn = omega(k) - omega(n);
-          sum += gg * (triangle(wmk, wkn) - triangle(wkn, wmk));
+          // exp(i w_mk x1 + i w_kn x2) - exp(i w_kn x1 + i w_mk x2) over the
+          // triangle: I(w_mk, w_kn) - I(w_kn, w_mk), the second written out.
+          const double qs = omega(m) - omega(k);
+          const Complex second = std::abs(qs) < 1e-3
+                                     ? mu1(k, n) + Complex(0.0, 0.5 * qs) * mu2(k, n)
+                                     : (mu0(m, n) - mu0(k, n)) / Complex(0.0, qs);
+          sum += gg * (triangle(m, k, n) - second);
         }
         c2(m, n) = sum;
       }
@@ -270,6 +288,7 @@ bool FramePropagator::advance_in_frame(const AnnealDrive& drive, double t0, doub
       return false;  // the grid cannot follow the levels (crossing, cut group): full propagation
     }
     stats.frame_eigen_solves += fr->eigen_solves();
+    stats.frame_warm_solves += fr->warm_solves();
     const int kk = fr->levels();
     const Eigen::VectorXcd c0 = fr->first_vectors_full().cast<Complex>().adjoint() * x;
     const double outside = std::max(0.0, 1.0 - c0.squaredNorm());

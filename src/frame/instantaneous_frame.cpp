@@ -69,6 +69,53 @@ Eigen::MatrixXd procrustes(const Eigen::MatrixXd& prev, const Eigen::MatrixXd& v
   return closest_rotation(o);  // maximizes trace(R^T o) -> v_G R ~ prev_G
 }
 
+constexpr int kWarmGuard = 4;
+
+/// The lowest `want` eigenpairs of H(a, b) by block Krylov Rayleigh-Ritz
+/// started from the previous point's Ritz vectors x0 (dim x p): a few rounds of
+/// Rayleigh-Ritz on span[X, HX, H^2 X, H^3 X] (block Lanczos without the
+/// three-term recurrence; Saad, Numerical Methods for Large Eigenvalue
+/// Problems, 2nd ed., SIAM 2011, ch. 5-6, from memory). Starting from a block
+/// that already holds every level of a degenerate eigenspace, it cannot miss
+/// a partner the way single-vector Lanczos can. Returns false when the wanted
+/// residuals are not below tol x max(1, |E|) GHz after the rounds (the caller
+/// then solves from scratch). On success x holds the new Ritz vectors (p).
+bool warm_start_levels(const SectorHamiltonian& h, double a, double b, const Eigen::MatrixXd& x0, int want, double tol,
+                       std::vector<double>& energies, Eigen::MatrixXd& x) {
+  const Eigen::Index dim = x0.rows(), p = x0.cols();
+  constexpr int kDepth = 4, kRounds = 6;
+  if (kDepth * p > dim) return false;
+  x = x0;
+  Eigen::MatrixXd krylov(dim, kDepth * p), hq(dim, kDepth * p);
+  for (int round = 0; round < kRounds; ++round) {
+    krylov.leftCols(p) = x;
+    for (int d = 1; d < kDepth; ++d)
+      for (Eigen::Index c = 0; c < p; ++c)
+        h.apply(a, b, krylov.col((d - 1) * p + c).data(), krylov.col(d * p + c).data());
+    // Orthonormal basis of the block (Householder QR: orthonormal even when
+    // columns are nearly dependent, as they become near convergence).
+    Eigen::HouseholderQR<Eigen::MatrixXd> qr(krylov);
+    const Eigen::MatrixXd q = qr.householderQ() * Eigen::MatrixXd::Identity(dim, kDepth * p);
+    for (Eigen::Index c = 0; c < q.cols(); ++c) h.apply(a, b, q.col(c).data(), hq.col(c).data());
+    Eigen::MatrixXd t = q.transpose() * hq;
+    t = 0.5 * (t + t.transpose()).eval();
+    Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(t);
+    x = q * es.eigenvectors().leftCols(p);
+    const Eigen::MatrixXd hx = hq * es.eigenvectors().leftCols(p);
+    bool done = true;
+    for (int i = 0; i < want; ++i) {
+      const double e = es.eigenvalues()(i);
+      if ((hx.col(i) - e * x.col(i)).norm() > tol * std::max(1.0, std::abs(e))) done = false;
+    }
+    if (done) {
+      energies.assign(es.eigenvalues().data(), es.eigenvalues().data() + want);
+      for (Eigen::Index c = 0; c < p; ++c) x.col(c).normalize();
+      return true;
+    }
+  }
+  return false;
+}
+
 /// A trial point: aligned eigenbasis (out) and the basis the incoming interval ends in (in).
 struct Trial {
   double s = 0;
@@ -79,6 +126,7 @@ struct Trial {
   std::vector<Group> linked_groups;  // groups of this point joined with the previous point's (the in basis)
   bool top_cut = false;           // the top group continues beyond K
   bool crossed = false;           // kept levels crossed in the interval arriving here
+  Eigen::MatrixXd warm;           // dim x block: Ritz vectors in energy order (start of the next solve)
 };
 
 }  // namespace
@@ -90,20 +138,33 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
   const int k = k_;
   const int solve_levels = static_cast<int>(std::min<long>(k + 1, dim));
 
-  auto eigen_at = [&](double s) {
-    LevelOptions lo;
-    lo.levels = solve_levels;
-    lo.vectors = true;
+  // Levels beyond the K + 1 solved ones carried along as guards for the warm
+  // start (a level entering the kept set from above is already in the block).
+  const int block = static_cast<int>(std::min<long>(solve_levels + (options.warm_start ? kWarmGuard : 0), dim));
+  auto eigen_at = [&](double s, const Trial* from) {
     ++solves_;
-    Levels lv = lowest_levels(h, scales.a_ghz(s), scales.b_ghz(s), lo);
-    if (static_cast<int>(lv.energies_ghz.size()) < k || lv.vectors.cols() < k)
-      throw std::runtime_error(fmt::format("instantaneous frame: {} levels at s = {} (asked for {})",
-                                           lv.energies_ghz.size(), s, k));
+    const double a = scales.a_ghz(s), b = scales.b_ghz(s);
     Trial t;
     t.s = s;
-    t.energies = lv.energies_ghz;
-    t.v_out = lv.vectors.leftCols(k);
-    for (int c = 0; c < k; ++c) t.v_out.col(c).normalize();
+    bool warm = false;
+    if (options.warm_start && from != nullptr && from->warm.cols() == block && a != 0.0 && block < dim) {
+      warm = warm_start_levels(h, a, b, from->warm, solve_levels, options.warm_tolerance, t.energies, t.warm);
+      if (warm) ++warm_solves_;
+    }
+    if (!warm) {
+      LevelOptions lo;
+      lo.levels = block;
+      lo.vectors = true;
+      Levels lv = lowest_levels(h, a, b, lo);
+      if (static_cast<int>(lv.energies_ghz.size()) < k || lv.vectors.cols() < k)
+        throw std::runtime_error(fmt::format("instantaneous frame: {} levels at s = {} (asked for {})",
+                                             lv.energies_ghz.size(), s, k));
+      t.energies.assign(lv.energies_ghz.begin(),
+                        lv.energies_ghz.begin() + std::min<long>(solve_levels, static_cast<long>(lv.energies_ghz.size())));
+      t.warm = std::move(lv.vectors);
+      for (Eigen::Index c = 0; c < t.warm.cols(); ++c) t.warm.col(c).normalize();
+    }
+    t.v_out = t.warm.leftCols(k);
     t.groups = groups_of(t.energies, k, options.group_gap_ghz);
     t.top_cut = static_cast<int>(t.energies.size()) > k &&
                 t.energies[static_cast<std::size_t>(k)] - t.energies[static_cast<std::size_t>(k - 1)] <
@@ -227,7 +288,7 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
   if (dir < 0) std::reverse(stops.begin(), stops.end());
   if (s_to != s_from) stops.push_back(s_to);  // equal: one point (a pause)
 
-  Trial prev = eigen_at(s_from);
+  Trial prev = eigen_at(s_from, nullptr);
   // First point: signs fixed so that each vector's largest entry is positive.
   for (int c = 0; c < k; ++c) {
     Eigen::Index i = 0;
@@ -254,7 +315,7 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
     const bool to_stop = ds >= left * (1.0 - 1e-9);
     const double step = to_stop ? left : ds;
     const double s_new = to_stop ? stop : prev.s + dir * step;
-    Trial t = eigen_at(s_new);
+    Trial t = eigen_at(s_new, &prev);
     align(t, prev);
     const Eigen::MatrixXd o = prev.v_out.transpose() * t.v_in;
     const Eigen::MatrixXd l = rotation_log(closest_rotation(o));
