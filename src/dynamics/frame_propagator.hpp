@@ -1,6 +1,5 @@
 #pragma once
-// Propagation in the frame of the K lowest instantaneous eigenstates ("frame",
-// library only for now). The state is written psi(t) = sum_n c_n(t) |n(s(t))> over the kept
+// Propagation in the frame of the K lowest instantaneous eigenstates ("frame"). The state is written psi(t) = sum_n c_n(t) |n(s(t))> over the kept
 // levels of H(s) (InstantaneousFrame, src/frame/), and the K amplitudes obey
 //
 //   i dc/dt = H_frame c,   H_frame = 2 pi V^T H V - i (ds/dt) A(s),  A = V^T dV/ds
@@ -24,8 +23,7 @@
 // when neither helps (fast, non-adiabatic pieces, quenches, a start outside the
 // K lowest levels), the piece is run by split4 and counted in
 // PropagationStats::frame_fallback_pieces. The frame never returns an
-// unchecked state, but the grid check can be fooled where phases oscillate
-// fast (a known defect, method notes): hence not listed in propagator_names().
+// unchecked state.
 //
 // Pieces at constant s (pauses) are exact in the frame: c_n gets exp(-i 2 pi E_n dt).
 // A classical start at s = 1 with A(1) = 0 is accepted when it lies in the span
@@ -35,10 +33,20 @@
 //   prop->advance(drive, 0.0, 20000.0, psi, stats);   // stats.frame_levels, frame_grid_points, ...
 #include <memory>
 
+#include <Eigen/Dense>
+
 #include "dynamics/propagator.hpp"
 #include "hamiltonian/spin_flip_sector.hpp"
 
 namespace gapwise {
+
+class InstantaneousFrame;
+
+/// The K amplitudes at the end of a frame (not a pause) from c0 at its start:
+/// the interval steps alone, no error control (for convergence studies).
+/// every_other_point: the same on the grid with every second point dropped.
+Eigen::VectorXcd propagate_through_frame(const InstantaneousFrame& frame, const Eigen::VectorXcd& c0,
+                                         double ns_per_unit_s, bool every_other_point = false);
 
 class FramePropagator final : public Propagator {
  public:

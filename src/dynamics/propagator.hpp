@@ -91,6 +91,7 @@ struct PropagationStats {
   int frame_levels = 0;              ///< largest number K of kept instantaneous levels used
   long frame_grid_points = 0;        ///< grid points in s over all pieces run in the frame
   long frame_eigen_solves = 0;       ///< eigen-decompositions (accepted and rejected grid points, all K tried)
+  long frame_warm_solves = 0;        ///< of those, warm started from the previous point's vectors
   double frame_top_level_population = 0.0;  ///< largest population seen on the highest kept level (leakage indicator)
   double frame_truncation_estimate = 0.0;   ///< sum over pieces of |p(K) - p(K')|, K' < K (change of p with K)
   long frame_pieces = 0;             ///< pieces run in the frame

@@ -2,6 +2,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
+#include <tuple>
 #include <numbers>
 #include <stdexcept>
 #include <utility>
@@ -29,11 +31,12 @@ struct Group {
   int first, last;  // levels [first, last]
 };
 
-/// Consecutive levels closer than `gap` form a group.
+/// Consecutive levels closer than `gap` form a group (the order is that of the
+/// frame's columns, energy order unless levels crossed).
 std::vector<Group> groups_of(const std::vector<double>& e, int k, double gap) {
   std::vector<Group> g;
   for (int i = 0; i < k; ++i) {
-    if (!g.empty() && e[static_cast<std::size_t>(i)] - e[static_cast<std::size_t>(i - 1)] < gap)
+    if (!g.empty() && std::abs(e[static_cast<std::size_t>(i)] - e[static_cast<std::size_t>(i - 1)]) < gap)
       g.back().last = i;
     else
       g.push_back({i, i});
@@ -66,6 +69,53 @@ Eigen::MatrixXd procrustes(const Eigen::MatrixXd& prev, const Eigen::MatrixXd& v
   return closest_rotation(o);  // maximizes trace(R^T o) -> v_G R ~ prev_G
 }
 
+constexpr int kWarmGuard = 4;
+
+/// The lowest `want` eigenpairs of H(a, b) by block Krylov Rayleigh-Ritz
+/// started from the previous point's Ritz vectors x0 (dim x p): a few rounds of
+/// Rayleigh-Ritz on span[X, HX, H^2 X, H^3 X] (block Lanczos without the
+/// three-term recurrence; Saad, Numerical Methods for Large Eigenvalue
+/// Problems, 2nd ed., SIAM 2011, ch. 5-6, from memory). Starting from a block
+/// that already holds every level of a degenerate eigenspace, it cannot miss
+/// a partner the way single-vector Lanczos can. Returns false when the wanted
+/// residuals are not below tol x max(1, |E|) GHz after the rounds (the caller
+/// then solves from scratch). On success x holds the new Ritz vectors (p).
+bool warm_start_levels(const SectorHamiltonian& h, double a, double b, const Eigen::MatrixXd& x0, int want, double tol,
+                       std::vector<double>& energies, Eigen::MatrixXd& x) {
+  const Eigen::Index dim = x0.rows(), p = x0.cols();
+  constexpr int kDepth = 4, kRounds = 6;
+  if (kDepth * p > dim) return false;
+  x = x0;
+  Eigen::MatrixXd krylov(dim, kDepth * p), hq(dim, kDepth * p);
+  for (int round = 0; round < kRounds; ++round) {
+    krylov.leftCols(p) = x;
+    for (int d = 1; d < kDepth; ++d)
+      for (Eigen::Index c = 0; c < p; ++c)
+        h.apply(a, b, krylov.col((d - 1) * p + c).data(), krylov.col(d * p + c).data());
+    // Orthonormal basis of the block (Householder QR: orthonormal even when
+    // columns are nearly dependent, as they become near convergence).
+    Eigen::HouseholderQR<Eigen::MatrixXd> qr(krylov);
+    const Eigen::MatrixXd q = qr.householderQ() * Eigen::MatrixXd::Identity(dim, kDepth * p);
+    for (Eigen::Index c = 0; c < q.cols(); ++c) h.apply(a, b, q.col(c).data(), hq.col(c).data());
+    Eigen::MatrixXd t = q.transpose() * hq;
+    t = 0.5 * (t + t.transpose()).eval();
+    Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(t);
+    x = q * es.eigenvectors().leftCols(p);
+    const Eigen::MatrixXd hx = hq * es.eigenvectors().leftCols(p);
+    bool done = true;
+    for (int i = 0; i < want; ++i) {
+      const double e = es.eigenvalues()(i);
+      if ((hx.col(i) - e * x.col(i)).norm() > tol * std::max(1.0, std::abs(e))) done = false;
+    }
+    if (done) {
+      energies.assign(es.eigenvalues().data(), es.eigenvalues().data() + want);
+      for (Eigen::Index c = 0; c < p; ++c) x.col(c).normalize();
+      return true;
+    }
+  }
+  return false;
+}
+
 /// A trial point: aligned eigenbasis (out) and the basis the incoming interval ends in (in).
 struct Trial {
   double s = 0;
@@ -73,7 +123,10 @@ struct Trial {
   Eigen::MatrixXd v_out, v_in;    // dim x K
   Eigen::MatrixXd rebase;         // K x K, v_in = v_out * rebase
   std::vector<Group> groups;      // at this point
+  std::vector<Group> linked_groups;  // groups of this point joined with the previous point's (the in basis)
   bool top_cut = false;           // the top group continues beyond K
+  bool crossed = false;           // kept levels crossed in the interval arriving here
+  Eigen::MatrixXd warm;           // dim x block: Ritz vectors in energy order (start of the next solve)
 };
 
 }  // namespace
@@ -85,20 +138,33 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
   const int k = k_;
   const int solve_levels = static_cast<int>(std::min<long>(k + 1, dim));
 
-  auto eigen_at = [&](double s) {
-    LevelOptions lo;
-    lo.levels = solve_levels;
-    lo.vectors = true;
+  // Levels beyond the K + 1 solved ones carried along as guards for the warm
+  // start (a level entering the kept set from above is already in the block).
+  const int block = static_cast<int>(std::min<long>(solve_levels + (options.warm_start ? kWarmGuard : 0), dim));
+  auto eigen_at = [&](double s, const Trial* from) {
     ++solves_;
-    Levels lv = lowest_levels(h, scales.a_ghz(s), scales.b_ghz(s), lo);
-    if (static_cast<int>(lv.energies_ghz.size()) < k || lv.vectors.cols() < k)
-      throw std::runtime_error(fmt::format("instantaneous frame: {} levels at s = {} (asked for {})",
-                                           lv.energies_ghz.size(), s, k));
+    const double a = scales.a_ghz(s), b = scales.b_ghz(s);
     Trial t;
     t.s = s;
-    t.energies = lv.energies_ghz;
-    t.v_out = lv.vectors.leftCols(k);
-    for (int c = 0; c < k; ++c) t.v_out.col(c).normalize();
+    bool warm = false;
+    if (options.warm_start && from != nullptr && from->warm.cols() == block && a != 0.0 && block < dim) {
+      warm = warm_start_levels(h, a, b, from->warm, solve_levels, options.warm_tolerance, t.energies, t.warm);
+      if (warm) ++warm_solves_;
+    }
+    if (!warm) {
+      LevelOptions lo;
+      lo.levels = block;
+      lo.vectors = true;
+      Levels lv = lowest_levels(h, a, b, lo);
+      if (static_cast<int>(lv.energies_ghz.size()) < k || lv.vectors.cols() < k)
+        throw std::runtime_error(fmt::format("instantaneous frame: {} levels at s = {} (asked for {})",
+                                             lv.energies_ghz.size(), s, k));
+      t.energies.assign(lv.energies_ghz.begin(),
+                        lv.energies_ghz.begin() + std::min<long>(solve_levels, static_cast<long>(lv.energies_ghz.size())));
+      t.warm = std::move(lv.vectors);
+      for (Eigen::Index c = 0; c < t.warm.cols(); ++c) t.warm.col(c).normalize();
+    }
+    t.v_out = t.warm.leftCols(k);
     t.groups = groups_of(t.energies, k, options.group_gap_ghz);
     t.top_cut = static_cast<int>(t.energies.size()) > k &&
                 t.energies[static_cast<std::size_t>(k)] - t.energies[static_cast<std::size_t>(k - 1)] <
@@ -112,12 +178,76 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
       t.v_out.middleCols(g.first, g.last - g.first + 1) = t.v_out.middleCols(g.first, g.last - g.first + 1) * r;
     }
     t.rebase = Eigen::MatrixXd::Identity(k, k);
-    for (const Group& g : linked(prev.groups, t.groups, k)) {
+    t.linked_groups = linked(prev.groups, t.groups, k);
+    for (const Group& g : t.linked_groups) {
       if (g.first == g.last) continue;
       const int w = g.last - g.first + 1;
       t.rebase.block(g.first, g.first, w, w) = procrustes(prev.v_out, t.v_out, g);
     }
+    // Levels that cross (exactly, or so narrowly that one interval steps over
+    // the crossing) swap ranks in energy. The interval arriving here must end
+    // in the continuation of the previous point's columns, so V_in follows each
+    // level by continuity (largest overlap, clear matches > 1/2 only; a partial
+    // turn is left to the grid) and the rebase re-labels the amplitudes into the
+    // energy order of V_out. Only levels outside near-degenerate groups on both
+    // sides are followed this way (groups are aligned as subspaces above).
+    const Eigen::MatrixXd o = prev.v_out.transpose() * t.v_out;
+    std::vector<std::tuple<double, int, int>> cand;
+    for (int i = 0; i < k; ++i)
+      for (int j = 0; j < k; ++j)
+        if (std::abs(o(i, j)) > 0.5) cand.emplace_back(std::abs(o(i, j)), i, j);
+    std::sort(cand.begin(), cand.end(), [](const auto& x, const auto& y) { return std::get<0>(x) > std::get<0>(y); });
+    std::vector<int> perm(static_cast<std::size_t>(k), -1);
+    std::vector<bool> used(static_cast<std::size_t>(k), false);
+    for (const auto& [v, i, j] : cand)
+      if (perm[static_cast<std::size_t>(i)] < 0 && !used[static_cast<std::size_t>(j)]) {
+        perm[static_cast<std::size_t>(i)] = j;
+        used[static_cast<std::size_t>(j)] = true;
+      }
+    auto singleton = [](const std::vector<Group>& gs, int i) {
+      for (const Group& g : gs)
+        if (g.first <= i && i <= g.last) return g.first == g.last;
+      return true;
+    };
+    bool complete = true, identity = true, clean = true;
+    for (int i = 0; i < k; ++i) {
+      const int j = perm[static_cast<std::size_t>(i)];
+      complete = complete && j >= 0;
+      if (j >= 0 && j != i) {
+        identity = false;
+        clean = clean && singleton(prev.groups, i) && singleton(t.groups, i) && singleton(prev.groups, j) &&
+                singleton(t.groups, j);
+      }
+    }
+    if (complete && !identity && clean) {
+      for (int i = 0; i < k; ++i) {
+        const int j = perm[static_cast<std::size_t>(i)];
+        if (j == i) continue;
+        t.rebase.col(i).setZero();
+        t.rebase(j, i) = o(i, j) < 0 ? -1.0 : 1.0;
+      }
+      t.crossed = true;
+    }
     t.v_in = t.v_out * t.rebase;
+  };
+  // Pointwise <m|dn/ds> = <m|dH/ds|n> / (E_n - E_m) (first-order perturbation
+  // theory, from differentiating H|n> = E_n|n>), NaN inside groups.
+  auto connection = [&](const Eigen::MatrixXd& hp, const Eigen::MatrixXd& dp, const std::vector<Group>& groups) {
+    Eigen::MatrixXd c = Eigen::MatrixXd::Zero(k, k);
+    std::vector<int> group_of(static_cast<std::size_t>(k));
+    for (std::size_t gi = 0; gi < groups.size(); ++gi)
+      for (int i = groups[gi].first; i <= groups[gi].last; ++i) group_of[static_cast<std::size_t>(i)] = static_cast<int>(gi);
+    for (int m = 0; m < k; ++m)
+      for (int n = 0; n < k; ++n) {
+        if (m == n) continue;
+        const double de = hp(n, n) - hp(m, m);
+        if (group_of[static_cast<std::size_t>(m)] == group_of[static_cast<std::size_t>(n)] ||
+            std::abs(de) < 10.0 * options.group_gap_ghz)
+          c(m, n) = std::numeric_limits<double>::quiet_NaN();
+        else
+          c(m, n) = dp(m, n) / de;
+      }
+    return c;
   };
   // K x K projections of H and dH/ds in the outgoing basis.
   auto project = [&](const Trial& t, FramePoint& p) {
@@ -135,7 +265,10 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
     p.dh_out = d_out.diagonal();
     p.rebase = t.rebase;
     p.h_in = t.rebase.transpose() * p.h_out * t.rebase;
-    p.dh_in = (t.rebase.transpose() * d_out * t.rebase).diagonal();
+    const Eigen::MatrixXd d_in = t.rebase.transpose() * d_out * t.rebase;
+    p.dh_in = d_in.diagonal();
+    p.conn_out = connection(p.h_out, d_out, t.groups);
+    p.conn_in = connection(p.h_in, d_in, t.linked_groups.empty() ? t.groups : t.linked_groups);
   };
   auto to_full = [&](const Eigen::MatrixXd& v) {
     Eigen::MatrixXd f(static_cast<Eigen::Index>(h.full().dim()), k);
@@ -155,7 +288,7 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
   if (dir < 0) std::reverse(stops.begin(), stops.end());
   if (s_to != s_from) stops.push_back(s_to);  // equal: one point (a pause)
 
-  Trial prev = eigen_at(s_from);
+  Trial prev = eigen_at(s_from, nullptr);
   // First point: signs fixed so that each vector's largest entry is positive.
   for (int c = 0; c < k; ++c) {
     Eigen::Index i = 0;
@@ -182,7 +315,7 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
     const bool to_stop = ds >= left * (1.0 - 1e-9);
     const double step = to_stop ? left : ds;
     const double s_new = to_stop ? stop : prev.s + dir * step;
-    Trial t = eigen_at(s_new);
+    Trial t = eigen_at(s_new, &prev);
     align(t, prev);
     const Eigen::MatrixXd o = prev.v_out.transpose() * t.v_in;
     const Eigen::MatrixXd l = rotation_log(closest_rotation(o));
@@ -209,6 +342,7 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
           turn, phase, step, prev.s));
     if (static_cast<long>(points_.size()) >= options.max_points)
       throw std::runtime_error(fmt::format("instantaneous frame: more than {} grid points needed", options.max_points));
+    if (t.crossed) ++crossings_;
     FrameInterval iv;
     iv.generator = l;
     Eigen::JacobiSVD<Eigen::MatrixXd> svd(o);

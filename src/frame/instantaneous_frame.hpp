@@ -9,8 +9,11 @@
 //   fr.points().size();                       // grid points chosen
 //   fr.intervals()[j].generator;              // log of the aligned overlap, ~ A(s) ds
 //
-// At each grid point the K lowest eigenpairs come from lowest_levels (dense or
-// Lanczos, sector-aware). The basis V(s) carried along is made continuous:
+// At the first grid point the K lowest eigenpairs (and a few guard levels above)
+// come from lowest_levels (dense or Lanczos, sector-aware, with its check for
+// missed degenerate partners); with FrameOptions::warm_start every later point
+// starts from the previous point's vectors (block Krylov Rayleigh-Ritz) and
+// falls back to lowest_levels when that does not converge. The basis V(s) carried along is made continuous:
 //  - each eigenvector's sign is chosen so that its overlap with the previous
 //    point's vector is positive;
 //  - levels closer than group_gap_ghz form a group, and the group's vectors are
@@ -18,6 +21,10 @@
 //    (orthogonal Procrustes: SVD of the group's overlap matrix). Inside a group
 //    the basis is then no eigenbasis, so each point also keeps the projected
 //    Hamiltonian V^T H V (diagonal outside groups).
+//  - levels that cross inside the kept set (exactly, or too narrowly for one
+//    interval) are followed by continuity: the interval arriving at the point
+//    ends in the previous columns' continuation (largest overlap) and the
+//    point's rebase (a signed permutation) re-labels them in energy order.
 // Between neighbouring points the frame turns by Q = polar factor of
 // V_j^T V_{j+1}; its logarithm L (real antisymmetric) is the integrated
 // connection A(s) ds with A_mn = <m|d n/ds>. The grid is refined until the
@@ -45,6 +52,13 @@ struct FrameOptions {
   double group_gap_ghz = 1e-4;    ///< levels closer than this are aligned as one subspace
   double min_ds = 1e-9;           ///< smallest interval; below it the build throws
   long max_points = 200000;       ///< the build throws beyond this many grid points
+  /// Start each point's eigen-solve from the previous point's vectors (block
+  /// Krylov Rayleigh-Ritz). Off by default: measured slower than lowest_levels
+  /// at dimension 256 (8 qubits, K up to 32: the block QR dominated); kept for
+  /// measurement at larger dimensions and for the shared warm-started tracker.
+  bool warm_start = false;
+  /// Residual asked of a warm-started eigenpair, relative to max(1, |E| in GHz).
+  double warm_tolerance = 1e-10;
 };
 
 struct FramePoint {
@@ -56,6 +70,10 @@ struct FramePoint {
   Eigen::MatrixXd rebase;                ///< K x K orthogonal (identity almost everywhere)
   Eigen::MatrixXd h_out, h_in;           ///< K x K, V^T H V (GHz) in either basis
   Eigen::VectorXd dh_out, dh_in;         ///< K, diagonal of V^T (dH/ds) V (GHz per unit s)
+  /// K x K pointwise connection <m|d n/ds> = <m|dH/ds|n> / (E_n - E_m) in either
+  /// basis; NaN for pairs inside a near-degenerate group (or closer than
+  /// 10 x group_gap_ghz), where only the interval's integrated turn is known.
+  Eigen::MatrixXd conn_out, conn_in;
   /// K x K: V_out(j-2)^T V_in(j) (zero-size for j < 2); for the coarse-grid check.
   Eigen::MatrixXd overlap_two_back;
 };
@@ -77,6 +95,10 @@ class InstantaneousFrame {
   const std::vector<FrameInterval>& intervals() const { return intervals_; }
   /// Eigen-decompositions done (accepted and rejected trial points).
   long eigen_solves() const { return solves_; }
+  /// Accepted points whose arriving interval saw kept levels cross (re-labelled there).
+  long level_crossings() const { return crossings_; }
+  /// Of eigen_solves(), those done by the warm start from the previous point's vectors.
+  long warm_solves() const { return warm_solves_; }
   /// Columns: the aligned frame vectors at the first / last point, in the 2^n basis.
   const Eigen::MatrixXd& first_vectors_full() const { return first_full_; }
   const Eigen::MatrixXd& last_vectors_full() const { return last_full_; }
@@ -84,6 +106,8 @@ class InstantaneousFrame {
  private:
   int k_ = 0;
   long solves_ = 0;
+  long crossings_ = 0;
+  long warm_solves_ = 0;
   std::vector<FramePoint> points_;
   std::vector<FrameInterval> intervals_;
   Eigen::MatrixXd first_full_, last_full_;
