@@ -158,18 +158,18 @@ def main():
         # One run per result kind: (file, expected format, gapwise arguments).
         jobs = [
             ("anneal.h5", "gapwise-anneal",
-             ["anneal", tri, lin, "--duration-ns", "5", "--observe-s", "0.3,0.6", "--levels", "3"]),
+             ["anneal", tri, lin, "-d", "5", "--observe-s", "0.3,0.6", "--levels", "3"]),
             ("gap.h5", "gapwise-gap", ["gap", tri, lin]),
-            ("durations.h5", "gapwise-durations", ["durations", tri, lin, "--range", "0.5:20:5", "--quiet"]),
+            ("durations.h5", "gapwise-durations", ["durations", tri, lin, "-d", "log:0.5:20:5", "--quiet"]),
             ("pause.h5", "gapwise-pause-map",
-             ["pause-map", tri, lin, "--duration-ns", "5", "--at", "0.3,0.6", "--pause-ns", "0,1,2"]),
+             ["pause-map", tri, lin, "-d", "5", "--at", "0.3,0.6", "--pause-ns", "0,1,2"]),
             ("pause1.h5", "gapwise-pause-map",
-             ["pause-map", tri, lin, "--duration-ns", "5", "--at", "0.3,0.6", "--pause-ns", "1"]),
+             ["pause-map", tri, lin, "-d", "5", "--at", "0.3,0.6", "--pause-ns", "1"]),
             ("reverse.h5", "gapwise-reverse-map",
              ["reverse-map", tri, str(root / "schedules" / "reverse.toml"), "--turn", "0.5,1", "--dwell-ns", "0,2",
               "--ramp-ns", "2"]),
             ("compare.h5", "gapwise-compare-paths",
-             ["compare-paths", tri, lin, "--pause", "0.5:0.2", "--duration-ns", "5,10", "--levels", "4"]),
+             ["compare-paths", tri, lin, "--pause", "0.5:0.2", "-d", "5,10", "--levels", "4"]),
             ("embed.h5", "gapwise-embed-cost",
              ["embed-cost", str(root / "data-samples" / "triangle.toml"),
               str(root / "data-samples" / "triangle-ring-embedding.toml"), lin, "--strengths", "1,2"]),
@@ -179,12 +179,12 @@ def main():
             ("diagnose-pc.h5", "gapwise-diagnosis",
              ["diagnose", str(root / "data-samples" / "hub-and-leaves.toml"), lin, "-d", "20", "--samples", "0"]),
             ("set.h5", "gapwise-instance-set",
-             ["generate", "--graph", "ring-chords", "--couplings", "gaussian", "--sizes", "4-6:2", "--count", "2",
+             ["generate", "--graph", "ring-chords", "--couplings", "gaussian", "--sizes", "lin:4:6:2", "--count", "2",
               "--seed", "3"]),
         ]
         for out, fmt, args in jobs:
             run(exe, args + ["--out", str(tmp / out)], tmp)
-        run(exe, ["ensemble", str(tmp / "set.h5"), lin, "--durations-ns", "0.5,2,8", "--out", str(tmp / "ens.h5")], tmp)
+        run(exe, ["ensemble", str(tmp / "set.h5"), lin, "-d", "0.5,2,8", "--out", str(tmp / "ens.h5")], tmp)
         jobs.append(("ens.h5", "gapwise-ensemble-result", None))
         matrices = 0
         for out, fmt, _ in jobs:
@@ -215,7 +215,7 @@ def main():
         with h5py.File(tmp / "annotated.h5", "a") as f:
             name = f["/instance_names"].asstr()[0]
             f[f"/instances/{name}"].attrs["reviewed_by"] = "Ren\u00e9e"
-        run(exe, ["ensemble", str(tmp / "annotated.h5"), lin, "--durations-ns", "0.5,2,8", "--out",
+        run(exe, ["ensemble", str(tmp / "annotated.h5"), lin, "-d", "0.5,2,8", "--out",
                   str(tmp / "ens-annotated.h5")], tmp)
         with h5py.File(tmp / "ens.h5", "r") as a, h5py.File(tmp / "ens-annotated.h5", "r") as b:
             pa, pb = a["/ensemble/instances/ground_probability"][()], b["/ensemble/instances/ground_probability"][()]
@@ -224,7 +224,7 @@ def main():
         # Truncated: refused, with the file named.
         data = (tmp / "annotated.h5").read_bytes()
         (tmp / "truncated.h5").write_bytes(data[: len(data) - 100])
-        proc = subprocess.run([exe, "ensemble", str(tmp / "truncated.h5"), lin, "--durations-ns", "1", "--out",
+        proc = subprocess.run([exe, "ensemble", str(tmp / "truncated.h5"), lin, "-d", "1", "--out",
                                str(tmp / "x.h5")], cwd=tmp, capture_output=True, text=True)
         if proc.returncode == 0 or "truncated" not in proc.stderr or "truncated.h5" not in proc.stderr:
             fail("truncated.h5", f"not refused as truncated (exit {proc.returncode}): {proc.stderr.strip()}")
@@ -233,7 +233,7 @@ def main():
         with h5py.File(tmp / "altered.h5", "a") as f:
             name = f["/instance_names"].asstr()[0]
             f[f"/instances/{name}/fields"][0] = 0.75
-        proc = subprocess.run([exe, "ensemble", str(tmp / "altered.h5"), lin, "--durations-ns", "1", "--out",
+        proc = subprocess.run([exe, "ensemble", str(tmp / "altered.h5"), lin, "-d", "1", "--out",
                                str(tmp / "y.h5")], cwd=tmp, capture_output=True, text=True)
         if proc.returncode == 0 or "/fields" not in proc.stderr:
             fail("altered.h5", f"a changed dataset was not refused by name (exit {proc.returncode}): {proc.stderr.strip()}")

@@ -21,7 +21,7 @@ TEST_CASE("Slurm job-array recipe: three array tasks merged equal one unsharded 
   const auto p = [&](const std::string& f) { return (dir.path / f).string(); };
   const auto src = gapwise::testing::source_dir();
   const std::string schedule = "'" + (src / "schedules/linear.toml").string() + "'";
-  REQUIRE(run_gapwise("generate --graph complete --couplings gaussian --sizes 3-5 --count 2 --seed 4 -q --out '" +
+  REQUIRE(run_gapwise("generate --graph complete --couplings gaussian --sizes lin:3:5:3 --count 2 --seed 4 --out '" +
                           p("set.h5") + "'",
                       dir)
               .exit_code == 0);

@@ -63,6 +63,17 @@ void refuse_empty_output_paths(CLI::App& app);
 /// Targets lie in (0, 1); tolerances in [1e-12, 1e-2]; threads in 0 (one per core) to kMaxThreads;
 /// sigmas are finite and >= 0; counts in [lo, hi]; --levels at most the states of `space`.
 inline constexpr long long kMaxThreads = 1024;
+
+/// The --propagator option's help: "NAME=default" in the option column and the
+/// names at the end of the description, where the help wraps them to the
+/// terminal (CLI11 would print the whole list in the option column).
+inline CLI::Option* list_propagator_names(CLI::Option* opt, const std::vector<std::string>& names) {
+  std::string list;
+  for (const auto& n : names) list += (list.empty() ? "" : ", ") + n;
+  opt->option_text("NAME=" + opt->get_default_str());
+  opt->description(opt->get_description() + " (one of: " + list + ")");
+  return opt;
+}
 void check_target_probability(double p, const std::string& option = "--target");
 void check_tolerance(double tolerance, const std::string& option = "--tolerance");
 void check_threads(long long threads, const std::string& option = "--threads");

@@ -340,12 +340,12 @@ void register_anneal(CLI::App& app) {
   add_durations_option(sub, o->durations,
                        "anneal duration in ns, one value; stretches the schedule's path (default: the schedule's own)");
   sub->add_option("--tolerance", o->tolerance, "target accuracy of the ground-state probability (checked by a re-run at tolerance/10)")->capture_default_str();
-  sub->add_option("--propagator", o->propagator,
+  list_propagator_names(sub->add_option("--propagator", o->propagator,
                   "which propagator runs the dynamics: split-auto (default: second-order split steps while the\n"
                   "splitting threshold sets the step, Blanes-Moan fourth order when accuracy does), split4 (Suzuki\n"
                   "fourth order), split2 (second order), split4-yoshida (triple jump), split4-bm (Blanes-Moan\n"
                   "fourth order: smallest error per step), odeint (the generic reference)")
-      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   sub->add_option("--trace-points", o->trace_points, "evenly spaced observations inside each piece of the path (trace)")->capture_default_str();
   add_list_option(sub, "--observe-s", o->observe_s,
                   "also observe where the path passes these s values: a LIST such as 0.3,0.5,0.62\n"

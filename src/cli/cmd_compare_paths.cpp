@@ -223,8 +223,8 @@ void register_compare_paths(CLI::App& app) {
   sub->add_option("--trace-points", o->trace_points, "population observations along each run (about)")->capture_default_str()->check(CLI::Range(2, 100000));
   sub->add_option("--target", o->target, "target success probability of the time to solution")->capture_default_str();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of p")->capture_default_str();
-  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
-      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default); results do not depend on it")->capture_default_str();
   sub->add_option("--out", o->out, "HDF5: p, TTS and end times per path and duration; level populations along each run");
   sub->add_option("--csv", o->csv, "the table as CSV");

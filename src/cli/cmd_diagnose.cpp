@@ -145,8 +145,8 @@ void register_diagnose(CLI::App& app) {
   sub->add_option("schedule", o->schedule, "schedule file (TOML)")->required()->check(readable_input_file());
   add_durations_option(sub, o->durations, "anneal durations in ns, a LIST such as 20,200")->required();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of the simulated probabilities")->capture_default_str();
-  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
-      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   sub->add_option("--levels", o->levels, "lowest levels tracked in the gap search and overlap track")->capture_default_str();
   sub->add_option("--window", o->window,
                   "populations around a crossing are read where the gap is this many times Delta_min")->capture_default_str();

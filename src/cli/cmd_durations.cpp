@@ -513,8 +513,8 @@ void register_durations(CLI::App& app) {
   sub->add_flag("--p-only", o->p_only,
                 "hold only p to the tolerance, not also every other set of outcomes to 100x it (the study\n"
                 "reads p alone; split propagators then often need fewer steps)");
-  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
-      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   sub->add_option("--threads", o->threads, "threads (one duration each); 0: all cores (OMP_NUM_THREADS)")->capture_default_str();
   sub->add_option("--out", o->out, "HDF5 result file (all curves, predictions, inputs, tool version)");
   sub->add_option("--csv", o->csv, "CSV with one row per simulated duration");

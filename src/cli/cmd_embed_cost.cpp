@@ -330,8 +330,8 @@ void register_embed_cost(CLI::App& app) {
       ->capture_default_str();
   add_durations_option(sub, o->durations, "t_f of the anneal reporting p_logical, one value (default: the schedule's)");
   sub->add_option("--tolerance", o->tolerance, "target accuracy of each anneal's probabilities")->capture_default_str();
-  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
-      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   sub->add_option("--threads", o->threads, "anneals run in parallel (0: OpenMP's default)")->capture_default_str();
   sub->add_option("--write-physical", o->write_physical,
                   "write the physical problem at the best strength as a problem file");

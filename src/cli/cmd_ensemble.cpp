@@ -252,8 +252,8 @@ void register_ensemble(CLI::App& app) {
   sub->add_option("--resamples", o->resamples, "bootstrap resamples")->capture_default_str();
   sub->add_option("--bootstrap-seed", o->bootstrap_seed, "seed of the bootstrap resampling (stored in the result)")
       ->capture_default_str();
-  sub->add_option("--propagator", o->propagator, "which propagator runs the anneals")
-      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the anneals")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   sub->add_option("--tolerance", o->tolerance, "target accuracy of each ground-state probability")->capture_default_str();
   sub->add_option("--gap-points", o->gap_points, "gap search: uniform scan points before refinement")->capture_default_str();
   sub->add_option("--gap-s-tolerance", o->gap_s_tolerance, "gap search: precision of s*")->capture_default_str();

@@ -244,8 +244,8 @@ void register_pause_map(CLI::App& app) {
       ->check(CLI::IsMember({"total", "added"}))->capture_default_str();
   sub->add_option("--target", o->target, "target success probability of the time to solution")->capture_default_str();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of p")->capture_default_str();
-  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
-      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default)")->capture_default_str();
   sub->add_option("-o,--out", o->out, "HDF5 result (heat-map ready); the journal is <out>.journal")->required();
   sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");

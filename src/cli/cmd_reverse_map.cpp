@@ -152,8 +152,8 @@ void register_reverse_map(CLI::App& app) {
   sub->add_option("--ramp-ns", o->ramp_ns, "duration of each ramp (down and up), ns")->capture_default_str();
   sub->add_option("--target", o->target, "target success probability of the time to solution")->capture_default_str();
   sub->add_option("--tolerance", o->tolerance, "target accuracy of p")->capture_default_str();
-  sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
-      ->check(CLI::IsMember(propagator_names()))->capture_default_str();
+  list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
+      ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default)")->capture_default_str();
   sub->add_option("-o,--out", o->out, "HDF5 result; the journal is <out>.journal")->required();
   sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");

@@ -118,7 +118,15 @@ struct DiagnosisProgress {
 struct DiagnosisOptions {
   std::vector<double> durations_ns;
   SimulationOptions simulation;      ///< propagator and tolerance
-  GapSearchOptions gap;              ///< levels, precision (s range: the path's)
+  /// Levels, precision (s range: the path's). The crossing windows are read off
+  /// the points of the gap curve, so the diagnosis keeps a 101-point scan where
+  /// the plain gap search starts from 26: with 26 the windows snap to a 0.04 grid
+  /// in s and the loss read across them changes (worked example 02).
+  GapSearchOptions gap = [] {
+    GapSearchOptions g;
+    g.coarse_points = 101;
+    return g;
+  }();
   OverlapTrackOptions overlap;
   OutcomeOptions outcome;
   /// The populations around a crossing are read where the gap has opened to this
