@@ -168,6 +168,7 @@ std::vector<Row> rows() {
       {"G7", "", "", "pause-map TRIANGLE LINEAR -d lin:5:10:2 --out DIR/m.h5"},
       {"G8", "", "", "generate --sizes 6-14:2 --out DIR/g.h5"},
       {"G9", "", "", "ensemble SRC/data-samples/ring-chords-glasses LINEAR -d 1,2,x --out DIR/e.h5"},
+      {"G10", "", "", "durations TRIANGLE LINEAR -d 1,,2"},
   };
 }
 

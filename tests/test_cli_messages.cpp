@@ -202,3 +202,21 @@ TEST_CASE("control characters in user text are escaped where gapwise prints it")
     CHECK_FALSE(has(r.out, "\x1b"));
   }
 }
+
+TEST_CASE("durations on a path that stays at s = 1: no optimum is claimed and no empty reason is printed") {
+  // At s = 1 the transverse scale A is 0, so H is diagonal and a classical state is
+  // an eigenstate: a state that is not the ground state stays orthogonal to it for
+  // any duration (p = 0 exactly), and the time-to-solution is infinite everywhere.
+  TempDir dir;
+  const auto s = dir.write("stay.toml",
+                           "format = \"gapwise-schedule\"\nformat_version = 1\n[scales]\nkind = \"linear\"\n"
+                           "a_max_ghz = 5.0\nb_max_ghz = 5.0\n[path]\ntime = \"fraction\"\nstart = \"classical\"\n"
+                           "start_bits = [0, 1, 0]\npoints = [[0.0, 1.0], [1.0, 1.0]]\n");
+  const auto r = run_gapwise("durations " + sample("data-samples/triangle.toml") + " " + quoted(s) +
+                                 " --no-predictions -d 1,10,100",
+                             dir);
+  INFO(r.out, r.err);
+  CHECK(r.exit_code == 0);
+  CHECK(has(r.out, "TTS optimum          none: p = 0 at every duration simulated"));
+  CHECK_FALSE(has(r.out, "()"));
+}

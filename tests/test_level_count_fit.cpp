@@ -55,6 +55,6 @@ TEST_CASE("compare-paths: a field-free 1-qubit problem keeps one level of the ev
   r = testing::run_gapwise("compare-paths " + problem + " -d 5 --levels 2", dir);
   CHECK(r.exit_code == 2);
   CHECK(r.out.empty());
-  CHECK(r.err.find("--levels: 2 levels asked for, but the even spin-flip sector (P = +1) has only 1 states. Fix: give "
+  CHECK(r.err.find("--levels: 2 levels asked for, but the even spin-flip sector (P = +1) has only 1 state. Fix: give "
                    "at most 1 levels") != std::string::npos);
 }

@@ -377,11 +377,14 @@ void run_durations(const DurationsOptions& o) {
     std::cout << "  simulation           (search skipped: --no-search)\n";
   }
   const std::string pad = "                       ";
-  std::cout << fmt::format("  TTS optimum          t_f = {} ns per run, TTS = {} ns{}\n", ns_text(best_t), ns_text(opt.tts_ns),
-                           !opt.at_range_edge ? fmt::format("  (sampled; the optimum lies between {} and {} ns)",
-                                                            ns_text(opt.lower_ns), ns_text(opt.upper_ns))
-                           : opt.index == 0   ? "  [the shortest duration simulated]"
-                                              : "  [the longest duration simulated]");
+  if (!std::isfinite(opt.tts_ns))
+    std::cout << "  TTS optimum          none: p = 0 at every duration simulated, so the time-to-solution is infinite\n";
+  else
+    std::cout << fmt::format("  TTS optimum          t_f = {} ns per run, TTS = {} ns{}\n", ns_text(best_t), ns_text(opt.tts_ns),
+                             !opt.at_range_edge ? fmt::format("  (sampled; the optimum lies between {} and {} ns)",
+                                                              ns_text(opt.lower_ns), ns_text(opt.upper_ns))
+                             : opt.index == 0   ? "  [the shortest duration simulated]"
+                                                : "  [the longest duration simulated]");
   if (st.extended_below + st.extended_above > 0)
     std::cout << fmt::format("{}the default grid was extended by {} point(s) below and {} above while the optimum sat "
                              "at an end: {}\n",
@@ -399,7 +402,7 @@ void run_durations(const DurationsOptions& o) {
                                ns_text(opt.local->upper_ns));
     else
       std::cout << pad << "no interior local optimum on the grid: TTS rises all the way from the shortest duration\n";
-  } else if (opt.at_range_edge) {
+  } else if (opt.at_range_edge && std::isfinite(opt.tts_ns)) {
     std::cout << fmt::format("{}the optimum may lie beyond this end of the range: {}\n", pad,
                              grid_chosen ? "the grid could not be extended further (" + st.extension_stop + ")"
                                          : std::string("widen --durations, or leave it out for a grid that is "

@@ -49,7 +49,7 @@ void check_levels_fit(int levels, int qubits, SpinFlipSector sector, const std::
   const double states = std::ldexp(1.0, qubits - (sector == SpinFlipSector::Full ? 0 : 1));
   const std::string space = describe_sector(sector);
   if (levels > states)
-    throw InputError(option_place(option), fmt::format("{} levels asked for, but the {} has only {:.0f} states", levels, space, states),
+    throw InputError(option_place(option), fmt::format("{} levels asked for, but the {} has only {:.0f} state{}", levels, space, states, states == 1 ? "" : "s"),
                      fmt::format("give at most {:.0f} levels", states));
 }
 

@@ -3,6 +3,7 @@
 // refuse an empty path.
 #include "cli/value_lists.hpp"
 
+#include <algorithm>
 #include <cerrno>
 #include <cfloat>
 #include <cmath>
@@ -141,7 +142,9 @@ std::vector<double> range(const std::string& item, const std::string& option, Li
 
 }  // namespace
 
-std::vector<double> parse_value_list(const std::string& text, const std::string& option, ListOf kind) {
+std::vector<double> parse_value_list(const std::string& given, const std::string& option, ListOf kind) {
+  std::string text = given;  // a repeated option arrives joined by '\n'
+  std::replace(text.begin(), text.end(), '\n', ',');
   if (trimmed(text).empty()) throw InputError(place(option), "no value given", kGrammar);
   std::vector<double> out;
   for (const std::string& item : split(text, ',')) {
@@ -166,7 +169,10 @@ double parse_single_value(const std::string& text, const std::string& option, Li
 }
 
 CLI::Option* add_list_option(CLI::App* sub, const std::string& names, std::string& text, const std::string& help) {
-  return sub->add_option(names, text, help)->join(',')->type_name("LIST");
+  // Join without a delimiter: with join(',') CLI11 also splits each value at the
+  // commas and drops empty items, so "-d 1,,2" would pass silently. Repeated
+  // options arrive joined by '\n', which parse_value_list reads as a comma.
+  return sub->add_option(names, text, help)->multi_option_policy(CLI::MultiOptionPolicy::Join)->type_name("LIST");
 }
 
 CLI::Option* add_durations_option(CLI::App* sub, std::string& text, const std::string& help) {

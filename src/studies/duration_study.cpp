@@ -100,6 +100,14 @@ GridExtension extend_grid_to_bracket(const std::function<std::vector<double>(con
     x.grid = normalised_grid(x.grid);
     optimum();
   }
+  // The loop also ends without a stated reason: say it, so no report prints an
+  // empty bracket ("could not be extended further ()").
+  if (x.stop.empty() && x.optimum.at_range_edge) {
+    if (!o.extend_to_bracket)
+      x.stop = "extension switched off";
+    else if (!std::isfinite(x.optimum.tts_ns))
+      x.stop = "the time-to-solution is infinite at every duration, so there is no optimum to bracket";
+  }
   return x;
 }
 
