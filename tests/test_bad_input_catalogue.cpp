@@ -169,6 +169,8 @@ std::vector<Row> rows() {
       {"G8", "", "", "generate --sizes 6-14:2 --out DIR/g.h5"},
       {"G9", "", "", "ensemble SRC/data-samples/ring-chords-glasses LINEAR -d 1,2,x --out DIR/e.h5"},
       {"G10", "", "", "durations TRIANGLE LINEAR -d 1,,2"},
+      {"G11", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 5.0\n[path]\ntime = \"fraction\"\n"
+                        "duration_ns = 5e-324\npoints = [[0.0, 0.0], [0.3, 0.5], [1.0, 1.0]]\n", "anneal TRIANGLE DIR/s.toml"},
   };
 }
 
