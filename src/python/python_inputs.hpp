@@ -30,5 +30,6 @@ void bind_inputs(py::module_& m);
 void bind_anneal(py::module_& m);
 void bind_gap(py::module_& m);
 void bind_durations(py::module_& m);
+void bind_pause_map(py::module_& m);
 
 }  // namespace gapwise::python

@@ -88,3 +88,26 @@ def test_qubo_instance_matches_the_command_line(gapwise_exe, source_dir):
     mod = gapwise.anneal(p, schedule, 7.5)
     assert mod["ground_probability"] == cli["ground_probability"]
     assert mod["ground_energy"] == cli["ground_energy"]
+
+
+@pytest.mark.parametrize("cost", ["total", "added"])
+def test_pause_map_matches_the_command_line(tmp_path, gapwise_exe, source_dir, cost):
+    h = 0.3 * FIELD_PATTERN
+    path = tmp_path / "chain.toml"
+    path.write_text(problem_toml(h))
+    schedule = source_dir / "schedules" / "linear.toml"
+    out = tmp_path / "pause.h5"
+    run = subprocess.run([gapwise_exe, "pause-map", str(path), str(schedule), "-d", "4", "--at", "0.3,0.55,0.8",
+                          "--pause-ns", "0,1,3", "--cost", cost, "--out", str(out), "-q"], capture_output=True, text=True)
+    assert run.returncode == 0, run.stderr
+    mod = gapwise.pause_map(gapwise.ising(h=h, J=COUPLINGS), schedule, 4, [0.3, 0.55, 0.8], [0, 1, 3], cost=cost)
+    with h5py.File(out, "r") as f:
+        g = f["/pause_map"]
+        assert mod["ground_probability"].shape == (3, 3)
+        for key in ("pause_s", "pause_ns", "ground_probability", "tts_ns", "total_ns", "norm_drift",
+                    "reference_ground_probability", "reference_total_ns"):
+            assert same(mod[key], g[key][()]), key
+        assert mod["cost"] == g.attrs["cost"]
+    # A pause changes p (the map is not flat), and with zero pause every location equals the reference.
+    assert np.ptp(mod["ground_probability"]) > 1e-4
+    assert same(mod["ground_probability"][:, 0], np.full(3, mod["reference_ground_probability"][0]))

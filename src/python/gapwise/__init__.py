@@ -24,7 +24,7 @@ from ._core import InputError, Problem, Schedule  # noqa: F401
 from . import _core
 
 __all__ = ["InputError", "Problem", "Schedule", "problem", "ising", "qubo", "schedule",
-           "anneal", "gap_scan", "duration_study"]
+           "anneal", "gap_scan", "duration_study", "pause_map"]
 
 _BARE_KEY = re.compile(r"^[A-Za-z0-9_-]+$")
 
@@ -252,3 +252,16 @@ def duration_study(problem_, schedule_, durations_ns=None, *, target=0.99, toler
     grid = None if durations_ns is None else [float(t) for t in _as_list(durations_ns)]
     return _core._duration_study(problem(problem_), schedule(schedule_), grid, target, tolerance, propagator,
                                  p_only, search, predictions, resolution, probes, agreement, threads)
+
+
+def pause_map(problem_, schedule_, duration_ns, pause_s, pause_ns, *, cost="total", target=0.99, tolerance=1e-6,
+              propagator="split-auto", threads=0):
+    """Ground-state probability over pause location (pause_s, schedule parameter s) x pause
+    duration (pause_ns, ns), as `gapwise pause-map` computes it. cost="total": every run takes
+    duration_ns and the pause eats into the ramp; "added": the pause adds to it (the unpaused
+    reference is stretched to the same total). Returns a dict named as /pause_map in the HDF5
+    result: ground_probability, tts_ns, total_ns, norm_drift (len(pause_s) x len(pause_ns)),
+    reference_ground_probability, reference_total_ns (one per pause duration), ..."""
+    return _core._pause_map(problem(problem_), schedule(schedule_), float(duration_ns),
+                            [float(x) for x in _as_list(pause_s)], [float(x) for x in _as_list(pause_ns)], cost,
+                            target, tolerance, propagator, threads)
