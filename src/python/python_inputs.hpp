@@ -31,5 +31,6 @@ void bind_anneal(py::module_& m);
 void bind_gap(py::module_& m);
 void bind_durations(py::module_& m);
 void bind_pause_map(py::module_& m);
+void bind_diagnose(py::module_& m);
 
 }  // namespace gapwise::python

@@ -111,3 +111,53 @@ def test_pause_map_matches_the_command_line(tmp_path, gapwise_exe, source_dir, c
     # A pause changes p (the map is not flat), and with zero pause every location equals the reference.
     assert np.ptp(mod["ground_probability"]) > 1e-4
     assert same(mod["ground_probability"][:, 0], np.full(3, mod["reference_ground_probability"][0]))
+
+
+def read_group(g):
+    """An HDF5 group as nested dicts (datasets as arrays, strings decoded), attributes merged in."""
+    out = {k: (v.decode() if isinstance(v, bytes) else v) for k, v in g.attrs.items()
+           if k not in ("units", "description", "nan_meaning", "inf_meaning", "flag_values", "flag_meanings")}
+    for k, v in g.items():
+        if isinstance(v, h5py.Group):
+            out[k] = read_group(v)
+        elif v.dtype.kind in "OS":
+            out[k] = list(v.asstr()[()])
+        else:
+            out[k] = v[()]
+    return out
+
+
+def test_diagnosis_matches_the_command_line(tmp_path, gapwise_exe, source_dir):
+    # The six-guest seating problem (a field, mixed couplings); two durations and a
+    # small control-error Monte Carlo, so every part of /diagnosis is compared.
+    problem = source_dir / "data-samples" / "dinner-tables.toml"
+    schedule = source_dir / "schedules" / "linear.toml"
+    out = tmp_path / "diag.h5"
+    run = subprocess.run([gapwise_exe, "diagnose", str(problem), str(schedule), "-d", "4,12", "--samples", "4",
+                          "--out", str(out), "-q"], capture_output=True, text=True)
+    assert run.returncode == 0, run.stderr
+    mod = gapwise.diagnose(problem, schedule, [4, 12], samples=4)
+    with h5py.File(out, "r") as f:
+        ref = read_group(f["/diagnosis"])
+    assert len(mod["runs"]) == 2 and len(mod["crossings"]["s_star"]) >= 1
+
+    def compare(a, b, where):
+        if isinstance(b, dict):
+            for k in b:
+                if k == "runs":
+                    for r, run_ in enumerate(a["runs"]):
+                        compare(run_, b["runs"][str(r)], f"{where}/runs/{r}")
+                    continue
+                if k.startswith("level") or k in ("format", "format_version", "DIMENSION_LIST", "CLASS", "NAME",
+                                                  "REFERENCE_LIST"):
+                    continue
+                assert k in a, f"{where}/{k} missing from the module's result"
+                compare(a[k], b[k], f"{where}/{k}")
+        elif isinstance(b, list):
+            assert list(a) == b, where
+        elif isinstance(b, str):
+            assert a == b, where
+        else:
+            assert same(a, b), where
+
+    compare(mod, ref, "/diagnosis")

@@ -24,7 +24,7 @@ from ._core import InputError, Problem, Schedule  # noqa: F401
 from . import _core
 
 __all__ = ["InputError", "Problem", "Schedule", "problem", "ising", "qubo", "schedule",
-           "anneal", "gap_scan", "duration_study", "pause_map"]
+           "anneal", "gap_scan", "duration_study", "pause_map", "diagnose"]
 
 _BARE_KEY = re.compile(r"^[A-Za-z0-9_-]+$")
 
@@ -265,3 +265,16 @@ def pause_map(problem_, schedule_, duration_ns, pause_s, pause_ns, *, cost="tota
     return _core._pause_map(problem(problem_), schedule(schedule_), float(duration_ns),
                             [float(x) for x in _as_list(pause_s)], [float(x) for x in _as_list(pause_ns)], cost,
                             target, tolerance, propagator, threads)
+
+
+def diagnose(problem_, schedule_, durations_ns, *, tolerance=1e-6, propagator="split-auto", levels=4, window=5.0,
+             target_loss=0.01, check_max_ns=10000.0, samples=100, sigma_h=None, sigma_j=None, relative=False, seed=1,
+             control_gaps=True, control_tolerance=None, threads=0):
+    """Why an anneal loses the ground state, as `gapwise diagnose` computes it (same defaults;
+    sigma_h / sigma_j default to 0.03 and are then marked as defaults; samples=0 skips the
+    control-error Monte Carlo). Returns a dict named as /diagnosis in the HDF5 result:
+    gap_ghz, s_star, spectrum {s, gap}, overlap {...}, crossings {...}, runs (a list, one dict per
+    duration: ground_probability, channel_kind, channel_loss, channel_verdict, ...), control {...}."""
+    return _core._diagnose(problem(problem_), schedule(schedule_), [float(t) for t in _as_list(durations_ns)],
+                           tolerance, propagator, levels, window, target_loss, check_max_ns, samples, sigma_h, sigma_j,
+                           relative, seed, control_gaps, control_tolerance, threads)
