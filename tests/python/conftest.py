@@ -11,6 +11,11 @@ import pytest
 SOURCE = pathlib.Path(os.environ.get("GAPWISE_SOURCE_DIR", pathlib.Path(__file__).resolve().parents[2]))
 
 
+def pytest_configure(config):
+    # CTest runs the `slow` ones as python_module_slow (CTest label slow), the rest as python_module.
+    config.addinivalue_line("markers", "slow: takes several seconds (CTest python_module_slow)")
+
+
 @pytest.fixture
 def source_dir():
     return SOURCE

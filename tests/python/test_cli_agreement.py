@@ -127,6 +127,7 @@ def read_group(g):
     return out
 
 
+@pytest.mark.slow
 def test_diagnosis_matches_the_command_line(tmp_path, gapwise_exe, source_dir):
     # The six-guest seating problem (a field, mixed couplings); two durations and a
     # small control-error Monte Carlo, so every part of /diagnosis is compared.

@@ -8,6 +8,9 @@ import subprocess
 import sys
 
 import matplotlib.image
+import pytest
+
+pytestmark = pytest.mark.slow
 
 
 def quoted_table(md):
