@@ -133,3 +133,23 @@ def test_keyword_arguments_are_checked(source_dir):
         gapwise.gap_scan(p, sector="even")  # the triangle has fields
     with pytest.raises(TypeError):
         gapwise.problem(42)
+
+
+def test_a_list_of_triples_keeps_the_files_meaning_even_when_square():
+    # Three couplings of a 3-qubit problem form a 3 x 3 list: in a problem dict a
+    # list means [[i, j, J_ij], ...] as in the file; only ising(J=...) reads matrices.
+    triples = [[0, 1, 1.0], [1, 2, 1.0], [0, 2, 1.0]]
+    p = gapwise.problem({"qubits": 3, "couplings": triples})
+    assert p.J[0, 1] == 1.0 and p.J[1, 2] == 1.0 and p.J[0, 2] == 1.0
+    m = gapwise.ising(h=[0, 0, 0], J=[[0, 1.0, 0], [0, 0, 2.0], [0, 0, 0]])  # a matrix given as lists
+    assert m.J[0, 1] == 1.0 and m.J[1, 2] == 2.0 and m.J[0, 2] == 0.0
+
+
+def test_a_non_square_coupling_matrix_is_refused():
+    with pytest.raises(gapwise.InputError, match=r"key 'couplings': the matrix is of shape \(2, 3\)"):
+        gapwise.ising(h=[0, 0], J=np.zeros((2, 3)))
+
+
+def test_utf8_text_survives_the_dict_route():
+    p = gapwise.ising(h=[0.1], description="Straßenlaternen — 6 Lampen", labels=["Schule ☀"])
+    assert p.description == "Straßenlaternen — 6 Lampen" and p.labels == ["Schule ☀"]

@@ -101,18 +101,20 @@ def _pair_list(value, name, key, diagonal_allowed):
                             "write {(i, j): value, ...} with qubit indices i, j")
             out.append([pair[0], pair[1], v])
         return out
-    try:
-        import numpy as np
-        arr = np.asarray(value)
-    except Exception:  # a list of mixed rows, as in the file: leave it to the reader
+    # Only a NumPy array is read as a matrix; a list keeps the file's meaning
+    # ([[i, j, value], ...]), so that three couplings of a 3-qubit problem are
+    # never mistaken for a 3 x 3 matrix.
+    import numpy as np
+    if not isinstance(value, np.ndarray):
         return value
+    arr = value
     if arr.ndim == 2 and arr.shape[0] == arr.shape[1] and arr.shape[0] > 0 and arr.dtype.kind in "iuf":
         n = arr.shape[0]
         out = []
         for i in range(n):
             if arr[i, i] != 0:
                 if not diagonal_allowed:
-                    raise _fail(name, f"{key}[{i}][{i}]", f"diagonal entry {arr[i, i]!r} in the coupling matrix",
+                    raise _fail(name, f"{key}[{i}][{i}]", f"diagonal entry {float(arr[i, i])!r} in the coupling matrix",
                                 "put fields in h (a spin coupled to itself is a constant); the diagonal must be 0")
                 out.append([i, i, float(arr[i, i])])
             for j in range(i + 1, n):
@@ -121,6 +123,19 @@ def _pair_list(value, name, key, diagonal_allowed):
                     out.append([i, j, v])
         return out
     return value
+
+
+def _matrix(m, key):
+    import numpy as np
+    try:
+        arr = np.asarray(m, dtype=float)
+    except (TypeError, ValueError):
+        arr = None
+    if arr is None or arr.ndim != 2 or arr.shape[0] != arr.shape[1]:
+        shape = "not numeric" if arr is None else f"of shape {arr.shape}"
+        raise _fail("<problem dict>", key, f"the matrix is {shape}",
+                    "give an (n, n) array (entries (i, j) and (j, i) add up) or a dict {(i, j): value}")
+    return arr
 
 
 def _problem_from_dict(d, name="<problem dict>"):
@@ -148,7 +163,8 @@ def problem(source):
     """A Problem from a file path (str or os.PathLike), a Problem (returned as is), or a
     dict with the keys of the problem file (kind, qubits, fields, couplings, terms,
     offset, labels, description). In a dict, `couplings` (Ising) and `terms` (QUBO)
-    may also be {(i, j): value} or an (n, n) array; `fields` may be an array."""
+    are lists [[i, j, value], ...] as in the file, or {(i, j): value}, or an (n, n)
+    NumPy array (entries (i, j) and (j, i) add up); `fields` may be an array."""
     if isinstance(source, Problem):
         return source
     if isinstance(source, (str, os.PathLike)):
@@ -180,7 +196,7 @@ def ising(h=None, J=None, offset=0.0, qubits=None, labels=None, description=None
     if h is not None:
         d["fields"] = _as_list(h)
     if J is not None:
-        d["couplings"] = J
+        d["couplings"] = J if isinstance(J, dict) else _matrix(J, "couplings")
     if offset:
         d["offset"] = offset
     return _problem_from_dict(d)
@@ -201,7 +217,7 @@ def qubo(Q, offset=0.0, qubits=None, labels=None, description=None):
         d["description"] = description
     if labels is not None:
         d["labels"] = list(labels)
-    d["terms"] = Q
+    d["terms"] = Q if isinstance(Q, dict) else _matrix(Q, "terms")
     if offset:
         d["offset"] = offset
     return _problem_from_dict(d)
