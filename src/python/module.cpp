@@ -36,4 +36,5 @@ PYBIND11_MODULE(_core, m) {
   gapwise::python::bind_durations(m);
   gapwise::python::bind_pause_map(m);
   gapwise::python::bind_diagnose(m);
+  gapwise::python::bind_embed_cost(m);
 }

@@ -32,5 +32,6 @@ void bind_gap(py::module_& m);
 void bind_durations(py::module_& m);
 void bind_pause_map(py::module_& m);
 void bind_diagnose(py::module_& m);
+void bind_embed_cost(py::module_& m);
 
 }  // namespace gapwise::python

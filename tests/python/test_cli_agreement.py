@@ -162,3 +162,26 @@ def test_diagnosis_matches_the_command_line(tmp_path, gapwise_exe, source_dir):
             assert same(a, b), where
 
     compare(mod, ref, "/diagnosis")
+
+
+def test_embedding_cost_matches_the_command_line(tmp_path, gapwise_exe, source_dir):
+    # The garden-beds QUBO on a four-qubit square (one chain of two), three chain strengths.
+    problem = source_dir / "data-samples" / "garden-beds-qubo.toml"
+    emb = source_dir / "data-samples" / "garden-beds-square-embedding.toml"
+    schedule = source_dir / "schedules" / "linear.toml"
+    out = tmp_path / "embed.h5"
+    run = subprocess.run([gapwise_exe, "embed-cost", str(problem), str(emb), str(schedule), "--strengths", "0.5,1,2",
+                          "--search-durations", "2,8,32", "--out", str(out), "-q"], capture_output=True, text=True)
+    assert run.returncode == 0, run.stderr
+    mod = gapwise.embed_cost(problem, emb, schedule, strengths=[0.5, 1, 2], search_durations=[2, 8, 32])
+    with h5py.File(out, "r") as f:
+        g = f["/embedding"]
+        for key in ("duration_ns", "chain_coupling_bound", "best_chain_coupling", "price_of_embedding", "best_index"):
+            assert same(mod[key], g.attrs[key]), key
+        assert mod["price_relation"] == g.attrs["price_relation"]
+        for key in ("min_gap_ghz", "s_star", "ground_probability", "needed_ns", "needed_bound"):
+            assert same(mod["logical"][key], g["logical"].attrs[key]), key
+        for key in ("chain_coupling", "scale", "min_gap", "s_star", "p_logical", "p_physical", "broken_chain_share",
+                    "needed_duration", "needed_bound", "ground_intact"):
+            assert same(mod["scan"][key], g["scan"][key][()]), key
+    assert len(mod["scan"]["p_logical"]) >= 3

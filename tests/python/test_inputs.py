@@ -153,3 +153,14 @@ def test_a_non_square_coupling_matrix_is_refused():
 def test_utf8_text_survives_the_dict_route():
     p = gapwise.ising(h=[0.1], description="Straßenlaternen — 6 Lampen", labels=["Schule ☀"])
     assert p.description == "Straßenlaternen — 6 Lampen" and p.labels == ["Schule ☀"]
+
+
+def test_embedding_from_a_dict_equals_the_file(source_dir):
+    path = source_dir / "data-samples" / "garden-beds-square-embedding.toml"
+    f = gapwise.embedding(path)
+    d = gapwise.embedding({"physical_qubits": f.physical_qubits, "chains": f.chains,
+                           "couplers": [[0, 1], [1, 2], [2, 3], [3, 0]]})
+    assert d.chains == f.chains and d.physical_qubits == f.physical_qubits
+    with pytest.raises(gapwise.InputError) as err:
+        gapwise.embedding({"chains": [[0, 1], [1, 2]]})
+    assert err.value.key == "chains[1]" and str(err.value).startswith("<embedding dict>: ")

@@ -24,7 +24,7 @@ from ._core import InputError, Problem, Schedule  # noqa: F401
 from . import _core
 
 __all__ = ["InputError", "Problem", "Schedule", "problem", "ising", "qubo", "schedule",
-           "anneal", "gap_scan", "duration_study", "pause_map", "diagnose"]
+           "anneal", "gap_scan", "duration_study", "pause_map", "diagnose", "embedding", "embed_cost"]
 
 _BARE_KEY = re.compile(r"^[A-Za-z0-9_-]+$")
 
@@ -294,3 +294,35 @@ def diagnose(problem_, schedule_, durations_ns, *, tolerance=1e-6, propagator="s
     return _core._diagnose(problem(problem_), schedule(schedule_), [float(t) for t in _as_list(durations_ns)],
                            tolerance, propagator, levels, window, target_loss, check_max_ns, samples, sigma_h, sigma_j,
                            relative, seed, control_gaps, control_tolerance, threads)
+
+
+def embedding(source):
+    """An Embedding from a file path, an Embedding, or a dict with the keys of the embedding
+    file (read by the same reader; errors name '<embedding dict>' and the key)."""
+    if isinstance(source, _core.Embedding):
+        return source
+    if isinstance(source, (str, os.PathLike)):
+        return _core._embedding_from_file(os.fspath(source))
+    if isinstance(source, dict):
+        name = "<embedding dict>"
+        # The file must say what it is; a dict is one already.
+        d = source if "format" in source else {"format": "gapwise-embedding", **source}
+        return _core._embedding_from_text(_render_toml(d, name), name)
+    raise TypeError(f"an embedding is a path, a dict or a gapwise.Embedding, not {type(source).__name__}")
+
+
+def embed_cost(problem_, embedding_, schedule_, *, strengths=None, absolute=False, term_limit=None,
+               file_term_limit=True, duration_ns=None, search_durations=None, target=0.99, tolerance=1e-6,
+               resolution=5e-3, propagator="split-auto", threads=0):
+    """What an embedding costs, as `gapwise embed-cost` computes it: chain strengths scanned
+    (relative to the largest logical term unless absolute=True; default 0.5, 1, 1.5, 2, 3, 4,
+    plus the embedding file's own), each physical problem's minimum gap, p_logical at the
+    schedule's duration (or duration_ns) and the duration needed for `target` (search grid:
+    search_durations, default 13 log-spaced from 1 to 1000 ns), against the logical problem.
+    term_limit overrides the file's; file_term_limit=False ignores it. Returns a dict named as
+    /embedding in the HDF5 result: price_of_embedding, best_index, logical {...}, scan {...}."""
+    grid = None if search_durations is None else [float(t) for t in _as_list(search_durations)]
+    values = None if strengths is None else [float(x) for x in _as_list(strengths)]
+    return _core._embed_cost(problem(problem_), embedding(embedding_), schedule(schedule_), values, absolute,
+                             term_limit, file_term_limit, duration_ns, grid, target, tolerance, resolution,
+                             propagator, threads)
