@@ -7,7 +7,8 @@ pkgs=(cmake g++ make pkg-config
       libspectra-dev libtomlplusplus-dev libfmt-dev
       libopenmpi-dev openmpi-bin libplplot-dev plplot-driver-cairo hdf5-tools
       clang libclang-rt-14-dev ccache
-      python3 python3-numpy python3-scipy python3-h5py python3-matplotlib)
+      python3 python3-numpy python3-scipy python3-h5py python3-matplotlib
+      pybind11-dev python3-pybind11 python3-pytest python3-dev)
 [ "${1:-}" = "--bench" ] && pkgs+=(python3-qutip)
 missing=()
 for p in "${pkgs[@]}"; do

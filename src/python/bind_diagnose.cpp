@@ -1,0 +1,221 @@
+// gapwise.diagnose: why an anneal loses the ground state, as `gapwise diagnose`
+// computes it (same options and defaults), returned under the names of the
+// HDF5 result (/diagnosis; see io/diagnosis_output.cpp, which this mirrors:
+// runs as a list indexed like /diagnosis/runs/<r>, NaN where the file has NaN).
+#include <cmath>
+#include <limits>
+#include <optional>
+
+#include <pybind11/stl.h>
+
+#include <fmt/format.h>
+
+#include "hamiltonian/memory_budget.hpp"
+#include "hamiltonian/spin_flip_sector.hpp"
+#include "io/input_error.hpp"
+#include "python/keyword_checks.hpp"
+#include "python/numpy_out.hpp"
+#include "python/python_inputs.hpp"
+#include "studies/loss_diagnosis.hpp"
+
+namespace gapwise::python {
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+py::dict diagnose_py(const PyProblem& problem, const PySchedule& schedule, const std::vector<double>& durations_ns,
+                     double tolerance, const std::string& propagator, int levels, double window, double target_loss,
+                     double check_max_ns, long long samples, std::optional<double> sigma_h, std::optional<double> sigma_j,
+                     bool relative, unsigned long long seed, bool control_gaps, std::optional<double> control_tolerance,
+                     int threads) {
+  const std::string fn = "diagnose";
+  auto at = [&](const char* key) { return SourcePlace{"gapwise." + fn, 0, 0, key}; };
+  check_durations_arg(fn, durations_ns);
+  check_tolerance_arg(fn, tolerance);
+  check_propagator_arg(fn, propagator);
+  check_count_arg(fn, "levels", levels, 2, 64);
+  check_count_arg(fn, "threads", threads, 0, 4096);
+  check_count_arg(fn, "samples", samples, 0, 1000000);
+  for (const auto& [key, sigma] : {std::pair{"sigma_h", sigma_h}, std::pair{"sigma_j", sigma_j}})
+    if (sigma && (!(*sigma >= 0.0) || !std::isfinite(*sigma)))
+      throw InputError(at(key), fmt::format("control-error sigma {} is not a finite number >= 0", *sigma),
+                       "give a standard deviation >= 0 (0 switches that error off), e.g. 0.03");
+  if (control_tolerance) check_tolerance_arg(fn, *control_tolerance);
+  if (!(target_loss > 0 && target_loss < 1))
+    throw InputError(at("target_loss"), fmt::format("target loss {} is outside (0, 1)", target_loss), "e.g. target_loss=0.01");
+  if (!(check_max_ns >= 0))
+    throw InputError(at("check_max_ns"), fmt::format("{} ns is negative", check_max_ns),
+                     "give a duration in ns, or 0 to skip the simulated checks");
+  if (!(window > 0) || !std::isfinite(window))
+    throw InputError(at("window"), fmt::format("window factor {} is not a positive number", window), "e.g. window=5");
+
+  DiagnosisOptions d;
+  d.durations_ns = durations_ns;
+  d.simulation.propagator = propagator;
+  d.simulation.propagation.tolerance = tolerance;
+  d.gap.levels = levels;
+  d.overlap.levels = levels;
+  d.window_factor = window;
+  d.target_loss = target_loss;
+  d.check_max_ns = check_max_ns;
+  d.control_sigma_h_given = sigma_h.has_value();
+  d.control_sigma_j_given = sigma_j.has_value();
+  d.control_gaps = control_gaps;
+  d.control_tolerance = control_tolerance;
+  if (samples > 0) {
+    ControlEnsembleOptions c;
+    c.model = {sigma_h.value_or(0.03), sigma_j.value_or(0.03), relative};
+    c.samples = static_cast<std::uint64_t>(samples);
+    c.seed = seed;
+    c.threads = threads;
+    d.control = c;
+  }
+  std::optional<Diagnosis> result;
+  {
+    py::gil_scoped_release release;
+    check_memory(problem.file.ising.qubits, 12, 0, problem.file.qubits_place);
+    result = diagnose_anneal(problem.file.ising, schedule.schedule, d);
+  }
+  const Diagnosis& r = *result;
+
+  py::dict out;
+  out["ground_energy"] = r.ground.energy;
+  out["gap_ghz"] = r.gap.gap_ghz;
+  out["s_star"] = r.gap.s_star;
+  out["gap_definition"] = r.gap.definition;
+  out["sector"] = sector_name(r.gap.sector);
+  out["durations"] = to_numpy(r.durations_ns);
+  out["ground_states"] = to_numpy(std::vector<long long>(r.ground.states.begin(), r.ground.states.end()));
+  {
+    std::vector<double> s, gap;
+    for (const SpectrumPoint& p : r.gap.curve) { s.push_back(p.s); gap.push_back(p.gap_ghz); }
+    py::dict spectrum;
+    spectrum["s"] = to_numpy(s);
+    spectrum["gap"] = to_numpy(gap);
+    out["spectrum"] = spectrum;
+  }
+  {
+    const std::size_t k = r.overlap.points.empty() ? 0 : r.overlap.points.front().levels.size();
+    std::vector<double> s, w, e, dom;
+    for (const OverlapPoint& p : r.overlap.points) {
+      s.push_back(p.s);
+      for (std::size_t q = 0; q < k; ++q) {
+        const bool has = q < p.levels.size();
+        w.push_back(has ? p.levels[q].ground_weight : kNaN);
+        e.push_back(has ? p.levels[q].energy_ghz : kNaN);
+        dom.push_back(has ? p.levels[q].dominant_excited_weight : kNaN);
+      }
+    }
+    std::vector<double> sw;
+    for (const PerturbativeCrossing& l : r.overlap.perturbative_crossings) sw.push_back(l.s_switch);
+    py::dict overlap;
+    overlap["s"] = to_numpy(s);
+    overlap["ground_weight"] = to_numpy(w, s.size(), k);
+    overlap["energy"] = to_numpy(e, s.size(), k);
+    overlap["dominant_excited_weight"] = to_numpy(dom, s.size(), k);
+    overlap["perturbative_crossing_s"] = to_numpy(sw);
+    out["overlap"] = overlap;
+  }
+  {
+    const std::size_t m = r.crossings.size(), nr = r.runs.size();
+    std::vector<double> s, delta, slope, before, after, transferred, lz, lz_t, check_p, check_loss;
+    std::vector<long long> late, end, broad, check_run, crossing;
+    for (std::size_t i = 0; i < m; ++i) {
+      const AvoidedCrossing& x = r.crossings[i];
+      crossing.push_back(static_cast<long long>(i));
+      s.push_back(x.minimum.s);
+      delta.push_back(x.minimum.gap_ghz);
+      slope.push_back(x.diabatic_slope_ghz);
+      late.push_back(x.perturbative_crossing ? static_cast<long long>(*x.perturbative_crossing) : -1);
+      for (const CrossingPassage& p : x.passages) {
+        before.push_back(p.population_before);
+        after.push_back(p.population_after);
+        transferred.push_back(p.transferred);
+        lz.push_back(std::isfinite(p.landau_zener_loss) ? p.landau_zener_loss : kNaN);
+      }
+      end.push_back(x.at_end_point);
+      broad.push_back(x.broad);
+      check_run.push_back(x.check.has_value());
+      lz_t.push_back(std::isfinite(x.landau_zener_duration_ns) ? x.landau_zener_duration_ns : kNaN);
+      check_p.push_back(x.check ? x.check_ground_probability : kNaN);
+      check_loss.push_back(x.check ? x.check->transferred : 0.0);
+    }
+    py::dict c;
+    c["crossing"] = to_numpy(crossing);
+    c["s_star"] = to_numpy(s);
+    c["delta_min"] = to_numpy(delta);
+    c["diabatic_slope"] = to_numpy(slope);
+    c["perturbative_crossing_index"] = to_numpy(late);
+    c["population_before"] = to_numpy(before, m, nr);
+    c["population_after"] = to_numpy(after, m, nr);
+    c["transferred"] = to_numpy(transferred, m, nr);
+    c["landau_zener_loss"] = to_numpy(lz, m, nr);
+    c["end_gap"] = to_numpy(end);
+    c["broad"] = to_numpy(broad);
+    c["landau_zener_duration"] = to_numpy(lz_t);
+    c["check_run"] = to_numpy(check_run);
+    c["check_ground_probability"] = to_numpy(check_p);
+    c["check_transferred"] = to_numpy(check_loss);
+    out["crossings"] = c;
+  }
+  py::list runs;
+  for (const DurationDiagnosis& run : r.runs) {
+    py::dict g;
+    g["duration_ns"] = run.duration_ns;
+    g["ground_probability"] = run.anneal.ground_probability;
+    g["unattributed_loss"] = run.unattributed_loss;
+    g["final_probabilities"] = to_numpy(probabilities(run.anneal.final_state));
+    std::vector<std::string> kinds, verdicts;
+    std::vector<double> losses, regained;
+    for (const Channel& k : run.channels) {
+      kinds.push_back(channel_kind_name(k.kind));
+      verdicts.push_back(k.verdict);
+      losses.push_back(k.loss);
+      regained.push_back(k.regained);
+    }
+    g["channel_kind"] = kinds;
+    g["channel_verdict"] = verdicts;
+    g["channel_loss"] = to_numpy(losses);
+    g["channel_regained"] = to_numpy(regained);
+    runs.append(g);
+  }
+  out["runs"] = runs;
+  if (r.control) {
+    const ControlEnsemble& e = *r.control;
+    py::dict g;
+    g["seed"] = e.options.seed;
+    g["sigma_h"] = e.options.model.sigma_h;
+    g["sigma_j"] = e.options.model.sigma_j;
+    g["relative"] = e.options.model.relative;
+    g["ground_change_rate"] = e.ground_change_rate;
+    g["sigmas_are_defaults"] = !r.control_sigma_h_given || !r.control_sigma_j_given;
+    std::vector<long long> idx, changed;
+    std::vector<double> p;
+    for (const ControlSample& s : e.samples) {
+      idx.push_back(static_cast<long long>(s.index));
+      changed.push_back(s.ground_changed);
+      for (std::size_t k = 0; k < r.runs.size(); ++k) p.push_back(k < s.p_intended.size() ? s.p_intended[k] : kNaN);
+    }
+    g["sample"] = to_numpy(idx);
+    g["ground_changed"] = to_numpy(changed);
+    g["classical_margin"] = to_numpy(e.column(&ControlSample::classical_margin));
+    if (!e.samples.empty() && std::isfinite(e.samples.front().delta_min_ghz)) {
+      g["delta_min"] = to_numpy(e.column(&ControlSample::delta_min_ghz));
+      g["s_star"] = to_numpy(e.column(&ControlSample::s_star));
+    }
+    g["ground_probability"] = to_numpy(p, e.samples.size(), r.runs.size());
+    out["control"] = g;
+  }
+  return out;
+}
+
+}  // namespace
+
+void bind_diagnose(py::module_& m) {
+  m.def("_diagnose", &diagnose_py, py::arg("problem"), py::arg("schedule"), py::arg("durations_ns"), py::arg("tolerance"),
+        py::arg("propagator"), py::arg("levels"), py::arg("window"), py::arg("target_loss"), py::arg("check_max_ns"),
+        py::arg("samples"), py::arg("sigma_h"), py::arg("sigma_j"), py::arg("relative"), py::arg("seed"),
+        py::arg("control_gaps"), py::arg("control_tolerance"), py::arg("threads"));
+}
+
+}  // namespace gapwise::python
