@@ -223,8 +223,9 @@ constexpr double kLegendBase = 0.095, kLegendPerChar = 0.0127, kLegendPerEntry =
 
 // Positions the frame shows data at, in frame units: points, line segments
 // (sampled), band edges and interiors, markers with their text, vertical lines.
-// With `references` false, horizontal reference lines (two-point series at one
-// value, e.g. a target) are left out: a legend over part of one hides nothing.
+// With `references` false, reference lines (two-point series at one value, e.g.
+// a target, and the dotted vertical lines) are left out: a legend over part of
+// one hides nothing, the rest of the line stays in view.
 std::vector<std::pair<double, double>> occupied_points(const LinePlot& plot, double x0, double x1, double y0, double y1,
                                                        bool references = true) {
   std::vector<std::pair<double, double>> pts;
@@ -271,6 +272,7 @@ std::vector<std::pair<double, double>> occupied_points(const LinePlot& plot, dou
     }
   }
   for (double v : plot.vertical_lines) {
+    if (!references) break;
     const double xv = plot.log_x ? std::log10(v) : v;
     for (int j = 0; j <= 40; ++j) pts.push_back({(xv - x0) / (x1 - x0), j / 40.0});
   }
@@ -318,8 +320,12 @@ void render_figure(const LinePlot& requested, const std::string& path) {
   std::size_t entries = 0, longest = 0;
   for (const auto& b : plot.bands)
     if (!b.label.empty()) { ++entries; longest = std::max(longest, visible_length(b.label)); }
-  for (const auto& ser : plot.series)
-    if (!ser.label.empty()) { ++entries; longest = std::max(longest, visible_length(ser.label)); }
+  for (const auto& ser : plot.series) {  // a series with no point to draw has no legend entry either
+    bool any = false;
+    for (std::size_t k = 0; k < std::min(ser.x.size(), ser.y.size()); ++k)
+      any = any || (std::isfinite(ser.x[k]) && std::isfinite(ser.y[k]) && (!plot.log_y || ser.y[k] > 0));
+    if (any && !ser.label.empty()) { ++entries; longest = std::max(longest, visible_length(ser.label)); }
+  }
   const double legend_w = kLegendBase + kLegendPerChar * static_cast<double>(longest);
   if (plot.legend == LinePlot::Legend::Auto) {
     const double legend_h = kLegendPerEntry * static_cast<double>(entries) + 0.01;
@@ -386,7 +392,14 @@ void render_figure(const LinePlot& requested, const std::string& path) {
     if (few_x) label_log_axis_125(p, false, x0, x1);
     if (few_y) label_log_axis_125(p, true, y0, y1);
     p.lab(plot.x_label.c_str(), plot.y_label.c_str(), "");
-    draw_title(p, plot.title, plot.note);
+    if (frame_right < 0.95) {  // a narrowed frame: the title and its notes still centred on the page
+      p.vpor(0.1, 0.95, 0.12, frame_top(plot.note, 0.86));
+      draw_title(p, plot.title, plot.note);
+      p.vpor(0.1, frame_right, 0.12, frame_top(plot.note, 0.86));
+      p.wind(x0, x1, y0, y1);
+    } else {
+      draw_title(p, plot.title, plot.note);
+    }
 
     for (const auto& ser : plot.series) {
       bool any = false;  // a series with no finite point is left out, legend included

@@ -562,6 +562,16 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
                                              const std::vector<std::string>& formats,
                                              const std::vector<std::string>& other_inputs) {
   namespace fs = std::filesystem;
+  // Refused before anything is read or created.
+  const auto known = figure_formats();
+  if (known.empty())
+    throw InputError({result_file, 0, 0, ""}, "this gapwise was built without figures (PLplot was not found or "
+                     "GAPWISE_FIGURES was OFF at build time)",
+                     "install libplplot-dev and rebuild: cmake -S . -B build -DGAPWISE_FIGURES=ON && cmake --build build");
+  for (const auto& f : formats)
+    if (std::find(known.begin(), known.end(), f) == known.end())
+      throw InputError({"--format", 0, 0, "--format"}, fmt::format("unknown figure format '{}'", f),
+                       "use svg (text kept as text), png or pdf, comma-separated: --format svg,pdf");
   const Hdf5Input in(result_file);
   std::error_code ec;
   fs::create_directories(out_dir, ec);
@@ -580,22 +590,13 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
       written.push_back(path);
     }
   };
-  const auto known = figure_formats();
-  if (known.empty())
-    throw InputError({result_file, 0, 0, "figure"}, "this gapwise was built without figures (PLplot was not found or "
-                     "GAPWISE_FIGURES was OFF at build time)",
-                     "install libplplot-dev and rebuild: cmake -S . -B build -DGAPWISE_FIGURES=ON && cmake --build build");
-  for (const auto& f : formats)
-    if (std::find(known.begin(), known.end(), f) == known.end())
-      throw InputError({"--format", 0, 0, "--format"}, fmt::format("unknown figure format '{}'", f),
-                       "use svg (text kept as text), png or pdf, comma-separated: --format svg,pdf");
   anneal_trace(in, emit);
   spectrum(in, emit);
   duration_study(in, emit);
   probability_map(in, emit, "/pause_map", "pause_s", "pause_ns", "pause-map", "Pause map: ground-state probability",
-                  "pause location s_p", "pause duration (ns)");
+                  "pause location s#dp#u", "pause duration (ns)");
   probability_map(in, emit, "/reverse_map", "turn_s", "dwell_ns", "reverse-map",
-                  "Reverse anneal: ground-state probability", "turn point s_turn", "dwell (ns)");
+                  "Reverse anneal: ground-state probability", "turn point s#dturn#u", "dwell (ns)");
   level_populations(in, emit);
   ensemble_scaling(in, emit);
   chain_strength_scan(in, emit);
