@@ -416,7 +416,7 @@ void ensemble_scaling(const Hdf5Input& in, const Emit& emit) {
   draw("ensemble-tts", [](const SizeSummary& s) -> const SampleSummary& { return s.tts_ns; },
        fmt::format("Optimal time to solution against problem size (p* = {:g})", r.settings.target_probability),
        "optimal TTS (ns)", "median",
-       fmt::format("{}; t_f = {:g} to {:g} ns; optimum at a range end: {} of {}; never solved: {}", counts,
+       fmt::format("{}; t#df#u = {:g} to {:g} ns; optimum at a range end: {} of {}; never solved: {}", counts,
                    r.settings.durations_ns.front(), r.settings.durations_ns.back(), edge, instances, never));
   draw("ensemble-gap", [](const SizeSummary& s) -> const SampleSummary& { return s.gap_ghz; },
        "Minimum spectral gap against problem size", "minimum gap (GHz)", "median", counts);
