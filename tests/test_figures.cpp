@@ -8,7 +8,11 @@
 #include <fstream>
 #include <string>
 #include <vector>
+#include <algorithm>
+#include <iterator>
+#include <regex>
 
+#include "io/figure_plot.hpp"
 #include "test_support.hpp"
 
 using gapwise::testing::run_gapwise;
@@ -150,4 +154,107 @@ TEST_CASE("figure: an ensemble result gives the TTS-against-size and gap-against
   REQUIRE(f.exit_code == 0);
   for (const char* name : {"study-ensemble-tts.svg", "study-ensemble-tts.png", "study-ensemble-gap.svg", "study-ensemble-gap.png"})
     gapwise::testing::check_figure_file(dir.path / "figs" / name);
+}
+
+// --- What a reader sees, checked in the files themselves (SVG text is text) ---
+
+namespace {
+std::string slurp(const std::filesystem::path& p) {
+  std::ifstream f(p, std::ios::binary);
+  return {std::istreambuf_iterator<char>(f), std::istreambuf_iterator<char>()};
+}
+
+// PLplot's SVG device writes every character as a reference (&#x61; for "a"):
+// the file with those decoded to UTF-8, tags kept.
+std::string decoded_svg(const std::filesystem::path& p) {
+  const std::string raw = slurp(p);
+  std::string out;
+  const std::regex ref("&#x([0-9a-fA-F]+);");
+  auto last = raw.cbegin();
+  for (auto it = std::sregex_iterator(raw.begin(), raw.end(), ref); it != std::sregex_iterator(); ++it) {
+    out.append(last, raw.cbegin() + it->position());
+    const unsigned long c = std::stoul((*it)[1], nullptr, 16);
+    if (c < 0x80) out += static_cast<char>(c);
+    else if (c < 0x800) { out += static_cast<char>(0xC0 | (c >> 6)); out += static_cast<char>(0x80 | (c & 0x3F)); }
+    else {
+      out += static_cast<char>(0xE0 | (c >> 12));
+      out += static_cast<char>(0x80 | ((c >> 6) & 0x3F));
+      out += static_cast<char>(0x80 | (c & 0x3F));
+    }
+    last = raw.cbegin() + it->position() + it->length();
+  }
+  out.append(last, raw.cend());
+  return out;
+}
+
+// The numbers PLplot's SVG device wrote as tick labels of the form d.d (a linear axis).
+std::vector<double> linear_tick_labels(const std::string& svg) {
+  std::vector<double> v;
+  const std::regex tick(">([0-9]\\.[0-9])</tspan>");  // in a decoded file
+  for (auto it = std::sregex_iterator(svg.begin(), svg.end(), tick); it != std::sregex_iterator(); ++it)
+    v.push_back(std::stod((*it)[1]));
+  return v;
+}
+}  // namespace
+
+TEST_CASE("figure: durations figures keep text as text, end the p axis at 1, add 1 - p and print the caveats") {
+  TempDir dir;
+  // A QUBO-derived problem with fields; the default grid runs into the random-guess limit at short t_f.
+  const auto h5 = run_study(dir, "durations " + src("data-samples/meeting-slots-qubo.toml") + " " +
+                                     src("schedules/linear.toml") + " --quiet", "dur");
+  const auto figs = dir.path / "figs";
+  auto f = run_gapwise("figure '" + h5 + "' --out-dir '" + figs.string() + "' --format svg,pdf", dir);
+  INFO(f.err);
+  REQUIRE(f.exit_code == 0);
+
+  const std::string p_svg = decoded_svg(figs / "dur-probability.svg");
+  CHECK(p_svg.find("<text") != std::string::npos);  // svgcairo would have outlined every glyph as a <path>
+  CHECK(p_svg.find(">ground-state probability p<") != std::string::npos);
+  // Subscripts go down (positive dy), the exponents of log-axis labels up.
+  CHECK(std::regex_search(p_svg, std::regex(">10<tspan dy=\"-[0-9.]+\" font-size=\"[0-9]+\">-1<")));
+  // t_f with a real subscript: "f" in a shifted, smaller tspan after "t" (PLplot's #d escape).
+  CHECK(std::regex_search(p_svg, std::regex("anneal duration t<tspan dy=\"[0-9.]+\" font-size=\"[0-9]+\">f<")));
+  CHECK(p_svg.find("\xce\x94") != std::string::npos);  // the Greek Delta of Delta_min (UTF-8 CE 94)
+  CHECK(p_svg.find("t_f") == std::string::npos);
+  // The probability axis ends at 1 with a little room: ticks up to 1.0, none beyond 1.1.
+  const auto ticks = linear_tick_labels(p_svg);
+  REQUIRE_FALSE(ticks.empty());
+  CHECK(*std::max_element(ticks.begin(), ticks.end()) == doctest::Approx(1.0));
+
+  const std::string miss = decoded_svg(figs / "dur-miss-probability.svg");
+  CHECK(miss.find("1 \xe2\x88\x92 p") != std::string::npos);  // "1 − p", with a real minus sign
+  CHECK(miss.find("propagator tolerance") != std::string::npos);  // p reaches 1 - 1e-6 in this grid
+
+  const std::string tts = decoded_svg(figs / "dur-tts.svg");
+  CHECK(tts.find("random-guess value") != std::string::npos);  // the caveat the terminal prints
+
+  const std::string pdf = slurp(figs / "dur-tts.pdf");
+  REQUIRE(pdf.size() > 1000);
+  CHECK(pdf.compare(0, 5, "%PDF-") == 0);
+  CHECK(pdf.find("%%EOF", pdf.size() - 16) != std::string::npos);
+}
+
+TEST_CASE("figure: an unknown format is refused naming the formats this build writes") {
+  TempDir dir;
+  const auto h5 = run_study(dir, "gap " + src("data-samples/triangle.toml") + " " + src("schedules/linear.toml") +
+                                     " --points 11", "gap");
+  auto f = run_gapwise("figure '" + h5 + "' --out-dir '" + (dir.path / "figs").string() + "' --format eps", dir);
+  CHECK(f.exit_code == 2);
+  CHECK(f.err.find("unknown figure format 'eps'") != std::string::npos);
+  CHECK(f.err.find("png or pdf") != std::string::npos);
+}
+
+TEST_CASE("legend placement: the first corner free of data, outside when none is") {
+  using L = gapwise::LinePlot::Legend;
+  std::vector<std::pair<double, double>> rising;  // a curve from bottom left to top right
+  for (int k = 0; k <= 100; ++k) rising.push_back({k / 100.0, k / 100.0});
+  CHECK(gapwise::free_legend_corner(rising, 0.3, 0.2) == L::TopLeft);
+  std::vector<std::pair<double, double>> falling;
+  for (int k = 0; k <= 100; ++k) falling.push_back({k / 100.0, 1 - k / 100.0});
+  CHECK(gapwise::free_legend_corner(falling, 0.3, 0.2) == L::TopRight);
+  auto full = rising;
+  full.insert(full.end(), falling.begin(), falling.end());
+  for (int k = 0; k <= 100; ++k) { full.push_back({k / 100.0, 0.05}); full.push_back({k / 100.0, 0.95}); }
+  CHECK(gapwise::free_legend_corner(full, 0.3, 0.2) == L::Outside);
+  CHECK(gapwise::free_legend_corner({}, 1.2, 0.2) == L::Outside);  // wider than the frame
 }

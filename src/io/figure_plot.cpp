@@ -10,9 +10,11 @@
 #include <stdexcept>
 
 #include <fmt/format.h>
-#include <plstream.h>
 
 #include "io/atomic_file.hpp"
+
+#ifdef GAPWISE_HAVE_PLPLOT
+#include <plstream.h>
 
 namespace gapwise {
 namespace {
@@ -23,11 +25,32 @@ constexpr int kPalette[][3] = {{0, 114, 178}, {213, 94, 0}, {0, 158, 115}, {204,
 constexpr int kPaletteSize = 8;
 constexpr int kGridColour = 12;
 
+// PLplot's own "svg" device keeps text as <text> elements (searchable, editable
+// in a drawing program); its cairo SVG device would outline every glyph.
 std::string device_for(const std::string& path) {
   const std::string ext = std::filesystem::path(path).extension().string();
-  if (ext == ".svg") return "svgcairo";
+  if (ext == ".svg") return "svg";
   if (ext == ".png") return "pngcairo";
-  throw std::runtime_error(fmt::format("unknown figure format '{}' (use .svg or .png)", ext));
+  if (ext == ".pdf") return "pdfcairo";
+  throw std::runtime_error(fmt::format("unknown figure format '{}' (use .svg, .png or .pdf)", ext));
+}
+
+std::vector<std::string> split_lines(const std::string& text) {
+  std::vector<std::string> lines;
+  std::size_t from = 0;
+  while (from <= text.size() && !text.empty()) {
+    const std::size_t to = text.find('\n', from);
+    lines.push_back(text.substr(from, to == std::string::npos ? std::string::npos : to - from));
+    if (to == std::string::npos) break;
+    from = to + 1;
+  }
+  return lines;
+}
+
+// The top of the frame (page fraction) leaves room for the title and its note lines.
+double frame_top(const std::string& note, double top) {
+  const auto n = split_lines(note).size();
+  return n > 0 ? top - 0.01 - 0.04 * static_cast<double>(n - 1) : top;
 }
 
 struct Stream {
@@ -48,13 +71,18 @@ struct Stream {
   }
 };
 
-// The title above the frame, with an optional line of small text under it.
+// The title above the frame, with lines of small text (one per '\n' of `note`) under it.
 void draw_title(plstream& p, const std::string& title, const std::string& note) {
-  p.mtex("t", note.empty() ? 1.2 : 2.4, 0.5, 0.5, title.c_str());
-  if (note.empty()) return;
-  p.schr(0, 0.75);
-  p.mtex("t", 1.0, 0.5, 0.5, note.c_str());
-  p.schr(0, 0.95);
+  const auto lines = split_lines(note);
+  constexpr double kNoteScale = 0.75, kTitleScale = 0.95, kLineStep = 1.7;  // room for sub- and superscripts
+  // mtex displacements count heights of the current characters.
+  constexpr double kFirstLine = 1.4;  // a subscript on the lowest line stays clear of the frame
+  const double note_top = lines.empty() ? 0.0 : kFirstLine + kLineStep * static_cast<double>(lines.size() - 1);
+  p.mtex("t", lines.empty() ? 1.2 : note_top * kNoteScale / kTitleScale + 1.5, 0.5, 0.5, title.c_str());
+  p.schr(0, kNoteScale);
+  for (std::size_t k = 0; k < lines.size(); ++k)
+    p.mtex("t", kFirstLine + kLineStep * static_cast<double>(lines.size() - 1 - k), 0.5, 0.5, lines[k].c_str());
+  p.schr(0, kTitleScale);
 }
 
 std::vector<double> transformed(const std::vector<double>& v, bool log) {
@@ -128,7 +156,7 @@ void for_finite_runs(const std::vector<double>& x, const std::vector<double>& y,
 // PLplot's cairo drivers do not report failed writes (a full disk, a file-size
 // limit): the file they leave can be cut off or empty. So the finished
 // temporary file is checked for the end every complete image has (PNG: the
-// IEND chunk; SVG: the closing </svg> tag) before it is renamed over `path`;
+// IEND chunk; SVG: the closing </svg> tag; PDF: the %%EOF marker) before it is renamed over `path`;
 // a cut-off image is removed and reported, and a previous file is kept.
 void commit_figure(const std::string& path) {
   const std::string temp = temporary_path_for(path);
@@ -143,16 +171,17 @@ void commit_figure(const std::string& path) {
     tail.resize(std::fread(tail.data(), 1, tail.size(), f));
     std::fclose(f);
   }
-  const bool png = std::filesystem::path(path).extension() == ".png";
+  const std::string ext = std::filesystem::path(path).extension().string();
+  const bool png = ext == ".png";
   static const std::string png_end("\0\0\0\0IEND\xae\x42\x60\x82", 12);
   while (!png && !tail.empty() && std::isspace(static_cast<unsigned char>(tail.back()))) tail.pop_back();
-  const std::string end = png ? png_end : std::string("</svg>");
+  const std::string end = png ? png_end : ext == ".pdf" ? std::string("%%EOF") : std::string("</svg>");
   if (tail.size() < end.size() || tail.compare(tail.size() - end.size(), end.size(), end) != 0) {
     std::remove(temp.c_str());
     throw std::runtime_error(fmt::format(
         "cannot write '{}': the image came out incomplete ({} bytes, no {} end); the disk may be full or a "
         "file-size limit reached. Nothing was written under that name (an earlier file of that name is kept)",
-        path, size, png ? "PNG" : "SVG"));
+        path, size, png ? "PNG" : ext == ".pdf" ? "PDF" : "SVG"));
   }
   commit_temporary(temp, path);
 }
@@ -173,7 +202,99 @@ void draw_figure_file(const std::string& path, Draw draw) {
   }
 }
 
+// Characters a label shows: PLplot escapes (#d, #u, #g<letter>) and UTF-8
+// continuation bytes do not widen it.
+std::size_t visible_length(const std::string& text) {
+  std::size_t n = 0;
+  for (std::size_t k = 0; k < text.size(); ++k) {
+    const unsigned char c = static_cast<unsigned char>(text[k]);
+    if ((c & 0xC0) == 0x80) continue;
+    if (c == '#' && k + 1 < text.size() && (text[k + 1] == 'd' || text[k + 1] == 'u')) { ++k; continue; }
+    if (c == '#' && k + 1 < text.size() && text[k + 1] == 'g') { ++k; continue; }  // the letter after counts
+    ++n;
+  }
+  return n;
+}
+
+// Legend size in frame units, measured on rendered figures of 1000 x 700 pixels
+// (frame 850 x 520): a 24-character label gives a box 0.40 wide, 39 characters
+// 0.59; each entry adds 0.073 of the height.
+constexpr double kLegendBase = 0.095, kLegendPerChar = 0.0127, kLegendPerEntry = 0.073;
+
+// Positions the frame shows data at, in frame units: points, line segments
+// (sampled), band edges and interiors, markers with their text, vertical lines.
+// With `references` false, reference lines (two-point series at one value, e.g.
+// a target, and the dotted vertical lines) are left out: a legend over part of
+// one hides nothing, the rest of the line stays in view.
+std::vector<std::pair<double, double>> occupied_points(const LinePlot& plot, double x0, double x1, double y0, double y1,
+                                                       bool references = true) {
+  std::vector<std::pair<double, double>> pts;
+  auto to_frame = [&](double x, double y) { return std::pair{(x - x0) / (x1 - x0), (y - y0) / (y1 - y0)}; };
+  auto add_curve = [&](const std::vector<double>& xs, const std::vector<double>& ys, bool joined) {
+    for_finite_runs(xs, ys, [&](const std::vector<double>& rx, const std::vector<double>& ry) {
+      for (std::size_t k = 0; k < rx.size(); ++k) {
+        pts.push_back(to_frame(rx[k], ry[k]));
+        if (!joined || k + 1 == rx.size()) continue;
+        for (int j = 1; j < 24; ++j) {
+          const double f = j / 24.0;
+          pts.push_back(to_frame(rx[k] + f * (rx[k + 1] - rx[k]), ry[k] + f * (ry[k + 1] - ry[k])));
+        }
+      }
+    });
+  };
+  for (const auto& ser : plot.series) {
+    if (!references && ser.x.size() == 2 && ser.y.size() == 2 && ser.y[0] == ser.y[1]) continue;
+    const auto xs = transformed(ser.x, plot.log_x), ys = transformed(ser.y, plot.log_y);
+    add_curve(xs, ys, ser.style != SeriesStyle::Points);
+    if (ser.y_low.size() == ser.y.size() && ser.y_high.size() == ser.y.size()) {
+      add_curve(xs, transformed(ser.y_low, plot.log_y), false);
+      add_curve(xs, transformed(ser.y_high, plot.log_y), false);
+    }
+  }
+  for (const auto& b : plot.bands) {
+    const auto xs = transformed(b.x, plot.log_x), lo = transformed(b.low, plot.log_y), hi = transformed(b.high, plot.log_y);
+    for (double f : {0.0, 0.25, 0.5, 0.75, 1.0}) {
+      std::vector<double> mid(std::min(lo.size(), hi.size()));
+      for (std::size_t k = 0; k < mid.size(); ++k) mid[k] = lo[k] + f * (hi[k] - lo[k]);
+      add_curve(xs, mid, true);
+    }
+  }
+  for (const auto& m : plot.markers) {
+    const double mx = plot.log_x ? std::log10(m.x) : m.x, my = plot.log_y ? std::log10(m.y) : m.y;
+    if (!std::isfinite(mx) || !std::isfinite(my)) continue;
+    const auto [fx, fy] = to_frame(mx, my);
+    const double w = kLegendPerChar * static_cast<double>(visible_length(m.text));
+    const bool right_half = mx > x0 + 0.6 * (x1 - x0);
+    for (int j = 0; j <= 12; ++j) {
+      const double tx = right_half ? fx - w * j / 12.0 : fx + w * j / 12.0;
+      pts.push_back({tx, fy});
+      pts.push_back({tx, fy + 0.06});
+    }
+  }
+  for (double v : plot.vertical_lines) {
+    if (!references) break;
+    const double xv = plot.log_x ? std::log10(v) : v;
+    for (int j = 0; j <= 40; ++j) pts.push_back({(xv - x0) / (x1 - x0), j / 40.0});
+  }
+  return pts;
+}
+
 }  // namespace
+
+LinePlot::Legend free_legend_corner(const std::vector<std::pair<double, double>>& points, double width, double height) {
+  constexpr double kOffset = 0.02, kMargin = 0.015;
+  using L = LinePlot::Legend;
+  for (L corner : {L::TopRight, L::TopLeft, L::BottomRight, L::BottomLeft}) {
+    const bool right = corner == L::TopRight || corner == L::BottomRight, top = corner == L::TopRight || corner == L::TopLeft;
+    const double bx0 = right ? 1 - kOffset - width - kMargin : kOffset - kMargin, bx1 = bx0 + width + 2 * kMargin;
+    const double by0 = top ? 1 - kOffset - height - kMargin : kOffset - kMargin, by1 = by0 + height + 2 * kMargin;
+    const bool covered = std::any_of(points.begin(), points.end(), [&](const auto& q) {
+      return q.first >= bx0 && q.first <= bx1 && q.second >= by0 && q.second <= by1;
+    });
+    if (!covered && width < 1 - 2 * kOffset && height < 1 - 2 * kOffset) return corner;
+  }
+  return L::Outside;
+}
 
 void render_figure(const LinePlot& requested, const std::string& path) {
   check_output_path(path, "figure");
@@ -196,9 +317,28 @@ void render_figure(const LinePlot& requested, const std::string& path) {
                                            plot.log_y ? std::log10(plot.y_range->second) : plot.y_range->second}
                                : range_of(plot, true, plot.log_y);
   const double x0 = x0_, x1 = x1_, y0 = y0_, y1 = y1_;
+  std::size_t entries = 0, longest = 0;
+  for (const auto& b : plot.bands)
+    if (!b.label.empty()) { ++entries; longest = std::max(longest, visible_length(b.label)); }
+  for (const auto& ser : plot.series) {  // a series with no point to draw has no legend entry either
+    bool any = false;
+    for (std::size_t k = 0; k < std::min(ser.x.size(), ser.y.size()); ++k)
+      any = any || (std::isfinite(ser.x[k]) && std::isfinite(ser.y[k]) && (!plot.log_y || ser.y[k] > 0));
+    if (any && !ser.label.empty()) { ++entries; longest = std::max(longest, visible_length(ser.label)); }
+  }
+  const double legend_w = kLegendBase + kLegendPerChar * static_cast<double>(longest);
+  if (plot.legend == LinePlot::Legend::Auto) {
+    const double legend_h = kLegendPerEntry * static_cast<double>(entries) + 0.01;
+    plot.legend = entries == 0 ? LinePlot::Legend::TopRight
+                               : free_legend_corner(occupied_points(plot, x0, x1, y0, y1), legend_w, legend_h);
+    if (plot.legend == LinePlot::Legend::Outside)  // no corner free of everything: one free of data
+      plot.legend = free_legend_corner(occupied_points(plot, x0, x1, y0, y1, false), legend_w, legend_h);
+  }
+  // Outside: the frame gives up the width of the legend on the right.
+  const double frame_right = plot.legend == LinePlot::Legend::Outside ? std::max(0.45, 0.93 - 0.85 * legend_w) : 0.95;
   draw_figure_file(path, [&](plstream& p) {
     p.adv(0);
-    p.vpor(0.1, 0.95, 0.12, 0.86);
+    p.vpor(0.1, frame_right, 0.12, frame_top(plot.note, 0.86));
     p.wind(x0, x1, y0, y1);
     p.width(1.0);
     const bool few_x = plot.log_x && x1 - x0 <= kFewDecades, few_y = plot.log_y && y1 - y0 <= kFewDecades;
@@ -252,7 +392,14 @@ void render_figure(const LinePlot& requested, const std::string& path) {
     if (few_x) label_log_axis_125(p, false, x0, x1);
     if (few_y) label_log_axis_125(p, true, y0, y1);
     p.lab(plot.x_label.c_str(), plot.y_label.c_str(), "");
-    draw_title(p, plot.title, plot.note);
+    if (frame_right < 0.95) {  // a narrowed frame: the title and its notes still centred on the page
+      p.vpor(0.1, 0.95, 0.12, frame_top(plot.note, 0.86));
+      draw_title(p, plot.title, plot.note);
+      p.vpor(0.1, frame_right, 0.12, frame_top(plot.note, 0.86));
+      p.wind(x0, x1, y0, y1);
+    } else {
+      draw_title(p, plot.title, plot.note);
+    }
 
     for (const auto& ser : plot.series) {
       bool any = false;  // a series with no finite point is left out, legend included
@@ -311,15 +458,18 @@ void render_figure(const LinePlot& requested, const std::string& path) {
     if (!texts.empty()) {
       PLFLT lw, lh;
       std::vector<PLINT> tcol(texts.size(), 1);
-      PLINT where = PL_POSITION_INSIDE;
+      PLINT where = plot.legend == LinePlot::Legend::Outside ? PL_POSITION_OUTSIDE : PL_POSITION_INSIDE;
       switch (plot.legend) {
+        case LinePlot::Legend::Auto: where |= PL_POSITION_TOP | PL_POSITION_RIGHT; break;
+        case LinePlot::Legend::Outside: where |= PL_POSITION_RIGHT; break;  // beside the frame, centred
         case LinePlot::Legend::TopRight: where |= PL_POSITION_TOP | PL_POSITION_RIGHT; break;
         case LinePlot::Legend::BottomRight: where |= PL_POSITION_BOTTOM | PL_POSITION_RIGHT; break;
         case LinePlot::Legend::TopLeft: where |= PL_POSITION_TOP | PL_POSITION_LEFT; break;
         case LinePlot::Legend::BottomLeft: where |= PL_POSITION_BOTTOM | PL_POSITION_LEFT; break;
       }
+      const bool outside = plot.legend == LinePlot::Legend::Outside;
       p.legend(&lw, &lh, PL_LEGEND_BACKGROUND | PL_LEGEND_BOUNDING_BOX, where,
-               0.02, 0.02, 0.08, 0, 1, 1, 0, 0, static_cast<PLINT>(texts.size()), opt.data(), 1.0, 0.8, 2.0, 0.0,
+               0.02, outside ? 0.0 : 0.02, 0.08, 0, 1, 1, 0, 0, static_cast<PLINT>(texts.size()), opt.data(), 1.0, 0.8, 2.0, 0.0,
                tcol.data(), texts.data(), bcol.data(), bpat.data(), bsc.data(), blw.data(), lcol.data(), lsty.data(),
                lwid.data(), scol.data(), sscale.data(), snum.data(), syms.data());
     }
@@ -354,7 +504,8 @@ void render_figure(const HeatMap& map, const std::string& path) {
     p.scmap1n(256);
     p.scmap1l(true, 3, pos, r, g, b, nullptr);
     p.adv(0);
-    p.vpor(0.1, 0.82, 0.12, 0.88);
+    const double top = frame_top(map.note, 0.88);
+    p.vpor(0.1, 0.82, 0.12, top);
     p.wind(x0, x1, y0, y1);
     for (std::size_t i = 0; i < nx; ++i)
       for (std::size_t j = 0; j < ny; ++j) {
@@ -383,7 +534,7 @@ void render_figure(const HeatMap& map, const std::string& path) {
       p.schr(0, 0.95);
     }
     // Colour bar as a narrow second image with its own axis.
-    p.vpor(0.86, 0.89, 0.12, 0.88);
+    p.vpor(0.86, 0.89, 0.12, top);
     p.wind(0, 1, zmin, zmax);
     std::vector<PLFLT> bar(64);
     for (int k = 0; k < 64; ++k) bar[static_cast<std::size_t>(k)] = zmin + (zmax - zmin) * k / 63.0;
@@ -395,3 +546,26 @@ void render_figure(const HeatMap& map, const std::string& path) {
 }
 
 }  // namespace gapwise
+
+namespace gapwise {
+std::vector<std::string> figure_formats() { return {"svg", "png", "pdf"}; }
+bool figures_built() { return true; }
+}  // namespace gapwise
+
+#else  // built without PLplot (GAPWISE_FIGURES=OFF): every figure request is refused
+
+namespace gapwise {
+std::vector<std::string> figure_formats() { return {}; }
+bool figures_built() { return false; }
+namespace {
+[[noreturn]] void refuse(const std::string& path) {
+  throw std::runtime_error(fmt::format("cannot draw '{}': this gapwise was built without figures (no PLplot). "
+                                       "Install libplplot-dev and rebuild with cmake -DGAPWISE_FIGURES=ON",
+                                       path));
+}
+}  // namespace
+void render_figure(const LinePlot&, const std::string& path) { refuse(path); }
+void render_figure(const HeatMap&, const std::string& path) { refuse(path); }
+}  // namespace gapwise
+
+#endif

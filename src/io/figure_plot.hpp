@@ -1,7 +1,10 @@
 #pragma once
-// Figures drawn with PLplot (SVG or PNG through its cairo devices): line plots
-// with several series, markers and log axes, and heat maps. Files are written
-// atomically (temporary name, then rename).
+// Figures drawn with PLplot: line plots with several series, markers and log
+// axes, and heat maps. The format follows the file extension: .svg (PLplot's own
+// SVG device, text kept as <text> elements), .png (cairo), .pdf (cairo). Labels
+// take PLplot's text escapes: "t#df#u" for a subscript, "#gD" for Delta. Files
+// are written atomically (temporary name, then rename). Without PLplot at build
+// time (GAPWISE_FIGURES=OFF) render_figure throws, and figures_built() says so.
 //
 //   LinePlot fig;
 //   fig.title = "ground-state probability";
@@ -50,19 +53,30 @@ struct LinePlot {
   std::vector<double> vertical_lines;
   std::optional<std::pair<double, double>> x_range, y_range;  ///< a given log range keeps the axis logarithmic
   double x_tick = 0;  ///< major tick spacing of a linear x axis; 0: automatic
-  std::string note;  ///< a line of small text under the title
-  enum class Legend { TopRight, BottomRight, TopLeft, BottomLeft } legend = Legend::TopRight;
+  std::string note;  ///< small text under the title, one line per '\n'
+  /// Auto: the first corner of the frame (top right, top left, bottom right,
+  /// bottom left) where the legend covers no data; right of the frame when none is free.
+  enum class Legend { Auto, TopRight, BottomRight, TopLeft, BottomLeft, Outside } legend = Legend::Auto;
 };
 
 struct HeatMap {
   std::string title, x_label, y_label, value_label;
   std::vector<double> x, y;  ///< cell centres, ascending
   std::vector<double> values;  ///< x-major: values[ix * y.size() + iy]
-  std::string note;            ///< a line of small text under the title
+  std::string note;            ///< small text under the title, one line per '\n'
   std::vector<PlotMarker> markers;  ///< a cross and a text label at (x, y)
 };
 
-/// Writes the figure; the format follows the extension (.svg or .png).
+/// Where an automatic legend goes: the first free corner (in the order of
+/// LinePlot::Legend), or Outside. `points` are data positions scaled to the frame
+/// ([0,1] x [0,1]); `width` and `height` the legend's size in the same units.
+LinePlot::Legend free_legend_corner(const std::vector<std::pair<double, double>>& points, double width, double height);
+
+/// The figure formats this build writes ({"svg", "png", "pdf"}; empty without PLplot).
+std::vector<std::string> figure_formats();
+bool figures_built();
+
+/// Writes the figure; the format follows the extension (.svg, .png or .pdf).
 /// Throws std::runtime_error when nothing can be drawn or written.
 void render_figure(const LinePlot& plot, const std::string& path);
 void render_figure(const HeatMap& map, const std::string& path);

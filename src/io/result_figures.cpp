@@ -20,6 +20,65 @@ namespace {
 
 using Emit = std::function<void(const std::string& kind, const std::function<void(const std::string&)>& draw)>;
 
+// Text from a result file in PLplot's escapes: "E_1 - E_0" -> E#d1#u − E#d0#u
+// (a real subscript and a minus sign).
+std::string plot_text(const std::string& text) {
+  std::string out;
+  for (std::size_t k = 0; k < text.size(); ++k) {
+    if (text[k] == '_' && k > 0 && std::isalpha(static_cast<unsigned char>(text[k - 1])) && k + 1 < text.size() &&
+        std::isalnum(static_cast<unsigned char>(text[k + 1]))) {
+      std::size_t e = k + 1;
+      while (e < text.size() && std::isalnum(static_cast<unsigned char>(text[e]))) ++e;
+      out += "#d" + text.substr(k + 1, e - k - 1) + "#u";
+      k = e - 1;
+    } else if (text.compare(k, 3, " - ") == 0) {
+      out += " \u2212 ";
+      k += 2;
+    } else {
+      out += text[k];
+    }
+  }
+  return out;
+}
+
+// Values of 1 - p below this are drawn at it: p is computed from a state
+// propagated to a relative accuracy far coarser than 1e-10, so a smaller
+// miss probability is not resolved (the figure's note says how many points).
+constexpr double kMissFloor = 1e-10;
+
+// The log-scale companion of a p figure: 1 - p, with a miss probability below
+// kMissFloor clipped to it. Returns the number of clipped points.
+std::size_t miss_of(std::vector<double>& v) {
+  std::size_t clipped = 0;
+  for (double& x : v) {
+    if (!std::isfinite(x)) continue;
+    x = 1.0 - x;
+    if (x < kMissFloor) { x = kMissFloor; ++clipped; }
+  }
+  return clipped;
+}
+
+std::string clip_note(std::size_t clipped) {
+  return clipped ? fmt::format("{} point{} with 1 \u2212 p < 10#u-10#d (not resolved) drawn at 10#u-10#d", clipped,
+                               clipped == 1 ? "" : "s")
+                 : std::string();
+}
+
+// A caveat as one note line, shortened to what fits under the title.
+std::string caveat_line(std::string text) {
+  constexpr std::size_t kWidth = 95;
+  if (text.size() > kWidth) {
+    std::size_t cut = text.rfind(' ', kWidth - 4);
+    text = text.substr(0, cut == std::string::npos ? kWidth - 4 : cut) + " ...";
+  }
+  return "caveat: " + text;
+}
+
+void add_line(std::string& note, const std::string& line) {
+  if (line.empty()) return;
+  note += (note.empty() ? "" : "\n") + line;
+}
+
 // One series per level from a rows x levels matrix (row-major, as written by
 // Hdf5Output::write_matrix); NaN entries (not available) become gaps.
 void add_level_series(LinePlot& fig, const std::vector<double>& x, const std::vector<double>& matrix, std::size_t levels) {
@@ -42,7 +101,6 @@ void anneal_trace(const Hdf5Input& in, const Emit& emit) {
   fig.x_label = "time t (ns)";
   fig.y_label = "probability / schedule parameter s";
   fig.y_range = std::pair{0.0, 1.05};
-  fig.legend = LinePlot::Legend::TopLeft;
   fig.note = fmt::format("final ground-state probability {:.6f}", in.attribute_finite("/anneal", "ground_probability"));
   fig.series.push_back({"ground-state probability", t, p, SeriesStyle::LinePoints});
   fig.series.push_back({"schedule parameter s(t)", t, s, SeriesStyle::Dashed});
@@ -64,21 +122,28 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
 
   LinePlot levels;
   levels.title = "Lowest levels of H(s)";
-  levels.note = fmt::format("sector: {}; minimum gap {:.4g} GHz at s* = {:.4f} (+- {:.1g})", sector, gap, s_star, s_unc);
+  levels.note = fmt::format("sector: {}; minimum gap #gD#dmin#u = {:.4g} GHz at s* = {:.4f} (± {:.1g})", sector, gap,
+                            s_star, s_unc);
+  std::vector<std::string> caveats;
+  if (in.has(G + "/notes"))
+    for (const auto& c : in.read_strings(G + "/notes"))
+      if (c != "none") caveats.push_back(caveat_line(c));
   levels.x_label = "schedule parameter s";
   levels.y_label = "energy (GHz)";
   for (std::size_t j = 0; j < k; ++j) {
-    PlotSeries ser{j < 6 ? fmt::format("E{}", j) : "", s, std::vector<double>(n), SeriesStyle::Line, static_cast<int>(j)};
+    PlotSeries ser{j < 6 ? fmt::format("E#d{}#u", j) : "", s, std::vector<double>(n), SeriesStyle::Line, static_cast<int>(j)};
     for (std::size_t i = 0; i < n; ++i) ser.y[i] = e[i * k + j];
     levels.series.push_back(std::move(ser));
   }
   levels.vertical_lines = {s_star};
+  for (const auto& c : caveats) add_line(levels.note, c);
   emit("spectrum", [&](const std::string& path) { render_figure(levels, path); });
 
   LinePlot gaps;
   gaps.title = "Spectral gap along the anneal";
   const std::string short_definition = definition.substr(0, definition.find(" ("));
-  gaps.note = fmt::format("gap = {}; minimum {:.4g} GHz at s* = {:.4f}", short_definition, gap, s_star);
+  gaps.note = fmt::format("gap = {}; minimum #gD#dmin#u = {:.4g} GHz at s* = {:.4f}", plot_text(short_definition), gap, s_star);
+  for (const auto& c : caveats) add_line(gaps.note, c);
   gaps.x_label = "schedule parameter s";
   gaps.y_label = "gap (GHz)";
   gaps.log_y = true;
@@ -88,15 +153,14 @@ void spectrum(const Hdf5Input& in, const Emit& emit) {
   };
   gaps.series.push_back({"gap that governs success", s, positive(in.read_finite(G + "/curve/gap")), SeriesStyle::Line, 0});
   if (in.has(G + "/curve/gap_e1_e0"))
-    gaps.series.push_back({"E1 - E0", s, positive(in.read_finite(G + "/curve/gap_e1_e0")), SeriesStyle::Dashed, 1});
-  if (gap > 0) gaps.markers.push_back({s_star, gap, fmt::format("min {:.3g} GHz", gap)});
+    gaps.series.push_back({"E#d1#u − E#d0#u", s, positive(in.read_finite(G + "/curve/gap_e1_e0")), SeriesStyle::Dashed, 1});
+  if (gap > 0) gaps.markers.push_back({s_star, gap, fmt::format("#gD#dmin#u = {:.3g} GHz", gap)});
   // Always logarithmic, however few decades the gap spans: the minimum is what
   // the figure is for, and a linear axis squashes it against zero.
   double lo = std::numeric_limits<double>::infinity(), hi = 0;
   for (const auto& ser : gaps.series)
     for (double v : ser.y) if (v > 0 && std::isfinite(v)) { lo = std::min(lo, v); hi = std::max(hi, v); }
-  if (hi > 0) gaps.y_range = std::pair{lo / 1.6, hi * 2.5};  // room above the curve for the legend
-  gaps.legend = LinePlot::Legend::TopRight;
+  if (hi > 0) gaps.y_range = std::pair{lo / 1.6, hi * 1.6};
   emit("gap", [&](const std::string& path) { render_figure(gaps, path); });
 }
 
@@ -112,38 +176,86 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   };
   LinePlot fp;
   fp.title = "Ground-state probability against anneal duration";
-  fp.x_label = "anneal duration t_f (ns)";
+  fp.x_label = "anneal duration t#df#u (ns)";
   fp.y_label = "ground-state probability p";
   fp.log_x = true;
-  fp.y_range = std::pair{0.0, 1.5};  // room above p = 1 for the legend
-  fp.legend = LinePlot::Legend::TopRight;
-  fp.series.push_back({"simulated", t, p, SeriesStyle::LinePoints, 0});
+  fp.y_range = std::pair{0.0, 1.05};
+  std::vector<PlotSeries> curves;  // drawn as p here and as 1 - p in the companion figure
+  curves.push_back({"simulated", t, p, SeriesStyle::LinePoints, 0});
   if (in.has(P + "/p_landau_zener"))
-    fp.series.push_back({"Landau-Zener at the minimum gap", t, applicable(in.read_finite(P + "/p_landau_zener")), SeriesStyle::Dashed, 1});
+    curves.push_back({"Landau-Zener at the minimum gap", t, applicable(in.read_finite(P + "/p_landau_zener")), SeriesStyle::Dashed, 1});
   if (in.has(P + "/p_adiabatic"))
-    fp.series.push_back({"adiabatic-condition estimate", t, applicable(in.read_finite(P + "/p_adiabatic")), SeriesStyle::Dashed, 2});
-  fp.series.push_back({fmt::format("target p* = {}", target), {t.front(), t.back()}, {target, target}, SeriesStyle::Line, 6});
-  if (in.has(R + "/predictions"))
-    fp.note = fmt::format("minimum gap {:.4g} GHz at s* = {:.4f}", in.attribute_finite(R + "/predictions", "gap_ghz"),
+    curves.push_back({"adiabatic-condition estimate", t, applicable(in.read_finite(P + "/p_adiabatic")), SeriesStyle::Dashed, 2});
+  curves.push_back({fmt::format("target p* = {}", target), {t.front(), t.back()}, {target, target}, SeriesStyle::Line, 6});
+  fp.series = curves;
+  if (in.has(R + "/predictions")) {
+    fp.note = fmt::format("minimum gap #gD#dmin#u = {:.4g} GHz at s* = {:.4f}", in.attribute_finite(R + "/predictions", "gap_ghz"),
                           in.attribute_finite(R + "/predictions", "s_star"));
+    if (in.has(R + "/predictions/notes"))
+      for (const auto& c : in.read_strings(R + "/predictions/notes")) add_line(fp.note, caveat_line(c));
+  }
+  // The TTS optimum's caveats, as the terminal prints them.
+  std::string tts_caveats;
+  if (in.has(R + "/tts_optimum")) {
+    const std::string O = R + "/tts_optimum";
+    if (in.has_attribute(O, "random_guess_limited") && in.attribute_finite(O, "random_guess_limited") != 0)
+      add_line(tts_caveats, caveat_line(fmt::format(
+                                "TTS keeps falling toward the shortest t#df#u: p approaches the random-guess value g/2#un#d = {:.4g}, "
+                                "so the optimum is only a local one",
+                                in.attribute_finite(O, "random_guess_probability"))));
+    else if (in.has_attribute(O, "at_range_edge") && in.attribute_finite(O, "at_range_edge") != 0)
+      add_line(tts_caveats, "caveat: the optimum sits at an end of the durations simulated; the true optimum may lie beyond it");
+  }
   emit("probability", [&](const std::string& path) { render_figure(fp, path); });
+
+  // 1 - p on a log axis: where p approaches 1, 99 % and 99.9 % are a decade apart here.
+  LinePlot fm;
+  fm.title = "Miss probability 1 \u2212 p against anneal duration";
+  fm.x_label = fp.x_label;
+  fm.y_label = "1 \u2212 p";
+  fm.log_x = fm.log_y = true;
+  // Only the simulated values are clipped to the floor: the predictions are
+  // formulas, and where they fall below the axis the frame cuts them off.
+  std::size_t clipped = 0;
+  double lo = 1 - target;
+  for (auto ser : curves) {
+    if (ser.label == "simulated") {
+      clipped = miss_of(ser.y);
+      for (double v : ser.y) if (std::isfinite(v) && v > 0) lo = std::min(lo, v);
+    } else {
+      for (double& v : ser.y) if (std::isfinite(v)) v = 1 - v;
+    }
+    if (ser.label.rfind("target", 0) == 0) ser.label = fmt::format("target 1 \u2212 p* = {:.3g}", 1 - target);
+    fm.series.push_back(std::move(ser));
+  }
+  fm.y_range = std::pair{std::pow(10.0, std::floor(std::log10(lo) - 0.3)), 1.5};
+  fm.note = fp.note.substr(0, fp.note.find('\n'));
+  add_line(fm.note, clip_note(clipped));
+  const double tolerance = in.has_attribute(R, "tolerance") ? in.attribute_finite(R, "tolerance") : 0.0;
+  if (tolerance > 0 && lo < 10 * tolerance) {
+    fm.series.push_back({fmt::format("propagator tolerance {:.0e}", tolerance), {t.front(), t.back()}, {tolerance, tolerance},
+                         SeriesStyle::Dashed, 7});
+    add_line(fm.note, "caveat: 1 \u2212 p near or below the propagator tolerance is not resolved (rerun with a smaller --tolerance)");
+  }
+  emit("miss-probability", [&](const std::string& path) { render_figure(fm, path); });
 
   LinePlot ft;
   ft.title = fmt::format("Time to solution for p* = {}", target);
-  ft.x_label = "anneal duration t_f (ns)";
+  ft.x_label = "anneal duration t#df#u (ns)";
   ft.y_label = "TTS (ns)";
   ft.log_x = ft.log_y = true;
   auto tts = in.read_finite(P + "/tts_ns");
   for (double& x : tts) if (!(x > 0) || std::isinf(x)) x = std::numeric_limits<double>::quiet_NaN();  // +inf: p = 0
-  ft.series.push_back({"TTS(t_f) = t_f ln(1-p*)/ln(1-p)", t, tts, SeriesStyle::LinePoints, 0});
+  ft.series.push_back({"TTS(t#df#u) = t#df#u ln(1 − p*) / ln(1 − p)", t, tts, SeriesStyle::LinePoints, 0});
   if (in.has(R + "/tts_optimum")) {
     // tts_ns is +inf when p = 0 at every duration: no optimum to mark.
     const double d = in.attribute_finite(R + "/tts_optimum", "duration_ns"), v = in.attribute_double(R + "/tts_optimum", "tts_ns");
     if (v > 0 && std::isfinite(v)) {
-      ft.markers.push_back({d, v, fmt::format("optimum {:.3g} ns at t_f = {:.3g} ns", v, d)});
-      ft.note = fmt::format("optimal t_f = {:.4g} ns, TTS = {:.4g} ns", d, v);
+      ft.markers.push_back({d, v, fmt::format("optimum {:.3g} ns at t#df#u = {:.3g} ns", v, d)});
+      ft.note = fmt::format("optimal t#df#u = {:.4g} ns, TTS = {:.4g} ns", d, v);
     }
   }
+  add_line(ft.note, tts_caveats);
   emit("tts", [&](const std::string& path) { render_figure(ft, path); });
 }
 
@@ -184,6 +296,18 @@ void probability_map(const Hdf5Input& in, const Emit& emit, const std::string& r
     m.markers.push_back({m.x[bi], m.y[bj], fmt::format("best p = {:.4f}", pb)});
   }
   emit(kind, [&](const std::string& path) { render_figure(m, path); });
+  // Where the best cells come near p = 1 the linear colour scale cannot tell
+  // 0.99 from 0.999: a companion map of log10(1 - p).
+  if (pb < 0.9) return;
+  HeatMap miss = m;
+  miss.title = title + ", miss probability";
+  miss.value_label = "log#d10#u(1 − p)";
+  const std::size_t clipped = miss_of(miss.values);
+  for (double& v : miss.values) if (std::isfinite(v)) v = std::log10(v);
+  miss.markers = {{m.x[bi], m.y[bj], fmt::format("best 1 − p = {:.3g}", std::max(1 - pb, kMissFloor))}};
+  miss.note = m.note;
+  add_line(miss.note, clip_note(clipped));
+  emit(kind + "-miss", [&](const std::string& path) { render_figure(miss, path); });
 }
 
 // compare-paths results: populations of the lowest instantaneous levels along s.
@@ -209,7 +333,6 @@ void level_populations(const Hdf5Input& in, const Emit& emit) {
       fig.x_label = "time t (ns)";
       fig.y_label = "population";
       fig.y_range = std::pair{0.0, 1.05};
-      fig.legend = LinePlot::Legend::BottomLeft;
       add_level_series(fig, t, pop, k);
       std::string safe;
       for (char c : name) safe += std::isalnum(static_cast<unsigned char>(c)) ? c : '-';
@@ -275,9 +398,6 @@ void ensemble_scaling(const Hdf5Input& in, const Emit& emit) {
       return e;
     };
     fig.y_range = std::pair{step_125(lo / 1.05, false), step_125(hi * 1.05, true)};
-    // The legend goes where the curve is not: top left when it rises with n, bottom left when it falls.
-    const bool rising = !(std::isfinite(q_mid.front()) && std::isfinite(q_mid.back())) || q_mid.back() >= q_mid.front();
-    fig.legend = rising ? LinePlot::Legend::TopLeft : LinePlot::Legend::BottomLeft;
     const std::string range_label = fmt::format("quantiles q{:g} to q{:g} over instances", levels[lo_q], levels[hi_q]);
     if (n.size() > 1) {
       fig.bands.push_back({range_label, n, q_lo, q_hi, 0});
@@ -296,7 +416,7 @@ void ensemble_scaling(const Hdf5Input& in, const Emit& emit) {
   draw("ensemble-tts", [](const SizeSummary& s) -> const SampleSummary& { return s.tts_ns; },
        fmt::format("Optimal time to solution against problem size (p* = {:g})", r.settings.target_probability),
        "optimal TTS (ns)", "median",
-       fmt::format("{}; t_f = {:g} to {:g} ns; optimum at a range end: {} of {}; never solved: {}", counts,
+       fmt::format("{}; t#df#u = {:g} to {:g} ns; optimum at a range end: {} of {}; never solved: {}", counts,
                    r.settings.durations_ns.front(), r.settings.durations_ns.back(), edge, instances, never));
   draw("ensemble-gap", [](const SizeSummary& s) -> const SampleSummary& { return s.gap_ghz; },
        "Minimum spectral gap against problem size", "minimum gap (GHz)", "median", counts);
@@ -318,14 +438,13 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
       fmt::format("vertical line: chain coupling {:.3g}; above it every physical ground state has intact chains", bound);
 
   LinePlot fp;
-  fp.title = fmt::format("Chain strength and success at t_f = {:.4g} ns", t_f);
+  fp.title = fmt::format("Chain strength and success at t#df#u = {:.4g} ns", t_f);
   fp.note = bound_text;
-  fp.x_label = "chain coupling |J_chain| (problem units)";
+  fp.x_label = "chain coupling |J#dchain#u| (problem units)";
   fp.y_label = "probability / fraction";
-  fp.y_range = std::pair{0.0, 1.5};  // room above p = 1 for the legend
-  fp.legend = LinePlot::Legend::TopRight;
-  fp.series.push_back({"p_logical (majority vote per chain)", c, in.read_finite(S + "/p_logical"), SeriesStyle::LinePoints, 0});
-  fp.series.push_back({"p_physical (physical ground states)", c, in.read_finite(S + "/p_physical"), SeriesStyle::Dashed, 1});
+  fp.y_range = std::pair{0.0, 1.05};
+  fp.series.push_back({"p#dlogical#u (majority vote per chain)", c, in.read_finite(S + "/p_logical"), SeriesStyle::LinePoints, 0});
+  fp.series.push_back({"p#dphysical#u (physical ground states)", c, in.read_finite(S + "/p_physical"), SeriesStyle::Dashed, 1});
   fp.series.push_back({"expected broken-chain share", c, in.read_finite(S + "/broken_chain_share"), SeriesStyle::LinePoints, 2});
   fp.series.push_back({fmt::format("logical problem, unembedded: p = {:.4f}",
                                    in.attribute_finite(E + "/logical", "ground_probability")),
@@ -342,12 +461,11 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
   for (std::size_t k = 0; k < c.size() && k < needed.size() && k < kind.size(); ++k)
     (kind[k] > 0 ? above : kind[k] < 0 ? below : bracketed)[k] = needed[k];
   LinePlot fd;
-  fd.title = fmt::format("Anneal duration needed for p_logical >= {}", target);
+  fd.title = fmt::format("Anneal duration needed for p#dlogical#u ≥ {}", target);
   fd.note = bound_text;
-  fd.x_label = "chain coupling |J_chain| (problem units)";
+  fd.x_label = "chain coupling |J#dchain#u| (problem units)";
   fd.y_label = "duration needed (ns)";
   fd.log_y = true;
-  fd.legend = LinePlot::Legend::BottomRight;
   fd.series.push_back({"embedded problem", c, bracketed, SeriesStyle::LinePoints, 0});
   fd.series.push_back({"not reached: longer than this", c, above, SeriesStyle::Points, 1});
   fd.series.push_back({"reached at the shortest duration tried", c, below, SeriesStyle::Points, 2});
@@ -364,14 +482,13 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
   LinePlot fg;
   fg.title = "Minimum gap of the embedded problem";
   fg.note = bound_text;
-  fg.x_label = "chain coupling |J_chain| (problem units)";
+  fg.x_label = "chain coupling |J#dchain#u| (problem units)";
   fg.y_label = "minimum gap (GHz)";
   const auto gaps = in.read_finite(S + "/min_gap");
   const double logical_gap = in.attribute_finite(E + "/logical", "min_gap_ghz");
   double top = logical_gap;
   for (double g : gaps) if (std::isfinite(g)) top = std::max(top, g);
-  fg.y_range = std::pair{0.0, 1.3 * top};  // linear from zero: a closing gap reads as one; room for the legend
-  fg.legend = LinePlot::Legend::TopRight;
+  fg.y_range = std::pair{0.0, 1.1 * top};  // linear from zero: a closing gap reads as one
   fg.series.push_back({"embedded problem", c, gaps, SeriesStyle::LinePoints, 0});
   fg.series.push_back({fmt::format("logical problem, unembedded: {:.4g} GHz", logical_gap), c_ends, constant(logical_gap),
                        SeriesStyle::Dashed, 6});
@@ -389,12 +506,11 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
   for (double& x : gap) if (!(x > 0)) x = std::numeric_limits<double>::quiet_NaN();
   LinePlot fg;
   fg.title = "Diagnosis: the gap that governs success, crossings marked";
-  fg.note = fmt::format("minimum {:.4g} GHz at s* = {:.4f}", in.attribute_finite(D, "gap_ghz"), in.attribute_finite(D, "s_star"));
+  fg.note = fmt::format("minimum #gD#dmin#u = {:.4g} GHz at s* = {:.4f}", in.attribute_finite(D, "gap_ghz"), in.attribute_finite(D, "s_star"));
   fg.x_label = "schedule parameter s";
   fg.y_label = "gap (GHz)";
   fg.log_y = true;
-  fg.legend = LinePlot::Legend::BottomLeft;
-  fg.series.push_back({in.attribute_string(D, "gap_definition").substr(0, in.attribute_string(D, "gap_definition").find(" (")),
+  fg.series.push_back({plot_text(in.attribute_string(D, "gap_definition").substr(0, in.attribute_string(D, "gap_definition").find(" ("))),
                        s, gap, SeriesStyle::Line, 0});
   if (in.has(D + "/crossings/s_star")) {
     const auto xs = in.read_finite(D + "/crossings/s_star"), xd = in.read_finite(D + "/crossings/delta_min");
@@ -406,7 +522,10 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
     }
   }
   if (in.has(D + "/overlap/perturbative_crossing_s")) fg.vertical_lines = in.read_finite(D + "/overlap/perturbative_crossing_s");
-  if (!fg.vertical_lines.empty()) fg.note += "; dotted: where the ground level switches classical level (perturbative crossing)";
+  if (!fg.vertical_lines.empty()) add_line(fg.note, "dotted: where the ground level switches classical level (perturbative crossing)");
+  if (std::any_of(fg.markers.begin(), fg.markers.end(), [](const PlotMarker& mk) { return mk.text.rfind("end gap", 0) == 0; }))
+      add_line(fg.note, "caveat: an end gap is the smallest gap at an end of the path, not a crossing passed through "
+                        "(no Landau-Zener number)");
   emit("diagnosis-gap", [&](const std::string& path) { render_figure(fg, path); });
 
   if (!in.has(D + "/overlap/ground_weight")) return;
@@ -420,7 +539,6 @@ void diagnosis(const Hdf5Input& in, const Emit& emit) {
   fw.x_label = "schedule parameter s";
   fw.y_label = "weight on the ground manifold";
   fw.y_range = std::pair{0.0, 1.05};
-  fw.legend = LinePlot::Legend::TopLeft;
   add_level_series(fw, os, w, k);  // -1: level not tracked there
   fw.vertical_lines = fg.vertical_lines;
   emit("diagnosis-ground-weight", [&](const std::string& path) { render_figure(fw, path); });
@@ -444,6 +562,16 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
                                              const std::vector<std::string>& formats,
                                              const std::vector<std::string>& other_inputs) {
   namespace fs = std::filesystem;
+  // Refused before anything is read or created.
+  const auto known = figure_formats();
+  if (known.empty())
+    throw InputError({result_file, 0, 0, ""}, "this gapwise was built without figures (PLplot was not found or "
+                     "GAPWISE_FIGURES was OFF at build time)",
+                     "install libplplot-dev and rebuild: cmake -S . -B build -DGAPWISE_FIGURES=ON && cmake --build build");
+  for (const auto& f : formats)
+    if (std::find(known.begin(), known.end(), f) == known.end())
+      throw InputError({"--format", 0, 0, "--format"}, fmt::format("unknown figure format '{}'", f),
+                       "use svg (text kept as text), png or pdf, comma-separated: --format svg,pdf");
   const Hdf5Input in(result_file);
   std::error_code ec;
   fs::create_directories(out_dir, ec);
@@ -462,16 +590,13 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
       written.push_back(path);
     }
   };
-  for (const auto& f : formats)
-    if (f != "svg" && f != "png")
-      throw InputError({"--format", 0, 0, "--format"}, fmt::format("unknown figure format '{}'", f), "use svg and/or png");
   anneal_trace(in, emit);
   spectrum(in, emit);
   duration_study(in, emit);
   probability_map(in, emit, "/pause_map", "pause_s", "pause_ns", "pause-map", "Pause map: ground-state probability",
-                  "pause location s_p", "pause duration (ns)");
+                  "pause location s#dp#u", "pause duration (ns)");
   probability_map(in, emit, "/reverse_map", "turn_s", "dwell_ns", "reverse-map",
-                  "Reverse anneal: ground-state probability", "turn point s_turn", "dwell (ns)");
+                  "Reverse anneal: ground-state probability", "turn point s#dturn#u", "dwell (ns)");
   level_populations(in, emit);
   ensemble_scaling(in, emit);
   chain_strength_scan(in, emit);
