@@ -6,6 +6,8 @@
 
 #include <cstdlib>
 
+#include <fmt/format.h>
+
 #include "ensemble_compare.hpp"
 #include "io/ensemble_result_file.hpp"
 #include "test_support.hpp"
@@ -32,7 +34,32 @@ TEST_CASE("mpirun -np 2 gives exactly the serial ensemble result") {
   const int rc = std::system(cmd.c_str());
   REQUIRE(rc == 0);
   const EnsembleResult r = read_ensemble_result(p("mpi.h5"));
-  CHECK(r.distribution == "MPI, 2 ranks");
+  CHECK(r.distribution.rfind("MPI, 2 ranks, ", 0) == 0);
   CHECK(r.computed == 9);
   CHECK(gapwise::testing::ensemble_difference(p("serial.h5"), p("mpi.h5")) == "");
+}
+
+TEST_CASE("ranks x threads: 2 ranks with OMP_NUM_THREADS=1 and =2 give the serial result; each reports its threads") {
+  // The threads of a rank split the amplitude loops of one instance (OpenMP
+  // regions from 2^16 amplitudes up); the numbers must not depend on how many.
+  const char* mpiexec = std::getenv("MPIEXEC");
+  REQUIRE(mpiexec != nullptr);
+  TempDir dir;
+  const auto p = [&](const std::string& f) { return (dir.path / f).string(); };
+  const std::string schedule = (gapwise::testing::source_dir() / "schedules" / "linear.toml").string();
+  REQUIRE(run_gapwise("generate --graph square --couplings gaussian --sizes 4,6 --count 2 --seed 5 --out " + p("set.h5"), dir)
+              .exit_code == 0);
+  const std::string args = "ensemble " + p("set.h5") + " '" + schedule + "' -d 0.3,1,3 --gap-points 21 --resamples 300 -q ";
+  REQUIRE(run_gapwise(args + "--threads 1 --out " + p("serial.h5"), dir).exit_code == 0);
+  for (int threads : {1, 2}) {
+    CAPTURE(threads);
+    const std::string out = p(fmt::format("mpi{}.h5", threads));
+    const std::string cmd = fmt::format("OMP_NUM_THREADS={} '{}' --allow-run-as-root --oversubscribe -np 2 -x OMP_NUM_THREADS '{}' {}--out {} >'{}' 2>&1",
+                                        threads, mpiexec, gapwise::testing::gapwise_exe(), args, out, out + ".log");
+    REQUIRE(std::system(cmd.c_str()) == 0);
+    const EnsembleResult r = read_ensemble_result(out);
+    CHECK(r.distribution == fmt::format("MPI, 2 ranks, {} thread{} each", threads, threads == 1 ? "" : "s"));
+    CHECK(r.computed == 4);
+    CHECK(gapwise::testing::ensemble_difference(p("serial.h5"), out) == "");
+  }
 }

@@ -38,6 +38,16 @@ TEST_CASE("default thread count: OMP_NUM_THREADS first, else the affinity mask")
   CHECK(affinity_cpu_count() >= 1);
 }
 
+TEST_CASE("threads of an MPI rank: OMP_NUM_THREADS first, else the mask capped at the rank's share of the node") {
+  // Common practice for hybrid MPI+OpenMP jobs: ranks x threads per rank <= cores of the node.
+  CHECK(threads_per_rank(std::nullopt, 4, 16, 2) == 4);          // bound to 4 CPUs: all 4
+  CHECK(threads_per_rank(std::nullopt, 8, 16, 4) == 4);          // bound to a socket of 8 with 4 ranks on 16 CPUs
+  CHECK(threads_per_rank(std::nullopt, 16, 16, 32) == 1);        // more ranks than CPUs: at least 1
+  CHECK(threads_per_rank(std::string("3"), 8, 16, 8) == 3);      // OMP_NUM_THREADS decides, even above the share
+  CHECK(threads_per_rank(std::string("abc"), 8, 16, 4) == 4);    // ignored as OpenMP does
+  CHECK(threads_per_rank(std::nullopt, 2, 0, 2) == 2);           // node size unknown: the mask
+}
+
 TEST_CASE("ensemble's default threads: one under taskset -c 0, OMP_NUM_THREADS when set") {
   if (std::system("taskset -c 0 true >/dev/null 2>&1") != 0) {
     MESSAGE("taskset is not available; skipped");

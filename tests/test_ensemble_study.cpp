@@ -242,4 +242,10 @@ TEST_CASE("command line: a run killed with SIGKILL and resumed equals an uninter
   CHECK(resumed.out.find(fmt::format("{} from the journal", before)) != std::string::npos);
   CHECK(ensemble_difference(p("straight.h5"), p("killed.h5")) == "");
   CHECK(read_ensemble_result(p("killed.h5")).resumed == before);
+
+  // --fresh goes through the same scaffold: the journal is discarded first, all computed anew.
+  const auto fresh = run_gapwise("ensemble " + args + "--fresh --out " + p("killed.h5"), dir);
+  REQUIRE(fresh.exit_code == 0);
+  CHECK(fresh.out.find("12 computed, 0 from the journal") != std::string::npos);
+  CHECK(ensemble_difference(p("straight.h5"), p("killed.h5")) == "");
 }

@@ -4,17 +4,18 @@
 // journal; `--shard i/N` for job arrays, merged by `gapwise merge-shards`.
 #include <iostream>
 #include <memory>
+#include <optional>
 #include <thread>
 
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "cli/journaled_run.hpp"
 #include "io/output_paths.hpp"
 #include "io/infinite_tts.hpp"
 #include "io/atomic_file.hpp"
 #include "io/ensemble_result_file.hpp"
 #include "io/input_error.hpp"
-#include "io/interrupt_notice.hpp"
 #include "io/json_summary.hpp"
 #include "io/result_journal.hpp"
 #include "io/terminal_text.hpp"
@@ -178,7 +179,7 @@ void run_ensemble(const EnsembleOptions& o) {
     st.bootstrap_seed = o.bootstrap_seed;
     st.validate();
 
-    EnsembleRun run{set, sch, schedule_text, st, ShardSpec{}, "", 1, {}};
+    EnsembleRun run{set, sch, schedule_text, st, ShardSpec{}, 1, {}, {}};
     run.shard = ShardSpec::parse(o.shard);
     WorkEstimate work;
     for (std::size_t i = 0; i < set.instances.size(); ++i) {
@@ -189,8 +190,6 @@ void run_ensemble(const EnsembleOptions& o) {
     }
     check_work_limit(work, o.allow_long, {"--durations", 0, 0, "--durations"});
     run.threads = thread_count_or_default(o.threads);
-    run.journal_path = journal_path_for(o.out);
-    if (o.fresh && group.is_collector()) std::remove(run.journal_path.c_str());
     if (!o.quiet)
       run.progress = [](const EnsembleProgress& p) {
         const double eta = p.seconds_left();
@@ -199,13 +198,27 @@ void run_ensemble(const EnsembleOptions& o) {
                                  tts_text(p.last->tts_ns, 4),
                                  p.last->wall_seconds, p.elapsed_seconds, eta);
       };
-    // Ctrl-C: says how many instances the journal holds (or that nothing was written).
-    run.while_journal_open = [&o](const ResultJournal& journal) -> std::shared_ptr<void> {
-      return std::make_shared<InterruptNotice>(journal, std::vector<std::string>{o.out, o.csv}, "instance");
+    // The one resumable-run scaffold, opened by the study on the collecting rank
+    // once every instance passed its checks: --fresh, the journal, and the
+    // Ctrl-C notice that says how many instances the journal holds.
+    std::optional<JournaledRun> journaled;
+    run.open_journal = [&](JournalLayout layout, const std::string& fingerprint) {
+      journaled.emplace(o.out, o.fresh, std::move(layout), fingerprint, std::vector<std::string>{o.out, o.csv},
+                        "instance");
+      return journaled->journal();
     };
-    const EnsembleResult r = run_ensemble_study(run);
+    EnsembleResult r;
+    try {
+      r = run_ensemble_study(run);
+    } catch (const InputError&) {
+      // A refused run (exit 2) leaves no new journal, even when instances finished
+      // before the bad one was found: the run was refused, not interrupted.
+      if (journaled) journaled->discard_if_new();
+      throw;
+    }
     if (!r.complete_here) return;  // other ranks: rank 0 writes and prints
     write_ensemble_result(o.out, r, command_line(), {o.schedule});
+    if (journaled) journaled->results_written();
     if (o.json) print_ensemble_json(r, o.csv);
     else print_ensemble_summary(r, o.out, o.csv);
   } catch (const std::exception& e) {

@@ -28,6 +28,10 @@ void JournaledRun::remove_journal() {
   std::filesystem::remove(path);
 }
 
+void JournaledRun::discard_if_new() {
+  if (journal_ && journal_->resumed() == 0) remove_journal();
+}
+
 struct AnnealCounterLine {
   bool shown = false;
   ~AnnealCounterLine() {

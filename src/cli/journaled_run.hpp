@@ -1,6 +1,6 @@
 #pragma once
 // The resumable-run scaffold of the journaled commands (durations, gap,
-// pause-map, reverse-map): the journal beside the first result file (discarded
+// pause-map, reverse-map, ensemble): the journal beside the first result file (discarded
 // first under --fresh), the Ctrl-C notice that says what is on disk, and the
 // anneal counter on a terminal. A command builds one, hands journal() to its
 // study, and writes its results atomically after each point (io/atomic_file).
@@ -31,6 +31,9 @@ class JournaledRun {
   void results_written() { notice_.reset(); }
   /// The result file holds everything: the journal is closed and removed.
   void remove_journal();
+  /// The run was refused (bad input found midway): a journal this run created
+  /// is removed, one it resumed from is kept.
+  void discard_if_new();
 
  private:
   std::unique_ptr<ResultJournal> journal_;

@@ -1,5 +1,7 @@
 #include "hamiltonian/memory_budget.hpp"
 
+#include <atomic>
+
 #include <algorithm>
 #include <cmath>
 #include <cstdlib>
@@ -94,7 +96,14 @@ double available_bytes(const SystemFiles& files, int ranks_on_node) {
   return have / std::max(1, ranks_on_node);
 }
 
+namespace {
+std::atomic<int> g_ranks_counted_by_mpi{0};
+}  // namespace
+
+void set_ranks_on_this_node(int ranks) { g_ranks_counted_by_mpi = ranks > 0 ? ranks : 0; }
+
 int ranks_on_this_node() {
+  if (const int n = g_ranks_counted_by_mpi.load()) return n;
   const char* env = std::getenv("OMPI_COMM_WORLD_LOCAL_SIZE");
   if (!env) return 1;
   const long n = std::strtol(env, nullptr, 10);

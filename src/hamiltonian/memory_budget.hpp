@@ -31,8 +31,12 @@ struct SystemFiles {
 double available_bytes(const SystemFiles& files, int ranks_on_node);
 /// available_bytes() for this process (the real files and the environment).
 double available_bytes();
-/// The ranks sharing this node under mpirun (OMPI_COMM_WORLD_LOCAL_SIZE), else 1.
+/// The ranks sharing this node: as counted by MPI (set_ranks_on_this_node, from
+/// an MPI_COMM_TYPE_SHARED split) once MPI runs, else OMPI_COMM_WORLD_LOCAL_SIZE
+/// under mpirun, else 1.
 int ranks_on_this_node();
+/// Called by the process group once MPI has counted the ranks on this node.
+void set_ranks_on_this_node(int ranks);
 
 /// "1.5 GiB"
 std::string human_bytes(double bytes);

@@ -18,6 +18,15 @@ int default_thread_count(const std::optional<std::string>& omp_num_threads, int 
 /// CPUs in the affinity mask of this process, or 0 when it cannot be read.
 int affinity_cpu_count();
 
+/// OpenMP threads of one MPI rank: OMP_NUM_THREADS when set (as above); else the
+/// CPUs in the rank's affinity mask, but no more than its share of the node's
+/// online CPUs (`node_cpus` / `ranks_on_node`), so ranks bound to a whole socket
+/// (OpenMPI's default for more than 2 ranks) do not oversubscribe it. At least 1.
+int threads_per_rank(const std::optional<std::string>& omp_num_threads, int affinity_cpus, int node_cpus,
+                     int ranks_on_node);
+/// threads_per_rank() for this process (environment, affinity mask, online CPUs).
+int threads_per_rank(int ranks_on_node);
+
 /// `requested` when > 0, else default_thread_count().
 int thread_count_or_default(int requested);
 

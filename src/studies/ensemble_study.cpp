@@ -36,11 +36,15 @@ std::vector<double> values_of(const std::string& s) {
   return v;
 }
 
+}  // namespace
+
 JournalLayout ensemble_journal_layout(std::size_t durations) {
   return {"ensemble", {"set_index"}, InstanceOutcome::value_names(durations)};
 }
 
-}  // namespace
+std::string ensemble_fingerprint(const EnsembleRun& run) {
+  return input_fingerprint({run.set.fingerprint(), run.schedule_text, run.settings.numerics_text()});
+}
 
 std::string EnsembleSettings::numerics_text() const {
   std::string d;
@@ -245,7 +249,7 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
   r.set_source = run.set.source;
   r.set_fingerprint = run.set.fingerprint();
   r.schedule_text = run.schedule_text;
-  r.numerics_fingerprint = input_fingerprint({r.set_fingerprint, run.schedule_text, run.settings.numerics_text()});
+  r.numerics_fingerprint = ensemble_fingerprint(run);
   r.settings = run.settings;
   r.shard = run.shard;
   r.set_size = run.set.instances.size();
@@ -257,11 +261,10 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
   check_instance_sizes(run, mine);  // before the journal exists: a refused run leaves nothing behind
 
   std::map<std::size_t, InstanceOutcome> known;
-  std::unique_ptr<ResultJournal> journal;
-  std::shared_ptr<void> journal_guard;  // declared after the journal: released before it closes
-  if (group.is_collector() && !run.journal_path.empty()) {
-    journal = std::make_unique<ResultJournal>(run.journal_path, ensemble_journal_layout(k_durations), r.numerics_fingerprint);
-    if (run.while_journal_open) journal_guard = run.while_journal_open(*journal);
+  ResultJournal* journal = nullptr;
+  if (group.is_collector() && run.open_journal)
+    journal = run.open_journal(ensemble_journal_layout(k_durations), r.numerics_fingerprint);
+  if (journal) {
     for (const auto& [key, values] : journal->records()) {
       const auto i = static_cast<std::size_t>(key.at(0));
       if (i < run.set.instances.size() && run.shard.contains(i)) {
@@ -315,19 +318,7 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
   };
   WorkOptions wo;
   wo.threads = std::max(1, run.threads);
-  try {
-    distribute_work(pending, task, collect, wo);
-  } catch (const InputError&) {
-    // A refused run (exit 2) leaves no new journal, even when instances finished
-    // before the bad one was found: the run was refused, not interrupted.
-    if (journal && journal->resumed() == 0) {
-      const std::string path = journal->path();
-      journal_guard.reset();
-      journal.reset();
-      std::remove(path.c_str());
-    }
-    throw;
-  }
+  distribute_work(pending, task, collect, wo);
 
   r.complete_here = group.is_collector();
   if (r.complete_here) {

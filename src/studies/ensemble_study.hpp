@@ -17,7 +17,9 @@
 //   EnsembleSettings st;
 //   st.durations_ns = log_spaced_durations(1, 1000, 10);
 //   EnsembleRun run{set, sch, read_text_file("schedules/linear.toml"), st};
-//   run.journal_path = "study.h5.journal";          // resumable
+//   ResultJournal journal("study.h5.journal", ensemble_journal_layout(st.durations_ns.size()),
+//                         ensemble_fingerprint(run));
+//   run.open_journal = [&](auto&&...) { return &journal; };   // resumable (the CLI uses JournaledRun)
 //   EnsembleResult r = run_ensemble_study(run);     // on every rank
 //   if (r.complete_here) write_ensemble_result("study.h5", r, command_line);
 #include <cstdint>
@@ -28,6 +30,7 @@
 #include <vector>
 
 #include "dynamics/anneal_simulation.hpp"
+#include "io/result_journal.hpp"
 #include "io/instance_set_file.hpp"
 #include "schedule/schedule.hpp"
 #include "spectrum/gap_search.hpp"
@@ -35,8 +38,6 @@
 #include "studies/time_to_solution.hpp"
 
 namespace gapwise {
-
-class ResultJournal;
 
 struct EnsembleSettings {
   std::vector<double> durations_ns;  ///< ascending, > 0
@@ -142,14 +143,19 @@ struct EnsembleRun {
   std::string schedule_text;   ///< stored in the result, and fingerprinted
   EnsembleSettings settings;
   ShardSpec shard{};
-  std::string journal_path;    ///< "" for no journal
   int threads = 1;             ///< compute threads without MPI
   std::function<void(const EnsembleProgress&)> progress;  ///< on the collector, after each instance
-  /// On the collector, once the journal is open: what it returns is kept until
-  /// just before the journal is closed (the command line keeps its Ctrl-C notice
-  /// there, so the notice never outlives the journal it reports on).
-  std::function<std::shared_ptr<void>(const ResultJournal&)> while_journal_open;
+  /// On the collector, once every instance has passed the size and memory
+  /// checks (so a refused run leaves no journal): opens the journal with this
+  /// layout and fingerprint and returns it (owned by the caller; the command
+  /// line's JournaledRun), or nullptr to keep none. Unset: no journal.
+  std::function<ResultJournal*(JournalLayout layout, const std::string& fingerprint)> open_journal;
 };
+
+/// The journal record layout of an ensemble with `durations` durations.
+JournalLayout ensemble_journal_layout(std::size_t durations);
+/// What a journal must match to be resumed: set, schedule and per-instance numerics.
+std::string ensemble_fingerprint(const EnsembleRun& run);
 
 /// Call on every rank. Validates everything before any work is handed out.
 EnsembleResult run_ensemble_study(const EnsembleRun& run);

@@ -23,7 +23,9 @@
 #include <mpi.h>
 #endif
 
+#include "hamiltonian/memory_budget.hpp"
 #include "io/input_error.hpp"
+#include "platform/thread_count.hpp"
 
 namespace gapwise {
 namespace {
@@ -60,7 +62,9 @@ class Dispatcher {
 // thread that collects.
 class LocalPool {
  public:
-  LocalPool(Dispatcher& d, const TaskFunction& task, int threads) : d_(d), task_(task) {
+  /// `threads` tasks at a time, each with `omp_threads` OpenMP threads.
+  LocalPool(Dispatcher& d, const TaskFunction& task, int threads, int omp_threads = 1)
+      : d_(d), task_(task), omp_threads_(omp_threads) {
     running_ = threads;
     for (int t = 0; t < threads; ++t) workers_.emplace_back([this] { work(); });
   }
@@ -90,7 +94,7 @@ class LocalPool {
  private:
   void work() {
 #ifdef _OPENMP
-    omp_set_num_threads(1);  // the tasks are the parallelism; no nested teams
+    omp_set_num_threads(omp_threads_);  // threads: the tasks are the parallelism, no nested teams
 #endif
     while (auto i = d_.next()) {
       try {
@@ -111,6 +115,7 @@ class LocalPool {
 
   Dispatcher& d_;
   const TaskFunction& task_;
+  int omp_threads_ = 1;
   std::vector<std::thread> workers_;
   std::mutex m_;
   std::condition_variable cv_;
@@ -165,9 +170,9 @@ std::string receive(const MPI_Status& probed) {
 }
 
 void run_collector(const std::vector<std::size_t>& order, const TaskFunction& task, const CollectFunction& collect,
-                   int ranks) {
+                   int ranks, int omp_threads) {
   Dispatcher d(order);
-  LocalPool pool(d, task, 1);
+  LocalPool pool(d, task, 1, omp_threads);
   int active = ranks - 1;  // remote workers not yet stopped
   std::exception_ptr collect_error;
   std::string remote_error;
@@ -212,9 +217,9 @@ void run_collector(const std::vector<std::size_t>& order, const TaskFunction& ta
   if (!remote_error.empty()) throw std::runtime_error(remote_error);
 }
 
-void run_worker(const TaskFunction& task) {
+void run_worker(const TaskFunction& task, int omp_threads) {
 #ifdef _OPENMP
-  omp_set_num_threads(1);
+  omp_set_num_threads(omp_threads);
 #endif
   send(std::string(), 0, kReady);
   for (;;) {
@@ -257,6 +262,16 @@ ProcessGroup::ProcessGroup() {
   MPI_Comm_rank(MPI_COMM_WORLD, &rank_);
   MPI_Comm_size(MPI_COMM_WORLD, &size_);
   mpi_ = true;
+  // Ranks × threads: the ranks sharing this node split its memory (the memory
+  // check) and its CPUs (each rank's OpenMP threads).
+  MPI_Comm node;
+  MPI_Comm_split_type(MPI_COMM_WORLD, MPI_COMM_TYPE_SHARED, rank_, MPI_INFO_NULL, &node);
+  MPI_Comm_size(node, &ranks_on_node_);
+  MPI_Comm_free(&node);
+  set_ranks_on_this_node(ranks_on_node_);
+  threads_ = threads_per_rank(ranks_on_node_);
+  MPI_Allreduce(&threads_, &fewest_threads_, 1, MPI_INT, MPI_MIN, MPI_COMM_WORLD);
+  MPI_Allreduce(&threads_, &most_threads_, 1, MPI_INT, MPI_MAX, MPI_COMM_WORLD);
 #else
   if (launched > 1)
     throw InputError({"mpirun", 0, 0, ""},
@@ -282,7 +297,11 @@ ProcessGroup& ProcessGroup::instance() {
 }
 
 std::string ProcessGroup::describe() const {
-  return mpi_ ? fmt::format("MPI, {} rank{}", size_, size_ == 1 ? "" : "s") : "threads";
+  if (!mpi_) return "threads";
+  const std::string threads = fewest_threads_ == most_threads_ ? std::to_string(most_threads_)
+                                                               : fmt::format("{} to {}", fewest_threads_, most_threads_);
+  return fmt::format("MPI, {} rank{}, {} thread{} each", size_, size_ == 1 ? "" : "s", threads,
+                     most_threads_ == 1 ? "" : "s");
 }
 
 void ProcessGroup::abort(int code) {
@@ -297,8 +316,8 @@ void distribute_work(const std::vector<std::size_t>& order, const TaskFunction& 
   ProcessGroup& g = ProcessGroup::instance();
 #ifdef GAPWISE_HAVE_MPI
   if (g.uses_mpi()) {
-    if (g.is_collector()) run_collector(order, task, collect, g.size());
-    else run_worker(task);
+    if (g.is_collector()) run_collector(order, task, collect, g.size(), g.threads());
+    else run_worker(task, g.threads());
     return;
   }
 #endif

@@ -39,7 +39,14 @@ class ProcessGroup {
   int size() const { return size_; }
   bool uses_mpi() const { return mpi_; }
   bool is_collector() const { return rank_ == 0; }
-  /// "MPI, 4 ranks" or "threads".
+  /// Ranks of this job on this node (MPI_COMM_TYPE_SHARED split); 1 without MPI.
+  int ranks_on_node() const { return ranks_on_node_; }
+  /// OpenMP threads each task of this rank uses under MPI (threads_per_rank of
+  /// platform/thread_count: OMP_NUM_THREADS, else the affinity mask capped at
+  /// the rank's share of the node); 1 without MPI.
+  int threads() const { return threads_; }
+  /// "MPI, 4 ranks, 2 threads each" (or "1 to 2 threads each" when the ranks
+  /// differ), or "threads".
   std::string describe() const;
   /// Ends the whole job with `code` (MPI_Abort under MPI with several ranks, so no
   /// rank waits forever for one that failed); a plain exit otherwise.
@@ -50,14 +57,18 @@ class ProcessGroup {
   int rank_ = 0;
   int size_ = 1;
   bool mpi_ = false;
+  int ranks_on_node_ = 1;
+  int threads_ = 1;
+  int fewest_threads_ = 1, most_threads_ = 1;  // over all ranks
 };
 
 /// True when this gapwise was built with MPI support.
 bool built_with_mpi();
 
 struct WorkOptions {
-  /// Compute threads in this process when not under MPI (>= 1). Under MPI every
-  /// rank computes one task at a time (launch one rank per core).
+  /// Compute threads in this process when not under MPI (>= 1), each task on one
+  /// thread. Under MPI every rank computes one task at a time on
+  /// ProcessGroup::threads() OpenMP threads (large instances use them all).
   int threads = 1;
 };
 
