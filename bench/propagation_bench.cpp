@@ -213,6 +213,7 @@ std::vector<std::string> split_names(const std::string& s) {
 
 int main(int argc, char** argv) {
   std::vector<double> sizes{8, 10, 12, 14}, durations{100};
+  std::vector<double> kernel_sizes{10, 12, 14, 16};
   std::vector<std::string> classes = kClasses;
   int odeint_max_n = 0, scipy_max_n = 14, qutip_max_n = 10, big_n = 16;
   double odeint_max_t = 100, peer_budget_s = 300;
@@ -228,6 +229,7 @@ int main(int argc, char** argv) {
       return argv[++i];
     };
     if (a == "--sizes") sizes = parse_list(next());
+    else if (a == "--kernel-sizes") kernel_sizes = parse_list(next());
     else if (a == "--durations") durations = parse_list(next());
     else if (a == "--classes") classes = split_names(next());
     else if (a == "--odeint-max-n") odeint_max_n = std::atoi(next());
@@ -246,11 +248,13 @@ int main(int argc, char** argv) {
       const std::string m = next();
       if (m == "table") SplitExponentials::set_phase_method(PhaseMethod::Table);
       else if (m == "direct") SplitExponentials::set_phase_method(PhaseMethod::Direct);
-      else if (m != "auto") { std::fprintf(stderr, "--phase-method: auto, table or direct\n"); return 2; }
+      else if (m == "factored") SplitExponentials::set_phase_method(PhaseMethod::Factored);
+      else if (m != "auto") { std::fprintf(stderr, "--phase-method: auto, table, direct or factored\n"); return 2; }
     }
     else if (a == "--propagators") props = split_names(next());
     else if (a == "--quick") {
       sizes = {8, 10};
+      kernel_sizes = {8, 10};
       scipy_max_n = 8;
       qutip_max_n = 8;
       big_n = 0;
@@ -271,7 +275,8 @@ int main(int argc, char** argv) {
           "  [--big-n N]          one extra run of the default propagator at 100 ns on N qubits of the glass\n"
           "                       with fields (default 16; 0 to skip)\n"
           "  [--no-kernels]       skip the kernel bandwidth table; [--kernels-only] print only that table\n"
-          "  [--phase-method auto|table|direct]  force how phases are found (to compare; default auto)\n"
+          "  [--kernel-sizes 10,12,14,16]  qubit counts of the kernel bandwidth table\n"
+          "  [--phase-method auto|table|direct|factored]  force how phases are found (to compare; default auto)\n"
           "  [--quick]            smoke run: n = 8, 10; peers at n = 8 only; no big run\n"
           "Peers are skipped above their -max-n (they take minutes there); the output says so.\n");
       return a == "--help" || a == "-h" ? 0 : 2;
@@ -286,10 +291,10 @@ int main(int argc, char** argv) {
   if (kernels) {
     // Kernels: rotation sweep, phase pass and the fused phase + rotation sweep
     // against a copy of the same bytes, measured right before.
-    std::printf("\n%-13s %-3s %9s %9s %8s %9s %9s %9s %8s %8s %8s\n", "class", "n", "state", "levels", "copy GB/s",
-                "rot GB/s", "phase GB/s", "fused GB/s", "rot/cp", "ph/cp", "fused/cp");
+    std::printf("\n%-13s %-3s %9s %9s %-8s %8s %9s %9s %9s %8s %8s %8s\n", "class", "n", "state", "levels", "phases",
+                "copy GB/s", "rot GB/s", "phase GB/s", "fused GB/s", "rot/cp", "ph/cp", "fused/cp");
     for (const auto& cls : classes)
-      for (double nd : sizes) {
+      for (double nd : kernel_sizes) {
         const int n = static_cast<int>(nd);
         IsingProblem prob = bench_problem(cls, n);
         TransverseIsingHamiltonian H(prob);
@@ -307,8 +312,8 @@ int main(int argc, char** argv) {
         const double bw_rot = 2 * bytes * ex.rotate_passes() / t_rot / 1e9;
         const double bw_ph = 2 * bytes / t_ph / 1e9;
         const double bw_fu = 2 * bytes * ex.rotate_passes() / t_fu / 1e9;
-        std::printf("%-13s %-3d %9s %9zu %8.1f %9.1f %9.1f %9.1f %7.0f%% %7.0f%% %7.0f%%\n", cls.c_str(), n,
-                    fmt::format("{} KiB", bytes / 1024).c_str(), ex.distinct_levels(), bw_copy, bw_rot, bw_ph, bw_fu,
+        std::printf("%-13s %-3d %9s %9zu %-8s %8.1f %9.1f %9.1f %9.1f %7.0f%% %7.0f%% %7.0f%%\n", cls.c_str(), n,
+                    fmt::format("{} KiB", bytes / 1024).c_str(), ex.distinct_levels(), ex.phase_method_name(), bw_copy, bw_rot, bw_ph, bw_fu,
                     100 * bw_rot / bw_copy, 100 * bw_ph / bw_copy, 100 * bw_fu / bw_copy);
         std::fflush(stdout);
       }

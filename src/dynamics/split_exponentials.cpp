@@ -253,30 +253,43 @@ constexpr double kPio2Mid = kPio2Double - kPio2Hi;  // exact (Sterbenz)
 const double kPio2Tail = std::cos(kPio2Double);
 constexpr double kRoundMagic = 6755399441055744.0;  // 1.5 * 2^52: adding and subtracting rounds to an integer
 
+// a * b + c: fused where the build has the instruction. Without it std::fma is
+// a library call (software emulation, tens of ns: measured 0.8 GB/s for the
+// per-state phases of a baseline x86-64 build); the plain form then rounds
+// twice, harmless here (k * kPio2Hi is exact either way, the other parts are
+// tiny, and the series' terms decrease fast).
+inline double fmadd(double a, double b, double c) {
+#if defined(__FMA__)
+  return std::fma(a, b, c);
+#else
+  return a * b + c;
+#endif
+}
+
 inline void exp_minus_i(double x, double& c, double& s) {
   const double kf = (x * kTwoOverPi + kRoundMagic) - kRoundMagic;  // nearest integer (|x| < 2^50)
-  double r = std::fma(-kf, kPio2Hi, x);
-  r = std::fma(-kf, kPio2Mid, r);
-  r = std::fma(-kf, kPio2Tail, r);
+  double r = fmadd(-kf, kPio2Hi, x);
+  r = fmadd(-kf, kPio2Mid, r);
+  r = fmadd(-kf, kPio2Tail, r);
   const double z = r * r;
   // sin r = r (1 - z/3! + z^2/5! - ... - z^8/17!), cos r = 1 - z/2! + ... + z^8/16!
   double p = -1.0 / 355687428096000.0;
-  p = std::fma(p, z, 1.0 / 1307674368000.0);
-  p = std::fma(p, z, -1.0 / 6227020800.0);
-  p = std::fma(p, z, 1.0 / 39916800.0);
-  p = std::fma(p, z, -1.0 / 362880.0);
-  p = std::fma(p, z, 1.0 / 5040.0);
-  p = std::fma(p, z, -1.0 / 120.0);
-  p = std::fma(p, z, 1.0 / 6.0);
-  const double sr = std::fma(-r * z, p, r);
+  p = fmadd(p, z, 1.0 / 1307674368000.0);
+  p = fmadd(p, z, -1.0 / 6227020800.0);
+  p = fmadd(p, z, 1.0 / 39916800.0);
+  p = fmadd(p, z, -1.0 / 362880.0);
+  p = fmadd(p, z, 1.0 / 5040.0);
+  p = fmadd(p, z, -1.0 / 120.0);
+  p = fmadd(p, z, 1.0 / 6.0);
+  const double sr = fmadd(-r * z, p, r);
   double q = 1.0 / 20922789888000.0;                     //  1/16!
-  q = std::fma(q, z, -1.0 / 87178291200.0);              // -1/14!
-  q = std::fma(q, z, 1.0 / 479001600.0);                 //  1/12!
-  q = std::fma(q, z, -1.0 / 3628800.0);                  // -1/10!
-  q = std::fma(q, z, 1.0 / 40320.0);                     //  1/8!
-  q = std::fma(q, z, -1.0 / 720.0);                      // -1/6!
-  q = std::fma(q, z, 1.0 / 24.0);                        //  1/4!
-  const double cr = std::fma(z * z, q, std::fma(-0.5, z, 1.0));
+  q = fmadd(q, z, -1.0 / 87178291200.0);              // -1/14!
+  q = fmadd(q, z, 1.0 / 479001600.0);                 //  1/12!
+  q = fmadd(q, z, -1.0 / 3628800.0);                  // -1/10!
+  q = fmadd(q, z, 1.0 / 40320.0);                     //  1/8!
+  q = fmadd(q, z, -1.0 / 720.0);                      // -1/6!
+  q = fmadd(q, z, 1.0 / 24.0);                        //  1/4!
+  const double cr = fmadd(z * z, q, fmadd(-0.5, z, 1.0));
   // x = k pi/2 + r: quadrant j = k mod 4 rotates (cos r, sin r) by j quarter turns.
   const long long j = static_cast<long long>(kf) & 3;
   const double cw = (j & 1) ? sr : cr, sw = (j & 1) ? cr : sr;
@@ -442,7 +455,30 @@ SplitExponentials::SplitExponentials(const TransverseIsingHamiltonian& h)
   const std::vector<double>& d = h.diagonal();
   for (const double x : d) max_abs_d_ = std::max(max_abs_d_, std::abs(x));
   const PhaseMethod method = phase_method();
-  if (method == PhaseMethod::Direct) {
+  // The factorization of PhaseMethod::Factored (see the header): the block
+  // phase D(h << L) - D(0) and, per low qubit i, w_i(h) = D(h << L | 2^i) -
+  // D(h << L) - D(2^i) + D(0) = -2 g_i(h), read off the diagonal itself (D is
+  // at most quadratic in the spins, so these differences are exact up to rounding).
+  const auto factor = [&] {
+    factored_ = true;
+    lo_ = std::min(kBlockQubits, n_ - 2);
+    const std::size_t blocks = dim_ >> lo_;
+    cross_.resize(blocks * static_cast<std::size_t>(lo_));
+    block_c_.resize(blocks);
+    for (std::size_t h = 0; h < blocks; ++h) {
+      const std::size_t b = h << lo_;
+      block_c_[h] = d[b] - d[0];
+      for (int i = 0; i < lo_; ++i) {
+        const std::size_t e = std::size_t{1} << i;
+        cross_[h * static_cast<std::size_t>(lo_) + static_cast<std::size_t>(i)] = d[b | e] - d[b] - d[e] + d[0];
+      }
+    }
+  };
+  if (method == PhaseMethod::Factored && n_ >= 2) {
+    factor();
+    return;
+  }
+  if (method == PhaseMethod::Direct || method == PhaseMethod::Factored) {
     direct_ = true;
     return;
   }
@@ -454,7 +490,12 @@ SplitExponentials::SplitExponentials(const TransverseIsingHamiltonian& h)
   // from a table in L1; the per-state computation beyond (measured, see the header).
   const std::size_t table_limit = std::max(kDirectLevels, dim_ / 16);
   if (lv.size() > 65536 || (method == PhaseMethod::Auto && lv.size() > table_limit)) {
-    direct_ = true;
+    // Many levels: the factored phases where the blocks pay off (measured, see
+    // notebooks-free-docs/method-notes.md, "Phases of many-valued diagonals").
+    if (method == PhaseMethod::Auto && n_ >= kFactoredMinQubits)
+      factor();
+    else
+      direct_ = true;
     return;
   }
   levels_ = std::move(lv);
@@ -464,7 +505,51 @@ SplitExponentials::SplitExponentials(const TransverseIsingHamiltonian& h)
 }
 
 std::size_t SplitExponentials::memory_bytes() const {
-  return index_.size() * sizeof(std::uint16_t) + levels_.size() * sizeof(double);
+  return index_.size() * sizeof(std::uint16_t) + (levels_.size() + cross_.size() + block_c_.size()) * sizeof(double);
+}
+
+const char* SplitExponentials::phase_method_name() const {
+  return factored_ ? "factored" : direct_ ? "direct" : "table";
+}
+
+void SplitExponentials::phase_factored(double* re, double* im, std::size_t begin, std::size_t count, const double* cs,
+                                       const double* sn, double phi) const {
+  // cs, sn: scale * exp(-i phi D(l, 0)) for l < 2^L (fill_tables). Per block h
+  // of 2^L amplitudes the remaining factor V(l) = exp(-i phi (D(h << L) - D(0)))
+  // times exp(-i phi w_i(h)) for every set bit i of l, built by doubling.
+  const std::size_t sub = std::size_t{1} << lo_;
+  alignas(64) double vr[std::size_t{1} << kBlockQubits];
+  alignas(64) double vi[std::size_t{1} << kBlockQubits];
+  for (std::size_t start = begin; start < begin + count; start += sub) {
+    const std::size_t h = start >> lo_;
+    double sv = 0, cv = 0;
+    ::sincos(phi * block_c_[h], &sv, &cv);
+    vr[0] = cv;
+    vi[0] = -sv;
+    const double* w = cross_.data() + h * static_cast<std::size_t>(lo_);
+    for (int i = 0; i < lo_; ++i) {
+      double sf = 0, cf = 0;
+      ::sincos(phi * w[i], &sf, &cf);
+      const double fr = cf, fi = -sf;
+      const std::size_t half = std::size_t{1} << i;
+      double* __restrict ur = vr + half;
+      double* __restrict ui = vi + half;
+#pragma omp simd
+      for (std::size_t m = 0; m < half; ++m) {
+        ur[m] = vr[m] * fr - vi[m] * fi;
+        ui[m] = vr[m] * fi + vi[m] * fr;
+      }
+    }
+    double* __restrict r = re + start;
+    double* __restrict q = im + start;
+#pragma omp simd
+    for (std::size_t m = 0; m < sub; ++m) {
+      const double c = cs[m] * vr[m] - sn[m] * vi[m], s = cs[m] * vi[m] + sn[m] * vr[m];
+      const double a = r[m], b = q[m];
+      r[m] = a * c - b * s;
+      q[m] = a * s + b * c;
+    }
+  }
 }
 
 int SplitExponentials::rotate_passes() const {
@@ -475,7 +560,9 @@ void SplitExponentials::phase_block(double* re, double* im, std::size_t begin, s
                                     const double* sn, double phi, double scale) const {
   double* __restrict r = re + begin;
   double* __restrict i = im + begin;
-  if (!index_.empty()) {
+  if (factored_) {
+    phase_factored(re, im, begin, count, cs, sn, phi);
+  } else if (!index_.empty()) {
     const std::uint16_t* __restrict idx = index_.data() + begin;
     std::size_t k = 0;
 #if defined(__AVX512F__)
@@ -516,6 +603,31 @@ void SplitExponentials::phase_block(double* re, double* im, std::size_t begin, s
 
 void SplitExponentials::fill_tables(double phi, double scale) const {
   if (direct_) return;  // no table: phase_block computes the factors per state
+  if (factored_) {        // scale * exp(-i phi D(l, 0)) for the 2^L low states
+    const std::size_t count = std::size_t{1} << lo_;
+    cs_.resize(count);
+    sn_.resize(count);
+    double* __restrict cs = cs_.data();
+    double* __restrict sn = sn_.data();
+    const double* __restrict d = h_->diagonal().data();
+    if (std::abs(phi) * max_abs_d_ <= kDirectPhaseLimit) {
+#pragma omp simd
+      for (std::size_t j = 0; j < count; ++j) {
+        double c, s;
+        exp_minus_i(phi * d[j], c, s);
+        cs[j] = scale * c;
+        sn[j] = scale * s;
+      }
+    } else {
+      for (std::size_t j = 0; j < count; ++j) {
+        double s = 0, c = 0;
+        ::sincos(phi * d[j], &s, &c);
+        cs[j] = scale * c;
+        sn[j] = -scale * s;
+      }
+    }
+    return;
+  }
   // At least 32 entries (the permute lookup reads 32; the padding is never indexed).
   cs_.assign(std::max<std::size_t>(levels_.size(), 32), 0.0);
   sn_.assign(cs_.size(), 0.0);

@@ -91,7 +91,16 @@ struct SplitState {
 /// Auto: the table up to max(kDirectLevels, dim/16) levels, direct above
 /// (measured, see notebooks-free-docs/method-notes.md, "Phases of many-valued
 /// diagonals").
-enum class PhaseMethod { Auto, Table, Direct };
+/// Factored: D_b is split by the block of the low qubits l and the rest h as
+///   D(l, h) = D(l, 0) + C(h) + sum_{i low} s_i(l) g_i(h),
+/// g_i(h) = sum_{j high} J_ij (s_j(h) - 1) (couplings across the split; the
+/// fields sit in D(l, 0) and C(h)). A call evaluates exp(-i phi D(l, 0)) once
+/// (2^L sine/cosines, L = min(kBlockQubits, n - 2)), and per block of 2^L
+/// amplitudes L + 1 scalar ones, whose products (doubling, one complex multiply
+/// per amplitude) give the block's remaining factors: no gathers, no per-state
+/// sine/cosine, any real diagonal. Auto uses it where Direct would be chosen
+/// and n >= kFactoredMinQubits.
+enum class PhaseMethod { Auto, Table, Direct, Factored };
 
 /// Not to be shared between threads (it keeps per-call scratch tables); each
 /// propagator owns its own.
@@ -117,6 +126,12 @@ class SplitExponentials {
   static PhaseMethod phase_method();
   /// True when this object computes phases per state (no level table).
   bool direct_phases() const { return direct_; }
+  /// Auto factors the diagonal (PhaseMethod::Factored) from this many qubits on.
+  static constexpr int kFactoredMinQubits = 6;
+  /// True when this object factors the diagonal (PhaseMethod::Factored).
+  bool factored_phases() const { return factored_; }
+  /// "table", "direct" or "factored": how this object finds its phases.
+  const char* phase_method_name() const;
 
   int qubits() const { return n_; }
   std::size_t dim() const { return dim_; }
@@ -142,6 +157,12 @@ class SplitExponentials {
   std::vector<std::uint16_t> index_; ///< D_b == levels_[index_[b]]
   bool direct_ = false;              ///< phases per state from D (index_ and levels_ empty)
   double max_abs_d_ = 0.0;           ///< largest |D_b| (range of the vectorized sine/cosine)
+  bool factored_ = false;            ///< D factored by blocks (see PhaseMethod::Factored)
+  int lo_ = 0;                       ///< low qubits of the factorization (L)
+  std::vector<double> cross_;        ///< g_i(h), L per block h
+  std::vector<double> block_c_;      ///< C(h) + sum_i g_i(h): the block's phase at l = 0 beyond D(l, 0)
+  void phase_factored(double* re, double* im, std::size_t begin, std::size_t count, const double* cs,
+                      const double* sn, double phi) const;
 
   mutable std::vector<double> cs_, sn_;  ///< per-call phase tables (one object per thread)
   /// Tables of scale * exp(-i phi level), padded to at least 32 entries.
