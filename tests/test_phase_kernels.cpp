@@ -9,6 +9,8 @@
 
 #include <cmath>
 #include <random>
+#include <stdexcept>
+#include <string>
 
 #include <Eigen/Dense>
 #include <unsupported/Eigen/MatrixFunctions>
@@ -213,4 +215,49 @@ TEST_CASE("factored phases and fused step equal dense matrix exponentials (Eigen
       CHECK(worst < 1e-12);
     }
   }
+}
+
+TEST_CASE("every kernel variant this CPU runs equals the definition; unknown variants are refused by name") {
+  // The AVX2 and AVX-512 builds of the same kernels (chosen at run time) must
+  // give the plain definition above, like the baseline build, on every phase
+  // method and on Gaussian, +-1-with-fields and QUBO-derived diagonals.
+  const std::vector<std::string> variants = SplitExponentials::available_kernel_variants();
+  REQUIRE(!variants.empty());
+  CHECK(variants.back() == "baseline");
+  CHECK(variants.front() == std::string(SplitExponentials::kernel_variant()));  // widest first, chosen by default
+  struct Case { int n; int kind; };
+  for (const std::string& v : variants) {
+    SplitExponentials::set_kernel_variant(v);
+    for (const Case c : {Case{11, 0}, Case{12, 1}, Case{10, 2}}) {
+      const IsingProblem p = problem(c.n, 300u + static_cast<unsigned>(c.n), c.kind);
+      TransverseIsingHamiltonian H(p);
+      std::mt19937_64 rng(11);
+      std::normal_distribution<double> g;
+      QuantumState psi(H.dim());
+      for (auto& z : psi) z = Complex(g(rng), g(rng));
+      for (const PhaseMethod m : {PhaseMethod::Auto, PhaseMethod::Table, PhaseMethod::Direct, PhaseMethod::Factored}) {
+        MethodGuard guard(m);
+        SplitExponentials ex(H);
+        CHECK(std::string(ex.kernels()) == v);
+        CAPTURE(v);
+        CAPTURE(c.n);
+        CAPTURE(static_cast<int>(m));
+        for (const double theta : {0.21, -1.25}) {  // both rotation forms
+          SplitState s = SplitState::from(psi);
+          ex.phase_then_rotate(s, 0.37, theta);
+          CHECK(worst_difference(s.to_complex(), reference(psi, H.diagonal(), c.n, 0.37, theta, true)) < 1e-12);
+        }
+      }
+    }
+  }
+  SplitExponentials::set_kernel_variant(variants.front());
+  try {
+    SplitExponentials::set_kernel_variant("avx9");
+    FAIL("an unknown kernel variant was accepted");
+  } catch (const std::runtime_error& e) {
+    const std::string what = e.what();
+    CHECK(what.find("avx9") != std::string::npos);
+    CHECK(what.find("baseline") != std::string::npos);  // names the choices
+  }
+  CHECK(std::string(SplitExponentials::kernel_variant()) == variants.front());  // a refused request changes nothing
 }
