@@ -213,6 +213,8 @@ std::vector<std::string> split_names(const std::string& s) {
 
 int main(int argc, char** argv) {
   std::vector<double> sizes{8, 10, 12, 14}, durations{100};
+  std::vector<double> kernel_sizes{10, 12, 14, 16};
+  std::vector<std::string> kernel_variants = SplitExponentials::available_kernel_variants();
   std::vector<std::string> classes = kClasses;
   int odeint_max_n = 0, scipy_max_n = 14, qutip_max_n = 10, big_n = 16;
   double odeint_max_t = 100, peer_budget_s = 300;
@@ -228,6 +230,8 @@ int main(int argc, char** argv) {
       return argv[++i];
     };
     if (a == "--sizes") sizes = parse_list(next());
+    else if (a == "--kernel-sizes") kernel_sizes = parse_list(next());
+    else if (a == "--kernel-variants") kernel_variants = split_names(next());
     else if (a == "--durations") durations = parse_list(next());
     else if (a == "--classes") classes = split_names(next());
     else if (a == "--odeint-max-n") odeint_max_n = std::atoi(next());
@@ -246,11 +250,13 @@ int main(int argc, char** argv) {
       const std::string m = next();
       if (m == "table") SplitExponentials::set_phase_method(PhaseMethod::Table);
       else if (m == "direct") SplitExponentials::set_phase_method(PhaseMethod::Direct);
-      else if (m != "auto") { std::fprintf(stderr, "--phase-method: auto, table or direct\n"); return 2; }
+      else if (m == "factored") SplitExponentials::set_phase_method(PhaseMethod::Factored);
+      else if (m != "auto") { std::fprintf(stderr, "--phase-method: auto, table, direct or factored\n"); return 2; }
     }
     else if (a == "--propagators") props = split_names(next());
     else if (a == "--quick") {
       sizes = {8, 10};
+      kernel_sizes = {8, 10};
       scipy_max_n = 8;
       qutip_max_n = 8;
       big_n = 0;
@@ -271,7 +277,10 @@ int main(int argc, char** argv) {
           "  [--big-n N]          one extra run of the default propagator at 100 ns on N qubits of the glass\n"
           "                       with fields (default 16; 0 to skip)\n"
           "  [--no-kernels]       skip the kernel bandwidth table; [--kernels-only] print only that table\n"
-          "  [--phase-method auto|table|direct]  force how phases are found (to compare; default auto)\n"
+          "  [--kernel-sizes 10,12,14,16]  qubit counts of the kernel bandwidth table\n"
+          "  [--kernel-variants avx512,avx2,baseline]  instruction-set variants in that table (default: all this\n"
+          "                       CPU runs; the propagation rows use the run-time choice or GAPWISE_KERNELS)\n"
+          "  [--phase-method auto|table|direct|factored]  force how phases are found (to compare; default auto)\n"
           "  [--quick]            smoke run: n = 8, 10; peers at n = 8 only; no big run\n"
           "Peers are skipped above their -max-n (they take minutes there); the output says so.\n");
       return a == "--help" || a == "-h" ? 0 : 2;
@@ -279,17 +288,22 @@ int main(int argc, char** argv) {
   }
   for (const auto& c : classes) (void)bench_problem(c, 8);  // unknown names fail before any work
   const char* threads = std::getenv("OMP_NUM_THREADS");
-  std::printf("gapwise propagation benchmark: linear 5 GHz scales, tolerance %.0e on p, OMP_NUM_THREADS=%s\n",
-              tol, threads ? threads : "(unset)");
+  std::printf("gapwise propagation benchmark: linear 5 GHz scales, tolerance %.0e on p, OMP_NUM_THREADS=%s, kernels %s\n",
+              tol, threads ? threads : "(unset)", SplitExponentials::kernel_variant());
   for (const auto& c : classes) std::printf("  %-13s %s (seed 2026)\n", c.c_str(), class_description(c).c_str());
 
   if (kernels) {
     // Kernels: rotation sweep, phase pass and the fused phase + rotation sweep
     // against a copy of the same bytes, measured right before.
-    std::printf("\n%-13s %-3s %9s %9s %8s %9s %9s %9s %8s %8s %8s\n", "class", "n", "state", "levels", "copy GB/s",
-                "rot GB/s", "phase GB/s", "fused GB/s", "rot/cp", "ph/cp", "fused/cp");
+    const std::string dispatched = SplitExponentials::kernel_variant();
+    std::printf("\nKernel bandwidth (the state's bytes read + written per pass) against a copy of the same buffer;\n"
+                "kernels: instruction-set variant (run-time choice here: %s).\n", dispatched.c_str());
+    std::printf("%-13s %-3s %9s %-8s %9s %-8s %8s %9s %9s %9s %8s %8s %8s\n", "class", "n", "state", "kernels", "levels",
+                "phases", "copy GB/s", "rot GB/s", "phase GB/s", "fused GB/s", "rot/cp", "ph/cp", "fused/cp");
     for (const auto& cls : classes)
-      for (double nd : sizes) {
+      for (double nd : kernel_sizes)
+      for (const auto& variant : kernel_variants) {
+        SplitExponentials::set_kernel_variant(variant);
         const int n = static_cast<int>(nd);
         IsingProblem prob = bench_problem(cls, n);
         TransverseIsingHamiltonian H(prob);
@@ -307,11 +321,12 @@ int main(int argc, char** argv) {
         const double bw_rot = 2 * bytes * ex.rotate_passes() / t_rot / 1e9;
         const double bw_ph = 2 * bytes / t_ph / 1e9;
         const double bw_fu = 2 * bytes * ex.rotate_passes() / t_fu / 1e9;
-        std::printf("%-13s %-3d %9s %9zu %8.1f %9.1f %9.1f %9.1f %7.0f%% %7.0f%% %7.0f%%\n", cls.c_str(), n,
-                    fmt::format("{} KiB", bytes / 1024).c_str(), ex.distinct_levels(), bw_copy, bw_rot, bw_ph, bw_fu,
+        std::printf("%-13s %-3d %9s %-8s %9zu %-8s %8.1f %9.1f %9.1f %9.1f %7.0f%% %7.0f%% %7.0f%%\n", cls.c_str(), n,
+                    fmt::format("{} KiB", bytes / 1024).c_str(), ex.kernels(), ex.distinct_levels(), ex.phase_method_name(), bw_copy, bw_rot, bw_ph, bw_fu,
                     100 * bw_rot / bw_copy, 100 * bw_ph / bw_copy, 100 * bw_fu / bw_copy);
         std::fflush(stdout);
       }
+    SplitExponentials::set_kernel_variant(dispatched);  // the propagation rows run what a user gets
   }
 
   if (!rows_wanted) return 0;

@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # The whole test suite, exactly as CI runs it (.ci/run calls this script):
-#   1. install what is missing (scripts/install-deps.sh);
+#   1. install what is missing, developer tools included (scripts/install-deps.sh --dev:
+#      the sanitizer and fuzz stages need clang and its runtimes);
 #   2. Release build in build/ and every test under CTest;
 #   3. AddressSanitizer + UndefinedBehaviorSanitizer build in build-asan/
 #      (-DGAPWISE_SANITIZE=ON) and the unit tests again, except those labelled
@@ -13,7 +14,7 @@
 # Timings of every stage are printed at the end.
 set -euo pipefail
 cd "$(dirname "$0")/.."
-bash scripts/install-deps.sh
+bash scripts/install-deps.sh --dev
 # ccache (when installed) keys objects on paths relative to the checkout, so a
 # fresh clone in another folder reuses what an earlier build compiled; also the
 # sanitizer and fuzz builds, which carry debug information (NOHASHDIR: their

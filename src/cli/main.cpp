@@ -1,13 +1,16 @@
 // gapwise: the command line. Each subcommand lives in its own cmd_*.cpp file and
 // registers itself here; all computation is in the library.
 #include <algorithm>
+#include <cstdlib>
 #include <iostream>
 #include <string>
 #include <vector>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "cli/cli_common.hpp"
+#include "dynamics/split_exponentials.hpp"
 #include "gapwise_version.hpp"
 #include "io/input_error.hpp"
 #include "io/terminal_text.hpp"
@@ -72,7 +75,18 @@ int main(int argc, char** argv) {
       "Every subcommand has its own --help. Exit codes: 0 ok, 2 bad input, 1 internal failure,\n"
       "3 accuracy check failed with --strict.",
       kVersion)};
-  app.set_version_flag("--version", std::string(kVersion));
+  // The version and the propagation kernels this CPU gets (chosen at run time;
+  // GAPWISE_KERNELS=NAME forces one, a bad name is reported here as well).
+  app.set_version_flag("--version", [] {
+    std::string kernels;
+    try {
+      kernels = SplitExponentials::kernel_variant();
+    } catch (const std::exception& e) {
+      kernels = std::string("none (") + e.what() + ")";
+    }
+    return fmt::format("gapwise {}\npropagation kernels: {} (this CPU runs: {})", kVersion, kernels,
+                       fmt::join(SplitExponentials::available_kernel_variants(), ", "));
+  });
   app.require_subcommand(1);
   cli::use_wrapped_help(app);
   cli::register_inspect(app);
@@ -91,6 +105,22 @@ int main(int argc, char** argv) {
   cli::register_merge_shards(app);
   cli::refuse_empty_output_paths(app);
   if (cli::refuse_unknown_subcommand(app, argc, argv)) return cli::kExitBadInput;
+  // A bad GAPWISE_KERNELS is the user's setting, not an internal failure: refuse
+  // it before any work (--help and --version still answer; --version names it).
+  if (const char* k = std::getenv("GAPWISE_KERNELS"); k && *k) {
+    const bool info = std::any_of(argv + 1, argv + argc, [](const char* a) {
+      const std::string s(a);
+      return s == "--help" || s == "-h" || s == "--version";
+    });
+    try {
+      (void)SplitExponentials::kernel_variant();
+    } catch (const std::exception& e) {
+      if (!info) {
+        std::cerr << "gapwise: error: " << e.what() << "\n";
+        return cli::kExitBadInput;
+      }
+    }
+  }
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

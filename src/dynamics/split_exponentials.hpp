@@ -39,6 +39,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <memory>
+#include <string>
 #include <vector>
 
 #include "dynamics/quantum_state.hpp"
@@ -85,13 +86,55 @@ struct SplitState {
   double probability_of(const std::vector<std::size_t>& states) const;
 };
 
+/// What the kernels read: the problem diagonal and the structures
+/// SplitExponentials builds from it (internal; public so the kernel variants,
+/// compiled separately for each instruction set, can read it).
+struct SplitKernelData {
+  const TransverseIsingHamiltonian* h_ = nullptr;
+  int n_ = 0;
+  std::size_t dim_ = 0;
+  std::vector<double> levels_;       ///< distinct values of D (empty: per-state or factored phases)
+  std::vector<std::uint16_t> index_; ///< D_b == levels_[index_[b]]
+  bool direct_ = false;              ///< phases per state from D (index_ and levels_ empty)
+  double max_abs_d_ = 0.0;           ///< largest |D_b| (range of the vectorized sine/cosine)
+  bool factored_ = false;            ///< D factored by blocks (see PhaseMethod::Factored)
+  int lo_ = 0;                       ///< low qubits of the factorization (L)
+  std::vector<double> cross_;        ///< w_i(h) = -2 g_i(h), L per block h
+  std::vector<double> block_c_;      ///< D(h << L) - D(0) per block h
+  mutable std::vector<double> cs_, sn_;  ///< per-call phase tables (one object per thread)
+  const std::vector<double>& diagonal() const { return h_->diagonal(); }
+};
+
+/// One instruction-set variant of the kernels (split_kernels_<name>.cpp,
+/// compiled with that variant's flags).
+struct SplitKernelVariant {
+  const char* name;
+  bool (*supported)();
+  void (*phase)(const SplitKernelData&, SplitState&, double phi);
+  void (*rotate_all)(const SplitKernelData&, SplitState&, bool with_phase, double phi, double theta);
+};
+
+/// The variants (split_kernels_*.cpp); avx2 and avx512 exist only in x86-64 builds.
+const SplitKernelVariant& split_kernels_baseline();
+const SplitKernelVariant& split_kernels_avx2();
+const SplitKernelVariant& split_kernels_avx512();
+
 /// How phase() finds exp(-i phi D_b): through the table of distinct levels
 /// (16-bit index per state; permutes for at most 32 levels with AVX-512,
 /// gathers above), or directly per state from D (a vectorized sine/cosine).
 /// Auto: the table up to max(kDirectLevels, dim/16) levels, direct above
 /// (measured, see notebooks-free-docs/method-notes.md, "Phases of many-valued
 /// diagonals").
-enum class PhaseMethod { Auto, Table, Direct };
+/// Factored: D_b is split by the block of the low qubits l and the rest h as
+///   D(l, h) = D(l, 0) + C(h) + sum_{i low} s_i(l) g_i(h),
+/// g_i(h) = sum_{j high} J_ij (s_j(h) - 1) (couplings across the split; the
+/// fields sit in D(l, 0) and C(h)). A call evaluates exp(-i phi D(l, 0)) once
+/// (2^L sine/cosines, L = min(kBlockQubits, n - 2)), and per block of 2^L
+/// amplitudes L + 1 scalar ones, whose products (doubling, one complex multiply
+/// per amplitude) give the block's remaining factors: no gathers, no per-state
+/// sine/cosine, any real diagonal. Auto uses it where Direct would be chosen
+/// and n >= kFactoredMinQubits.
+enum class PhaseMethod { Auto, Table, Direct, Factored };
 
 /// Not to be shared between threads (it keeps per-call scratch tables); each
 /// propagator owns its own.
@@ -116,12 +159,30 @@ class SplitExponentials {
   static void set_phase_method(PhaseMethod m);
   static PhaseMethod phase_method();
   /// True when this object computes phases per state (no level table).
-  bool direct_phases() const { return direct_; }
+  bool direct_phases() const { return k_.direct_; }
+  /// Auto factors the diagonal (PhaseMethod::Factored) from this many qubits on.
+  static constexpr int kFactoredMinQubits = 6;
 
-  int qubits() const { return n_; }
-  std::size_t dim() const { return dim_; }
+  /// Instruction-set variant of the kernels ("avx512", "avx2" or "baseline"):
+  /// the widest the CPU supports, chosen at run time (the build is portable), or
+  /// the one named by the environment variable GAPWISE_KERNELS or by
+  /// set_kernel_variant (throws std::runtime_error naming the choices when the
+  /// CPU or the build lacks it). Applies to objects constructed afterwards.
+  static const char* kernel_variant();
+  static void set_kernel_variant(const std::string& name);
+  /// Variants this CPU and build can run, widest first.
+  static std::vector<std::string> available_kernel_variants();
+  /// The variant this object uses.
+  const char* kernels() const;
+  /// True when this object factors the diagonal (PhaseMethod::Factored).
+  bool factored_phases() const { return k_.factored_; }
+  /// "table", "direct" or "factored": how this object finds its phases.
+  const char* phase_method_name() const;
+
+  int qubits() const { return k_.n_; }
+  std::size_t dim() const { return k_.dim_; }
   /// Distinct values of the problem diagonal (0 when phases are computed per state).
-  std::size_t distinct_levels() const { return levels_.size(); }
+  std::size_t distinct_levels() const { return k_.levels_.size(); }
   /// Bytes this object holds (the level index and table).
   std::size_t memory_bytes() const;
 
@@ -135,22 +196,8 @@ class SplitExponentials {
   static int phase_passes() { return 1; }
 
  private:
-  const TransverseIsingHamiltonian* h_;
-  int n_;
-  std::size_t dim_;
-  std::vector<double> levels_;       ///< distinct values of D (empty: per-state fallback)
-  std::vector<std::uint16_t> index_; ///< D_b == levels_[index_[b]]
-  bool direct_ = false;              ///< phases per state from D (index_ and levels_ empty)
-  double max_abs_d_ = 0.0;           ///< largest |D_b| (range of the vectorized sine/cosine)
-
-  mutable std::vector<double> cs_, sn_;  ///< per-call phase tables (one object per thread)
-  /// Tables of scale * exp(-i phi level), padded to at least 32 entries.
-  void fill_tables(double phi, double scale) const;
-  void phase_block(double* re, double* im, std::size_t begin, std::size_t count, const double* cs,
-                   const double* sn, double phi, double scale) const;
-  void rotate_all(SplitState& psi, bool with_phase, double phi, double theta) const;
-  template <bool kUnit>
-  void rotate_sweeps(SplitState& psi, bool with_phase, double phi, double c, double s, double scale) const;
+  SplitKernelData k_;
+  const SplitKernelVariant* kernels_;  ///< the instruction-set variant chosen at construction
 };
 
 }  // namespace gapwise
