@@ -13,7 +13,8 @@
 //
 // --build-only: instead, the frame's construction alone (K levels over s: 0 -> 1
 // at the first duration), eigen-solves from scratch (lowest_levels) against the
-// warm start from the previous point's vectors, side by side:
+// Lanczos seeded with the previous point's vectors (FrameOptions::seeded_lanczos),
+// side by side:
 //
 //   build/bench/bench_frame --n 12 --build-only --levels 8
 #include <sys/resource.h>
@@ -84,11 +85,12 @@ int main(int argc, char** argv) {
     std::printf("%3s %3s %10s %6s %9s %6s %7s %6s %9s\n", "n", "K", "T_us", "start", "wall_s", "ratio", "points", "solves",
                 "warm");
     double cold_s = 0.0;
-    for (bool warm : {false, true}) {
+    for (int mode : {0, 1}) {
+      const bool warm = mode == 1;
       FrameOptions fo;
       fo.levels = levels;
       fo.ns_per_unit_s = us * 1000.0;
-      fo.warm_start = warm;
+      fo.seeded_lanczos = warm;
       const auto t0 = std::chrono::steady_clock::now();
       const InstantaneousFrame fr(sec, sch.scales, 0.0, 1.0, fo);
       const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
