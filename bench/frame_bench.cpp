@@ -10,6 +10,13 @@
 // split4 ran, the frame's K, grid points, eigen-solves (and how many were warm
 // started), pieces that fell back to split4, and the process's peak memory.
 // Times on a shared machine are noisy: compare rows of the same run only.
+//
+// --build-only: instead, the frame's construction alone (K levels over s: 0 -> 1
+// at the first duration), eigen-solves from scratch (lowest_levels) against the
+// Lanczos seeded with the previous point's vectors (FrameOptions::seeded_lanczos),
+// side by side:
+//
+//   build/bench/bench_frame --n 12 --build-only --levels 8
 #include <sys/resource.h>
 
 #include <CLI/CLI.hpp>
@@ -20,7 +27,10 @@
 #include <string>
 #include <vector>
 
+#include <chrono>
+
 #include "dynamics/anneal_simulation.hpp"
+#include "frame/instantaneous_frame.hpp"
 #include "problem/classical_spectrum.hpp"
 #include "problem/instance_families.hpp"
 
@@ -59,12 +69,38 @@ int main(int argc, char** argv) {
   app.add_option("--durations-us", durations, "comma-separated durations in microseconds")->capture_default_str();
   app.add_option("--full-max-us", full_max_us, "run split4 only up to this duration")->capture_default_str();
   app.add_option("--tolerance", tol, "tolerance on p")->capture_default_str();
+  bool build_only = false;
+  int levels = 8;
+  app.add_flag("--build-only", build_only, "time the frame construction alone, cold against warm-started solves");
+  app.add_option("--levels", levels, "K for --build-only")->capture_default_str();
   CLI11_PARSE(app, argc, argv);
 
   const IsingProblem prob = glass_with_fields(n);
   const TransverseIsingHamiltonian h(prob);
   const GroundManifold gm = find_ground_manifold(prob, h.diagonal());
   Schedule sch;
+  if (build_only) {
+    const SectorHamiltonian sec(h, SpinFlipSector::Full);
+    const double us = std::stod(durations.substr(0, durations.find(',')));
+    std::printf("%3s %3s %10s %6s %9s %6s %7s %6s %9s\n", "n", "K", "T_us", "start", "wall_s", "ratio", "points", "solves",
+                "warm");
+    double cold_s = 0.0;
+    for (int mode : {0, 1}) {
+      const bool warm = mode == 1;
+      FrameOptions fo;
+      fo.levels = levels;
+      fo.ns_per_unit_s = us * 1000.0;
+      fo.seeded_lanczos = warm;
+      const auto t0 = std::chrono::steady_clock::now();
+      const InstantaneousFrame fr(sec, sch.scales, 0.0, 1.0, fo);
+      const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+      if (!warm) cold_s = wall;
+      std::printf("%3d %3d %10.3g %6s %9.2f %6.2f %7zu %6ld %9ld\n", n, fr.levels(), us, warm ? "warm" : "cold", wall,
+                  wall / cold_s, fr.points().size(), fr.eigen_solves(), fr.warm_solves());
+      std::fflush(stdout);
+    }
+    return 0;
+  }
   std::printf("%3s %10s %8s %9s %12s %10s %3s %6s %7s %6s %5s %8s\n", "n", "T_us", "prop", "wall_s", "p", "|dp|",
               "K", "points", "solves", "warm", "fallb", "peak_MiB");
   std::stringstream ss(durations);

@@ -190,6 +190,14 @@ void run_anneal(const AnnealOptions& o) {
     put(j, "hamiltonian_applications", static_cast<long long>(r.stats.hamiltonian_applications));
     put(j, "error_estimate", r.stats.error_estimate);
     put(j, "wall_seconds", r.wall_seconds);
+    if (r.propagator == "frame") {
+      put(j, "frame_levels", static_cast<long long>(r.stats.frame_levels));
+      put(j, "frame_grid_points", static_cast<long long>(r.stats.frame_grid_points));
+      put(j, "frame_top_level_population", r.stats.frame_top_level_population);
+      put(j, "frame_truncation_estimate", r.stats.frame_truncation_estimate);
+      put(j, "frame_pieces", static_cast<long long>(r.stats.frame_pieces));
+      put(j, "frame_fallback_pieces", static_cast<long long>(r.stats.frame_fallback_pieces));
+    }
     toml::array arr;
     for (const auto& oc : r.top_outcomes) {
       toml::table e;
@@ -244,7 +252,23 @@ void run_anneal(const AnnealOptions& o) {
       std::cout << fmt::format("integrator error est.     {:.1e} (sum of the accepted steps' local error estimates of the\n"
                                "                          amplitudes; a bound-like figure, not the error of p itself)\n",
                                r.stats.error_estimate);
-    else
+    else if (r.propagator == "frame") {
+      const PropagationStats& fs = r.stats;
+      std::cout << fmt::format("error estimate of p       {:.1e} (per piece: the frame's grid against every other grid point,\n"
+                               "                          plus the change of p when K drops to 3K/4, plus the start's\n"
+                               "                          weight outside the kept levels; summed over pieces)\n",
+                               fs.error_estimate);
+      std::cout << fmt::format("frame                     K = {} levels, {} grid points, {} eigen-solves ({} warm started)\n",
+                               fs.frame_levels, fs.frame_grid_points, fs.frame_eigen_solves, fs.frame_warm_solves);
+      std::cout << fmt::format("leakage                   largest population of the highest kept level {:.1e}; change of p\n"
+                               "                          with K {:.1e}\n",
+                               fs.frame_top_level_population, fs.frame_truncation_estimate);
+      std::cout << fmt::format("pieces                    {} in the frame, {} by full propagation (split4){}\n", fs.frame_pieces,
+                               fs.frame_fallback_pieces,
+                               fs.frame_fallback_pieces > 0 && fs.frame_pieces > 0 ? "  (hybrid: the frame could not hold those to the tolerance)"
+                               : fs.frame_fallback_pieces > 0 ? "  (FALLBACK: the frame could not hold the run to the tolerance)"
+                                                              : "");
+    } else
       std::cout << fmt::format("error estimate of p       {:.1e} (the accepted step grid against a coarser one with 4/5\n"
                                "                          or 1/2 of its steps, Richardson-scaled; {})\n",
                                r.stats.error_estimate,
@@ -278,6 +302,14 @@ void run_anneal(const AnnealOptions& o) {
     h5.attribute("/anneal", "propagator", r.propagator);
     h5.attribute("/anneal", "steps", static_cast<long long>(r.stats.steps));
     h5.attribute("/anneal", "error_estimate", r.stats.error_estimate);
+    if (r.propagator == "frame") {
+      h5.attribute("/anneal", "frame_levels", static_cast<long long>(r.stats.frame_levels));
+      h5.attribute("/anneal", "frame_grid_points", static_cast<long long>(r.stats.frame_grid_points));
+      h5.attribute("/anneal", "frame_top_level_population", r.stats.frame_top_level_population);
+      h5.attribute("/anneal", "frame_truncation_estimate", r.stats.frame_truncation_estimate);
+      h5.attribute("/anneal", "frame_pieces", static_cast<long long>(r.stats.frame_pieces));
+      h5.attribute("/anneal", "frame_fallback_pieces", static_cast<long long>(r.stats.frame_fallback_pieces));
+    }
     if (delta_p) h5.attribute("/anneal", "convergence_delta_p", *delta_p);
     h5.attribute("/anneal", "ground_energy", gm.energy);
     std::vector<long long> gstates(gm.states.begin(), gm.states.end());

@@ -155,7 +155,15 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
       LevelOptions lo;
       lo.levels = block;
       lo.vectors = true;
-      Levels lv = lowest_levels(h, a, b, lo);
+      const bool seeded = options.seeded_lanczos && from != nullptr && from->warm.cols() > 0;
+      Levels lv;
+      try {
+        lv = lowest_levels(h, a, b, lo, seeded ? &from->warm : nullptr);
+      } catch (const std::runtime_error&) {
+        if (!seeded) throw;
+        lv = lowest_levels(h, a, b, lo);  // the seeded solve did not converge: from scratch
+      }
+      if (seeded) ++warm_solves_;
       if (static_cast<int>(lv.energies_ghz.size()) < k || lv.vectors.cols() < k)
         throw std::runtime_error(fmt::format("instantaneous frame: {} levels at s = {} (asked for {})",
                                              lv.energies_ghz.size(), s, k));

@@ -13,7 +13,9 @@
 // come from lowest_levels (dense or Lanczos, sector-aware, with its check for
 // missed degenerate partners); with FrameOptions::warm_start every later point
 // starts from the previous point's vectors (block Krylov Rayleigh-Ritz) and
-// falls back to lowest_levels when that does not converge. The basis V(s) carried along is made continuous:
+// falls back to lowest_levels when that does not converge; with
+// FrameOptions::seeded_lanczos every later point's Lanczos solve starts from
+// the previous point's vectors (the warm start of LevelTracker). The basis V(s) carried along is made continuous:
 //  - each eigenvector's sign is chosen so that its overlap with the previous
 //    point's vector is positive;
 //  - levels closer than group_gap_ghz form a group, and the group's vectors are
@@ -57,6 +59,10 @@ struct FrameOptions {
   /// at dimension 256 (8 qubits, K up to 32: the block QR dominated); kept for
   /// measurement at larger dimensions and for the shared warm-started tracker.
   bool warm_start = false;
+  /// Start each point's Lanczos solve (lowest_levels, as LevelTracker does) from
+  /// the previous point's vectors instead of a random vector; a cold solve where
+  /// that does not converge. Used when warm_start (the block Krylov variant) is off.
+  bool seeded_lanczos = false;
   /// Residual asked of a warm-started eigenpair, relative to max(1, |E| in GHz).
   double warm_tolerance = 1e-10;
 };
