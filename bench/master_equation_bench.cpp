@@ -42,6 +42,8 @@ int main(int argc, char** argv) {
   OpenPropagatorOptions oo{.tolerance = tol};
   oo.method = method;
   if (argc > 6) oo.levels = atoi(argv[6]);
+  if (argc > 7) oo.max_rotation = atof(argv[7]);
+  if (argc > 8) oo.max_ds = atof(argv[8]);
   auto r = simulate_open_anneal(h, gm, sch.scales, path, initial_state(h, sch, path), b, oo);
   printf("%s K %d top %.2e lost %.2e dK %.2e cap %d | ", r.propagator.c_str(), r.levels, r.top_level_population,
          r.lost_population, r.truncation_estimate, int(r.level_cap_hit));

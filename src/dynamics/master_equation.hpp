@@ -122,6 +122,8 @@ struct OpenPropagatorOptions {
   int max_levels = 40;
   /// ame-truncated: largest turn of the eigenbasis per interval (rad).
   double max_rotation = 0.02;
+  /// ame-truncated: largest interval in s.
+  double max_ds = 0.02;
 };
 
 /// What every open-system propagator offers: advance rho (computational basis)

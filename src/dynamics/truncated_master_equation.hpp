@@ -53,6 +53,7 @@ struct TruncatedStats {
   long grid_points = 0;          ///< accepted intervals
   long rejected = 0;             ///< refined intervals
   long eigen_solves = 0;
+  long unresolved_crossings = 0;   ///< intervals at min_ds where the frame still turned more than max_rotation
   double top_level_population = 0;  ///< largest population of the highest kept level seen
   double lost_population = 0;       ///< 1 - Tr rho_K at the end (moved out of the kept levels)
   double min_eigenvalue = 0;        ///< smallest eigenvalue of rho_K at the end
