@@ -2,11 +2,13 @@
 // on a problem with fields and real couplings (invented demo values):
 //   bench_master_equation N DURATION_NS ETA TOL          one forward anneal, linear 5 GHz scales, 12 mK
 //   bench_master_equation N DURATION_NS ETA TOL one      cost of one generator build, transform, 1 ns evolve
+//   bench_master_equation N DURATION_NS ETA TOL METHOD [K]   METHOD auto, ame-full or ame-truncated (K: forced levels)
 // Prints p, steps, eigen-decompositions, trace and positivity and the wall time.
 #include <chrono>
 #include <cstdio>
 #include <cmath>
 #include <cstdlib>
+#include <string>
 #include "dynamics/anneal_simulation.hpp"
 #include "dynamics/master_equation.hpp"
 #include "problem/classical_spectrum.hpp"
@@ -22,7 +24,8 @@ int main(int argc, char** argv) {
   Schedule sch;
   AnnealPath path = sch.shape.scaled_to(T);
   OhmicBath b; b.coupling = eta;
-  if (argc > 5) {
+  std::string method = argc > 5 ? argv[5] : "auto";
+  if (method == "one") {
     auto t0 = std::chrono::steady_clock::now();
     FrozenGenerator g = build_frozen_generator(h, 2.5, 2.5, b);
     auto t1 = std::chrono::steady_clock::now();
@@ -36,7 +39,14 @@ int main(int argc, char** argv) {
            std::chrono::duration<double>(t2 - t1).count(), std::chrono::duration<double>(t3 - t2).count());
     return 0;
   }
-  auto r = simulate_open_anneal(h, gm, sch.scales, path, initial_state(h, sch, path), b, {.tolerance = tol});
+  OpenPropagatorOptions oo{.tolerance = tol};
+  oo.method = method;
+  if (argc > 6) oo.levels = atoi(argv[6]);
+  if (argc > 7) oo.max_rotation = atof(argv[7]);
+  if (argc > 8) oo.max_ds = atof(argv[8]);
+  auto r = simulate_open_anneal(h, gm, sch.scales, path, initial_state(h, sch, path), b, oo);
+  printf("%s K %d top %.2e lost %.2e dK %.2e cap %d | ", r.propagator.c_str(), r.levels, r.top_level_population,
+         r.lost_population, r.truncation_estimate, int(r.level_cap_hit));
   printf("p %.9f steps %ld rej %ld eig %ld err %.3g trace %.3g mineig %.3g wall %.2f s jumps %ld\n", r.ground_probability,
          r.stats.steps, r.stats.rejected_steps, r.stats.eigen_solves, r.stats.error_estimate, r.stats.max_trace_deviation,
          r.stats.min_eigenvalue, r.wall_seconds, r.stats.max_jump_terms);

@@ -57,6 +57,12 @@ std::string open_system_text(const OhmicBath& bath, const OpenAnnealResult& open
   out += fmt::format("open-system run           {} steps ({} rejected), {} eigen-decompositions, error estimate {:.1e}, {:.2f} s\n",
                      open.stats.steps, open.stats.rejected_steps, open.stats.eigen_solves, open.stats.error_estimate,
                      open.wall_seconds);
+  out += fmt::format("open-system method        {}", open.propagator);
+  if (open.levels > 0)
+    out += fmt::format(", K = {} lowest levels (highest kept level held at most {:.1e}; |p(K) - p(K')| = {:.1e}{})",
+                       open.levels, open.top_level_population, open.truncation_estimate,
+                       open.level_cap_hit ? ", level cap reached without meeting the tolerance" : "");
+  out += "\n";
   return out;
 }
 
@@ -71,6 +77,10 @@ void put_open_system_json(toml::table& j, const OhmicBath& bath, const OpenAnnea
   put(r, "rejected_steps", static_cast<long long>(open.stats.rejected_steps));
   put(r, "eigen_solves", static_cast<long long>(open.stats.eigen_solves));
   put(r, "propagator", open.propagator);
+  put(r, "levels", static_cast<long long>(open.levels));
+  put(r, "top_level_population", open.top_level_population);
+  put(r, "truncation_estimate", open.truncation_estimate);
+  put(r, "level_cap_hit", open.level_cap_hit);
   put(r, "wall_seconds", open.wall_seconds);
   j.insert_or_assign("open_system", std::move(r));
 }
@@ -88,6 +98,9 @@ void write_open_system_hdf5(Hdf5Output& h5, const std::string& group, const Ohmi
   h5.attribute(group, "error_estimate", open.stats.error_estimate);
   h5.attribute(group, "steps", static_cast<long long>(open.stats.steps));
   h5.attribute(group, "propagator", open.propagator);
+  h5.attribute(group, "levels", static_cast<long long>(open.levels));
+  h5.attribute(group, "top_level_population", open.top_level_population);
+  h5.attribute(group, "truncation_estimate", open.truncation_estimate);
   h5.write(group + "/final_populations", open.populations, "1");
 }
 
@@ -126,11 +139,13 @@ void put_open_durations_json(toml::table& j, const OhmicBath& bath, const std::v
     put(e, "min_eigenvalue", r.open.stats.min_eigenvalue);
     put(e, "error_estimate", r.open.stats.error_estimate);
     put(e, "steps", static_cast<long long>(r.open.stats.steps));
+    put(e, "propagator", r.open.propagator);
+    put(e, "levels", static_cast<long long>(r.open.levels));
     put(e, "wall_seconds", r.open.wall_seconds);
     pts.push_back(std::move(e));
   }
   toml::table o;
-  put(o, "propagator", std::string("ame-full"));
+  put(o, "propagator", rows.empty() ? std::string("ame-full") : rows.front().open.propagator);
   o.insert_or_assign("points", std::move(pts));
   j.insert_or_assign("open_system", std::move(o));
 }

@@ -1,4 +1,5 @@
 #include "dynamics/master_equation.hpp"
+#include "dynamics/truncated_master_equation.hpp"
 
 #include <algorithm>
 #include <chrono>
@@ -59,12 +60,30 @@ DensityMatrix FrozenGenerator::from_eigenbasis(const DensityMatrix& rho_e) const
 
 FrozenGenerator build_frozen_generator(const TransverseIsingHamiltonian& h, double a_ghz, double b_ghz,
                                        const OhmicBath& bath) {
-  FrozenGenerator g;
   Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(dense_hamiltonian(h, a_ghz, b_ghz));
   if (es.info() != Eigen::Success) throw std::runtime_error("dense eigen-decomposition of H(s) did not converge");
-  g.energies = es.eigenvalues();
+  const int d = static_cast<int>(h.dim()), n = h.qubits();
+  // sigma^z_i in the eigenbasis: S_i = V^T Z_i V.
+  std::vector<Eigen::MatrixXd> s;
+  if (bath.coupling != 0.0) {
+    s.resize(static_cast<std::size_t>(n));
+    for (int i = 0; i < n; ++i) {
+      Eigen::MatrixXd zv = es.eigenvectors();
+      for (int x = 0; x < d; ++x)
+        if ((x >> i) & 1) zv.row(x) *= -1.0;
+      s[static_cast<std::size_t>(i)].noalias() = es.eigenvectors().transpose() * zv;
+    }
+  }
+  FrozenGenerator g = build_frozen_generator(es.eigenvalues(), s, bath, a_ghz, b_ghz);
   g.vectors = es.eigenvectors();
-  const int d = g.dim(), n = h.qubits();
+  return g;
+}
+
+FrozenGenerator build_frozen_generator(const Eigen::VectorXd& energies, const std::vector<Eigen::MatrixXd>& s,
+                                       const OhmicBath& bath, double a_ghz, double b_ghz) {
+  FrozenGenerator g;
+  g.energies = energies;
+  const int d = g.dim(), n = static_cast<int>(s.size());
   const double tol = kLevelTolerance * std::max(1.0, g.energies(d - 1) - g.energies(0));
 
   // Eigenspaces: runs of levels each within tol of the run's first level.
@@ -79,16 +98,7 @@ FrozenGenerator build_frozen_generator(const TransverseIsingHamiltonian& h, doub
   std::vector<double> mean(static_cast<std::size_t>(spaces));
   for (int c = 0; c < spaces; ++c)
     mean[static_cast<std::size_t>(c)] = g.energies.segment(first[c], first[c + 1] - first[c]).mean();
-  if (bath.coupling == 0.0) return g;
-
-  // sigma^z_i in the eigenbasis: S_i = V^T Z_i V.
-  std::vector<Eigen::MatrixXd> s(static_cast<std::size_t>(n));
-  for (int i = 0; i < n; ++i) {
-    Eigen::MatrixXd zv = g.vectors;
-    for (int x = 0; x < d; ++x)
-      if ((x >> i) & 1) zv.row(x) *= -1.0;
-    s[static_cast<std::size_t>(i)].noalias() = g.vectors.transpose() * zv;
-  }
+  if (bath.coupling == 0.0 || s.empty()) return g;
 
   // Bohr frequencies of eigenspace pairs, grouped.
   struct SpacePair {
@@ -331,9 +341,25 @@ std::unique_ptr<DensityPropagator> make_full_space_master_equation(const Transve
   return std::make_unique<FullSpaceMasterEquation>(h, bath, options);
 }
 
+std::string resolve_open_method(const std::string& method, int qubits) {
+  if (method != "auto") return method;
+  return qubits <= kAutoFullSpaceQubits ? "ame-full" : "ame-truncated";
+}
+
 OpenAnnealResult simulate_open_anneal(const TransverseIsingHamiltonian& h, const GroundManifold& ground,
                                       const EnergyScales& scales, const AnnealPath& path, const QuantumState& psi0,
                                       const OhmicBath& bath, const OpenPropagatorOptions& options) {
+  const std::string method = resolve_open_method(options.method, h.qubits());
+  if (method == "ame-truncated") {
+    struct EigenThreads {
+      int saved = Eigen::nbThreads();
+      EigenThreads() { Eigen::setNbThreads(1); }
+      ~EigenThreads() { Eigen::setNbThreads(saved); }
+    } one_thread;
+    return simulate_truncated_open_anneal(h, ground, scales, path, psi0, bath, options);
+  }
+  if (method != "ame-full")
+    throw std::invalid_argument(fmt::format("unknown open-system method '{}' (auto, ame-full, ame-truncated)", method));
   const auto start = std::chrono::steady_clock::now();
   // Eigen's own threads for the 2^n x 2^n products: measured 10x slower than one
   // thread at 6-8 qubits on a loaded 2-core machine (spinning workers), so the

@@ -83,6 +83,14 @@ struct FrozenGenerator {
 FrozenGenerator build_frozen_generator(const TransverseIsingHamiltonian& h, double a_ghz, double b_ghz,
                                        const OhmicBath& bath);
 
+/// The same from given levels: energies (GHz, ascending within kLevelTolerance
+/// grouping) and s[i] = <m|sigma^z_i|n> between them (n matrices, dim x dim);
+/// s empty or a zero coupling: no dissipator. `vectors` is left empty. a_ghz and
+/// b_ghz only name the point in errors. Used by the truncated master equation
+/// with the lowest K levels.
+FrozenGenerator build_frozen_generator(const Eigen::VectorXd& energies, const std::vector<Eigen::MatrixXd>& s,
+                                       const OhmicBath& bath, double a_ghz, double b_ghz);
+
 /// The Gibbs state exp(-H/theta)/Z of H(a, b) in the computational basis (theta > 0).
 DensityMatrix gibbs_state(const TransverseIsingHamiltonian& h, double a_ghz, double b_ghz, double theta_ghz);
 
@@ -103,6 +111,19 @@ struct OpenPropagatorOptions {
   double tolerance = 1e-6;
   std::function<void(const PropagationProgress&)> progress;
   double progress_interval_s = 0.25;
+  /// "auto" (ame-full up to kAutoFullSpaceQubits qubits, ame-truncated beyond),
+  /// "ame-full" or "ame-truncated".
+  std::string method = "auto";
+  /// ame-truncated: the number K of kept levels (0: chosen by the error control,
+  /// from start_levels in steps of level_step up to max_levels).
+  int levels = 0;
+  int start_levels = 6;
+  int level_step = 4;
+  int max_levels = 40;
+  /// ame-truncated: largest turn of the eigenbasis per interval (rad).
+  double max_rotation = 0.02;
+  /// ame-truncated: largest interval in s.
+  double max_ds = 0.02;
 };
 
 /// What every open-system propagator offers: advance rho (computational basis)
@@ -129,14 +150,25 @@ struct OpenAnnealResult {
   std::vector<double> populations;  ///< rho_bb, computational basis, at the end
   double wall_seconds = 0;
   std::string propagator;
+  // ame-truncated only (0 / false for ame-full):
+  int levels = 0;                     ///< K kept
+  double top_level_population = 0;    ///< largest population of the highest kept level along the run
+  double lost_population = 0;         ///< population moved out of the kept levels (1 - Tr rho_K)
+  double truncation_estimate = 0;     ///< |p(K) - p(K')| of the error control (NaN when not run)
+  bool level_cap_hit = false;         ///< the error control reached max_levels without meeting the tolerance
 };
 
-/// rho0 = |psi0><psi0| (psi0 from initial_state), propagated piece by piece.
+/// rho0 = |psi0><psi0| (psi0 from initial_state), propagated piece by piece
+/// by the propagator options.method selects (see kAutoFullSpaceQubits).
 OpenAnnealResult simulate_open_anneal(const TransverseIsingHamiltonian& h, const GroundManifold& ground,
                                       const EnergyScales& scales, const AnnealPath& path, const QuantumState& psi0,
                                       const OhmicBath& bath, const OpenPropagatorOptions& options);
 
 /// The largest number of qubits the full-space master equation accepts.
 inline constexpr int kMaxFullSpaceOpenQubits = 9;
+/// method "auto": ame-full up to this many qubits, ame-truncated beyond.
+inline constexpr int kAutoFullSpaceQubits = 6;
+/// "ame-full" or "ame-truncated" for an "auto" request (other names pass through).
+std::string resolve_open_method(const std::string& method, int qubits);
 
 }  // namespace gapwise
