@@ -1,6 +1,7 @@
 #include "io/schedule_file.hpp"
 
 #include <algorithm>
+#include <cfloat>
 #include <cmath>
 
 #include <fmt/format.h>
@@ -154,6 +155,16 @@ Schedule parse_schedule_text(std::string_view text, const std::string& name) {
   sch.time_in_ns = time == "ns";
   if (auto d = r.get_double(*p, "duration_ns", "path")) {
     check_duration_ns(*d, r.place(p->get("duration_ns"), "path.duration_ns"));
+    // The command line's floor for duration lists (src/cli/value_lists.cpp): a
+    // file's duration below it could not hold the path's waypoints apart. (The
+    // library itself still takes such durations: they give the sudden limit.)
+    if (*d < DBL_MIN)
+      r.fail(p->get("duration_ns"), "path.duration_ns",
+             fmt::format("{} ns is below the smallest duration gapwise accepts ({:.2g} ns, the smallest double held "
+                         "at full precision)",
+                         *d, DBL_MIN),
+             "give a duration of at least 1e-12 ns: every shorter run gives the sudden limit (the start state, "
+             "unchanged)");
     const bool forward_shape_in_ns = spec && !spec->is_reverse();
     if (sch.time_in_ns && !forward_shape_in_ns)
       r.fail(p->get("duration_ns"), "path.duration_ns",

@@ -1,6 +1,5 @@
 #include "schedule/schedule.hpp"
 
-#include <cfloat>
 #include <cmath>
 
 #include <fmt/format.h>
@@ -13,15 +12,6 @@ void check_duration_ns(double d, const SourcePlace& place) {
   if (!std::isfinite(d))
     throw InputError(place, fmt::format("duration {} ns is not a finite number", d), "give a duration > 0 ns");
   if (!(d > 0.0)) throw InputError(place, fmt::format("duration {} ns is not positive", d), "give a duration > 0 ns");
-  // The same floor as the command line's duration lists (src/cli/value_lists.cpp):
-  // below it a path's waypoints can no longer be held apart in double precision.
-  if (d < DBL_MIN)
-    throw InputError(place,
-                     fmt::format("{} ns is below the smallest duration gapwise accepts ({:.2g} ns, the smallest double "
-                                 "held at full precision)",
-                                 d, DBL_MIN),
-                     "give a duration of at least 1e-12 ns: every shorter run gives the sudden limit (the start state, "
-                     "unchanged)");
   if (d > kMaxDurationNs)
     throw InputError(place,
                      fmt::format("duration {} ns is longer than the {:g} ns (one second) gapwise simulates", d,
