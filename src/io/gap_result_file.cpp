@@ -33,17 +33,7 @@ void write_gap_result(const std::string& path, const MinimumGapReport& r, const 
   h5.attribute(G, "adiabatic_time_crude_ns", r.adiabatic_time_crude_ns);
   h5.attribute(G, "gap_e1_e0_at_end_ghz", r.gap_10_end_ghz);
   h5.attribute(G, "s_tolerance", s_tolerance);
-  std::vector<double> s, a, b, gap, gap10, m, m10, err, energies, slopes, others;
-  std::vector<long long> origin;
-  for (const auto& pt : r.curve) {
-    s.push_back(pt.s); a.push_back(pt.a_ghz); b.push_back(pt.b_ghz);
-    gap.push_back(pt.gap_ghz); gap10.push_back(pt.gap_10_ghz);
-    m.push_back(pt.matrix_element_ghz); m10.push_back(pt.matrix_element_10_ghz);
-    err.push_back(pt.error_bound_ghz); origin.push_back(pt.origin);
-    energies.insert(energies.end(), pt.energies_ghz.begin(), pt.energies_ghz.end());
-    slopes.insert(slopes.end(), pt.slopes_ghz.begin(), pt.slopes_ghz.end());
-    others.insert(others.end(), pt.other_energies_ghz.begin(), pt.other_energies_ghz.end());
-  }
+  const auto [s, a, b, gap, gap10, m, m10, err, energies, slopes, others, origin] = gap_curve_columns(r);
   const std::size_t n = r.curve.size(), kk = static_cast<std::size_t>(k);
   h5.write(G + "/curve/s", s, "1");
   h5.write(G + "/curve/a", a, "GHz");

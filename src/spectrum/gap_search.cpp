@@ -710,4 +710,18 @@ MinimumGapReport find_minimum_gap(const TransverseIsingHamiltonian& h, const Ene
   return search.run();
 }
 
+GapCurveColumns gap_curve_columns(const MinimumGapReport& r) {
+  GapCurveColumns c;
+  for (const auto& pt : r.curve) {
+    c.s.push_back(pt.s); c.a.push_back(pt.a_ghz); c.b.push_back(pt.b_ghz);
+    c.gap.push_back(pt.gap_ghz); c.gap10.push_back(pt.gap_10_ghz);
+    c.m.push_back(pt.matrix_element_ghz); c.m10.push_back(pt.matrix_element_10_ghz);
+    c.err.push_back(pt.error_bound_ghz); c.origin.push_back(pt.origin);
+    c.energies.insert(c.energies.end(), pt.energies_ghz.begin(), pt.energies_ghz.end());
+    c.slopes.insert(c.slopes.end(), pt.slopes_ghz.begin(), pt.slopes_ghz.end());
+    c.others.insert(c.others.end(), pt.other_energies_ghz.begin(), pt.other_energies_ghz.end());
+  }
+  return c;
+}
+
 }  // namespace gapwise

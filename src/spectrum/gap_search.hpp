@@ -244,4 +244,13 @@ void check_gap_point_budget(const GapSearchOptions& options);
 MinimumGapReport find_minimum_gap(const TransverseIsingHamiltonian& h, const EnergyScales& scales,
                                   const GapSearchOptions& options);
 
+/// The scanned curve of a report as columns, one entry per point (energies,
+/// slopes and other-sector energies row-major, points x levels): what the HDF5
+/// file and the Python module both store.
+struct GapCurveColumns {
+  std::vector<double> s, a, b, gap, gap10, m, m10, err, energies, slopes, others;
+  std::vector<long long> origin;
+};
+GapCurveColumns gap_curve_columns(const MinimumGapReport& r);
+
 }  // namespace gapwise
