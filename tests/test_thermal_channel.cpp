@@ -96,6 +96,18 @@ TEST_CASE("One qubit: gap = theta points, golden-rule rate and freeze-out agains
   // Populations of the two levels add up to 1 at every observation.
   for (const auto& pt : r.track) CHECK(pt.populations[0] + pt.populations[1] == doctest::Approx(1.0).epsilon(1e-9));
 
+  // A grid that steps over the minimum (only s = 0 and 1, both above theta) finds no crossing; the minimum
+  // s* = 1/(1 + h^2) given as an extra point (as diagnose passes its gap minima) restores both.
+  ThermalChannelOptions coarse = o;
+  coarse.points = 2;
+  CHECK(thermal_channel(H, gm, sch, {t_f}, bath, coarse).theta_crossings_s.empty());
+  coarse.extra_s = {1 / (1 + h * h)};
+  const ThermalChannel with_min = thermal_channel(H, gm, sch, {t_f}, bath, coarse);
+  REQUIRE(with_min.theta_crossings_s.size() == 2);
+  CHECK(with_min.theta_crossings_s[0] == doctest::Approx((-qb - disc) / (2 * qa)).epsilon(1e-10));
+  CHECK(with_min.theta_crossings_s[1] == doctest::Approx((-qb + disc) / (2 * qa)).epsilon(1e-10));
+  CHECK(with_min.min_gap_over_theta == doctest::Approx(5 * h / std::sqrt(1 + h * h) / theta).epsilon(1e-10));
+
   // A bath colder than the smallest gap: no crossing at all (the gap stays above theta).
   const ThermalChannel cold = thermal_channel(H, gm, sch, {t_f}, bath_at(12.0, 1e-3), o);
   CHECK(cold.theta_crossings_s.empty());

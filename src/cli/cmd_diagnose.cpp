@@ -120,6 +120,11 @@ void run_diagnose(const DiagnoseOptions& o) {
     to.levels = o.levels;
     to.points = o.thermal_points;
     to.tolerance = o.tolerance;
+    for (const AvoidedCrossing& c : result.crossings) {
+      to.extra_s.push_back(c.minimum.s);
+      to.extra_s.push_back(c.window_s_before);
+      to.extra_s.push_back(c.window_s_after);
+    }
     if (!o.quiet && ::isatty(STDERR_FILENO))
       to.progress = [&](std::size_t k, const PropagationProgress& pr) {
         std::cerr << fmt::format("\r[diagnose] thermal channel {}/{}: pass {} {:3.0f} %   ", k + 1, durations_ns.size(),

@@ -150,6 +150,12 @@ ThermalChannel thermal_channel(const TransverseIsingHamiltonian& h, const Ground
   for (const auto& w : unit.points()) s_lo = std::min(s_lo, w.s), s_hi = std::max(s_hi, w.s);
   std::vector<double> s_grid;
   for (int k = 0; k < o.points; ++k) s_grid.push_back(s_lo + (s_hi - s_lo) * k / (o.points - 1));
+  for (double s : o.extra_s)
+    if (s > s_lo && s < s_hi) s_grid.push_back(s);
+  std::sort(s_grid.begin(), s_grid.end());
+  s_grid.erase(std::unique(s_grid.begin(), s_grid.end(),
+                           [&](double a, double b) { return std::abs(a - b) <= 1e-12 * std::max(1.0, s_hi - s_lo); }),
+               s_grid.end());
   auto gap_at = [&](double s) {
     return levels_of(spectrum_at(h, schedule.scales.a_ghz(s), schedule.scales.b_ghz(s)), h, bath, gl, 0).gap_ghz;
   };

@@ -81,6 +81,10 @@ struct ThermalChannel {
 struct ThermalChannelOptions {
   int levels = 4;              ///< instantaneous levels whose populations are kept
   int points = 41;             ///< observations along s (evenly in s, plus the path's waypoints)
+  /// More s values for the grid and the observations, e.g. the gap minima s* and their
+  /// windows from the closed diagnosis: an even grid alone can step over a narrow
+  /// minimum and so miss both gap = theta points around it.
+  std::vector<double> extra_s;
   double tolerance = 1e-6;     ///< of the master equation
   std::string method = "auto"; ///< as OpenPropagatorOptions::method
   std::function<void(std::size_t duration_index, const PropagationProgress&)> progress;
