@@ -178,6 +178,13 @@ def main():
             # A perturbative crossing (Amin & Choi 2009) and levels not tracked everywhere (NaN).
             ("diagnose-pc.h5", "gapwise-diagnosis",
              ["diagnose", str(root / "data-samples" / "hub-and-leaves.toml"), lin, "-d", "20", "--samples", "0"]),
+            # With a bath (branch h18-studies): /compare/bath and the thermal channel /thermal.
+            ("compare-bath.h5", "gapwise-compare-paths",
+             ["compare-paths", tri, lin, "--pause", "0.5:0.2", "-d", "5", "-q", "--bath",
+              str(root / "data-samples" / "bath-12mk.toml")]),
+            ("diagnose-bath.h5", "gapwise-diagnosis",
+             ["diagnose", tri, lin, "-d", "5", "--samples", "0", "-q", "--thermal-points", "11", "--bath",
+              str(root / "data-samples" / "bath-12mk.toml")]),
             ("set.h5", "gapwise-instance-set",
              ["generate", "--graph", "ring-chords", "--couplings", "gaussian", "--sizes", "lin:4:6:2", "--count", "2",
               "--seed", "3"]),

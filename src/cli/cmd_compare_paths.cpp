@@ -6,9 +6,14 @@
 #include <iostream>
 #include <limits>
 #include <memory>
+#include <optional>
+#include <sstream>
+
+#include <unistd.h>
 
 #include <fmt/format.h>
 
+#include "cli/bath_option.hpp"
 #include "cli/cli_common.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
@@ -17,9 +22,12 @@
 #include "io/hdf5_output.hpp"
 #include "io/infinite_tts.hpp"
 #include "io/input_error.hpp"
+#include "io/json_summary.hpp"
+#include "io/open_path_output.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
 #include "studies/local_adiabatic_schedule.hpp"
+#include "studies/open_path_comparison.hpp"
 #include "studies/shape_comparison.hpp"
 #include "studies/work_estimate.hpp"
 
@@ -29,8 +37,8 @@ namespace {
 struct CompareOptions {
   std::string problem;
   std::vector<std::string> schedules, pauses, quenches;
-  std::string durations, out, csv, propagator = SimulationOptions{}.propagator;
-  bool local_adiabatic = false, allow_long = false, levels_given = false, quiet = false;
+  std::string durations, out, csv, bath, propagator = SimulationOptions{}.propagator;
+  bool local_adiabatic = false, allow_long = false, levels_given = false, quiet = false, json = false;
   int levels = 4, trace_points = 60, threads = 0, waypoints = 200;
   double tolerance = 1e-6, target = kDefaultTargetProbability;
 };
@@ -65,9 +73,10 @@ void run_compare(const CompareOptions& o) {
   FilePlan plan;
   plan.input(o.problem, "problem");
   for (const auto& f : o.schedules) plan.input(f, "schedule");
-  check_file_plan(plan.output(o.out, "--out").output(o.csv, "--csv"));
+  check_file_plan(plan.input(o.bath, "--bath").output(o.out, "--out").output(o.csv, "--csv"));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
+  const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
   check_memory(p.qubits, 10, 0, p_file.qubits_place);
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
@@ -110,26 +119,79 @@ void run_compare(const CompareOptions& o) {
     std::cerr << fmt::format("running {} anneals ({} paths x {} durations)...\n", cands.size() * co.durations_ns.size(),
                            cands.size(), co.durations_ns.size());
   const ShapeComparison r = compare_shapes(p, cands, co);
+  std::optional<OpenPathComparison> open;
+  if (bath) {
+    OpenPathOptions oo;
+    oo.tolerance = o.tolerance;
+    oo.target_probability = o.target;
+    const bool tty = !o.quiet && ::isatty(STDERR_FILENO);
+    if (!o.quiet && !tty)
+      std::cerr << fmt::format("running {} anneals with the bath...\n", cands.size() * co.durations_ns.size());
+    if (tty)
+      oo.progress = [](std::size_t done, std::size_t total, const PropagationProgress& pr) {
+        std::cerr << fmt::format("\r[compare-paths] with the bath: run {}/{}, pass {} {:3.0f} %   ", done + 1, total,
+                                 pr.pass, 100 * pr.fraction);
+      };
+    open = compare_paths_open(p, cands, r, *bath, oo);
+    if (tty) std::cerr << "\n";
+  }
+  if (o.json) {
+    toml::table j;
+    put(j, "problem", o.problem);
+    put(j, "qubits", static_cast<long long>(p.qubits));
+    put(j, "target_probability", o.target);
+    toml::array runs;
+    for (std::size_t i = 0; i < r.names.size(); ++i)
+      for (std::size_t d = 0; d < r.durations_ns.size(); ++d) {
+        const ShapeRun& x = r.at(i, d);
+        toml::table e;
+        put(e, "path", x.name);
+        put(e, "duration_ns", x.duration_ns);
+        put(e, "end_time_ns", x.end_time_ns);
+        put(e, "ground_probability", x.ground_probability);
+        put_tts(e, "tts_ns", x.tts.tts_ns);
+        put(e, "largest_leak", x.leak.drop);
+        put(e, "largest_leak_s_from", x.leak.s_from);
+        put(e, "largest_leak_s_to", x.leak.s_to);
+        runs.push_back(std::move(e));
+      }
+    j.insert_or_assign("runs", std::move(runs));
+    if (open) j.insert_or_assign("open_system", open_path_json(*open, *bath));
+    std::cout << to_json(j) << "\n";
+  }
 
-  std::cout << fmt::format("problem  {}: {} qubits; paths compared at equal total duration\n", terminal_text(o.problem), p.qubits);
-  std::cout << fmt::format("levels   populations of the lowest {} instantaneous levels ({})\n", levels,
+  std::ostringstream text;
+  text << fmt::format("problem  {}: {} qubits; paths compared at equal total duration\n", terminal_text(o.problem), p.qubits);
+  text << fmt::format("levels   populations of the lowest {} instantaneous levels ({})\n", levels,
                            describe_sector(r.sector));
   if (gap)
-    std::cout << fmt::format("gap      {:.6g} GHz at s* = {:.6g} ({}); local adiabatic I = {:.6g} ns\n", gap->report.gap_ghz,
+    text << fmt::format("gap      {:.6g} GHz at s* = {:.6g} ({}); local adiabatic I = {:.6g} ns\n", gap->report.gap_ghz,
                              gap->report.s_star, gap->report.definition, gap->path.integral_ns);
-  TextTable t({"path", "duration_ns", "end_ns", "p_ground", fmt::format("TTS{:g}_ns", 100 * o.target), "largest leak (s)",
-               "leak", "level0_end"});
+  std::vector<std::string> cols{"path", "duration_ns", "end_ns", "p_ground", fmt::format("TTS{:g}_ns", 100 * o.target),
+                                "largest leak (s)", "leak", "level0_end"};
+  if (open) {
+    cols.push_back("p_bath");
+    cols.push_back(fmt::format("TTS{:g}_bath_ns", 100 * o.target));
+  }
+  TextTable t(cols);
   for (std::size_t j = 0; j < r.durations_ns.size(); ++j)
     for (std::size_t i = 0; i < r.names.size(); ++i) {
       const ShapeRun& x = r.at(i, j);
-      t.add({x.name, fmt_num(x.duration_ns, 8), fmt_num(x.end_time_ns, 12), fmt_num(x.ground_probability, 8),
-             tts_text(x.tts.tts_ns, 6),
-             x.leak.drop > 0 ? fmt::format("{:.3f}-{:.3f}", x.leak.s_from, x.leak.s_to) : "-", fmt_num(x.leak.drop, 4),
-             fmt_num(x.leak.final_ground_level, 6)});
+      std::vector<std::string> row{x.name, fmt_num(x.duration_ns, 8), fmt_num(x.end_time_ns, 12),
+                                   fmt_num(x.ground_probability, 8), tts_text(x.tts.tts_ns, 6),
+                                   x.leak.drop > 0 ? fmt::format("{:.3f}-{:.3f}", x.leak.s_from, x.leak.s_to) : "-",
+                                   fmt_num(x.leak.drop, 4), fmt_num(x.leak.final_ground_level, 6)};
+      if (open) {
+        row.push_back(fmt_num(open->at(i, j).open.ground_probability, 8));
+        row.push_back(tts_text(open->at(i, j).open_tts.tts_ns, 6));
+      }
+      t.add(row);
     }
-  std::cout << "\n" << t.render();
-  std::cout << "\nleak: the largest drop of the instantaneous ground level's population between two observations,\n"
+  text << "\n" << t.render();
+  text << "\nleak: the largest drop of the instantaneous ground level's population between two observations,\n"
                "and where along s it happened; level0_end: that population at the end (= p_ground when A(1) = 0).\n";
+  if (open) text << open_path_text(*open, *bath);
+  if (!o.json) std::cout << text.str();
   if (!o.csv.empty()) write_file_atomically(o.csv, t.csv());
   if (!o.out.empty()) {
     Hdf5Output h5(o.out, {"gapwise-compare-paths", 1});
@@ -150,6 +212,7 @@ void run_compare(const CompareOptions& o) {
     h5.write_matrix("/compare/end_time_ns", end, ni, nj, "ns", {"/compare/paths", "/compare/durations_ns"});
     h5.attribute("/compare", "target_probability", o.target);
     h5.attribute("/compare", "level_sector", sector_name(r.sector));
+    if (open) write_open_path_hdf5(h5, *open, *bath);
     for (std::size_t i = 0; i < ni; ++i) {
       // Each path's waypoints (fractions of the duration), so the file says what ran.
       std::vector<double> wt, ws;
@@ -194,7 +257,7 @@ void run_compare(const CompareOptions& o) {
       }
     }
     h5.commit();
-    std::cout << fmt::format("wrote {}\n", o.out);
+    if (!o.json) std::cout << fmt::format("wrote {}\n", o.out);
   }
 }
 
@@ -227,7 +290,12 @@ void register_compare_paths(CLI::App& app) {
       ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default); results do not depend on it")->capture_default_str();
   sub->add_option("--out", o->out, "HDF5: p, TTS and end times per path and duration; level populations along each run");
-  sub->add_option("--csv", o->csv, "the table as CSV");
+  sub->add_option("--csv", o->csv, "the table as CSV (with --bath: p_bath and the TTS with the bath as two more columns)");
+  add_bath_option(sub, o->bath)->description(
+      "run every path once more coupled to the bath of FILE (format gapwise-bath) with the adiabatic\n"
+      "master equation: p and TTS closed and with the bath side by side, and the best path with and\n"
+      "without the bath (at most 9 qubits; see the user guide, 'compare-paths --bath')");
+  sub->add_flag("--json", o->json, "print a JSON summary instead of the text report");
   sub->add_flag("-q,--quiet", o->quiet, "no progress lines on stderr");
   add_allow_long_flag(sub, o->allow_long);
   sub->callback([o, sub] {

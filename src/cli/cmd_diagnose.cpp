@@ -10,6 +10,7 @@
 
 #include <fmt/format.h>
 
+#include "cli/bath_option.hpp"
 #include "cli/cli_common.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
@@ -17,27 +18,33 @@
 #include "io/atomic_file.hpp"
 #include "io/diagnosis_output.hpp"
 #include "io/input_error.hpp"
+#include "io/thermal_channel_output.hpp"
+#include "studies/thermal_channel.hpp"
 #include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
 namespace {
 
 struct DiagnoseOptions {
-  std::string problem, schedule, out, durations, propagator = SimulationOptions{}.propagator;
+  std::string problem, schedule, out, durations, bath, propagator = SimulationOptions{}.propagator;
   std::optional<double> control_tolerance;
   double tolerance = 1e-6, sigma_h = 0.03, sigma_j = 0.03, window = 5.0, target_loss = 0.01, check_max_ns = 10000.0;
-  bool sigma_h_given = false, sigma_j_given = false;
+  bool sigma_h_given = false, sigma_j_given = false, thermal_points_given = false;
   bool relative = false, json = false, quiet = false, no_control_gaps = false, allow_long = false;
-  int levels = 4, threads = 0;
+  int levels = 4, threads = 0, thermal_points = 41;
   long long samples = 100;
   unsigned long long seed = 1;
 };
 
 void run_diagnose(const DiagnoseOptions& o) {
   const std::vector<double> durations_ns = parse_value_list(o.durations, "--durations", ListOf::Durations);
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out"));
+  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").input(o.bath, "--bath").output(o.out, "--out"));
   const ProblemFile p_file = parse_problem_file(o.problem);
   const IsingProblem& p = p_file.ising;
+  const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
+  if (!bath && o.thermal_points_given)
+    throw InputError({"--thermal-points", 0, 0, "--thermal-points"}, "--thermal-points is for the thermal channel",
+                     "add --bath FILE, or leave out --thermal-points");
   const Schedule sch = read_schedule_file(o.schedule);
   check_tolerance(o.tolerance);
   check_sigma(o.sigma_h, "--sigma-h");
@@ -105,12 +112,42 @@ void run_diagnose(const DiagnoseOptions& o) {
       if (pr.done == pr.total) std::cerr << "\n";
     };
   const Diagnosis result = diagnose_anneal(p, sch, d);
+  std::optional<ThermalChannel> thermal;
+  std::vector<double> closed_p;
+  if (bath) {
+    for (const auto& r : result.runs) closed_p.push_back(r.anneal.ground_probability);
+    ThermalChannelOptions to;
+    to.levels = o.levels;
+    to.points = o.thermal_points;
+    to.tolerance = o.tolerance;
+    for (const AvoidedCrossing& c : result.crossings) {
+      to.extra_s.push_back(c.minimum.s);
+      to.extra_s.push_back(c.window_s_before);
+      to.extra_s.push_back(c.window_s_after);
+    }
+    if (!o.quiet && ::isatty(STDERR_FILENO))
+      to.progress = [&](std::size_t k, const PropagationProgress& pr) {
+        std::cerr << fmt::format("\r[diagnose] thermal channel {}/{}: pass {} {:3.0f} %   ", k + 1, durations_ns.size(),
+                                 pr.pass, 100 * pr.fraction);
+      };
+    const TransverseIsingHamiltonian H(p);
+    thermal = thermal_channel(H, result.ground, sch, durations_ns, *bath, to);
+    if (to.progress) std::cerr << "\n";
+  }
   const DiagnosisContext ctx{o.problem, o.schedule, command_line(), p.qubits, sch.description};
-  if (o.json)
-    std::cout << to_json(diagnosis_json(result, ctx)) << "\n";
-  else
+  if (o.json) {
+    toml::table j = diagnosis_json(result, ctx);
+    if (thermal) j.insert_or_assign("thermal", thermal_channel_json(*thermal, *bath, closed_p));
+    std::cout << to_json(j) << "\n";
+  } else {
     std::cout << diagnosis_report_text(result, ctx);
-  if (!o.out.empty()) write_diagnosis_hdf5(result, ctx, o.out);
+    if (thermal)
+      std::cout << thermal_channel_text(*thermal, *bath, closed_p, result.gap.gap_ghz, result.gap.s_star);
+  }
+  if (!o.out.empty())
+    write_diagnosis_hdf5(result, ctx, o.out, [&](Hdf5Output& h5) {
+      if (thermal) write_thermal_channel_hdf5(h5, *thermal, *bath, closed_p);
+    });
 }
 
 }  // namespace
@@ -170,12 +207,20 @@ void register_diagnose(CLI::App& app) {
                   "propagator tolerance of the perturbed anneals (default: --tolerance; looser is faster)");
   sub->add_flag("--no-control-gaps", o->no_control_gaps, "skip the gap search of every perturbed problem (faster)");
   sub->add_option("--out", o->out, "write an HDF5 file (curves, crossings, per-duration results, every sample)");
+  add_bath_option(sub, o->bath)->description(
+      "add a thermal channel with the bath of FILE (format gapwise-bath): level populations along s from\n"
+      "the adiabatic master equation, the gap against k_B T/h, and where relaxation freezes out\n"
+      "(at most 9 qubits; see the user guide, 'diagnose --bath')");
+  sub->add_option("--thermal-points", o->thermal_points,
+                  "with --bath: observations along s (evenly in s, plus the path's waypoints)")
+      ->capture_default_str()->check(CLI::Range(2, 2001));
   sub->add_flag("--json", o->json, "print JSON instead of the text report");
   sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
   add_allow_long_flag(sub, o->allow_long);
   sub->callback([o, sub] {
     o->sigma_h_given = sub->count("--sigma-h") > 0;
     o->sigma_j_given = sub->count("--sigma-j") > 0;
+    o->thermal_points_given = sub->count("--thermal-points") > 0;
     run_diagnose(*o);
   });
 }

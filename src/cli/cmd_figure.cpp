@@ -29,7 +29,8 @@ void register_figure(CLI::App& app) {
       "  reverse-map\n"
       "  compare-paths  populations-<path>-<k>: lowest-level populations along t\n"
       "  embed-cost     chain-probability, chain-duration, chain-gap against chain coupling\n"
-      "  diagnose       diagnosis-gap (crossings marked), diagnosis-ground-weight\n"
+      "  diagnose       diagnosis-gap (crossings marked), diagnosis-ground-weight; with --bath\n"
+      "                 diagnosis-thermal (gap/theta and relaxations left), diagnosis-thermal-populations\n"
       "  ensemble       ensemble-tts, ensemble-gap: median and quantile band against size\n"
       "Example: gapwise figure run.h5 --out-dir figs --format png");
   sub->add_option("results", o->files, "HDF5 result files")->required()->check(readable_input_file());

@@ -325,7 +325,8 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
   return j;
 }
 
-void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const std::string& path) {
+void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const std::string& path,
+                          const std::function<void(Hdf5Output&)>& extra) {
   Hdf5Output h5(path, {"gapwise-diagnosis", 1});
   write_provenance(h5, c.command_line, {c.problem_file, c.schedule_file});
   const std::string root = "/diagnosis";
@@ -474,6 +475,7 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
     h5.write_matrix(g + "/ground_probability", p, e.samples.size(), d.runs.size(),
                     not_applicable("1", "no run at this duration for this sample"), {g + "/sample", root + "/durations"});
   }
+  if (extra) extra(h5);
   h5.commit();
 }
 

@@ -7,7 +7,10 @@
 //   std::cout << diagnosis_report_text(d, context);
 //   std::cout << to_json(diagnosis_json(d, context)) << "\n";
 //   write_diagnosis_hdf5(d, context, "why.h5");
+#include <functional>
 #include <string>
+
+#include "io/hdf5_output.hpp"
 
 #include "io/json_summary.hpp"
 #include "studies/loss_diagnosis.hpp"
@@ -23,7 +26,9 @@ struct DiagnosisContext {
 
 std::string diagnosis_report_text(const Diagnosis& d, const DiagnosisContext& c);
 toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c);
-/// Atomic (temporary file renamed on success), with provenance.
-void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const std::string& path);
+/// Atomic (temporary file renamed on success), with provenance. `extra`, when
+/// given, adds groups of its own (e.g. diagnose --bath's /thermal) before commit.
+void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const std::string& path,
+                          const std::function<void(Hdf5Output&)>& extra = {});
 
 }  // namespace gapwise

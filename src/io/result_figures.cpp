@@ -11,6 +11,7 @@
 
 #include "io/ensemble_result_file.hpp"
 #include "io/figure_plot.hpp"
+#include "io/thermal_figures.hpp"
 #include "io/hdf5_input.hpp"
 #include "io/input_error.hpp"
 #include "io/output_paths.hpp"
@@ -601,6 +602,7 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
   ensemble_scaling(in, emit);
   chain_strength_scan(in, emit);
   diagnosis(in, emit);
+  thermal_channel_figures(in, emit);
   if (written.empty())
     throw InputError({result_file, 0, 0, ""}, "this file holds no result that gapwise can draw",
                      "give a file written with --out by anneal or another study subcommand");
