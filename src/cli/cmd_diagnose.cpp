@@ -212,7 +212,7 @@ void register_diagnose(CLI::App& app) {
       "the adiabatic master equation, the gap against k_B T/h, and where relaxation freezes out\n"
       "(at most 9 qubits; see the user guide, 'diagnose --bath')");
   sub->add_option("--thermal-points", o->thermal_points,
-                  "with --bath: observations along s (evenly in s, plus the path's waypoints)")
+                  "with --bath: observations along s (evenly in s, plus the path's waypoints and the gap minima)")
       ->capture_default_str()->check(CLI::Range(2, 2001));
   sub->add_flag("--json", o->json, "print JSON instead of the text report");
   sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
