@@ -13,6 +13,7 @@
 #include "hamiltonian/memory_budget.hpp"
 #include "hamiltonian/spin_flip_sector.hpp"
 #include "io/input_error.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -27,7 +28,7 @@ py::dict diagnose_py(const PyProblem& problem, const PySchedule& schedule, const
                      double tolerance, const std::string& propagator, int levels, double window, double target_loss,
                      double check_max_ns, long long samples, std::optional<double> sigma_h, std::optional<double> sigma_j,
                      bool relative, unsigned long long seed, bool control_gaps, std::optional<double> control_tolerance,
-                     int threads) {
+                     int threads, py::object progress) {
   const std::string fn = "diagnose";
   auto at = [&](const char* key) { return SourcePlace{"gapwise." + fn, 0, 0, key}; };
   check_durations_arg(fn, durations_ns);
@@ -71,11 +72,16 @@ py::dict diagnose_py(const PyProblem& problem, const PySchedule& schedule, const
     d.control = c;
   }
   std::optional<Diagnosis> result;
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("diagnose", std::move(progress));
+  d.simulation.propagation.progress = watch.propagation_hook();
+  d.gap.progress = watch.gap_hook();
+  d.progress = [&](const DiagnosisProgress& p) {
+    watch.report(p.stage, static_cast<double>(p.done), static_cast<double>(p.total));
+  };
+  watch.run([&] {
     check_memory(problem.file.ising.qubits, 12, 0, problem.file.qubits_place);
     result = diagnose_anneal(problem.file.ising, schedule.schedule, d);
-  }
+  });
   const Diagnosis& r = *result;
 
   py::dict out;
@@ -215,7 +221,8 @@ void bind_diagnose(py::module_& m) {
   m.def("_diagnose", &diagnose_py, py::arg("problem"), py::arg("schedule"), py::arg("durations_ns"), py::arg("tolerance"),
         py::arg("propagator"), py::arg("levels"), py::arg("window"), py::arg("target_loss"), py::arg("check_max_ns"),
         py::arg("samples"), py::arg("sigma_h"), py::arg("sigma_j"), py::arg("relative"), py::arg("seed"),
-        py::arg("control_gaps"), py::arg("control_tolerance"), py::arg("threads"));
+        py::arg("control_gaps"), py::arg("control_tolerance"), py::arg("threads"),
+        py::arg("progress"));
 }
 
 }  // namespace gapwise::python

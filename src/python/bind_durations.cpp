@@ -14,6 +14,7 @@
 #include "io/input_error.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "platform/thread_count.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -47,7 +48,8 @@ py::dict bracket_dict(const CrossingBracket& b) {
 
 py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, std::optional<std::vector<double>> durations,
                         double target, double tolerance, const std::string& propagator, bool p_only, bool search,
-                        bool predictions_on, double resolution, int probes, double agreement, int threads) {
+                        bool predictions_on, double resolution, int probes, double agreement, int threads,
+                        py::object progress) {
   const std::string fn = "duration_study";
   check_tolerance_arg(fn, tolerance);
   check_target_arg(fn, target);
@@ -75,8 +77,8 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
     PredictionVerdicts verdicts;
   } out;
   const double p_noise = std::max(10.0 * tolerance, 1e-9);
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("duration_study", std::move(progress));
+  watch.run([&] {
 #ifdef _OPENMP
     const int nthreads = thread_count_or_default(threads);
 #else
@@ -86,12 +88,22 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
     SimulationOptions sim;
     sim.propagator = propagator;
     sim.propagation.tolerance = tolerance;
+    sim.propagation.progress = watch.propagation_hook();
     if (p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();
     const AnnealSetup& setup = out.setup.emplace(p, schedule.schedule, sim);
-    if (predictions_on) out.predictions = predict_anneal(setup);
+    if (predictions_on) {
+      PredictionOptions po;
+      po.progress = watch.gap_hook();
+      out.predictions = predict_anneal(setup, po);
+    }
     const bool grid_chosen = grid.empty();
     if (grid_chosen) grid = default_duration_grid(out.predictions ? &*out.predictions : nullptr, target);
     DurationEvaluator ev(setup, nullptr);
+    std::size_t planned = 0, finished = 0;  // under the evaluator's lock
+    ev.on_batch = [&](const std::vector<double>& batch) { planned += batch.size(); };
+    ev.on_finished = [&](const DurationPoint&) {
+      watch.report("anneals", static_cast<double>(++finished), static_cast<double>(planned));
+    };
     DurationStudyOptions so;
     so.durations_ns = grid;
     so.target = target;
@@ -105,7 +117,7 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
     out.st = run_duration_study(ev, so);
     out.known = ev.known();
     if (out.predictions) out.verdicts = judge_predictions(*out.predictions, out.known, out.st, agreement, p_noise);
-  }
+  });
   const AnnealSetup& setup = *out.setup;
   const DurationStudy& st = out.st;
   grid.clear();
@@ -273,7 +285,8 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
 void bind_durations(py::module_& m) {
   m.def("_duration_study", &duration_study, py::arg("problem"), py::arg("schedule"), py::arg("durations_ns"),
         py::arg("target"), py::arg("tolerance"), py::arg("propagator"), py::arg("p_only"), py::arg("search"),
-        py::arg("predictions"), py::arg("resolution"), py::arg("probes"), py::arg("agreement"), py::arg("threads"));
+        py::arg("predictions"), py::arg("resolution"), py::arg("probes"), py::arg("agreement"), py::arg("threads"),
+        py::arg("progress"));
 }
 
 }  // namespace gapwise::python

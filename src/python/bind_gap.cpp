@@ -7,6 +7,7 @@
 
 #include "hamiltonian/spin_flip_sector.hpp"
 #include "io/input_error.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -17,7 +18,7 @@ namespace {
 
 py::dict gap_scan(const PyProblem& problem, const PySchedule& schedule, int levels, int points, int max_points,
                   double s_tolerance, const std::string& sector, const std::string& solver, std::optional<double> s_first,
-                  std::optional<double> s_last, bool other_sector, bool level_check) {
+                  std::optional<double> s_last, bool other_sector, bool level_check, py::object progress) {
   const IsingProblem& p = problem.file.ising;
   const SourcePlace here{"gapwise.gap_scan", 0, 0, ""};
   auto at = [&](const char* key) { SourcePlace w = here; w.key = key; return w; };
@@ -47,14 +48,15 @@ py::dict gap_scan(const PyProblem& problem, const PySchedule& schedule, int leve
   const Schedule& sch = schedule.schedule;
 
   MinimumGapReport r;
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("gap_scan", std::move(progress));
+  opt.progress = watch.gap_hook();
+  watch.run([&] {
     check_gap_search_size(p.qubits, opt.sector.value_or(default_sector(p)), levels, opt.method, problem.file.qubits_place);
     check_gap_point_budget(opt);
     const TransverseIsingHamiltonian H(p);
     check_gap_search_options(opt, sch.scales);
     r = find_minimum_gap(H, sch.scales, opt);
-  }
+  });
 
   py::dict d;
   d["s_star"] = r.s_star;
@@ -125,7 +127,8 @@ py::dict gap_scan(const PyProblem& problem, const PySchedule& schedule, int leve
 void bind_gap(py::module_& m) {
   m.def("_gap_scan", &gap_scan, py::arg("problem"), py::arg("schedule"), py::arg("levels"), py::arg("points"),
         py::arg("max_points"), py::arg("s_tolerance"), py::arg("sector"), py::arg("solver"), py::arg("s_first"),
-        py::arg("s_last"), py::arg("other_sector"), py::arg("level_check"));
+        py::arg("s_last"), py::arg("other_sector"), py::arg("level_check"),
+        py::arg("progress"));
 }
 
 }  // namespace gapwise::python

@@ -7,6 +7,7 @@
 
 #include "hamiltonian/memory_budget.hpp"
 #include "io/input_error.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -26,7 +27,8 @@ void check_values(const std::vector<double>& v, double lo, double hi, const std:
 
 py::dict pause_map_py(const PyProblem& problem, const PySchedule& schedule, double duration_ns,
                       const std::vector<double>& pause_s, const std::vector<double>& pause_ns, const std::string& cost,
-                      double target, double tolerance, const std::string& propagator, int threads) {
+                      double target, double tolerance, const std::string& propagator, int threads,
+                      py::object progress) {
   const std::string fn = "pause_map";
   check_tolerance_arg(fn, tolerance);
   check_target_arg(fn, target);
@@ -49,12 +51,15 @@ py::dict pause_map_py(const PyProblem& problem, const PySchedule& schedule, doub
   sim.propagator = propagator;
   sim.propagation.tolerance = tolerance;
   PauseMap m;
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("pause_map", std::move(progress));
+  sim.propagation.progress = watch.propagation_hook();
+  watch.run([&] {
     check_memory(problem.file.ising.qubits, 10, 0, problem.file.qubits_place);
     const AnnealSetup setup(problem.file.ising, schedule.schedule, sim);
-    m = pause_map(setup, mo);
-  }
+    m = pause_map(setup, mo, nullptr, [&](std::size_t done, std::size_t total) {
+      watch.report("anneals", static_cast<double>(done), static_cast<double>(total));
+    });
+  });
   const std::size_t ni = pause_s.size(), nj = pause_ns.size();
   std::vector<double> pg, tts, tot, nd;
   for (std::size_t i = 0; i < ni; ++i)
@@ -87,7 +92,7 @@ py::dict pause_map_py(const PyProblem& problem, const PySchedule& schedule, doub
 void bind_pause_map(py::module_& m) {
   m.def("_pause_map", &pause_map_py, py::arg("problem"), py::arg("schedule"), py::arg("duration_ns"), py::arg("pause_s"),
         py::arg("pause_ns"), py::arg("cost"), py::arg("target"), py::arg("tolerance"), py::arg("propagator"),
-        py::arg("threads"));
+        py::arg("threads"), py::arg("progress"));
 }
 
 }  // namespace gapwise::python
