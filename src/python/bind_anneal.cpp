@@ -23,9 +23,9 @@ py::dict anneal(const PyProblem& problem, const PySchedule& schedule, std::optio
                 py::object progress) {
   check_tolerance_arg("anneal", tolerance);
   check_propagator_arg("anneal", propagator);
-  check_count_arg("anneal", "trace_points", trace_points, 0, 10000);
-  check_count_arg("anneal", "top", top, 0, 1000);
-  if (duration_ns) check_duration_ns(*duration_ns, {"gapwise.anneal", 0, 0, "duration_ns"});
+  check_count_arg("anneal", "trace_points", trace_points, kTracePoints);
+  check_count_arg("anneal", "top", top, kTopOutcomes);
+  if (duration_ns) check_duration_ns(*duration_ns, keyword_place("anneal", "duration_ns"));
   const IsingProblem& p = problem.file.ising;
   const Schedule& sch = schedule.schedule;
 

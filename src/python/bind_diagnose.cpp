@@ -30,25 +30,19 @@ py::dict diagnose_py(const PyProblem& problem, const PySchedule& schedule, const
                      bool relative, unsigned long long seed, bool control_gaps, std::optional<double> control_tolerance,
                      int threads, py::object progress) {
   const std::string fn = "diagnose";
-  auto at = [&](const char* key) { return SourcePlace{"gapwise." + fn, 0, 0, key}; };
+  auto at = [&](const char* key) { return keyword_place(fn, key); };
   check_durations_arg(fn, durations_ns);
   check_tolerance_arg(fn, tolerance);
   check_propagator_arg(fn, propagator);
-  check_count_arg(fn, "levels", levels, 2, 64);
-  check_count_arg(fn, "threads", threads, 0, 4096);
-  check_count_arg(fn, "samples", samples, 0, 1000000);
-  for (const auto& [key, sigma] : {std::pair{"sigma_h", sigma_h}, std::pair{"sigma_j", sigma_j}})
-    if (sigma && (!(*sigma >= 0.0) || !std::isfinite(*sigma)))
-      throw InputError(at(key), fmt::format("control-error sigma {} is not a finite number >= 0", *sigma),
-                       "give a standard deviation >= 0 (0 switches that error off), e.g. 0.03");
-  if (control_tolerance) check_tolerance_arg(fn, *control_tolerance);
-  if (!(target_loss > 0 && target_loss < 1))
-    throw InputError(at("target_loss"), fmt::format("target loss {} is outside (0, 1)", target_loss), "e.g. target_loss=0.01");
-  if (!(check_max_ns >= 0))
-    throw InputError(at("check_max_ns"), fmt::format("{} ns is negative", check_max_ns),
-                     "give a duration in ns, or 0 to skip the simulated checks");
-  if (!(window > 0) || !std::isfinite(window))
-    throw InputError(at("window"), fmt::format("window factor {} is not a positive number", window), "e.g. window=5");
+  check_count_arg(fn, "levels", levels, kSpectrumLevels);
+  check_threads_arg(fn, threads);
+  check_count_arg(fn, "samples", samples, kControlSamples);
+  if (sigma_h) check_sigma_value(*sigma_h, at("sigma_h"));
+  if (sigma_j) check_sigma_value(*sigma_j, at("sigma_j"));
+  if (control_tolerance) check_tolerance_arg(fn, *control_tolerance, "control_tolerance");
+  check_target_loss_value(target_loss, at("target_loss"));
+  check_max_check_ns_value(check_max_ns, at("check_max_ns"));
+  check_window_value(window, at("window"));
 
   DiagnosisOptions d;
   d.durations_ns = durations_ns;

@@ -54,14 +54,10 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
   check_tolerance_arg(fn, tolerance);
   check_target_arg(fn, target);
   check_propagator_arg(fn, propagator);
-  check_count_arg(fn, "probes", probes, 1, 64);
-  check_count_arg(fn, "threads", threads, 0, 4096);
-  if (!(resolution > 0.0 && resolution < 1.0))
-    throw InputError({"gapwise." + fn, 0, 0, "resolution"}, "resolution is not inside (0, 1)",
-                     "give the relative width at which bisection stops, e.g. 0.005");
-  if (!(agreement > 1.0) || !std::isfinite(agreement))
-    throw InputError({"gapwise." + fn, 0, 0, "agreement"}, "agreement factor is not above 1",
-                     "give the factor within which 1 - p of a prediction and of the simulation must agree, e.g. 2");
+  check_count_arg(fn, "probes", probes, kBisectionProbes);
+  check_threads_arg(fn, threads);
+  check_resolution_value(resolution, keyword_place(fn, "resolution"));
+  check_agreement_value(agreement, keyword_place(fn, "agreement"));
   std::vector<double> grid;
   if (durations) {
     check_durations_arg(fn, *durations);

@@ -43,14 +43,12 @@ py::dict embed_cost(const PyProblem& problem, const PyEmbedding& emb, const PySc
                     std::optional<std::vector<double>> search_durations, double target, double tolerance,
                     double resolution, const std::string& propagator, int threads, py::object progress) {
   const std::string fn = "embed_cost";
-  auto at = [&](const char* key) { return SourcePlace{"gapwise." + fn, 0, 0, key}; };
+  auto at = [&](const char* key) { return keyword_place(fn, key); };
   check_tolerance_arg(fn, tolerance);
   check_target_arg(fn, target);
   check_propagator_arg(fn, propagator);
-  check_count_arg(fn, "threads", threads, 0, 4096);
-  if (!(resolution > 0.0 && resolution < 1.0))
-    throw InputError(at("resolution"), fmt::format("resolution {} is not inside (0, 1)", resolution),
-                     "give the relative width at which bisection stops, e.g. 0.005");
+  check_threads_arg(fn, threads);
+  check_resolution_value(resolution, at("resolution"));
   if (strengths) {
     if (strengths->empty()) throw InputError(at("strengths"), "no chain strengths given", "give at least one, e.g. [1, 2, 3]");
     for (double s : *strengths)

@@ -20,9 +20,8 @@ py::dict gap_scan(const PyProblem& problem, const PySchedule& schedule, int leve
                   double s_tolerance, const std::string& sector, const std::string& solver, std::optional<double> s_first,
                   std::optional<double> s_last, bool other_sector, bool level_check, py::object progress) {
   const IsingProblem& p = problem.file.ising;
-  const SourcePlace here{"gapwise.gap_scan", 0, 0, ""};
-  auto at = [&](const char* key) { SourcePlace w = here; w.key = key; return w; };
-  check_count_arg("gap_scan", "levels", levels, 2, 64);
+  auto at = [&](const char* key) { return keyword_place("gap_scan", key); };
+  check_count_arg("gap_scan", "levels", levels, kSpectrumLevels);
   GapSearchOptions opt;
   opt.levels = levels;
   if (sector == "full") opt.sector = SpinFlipSector::Full;

@@ -17,7 +17,7 @@ namespace gapwise::python {
 namespace {
 
 void check_values(const std::vector<double>& v, double lo, double hi, const std::string& key, const std::string& what) {
-  const SourcePlace at{"gapwise.pause_map", 0, 0, key};
+  const SourcePlace at = keyword_place("pause_map", key);
   if (v.empty()) throw InputError(at, fmt::format("no {} given", what), fmt::format("give {} values", what));
   for (double x : v)
     if (!(x >= lo && x <= hi))
@@ -33,12 +33,12 @@ py::dict pause_map_py(const PyProblem& problem, const PySchedule& schedule, doub
   check_tolerance_arg(fn, tolerance);
   check_target_arg(fn, target);
   check_propagator_arg(fn, propagator);
-  check_count_arg(fn, "threads", threads, 0, 4096);
-  check_duration_ns(duration_ns, {"gapwise." + fn, 0, 0, "duration_ns"});
+  check_threads_arg(fn, threads);
+  check_duration_ns(duration_ns, keyword_place(fn, "duration_ns"));
   check_values(pause_s, 0.0, 1.0, "pause_s", "pause location s");
   check_values(pause_ns, 0.0, 1e12, "pause_ns", "pause duration (ns)");
   if (cost != "total" && cost != "added")
-    throw InputError({"gapwise." + fn, 0, 0, "cost"}, fmt::format("unknown cost \"{}\"", cost),
+    throw InputError(keyword_place(fn, "cost"), fmt::format("unknown cost \"{}\"", cost),
                      "use \"total\" (every run takes duration_ns) or \"added\" (the pause adds to it)");
   PauseMapOptions mo;
   mo.pause_s = pause_s;
