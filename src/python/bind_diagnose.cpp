@@ -1,7 +1,8 @@
 // gapwise.diagnose: why an anneal loses the ground state, as `gapwise diagnose`
 // computes it (same options and defaults), returned under the names of the
-// HDF5 result (/diagnosis; see io/diagnosis_output.cpp, which this mirrors:
-// runs as a list indexed like /diagnosis/runs/<r>, NaN where the file has NaN).
+// HDF5 result (/diagnosis; the overlap and crossing columns come from
+// io/diagnosis_output, as the file's do; runs as a list indexed like
+// /diagnosis/runs/<r>, NaN where the file has NaN).
 #include <cmath>
 #include <limits>
 #include <optional>
@@ -12,6 +13,7 @@
 
 #include "hamiltonian/memory_budget.hpp"
 #include "hamiltonian/spin_flip_sector.hpp"
+#include "io/diagnosis_output.hpp"
 #include "io/input_error.hpp"
 #include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
@@ -95,67 +97,34 @@ py::dict diagnose_py(const PyProblem& problem, const PySchedule& schedule, const
     out["spectrum"] = spectrum;
   }
   {
-    const std::size_t k = r.overlap.points.empty() ? 0 : r.overlap.points.front().levels.size();
-    std::vector<double> s, w, e, dom;
-    for (const OverlapPoint& p : r.overlap.points) {
-      s.push_back(p.s);
-      for (std::size_t q = 0; q < k; ++q) {
-        const bool has = q < p.levels.size();
-        w.push_back(has ? p.levels[q].ground_weight : kNaN);
-        e.push_back(has ? p.levels[q].energy_ghz : kNaN);
-        dom.push_back(has ? p.levels[q].dominant_excited_weight : kNaN);
-      }
-    }
-    std::vector<double> sw;
-    for (const PerturbativeCrossing& l : r.overlap.perturbative_crossings) sw.push_back(l.s_switch);
+    const OverlapColumns o = overlap_columns(r);
     py::dict overlap;
-    overlap["s"] = to_numpy(s);
-    overlap["ground_weight"] = to_numpy(w, s.size(), k);
-    overlap["energy"] = to_numpy(e, s.size(), k);
-    overlap["dominant_excited_weight"] = to_numpy(dom, s.size(), k);
-    overlap["perturbative_crossing_s"] = to_numpy(sw);
+    overlap["s"] = to_numpy(o.s);
+    overlap["ground_weight"] = to_numpy(o.ground_weight, o.s.size(), o.levels);
+    overlap["energy"] = to_numpy(o.energy, o.s.size(), o.levels);
+    overlap["dominant_excited_weight"] = to_numpy(o.dominant_excited_weight, o.s.size(), o.levels);
+    overlap["perturbative_crossing_s"] = to_numpy(o.perturbative_crossing_s);
     out["overlap"] = overlap;
   }
   {
     const std::size_t m = r.crossings.size(), nr = r.runs.size();
-    std::vector<double> s, delta, slope, before, after, transferred, lz, lz_t, check_p, check_loss;
-    std::vector<long long> late, end, broad, check_run, crossing;
-    for (std::size_t i = 0; i < m; ++i) {
-      const AvoidedCrossing& x = r.crossings[i];
-      crossing.push_back(static_cast<long long>(i));
-      s.push_back(x.minimum.s);
-      delta.push_back(x.minimum.gap_ghz);
-      slope.push_back(x.diabatic_slope_ghz);
-      late.push_back(x.perturbative_crossing ? static_cast<long long>(*x.perturbative_crossing) : -1);
-      for (const CrossingPassage& p : x.passages) {
-        before.push_back(p.population_before);
-        after.push_back(p.population_after);
-        transferred.push_back(p.transferred);
-        lz.push_back(std::isfinite(p.landau_zener_loss) ? p.landau_zener_loss : kNaN);
-      }
-      end.push_back(x.at_end_point);
-      broad.push_back(x.broad);
-      check_run.push_back(x.check.has_value());
-      lz_t.push_back(std::isfinite(x.landau_zener_duration_ns) ? x.landau_zener_duration_ns : kNaN);
-      check_p.push_back(x.check ? x.check_ground_probability : kNaN);
-      check_loss.push_back(x.check ? x.check->transferred : 0.0);
-    }
+    const CrossingColumns x = crossing_columns(r);
     py::dict c;
-    c["crossing"] = to_numpy(crossing);
-    c["s_star"] = to_numpy(s);
-    c["delta_min"] = to_numpy(delta);
-    c["diabatic_slope"] = to_numpy(slope);
-    c["perturbative_crossing_index"] = to_numpy(late);
-    c["population_before"] = to_numpy(before, m, nr);
-    c["population_after"] = to_numpy(after, m, nr);
-    c["transferred"] = to_numpy(transferred, m, nr);
-    c["landau_zener_loss"] = to_numpy(lz, m, nr);
-    c["end_gap"] = to_numpy(end);
-    c["broad"] = to_numpy(broad);
-    c["landau_zener_duration"] = to_numpy(lz_t);
-    c["check_run"] = to_numpy(check_run);
-    c["check_ground_probability"] = to_numpy(check_p);
-    c["check_transferred"] = to_numpy(check_loss);
+    c["crossing"] = to_numpy(x.crossing);
+    c["s_star"] = to_numpy(x.s_star);
+    c["delta_min"] = to_numpy(x.delta_min);
+    c["diabatic_slope"] = to_numpy(x.diabatic_slope);
+    c["perturbative_crossing_index"] = to_numpy(x.perturbative_crossing_index);
+    c["population_before"] = to_numpy(x.population_before, m, nr);
+    c["population_after"] = to_numpy(x.population_after, m, nr);
+    c["transferred"] = to_numpy(x.transferred, m, nr);
+    c["landau_zener_loss"] = to_numpy(x.landau_zener_loss, m, nr);
+    c["end_gap"] = to_numpy(x.end_gap);
+    c["broad"] = to_numpy(x.broad);
+    c["landau_zener_duration"] = to_numpy(x.landau_zener_duration);
+    c["check_run"] = to_numpy(x.check_run);
+    c["check_ground_probability"] = to_numpy(x.check_ground_probability);
+    c["check_transferred"] = to_numpy(x.check_transferred);
     out["crossings"] = c;
   }
   py::list runs;

@@ -11,6 +11,7 @@
 
 #include <pybind11/stl.h>
 
+#include "io/duration_study_file.hpp"
 #include "io/input_error.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "platform/thread_count.hpp"
@@ -25,15 +26,6 @@ namespace gapwise::python {
 namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-const char* needed_status_text(NeededStatus s) {
-  switch (s) {
-    case NeededStatus::Reached: return "reached";
-    case NeededStatus::ReachedAtShortest: return "reached at the shortest duration";
-    case NeededStatus::NotReached: return "not reached";
-  }
-  return "?";
-}
 
 py::dict bracket_dict(const CrossingBracket& b) {
   py::dict d;
@@ -195,20 +187,14 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
   if (st.needed) {
     const auto& dn = *st.needed;
     py::dict n;
-    n["status"] = needed_status_text(dn.status);
+    n["status"] = needed_status_name(dn.status);
     n["lost_at_longest"] = dn.lost_at_longest;
     n["first_crossing"] = bracket_dict(dn.first);
     if (dn.stays_reached) n["stays_reached"] = bracket_dict(*dn.stays_reached);
-    std::vector<double> from, to, pf, pt;
-    for (const auto& s : dn.decreasing) {
-      from.push_back(s.from_ns); to.push_back(s.to_ns); pf.push_back(s.p_from); pt.push_back(s.p_to);
-    }
-    py::dict ds;
-    ds["from_ns"] = to_numpy(from);
-    ds["to_ns"] = to_numpy(to);
-    ds["p_from"] = to_numpy(pf);
-    ds["p_to"] = to_numpy(pt);
-    n["decreasing_stretches"] = ds;
+    n["decreasing_stretches"] = columns_dict(dn.decreasing, {{"from_ns", &PStretch::from_ns},
+                                                             {"to_ns", &PStretch::to_ns},
+                                                             {"p_from", &PStretch::p_from},
+                                                             {"p_to", &PStretch::p_to}});
     n["simulated_duration_ns"] = simulated_duration_needed(st);
     d["duration_needed"] = n;
   }

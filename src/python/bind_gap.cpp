@@ -93,16 +93,10 @@ py::dict gap_scan(const PyProblem& problem, const PySchedule& schedule, int leve
   if (others.size() == n * k) curve["other_sector_energies"] = to_numpy(others, n, k);
   d["curve"] = curve;
 
-  std::vector<double> ms, msu, mg, mgu;
-  for (const auto& mm : r.minima) {
-    ms.push_back(mm.s); msu.push_back(mm.s_uncertainty); mg.push_back(mm.gap_ghz); mgu.push_back(mm.gap_uncertainty_ghz);
-  }
-  py::dict minima;
-  minima["s"] = to_numpy(ms);
-  minima["s_uncertainty"] = to_numpy(msu);
-  minima["gap"] = to_numpy(mg);
-  minima["gap_uncertainty"] = to_numpy(mgu);
-  d["minima"] = minima;
+  d["minima"] = columns_dict(r.minima, {{"s", &GapMinimum::s},
+                                        {"s_uncertainty", &GapMinimum::s_uncertainty},
+                                        {"gap", &GapMinimum::gap_ghz},
+                                        {"gap_uncertainty", &GapMinimum::gap_uncertainty_ghz}});
 
   std::vector<double> fe, fpe;
   std::vector<long long> fstate, fground;
