@@ -47,11 +47,12 @@ def interrupted_after(call, delay=0.4):
 
 
 def test_ctrl_c_stops_a_long_anneal():
-    # Uninterrupted this anneal takes well over a minute here (12 qubits, 300 ns at 1e-10).
+    # Uninterrupted this anneal runs for tens of seconds (12 qubits, 300 ns at 1e-10: a few per cent
+    # of the split propagator's first pass is done when the signal comes).
     before = signal.getsignal(signal.SIGINT)
     latency, seen = interrupted_after(
         lambda cb: gapwise.anneal(chain(12), LINEAR, 300, tolerance=1e-10, check=False, progress=cb))
-    assert latency < 3.0, f"KeyboardInterrupt came {latency:.2f} s after SIGINT"  # measured ~0.1-0.3 s
+    assert latency < 3.0, f"KeyboardInterrupt came {latency:.2f} s after SIGINT"  # measured 0.02 to 0.3 s
     assert seen[-1]["stage"] == "interrupted"
     assert all(d["stage"] != "done" for d in seen)
     assert signal.getsignal(signal.SIGINT) is before
