@@ -325,50 +325,6 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c) {
   return j;
 }
 
-OverlapColumns overlap_columns(const Diagnosis& d) {
-  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-  OverlapColumns o;
-  o.levels = d.overlap.points.empty() ? 0 : d.overlap.points.front().levels.size();
-  for (const OverlapPoint& p : d.overlap.points) {
-    o.s.push_back(p.s);
-    for (std::size_t q = 0; q < o.levels; ++q) {
-      const bool has = q < p.levels.size();
-      o.ground_weight.push_back(has ? p.levels[q].ground_weight : kNaN);
-      o.energy.push_back(has ? p.levels[q].energy_ghz : kNaN);
-      o.dominant_excited_weight.push_back(has ? p.levels[q].dominant_excited_weight : kNaN);
-    }
-  }
-  for (const PerturbativeCrossing& l : d.overlap.perturbative_crossings) o.perturbative_crossing_s.push_back(l.s_switch);
-  return o;
-}
-
-CrossingColumns crossing_columns(const Diagnosis& d) {
-  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-  auto finite_or_nan = [](double v) { return std::isfinite(v) ? v : kNaN; };
-  CrossingColumns c;
-  for (std::size_t i = 0; i < d.crossings.size(); ++i) {
-    const AvoidedCrossing& x = d.crossings[i];
-    c.crossing.push_back(static_cast<long long>(i));
-    c.s_star.push_back(x.minimum.s);
-    c.delta_min.push_back(x.minimum.gap_ghz);
-    c.diabatic_slope.push_back(x.diabatic_slope_ghz);
-    c.perturbative_crossing_index.push_back(x.perturbative_crossing ? static_cast<long long>(*x.perturbative_crossing) : -1);
-    for (const CrossingPassage& p : x.passages) {
-      c.population_before.push_back(p.population_before);
-      c.population_after.push_back(p.population_after);
-      c.transferred.push_back(p.transferred);
-      c.landau_zener_loss.push_back(finite_or_nan(p.landau_zener_loss));
-    }
-    c.end_gap.push_back(x.at_end_point);
-    c.broad.push_back(x.broad);
-    c.check_run.push_back(x.check.has_value());
-    c.landau_zener_duration.push_back(finite_or_nan(x.landau_zener_duration_ns));
-    c.check_ground_probability.push_back(x.check ? x.check_ground_probability : kNaN);
-    c.check_transferred.push_back(x.check ? x.check->transferred : 0.0);
-  }
-  return c;
-}
-
 void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const std::string& path) {
   Hdf5Output h5(path, {"gapwise-diagnosis", 1});
   write_provenance(h5, c.command_line, {c.problem_file, c.schedule_file});
@@ -482,6 +438,51 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
                     not_applicable("1", "no run at this duration for this sample"), {g + "/sample", root + "/durations"});
   }
   h5.commit();
+}
+
+
+OverlapColumns overlap_columns(const Diagnosis& d) {
+  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+  OverlapColumns o;
+  o.levels = d.overlap.points.empty() ? 0 : d.overlap.points.front().levels.size();
+  for (const OverlapPoint& p : d.overlap.points) {
+    o.s.push_back(p.s);
+    for (std::size_t q = 0; q < o.levels; ++q) {
+      const bool has = q < p.levels.size();
+      o.ground_weight.push_back(has ? p.levels[q].ground_weight : kNaN);
+      o.energy.push_back(has ? p.levels[q].energy_ghz : kNaN);
+      o.dominant_excited_weight.push_back(has ? p.levels[q].dominant_excited_weight : kNaN);
+    }
+  }
+  for (const PerturbativeCrossing& l : d.overlap.perturbative_crossings) o.perturbative_crossing_s.push_back(l.s_switch);
+  return o;
+}
+
+CrossingColumns crossing_columns(const Diagnosis& d) {
+  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+  auto finite_or_nan = [](double v) { return std::isfinite(v) ? v : kNaN; };
+  CrossingColumns c;
+  for (std::size_t i = 0; i < d.crossings.size(); ++i) {
+    const AvoidedCrossing& x = d.crossings[i];
+    c.crossing.push_back(static_cast<long long>(i));
+    c.s_star.push_back(x.minimum.s);
+    c.delta_min.push_back(x.minimum.gap_ghz);
+    c.diabatic_slope.push_back(x.diabatic_slope_ghz);
+    c.perturbative_crossing_index.push_back(x.perturbative_crossing ? static_cast<long long>(*x.perturbative_crossing) : -1);
+    for (const CrossingPassage& p : x.passages) {
+      c.population_before.push_back(p.population_before);
+      c.population_after.push_back(p.population_after);
+      c.transferred.push_back(p.transferred);
+      c.landau_zener_loss.push_back(finite_or_nan(p.landau_zener_loss));
+    }
+    c.end_gap.push_back(x.at_end_point);
+    c.broad.push_back(x.broad);
+    c.check_run.push_back(x.check.has_value());
+    c.landau_zener_duration.push_back(finite_or_nan(x.landau_zener_duration_ns));
+    c.check_ground_probability.push_back(x.check ? x.check_ground_probability : kNaN);
+    c.check_transferred.push_back(x.check ? x.check->transferred : 0.0);
+  }
+  return c;
 }
 
 }  // namespace gapwise
