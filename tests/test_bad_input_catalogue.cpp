@@ -171,6 +171,12 @@ std::vector<Row> rows() {
       {"G10", "", "", "durations TRIANGLE LINEAR -d 1,,2"},
       {"G11", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 5.0\n[path]\ntime = \"fraction\"\n"
                         "duration_ns = 5e-324\npoints = [[0.0, 0.0], [0.3, 0.5], [1.0, 1.0]]\n", "anneal TRIANGLE DIR/s.toml"},
+      // --- h19-polish: limits shared by the command line and the Python module ---
+      {"H19L1", "", "", "gap TRIANGLE LINEAR --levels 1"},
+      {"H19L2", "", "", "diagnose TRIANGLE LINEAR -d 5 --levels 65"},
+      {"H19L3", "", "", "diagnose TRIANGLE LINEAR -d 5 --window 0"},
+      {"H19L4", "", "", "diagnose TRIANGLE LINEAR -d 5 --samples 2000000"},
+      {"H19L5", "", "", "durations TRIANGLE LINEAR --probes 65"},
   };
 }
 

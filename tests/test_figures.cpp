@@ -227,6 +227,11 @@ TEST_CASE("figure: durations figures keep text as text, end the p axis at 1, add
 
   const std::string tts = decoded_svg(figs / "dur-tts.svg");
   CHECK(tts.find("random-guess value") != std::string::npos);  // the caveat the terminal prints
+  // Caveats are wrapped onto more lines, never cut short: the end of this one
+  // (past the 95 characters of a line) is there, and no line ends in "...".
+  CHECK(tts.find("only a local one") != std::string::npos);
+  CHECK(tts.find(" ...") == std::string::npos);
+  CHECK(p_svg.find(" ...") == std::string::npos);
 
   const std::string pdf = slurp(figs / "dur-tts.pdf");
   REQUIRE(pdf.size() > 1000);

@@ -10,6 +10,7 @@
 #include "hamiltonian/spin_flip_sector.hpp"
 #include "io/problem_file.hpp"
 #include "io/schedule_file.hpp"
+#include "io/value_limits.hpp"
 #include "cli/value_lists.hpp"
 
 namespace gapwise {
@@ -61,8 +62,8 @@ CLI::Validator readable_input_file();
 void refuse_empty_output_paths(CLI::App& app);
 /// Range checks shared by every subcommand (option_checks.cpp); InputError naming `option`.
 /// Targets lie in (0, 1); tolerances in [1e-12, 1e-2]; threads in 0 (one per core) to kMaxThreads;
-/// sigmas are finite and >= 0; counts in [lo, hi]; --levels at most the states of `space`.
-inline constexpr long long kMaxThreads = 1024;
+/// sigmas are finite and >= 0; counts within their limit; --levels at most the states of `space`.
+/// The limits and texts are io/value_limits.hpp's, shared with the Python module.
 
 /// The --propagator option's help: "NAME=default" in the option column and the
 /// names at the end of the description, where the help wraps them to the
@@ -78,7 +79,7 @@ void check_target_probability(double p, const std::string& option = "--target");
 void check_tolerance(double tolerance, const std::string& option = "--tolerance");
 void check_threads(long long threads, const std::string& option = "--threads");
 void check_sigma(double sigma, const std::string& option);
-void check_count(long long value, long long lo, long long hi, const std::string& option, const std::string& what);
+void check_count(long long value, const CountLimit& limit, const std::string& option);
 void check_levels_fit(int levels, int qubits, SpinFlipSector sector, const std::string& option = "--levels");
 /// A --levels the user typed must fit (check_levels_fit); a default that does not fit
 /// is lowered to the state count with a note on stderr. Returns the levels to use.

@@ -47,8 +47,8 @@ void run_anneal(const AnnealOptions& o) {
   const Schedule sch = read_schedule_file(o.schedule);
   const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
   check_tolerance(o.tolerance);
-  check_count(o.trace_points, 0, 10000, "--trace-points", "observations per piece");
-  check_count(o.top, 0, 1000, "--top", "outcome count");
+  check_count(o.trace_points, kTracePoints, "--trace-points");
+  check_count(o.top, kTopOutcomes, "--top");
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
   check_memory(p.qubits, 10, 0, p_file.qubits_place);

@@ -51,14 +51,11 @@ void run_diagnose(const DiagnoseOptions& o) {
   check_sigma(o.sigma_j, "--sigma-j");
   check_threads(o.threads);
   if (o.control_tolerance) check_tolerance(*o.control_tolerance, "--control-tolerance");
-  if (o.samples < 0)
-    throw InputError({"--samples", 0, 0, "--samples"}, "the sample count is negative", "use 0 to skip the Monte Carlo");
-  if (!(o.target_loss > 0 && o.target_loss < 1))
-    throw InputError({"--target-loss", 0, 0, "--target-loss"}, fmt::format("target loss {} is outside (0, 1)", o.target_loss),
-                     "e.g. --target-loss 0.01");
-  if (!(o.check_max_ns >= 0))
-    throw InputError({"--check-max-ns", 0, 0, "--check-max-ns"}, fmt::format("{} ns is negative", o.check_max_ns),
-                     "give a duration in ns, or 0 to skip the simulated checks");
+  check_count(o.levels, kSpectrumLevels, "--levels");
+  check_count(o.samples, kControlSamples, "--samples");
+  check_target_loss_value(o.target_loss, {"--target-loss", 0, 0, "--target-loss"});
+  check_max_check_ns_value(o.check_max_ns, {"--check-max-ns", 0, 0, "--check-max-ns"});
+  check_window_value(o.window, {"--window", 0, 0, "--window"});
   if (!o.out.empty()) check_output_path(o.out, "--out");
   check_memory(p.qubits, 12, 0, p_file.qubits_place);
 

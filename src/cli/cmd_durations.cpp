@@ -72,14 +72,9 @@ void run_durations(const DurationsOptions& o) {
   check_tolerance(o.tolerance);
   check_target_probability(o.target);
   check_threads(o.threads);
-  if (!(o.resolution > 0.0 && o.resolution < 1.0))
-    throw InputError({"--resolution", 0, 0, "--resolution"}, fmt::format("resolution {} is not inside (0, 1)", o.resolution),
-                     "give the relative width at which bisection stops, e.g. 0.005");
-  if (!(o.agreement > 1.0) || !std::isfinite(o.agreement))
-    throw InputError({"--agreement", 0, 0, "--agreement"}, fmt::format("agreement factor {} is not above 1", o.agreement),
-                     "give the factor within which 1 - p of a prediction and of the simulation must agree, e.g. 2");
-  if (o.probes < 1 || o.probes > 64)
-    throw InputError({"--probes", 0, 0, "--probes"}, fmt::format("{} probes per round", o.probes), "use 1 to 64");
+  check_resolution_value(o.resolution, {"--resolution", 0, 0, "--resolution"});
+  check_agreement_value(o.agreement, {"--agreement", 0, 0, "--agreement"});
+  check_count(o.probes, kBisectionProbes, "--probes");
   std::vector<double> grid;
   if (!o.durations.empty()) grid = normalised_grid(parse_value_list(o.durations, "--durations", ListOf::Durations));
   if (!o.out.empty()) check_output_path(o.out, "--out");

@@ -74,10 +74,7 @@ std::vector<double> check_options(const EmbedCostOptions& o) {
   check_tolerance(o.tolerance);
   check_target_probability(o.target);
   check_threads(o.threads);
-  if (!(o.resolution > 0.0 && o.resolution < 1.0))
-    throw InputError({"--resolution", 0, 0, "--resolution"},
-                     fmt::format("resolution {} is not inside (0, 1)", o.resolution),
-                     "give the relative width at which bisection stops, e.g. 0.005");
+  check_resolution_value(o.resolution, {"--resolution", 0, 0, "--resolution"});
   const std::vector<double> strengths =
       o.strengths.empty() ? std::vector<double>{} : parse_value_list(o.strengths, "--strengths");
   for (double s : strengths)

@@ -129,9 +129,7 @@ void run_gap(const GapOptions& o) {
   if (o.vector_levels < 0 || o.vector_levels > 64)
     throw InputError({"--vector-levels", 0, 0, "--vector-levels"}, fmt::format("{} levels", o.vector_levels),
                      "give 1 to 64 (0: the levels followed by the search)");
-  if (o.levels < 2 || o.levels > 64)
-    throw InputError({"--levels", 0, 0, "--levels"}, fmt::format("{} levels", o.levels),
-                     "follow between 2 and 64 levels (default 4)");
+  check_count(o.levels, kSpectrumLevels, "--levels");
 
   GapSearchOptions opt;
   opt.levels = o.levels;

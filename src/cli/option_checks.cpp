@@ -1,5 +1,6 @@
 // Range checks of command-line options, one rule per kind of option for every
-// subcommand (targets, tolerances, thread counts, sigmas, counts, levels), and
+// subcommand (targets, tolerances, thread counts, sigmas, counts, levels; the
+// limits and texts shared with the Python module live in io/value_limits), and
 // the --allow-long flag that lifts the work limit (studies/work_estimate.hpp).
 // Each check throws InputError naming the option, so bad input is exit 2.
 #include <cmath>
@@ -9,40 +10,23 @@
 
 #include "cli/cli_common.hpp"
 #include "io/input_error.hpp"
+#include "io/value_limits.hpp"
 
 namespace gapwise::cli {
 namespace {
 SourcePlace option_place(const std::string& option) { return {option, 0, 0, option}; }
 }  // namespace
 
-void check_target_probability(double p, const std::string& option) {
-  if (!(p > 0.0 && p < 1.0))
-    throw InputError(option_place(option), fmt::format("target {} is not inside (0, 1)", p),
-                     "give a success probability such as 0.99");
-}
+void check_target_probability(double p, const std::string& option) { check_target_value(p, option_place(option)); }
 
-void check_tolerance(double tolerance, const std::string& option) {
-  if (!(tolerance >= 1e-12 && tolerance <= 1e-2))
-    throw InputError(option_place(option), fmt::format("tolerance {} is out of range", tolerance),
-                     "use a value between 1e-12 and 1e-2 (default 1e-6)");
-}
+void check_tolerance(double tolerance, const std::string& option) { check_tolerance_value(tolerance, option_place(option)); }
 
-void check_threads(long long threads, const std::string& option) {
-  if (threads < 0 || threads > kMaxThreads)
-    throw InputError(option_place(option), fmt::format("{} threads", threads),
-                     fmt::format("give 1 to {} threads, or 0 for one per core (OMP_NUM_THREADS)", kMaxThreads));
-}
+void check_threads(long long threads, const std::string& option) { check_threads_value(threads, option_place(option)); }
 
-void check_sigma(double sigma, const std::string& option) {
-  if (!(sigma >= 0.0) || !std::isfinite(sigma))
-    throw InputError(option_place(option), fmt::format("control-error sigma {} is not a finite number >= 0", sigma),
-                     "give a standard deviation >= 0 (0 switches that error off), e.g. 0.03");
-}
+void check_sigma(double sigma, const std::string& option) { check_sigma_value(sigma, option_place(option)); }
 
-void check_count(long long value, long long lo, long long hi, const std::string& option, const std::string& what) {
-  if (value < lo || value > hi)
-    throw InputError(option_place(option), fmt::format("{} {} is outside {} to {}", what, value, lo, hi),
-                     fmt::format("give a whole number from {} to {}", lo, hi));
+void check_count(long long value, const CountLimit& limit, const std::string& option) {
+  check_count_value(value, limit, option_place(option));
 }
 
 void check_levels_fit(int levels, int qubits, SpinFlipSector sector, const std::string& option) {

@@ -349,79 +349,42 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
     h5.write(root + "/spectrum/gap", gap, "GHz");
   }
   {
-    const std::size_t k = d.overlap.points.empty() ? 0 : d.overlap.points.front().levels.size();
-    std::vector<double> s, w, e, dom;
-    for (const OverlapPoint& p : d.overlap.points) {
-      s.push_back(p.s);
-      for (std::size_t q = 0; q < k; ++q) {
-        const bool has = q < p.levels.size();
-        constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-        w.push_back(has ? p.levels[q].ground_weight : kNaN);
-        e.push_back(has ? p.levels[q].energy_ghz : kNaN);
-        dom.push_back(has ? p.levels[q].dominant_excited_weight : kNaN);
-      }
-    }
-    h5.write(root + "/overlap/s", s, "1");
+    const OverlapColumns o = overlap_columns(d);
+    const std::size_t k = o.levels;
+    h5.write(root + "/overlap/s", o.s, "1");
     const std::vector<std::string> axes{root + "/overlap/s", h5.level_axis(root + "/overlap", k)};
     const std::string untracked = "level not tracked at this s";
-    h5.write_matrix(root + "/overlap/ground_weight", w, s.size(), k, not_applicable("1", untracked), axes);
-    h5.write_matrix(root + "/overlap/energy", e, s.size(), k, not_applicable("GHz", untracked), axes);
-    h5.write_matrix(root + "/overlap/dominant_excited_weight", dom, s.size(), k, not_applicable("1", untracked), axes);
-    std::vector<double> sw;
-    for (const PerturbativeCrossing& l : d.overlap.perturbative_crossings) sw.push_back(l.s_switch);
-    h5.write(root + "/overlap/perturbative_crossing_s", sw, "1");
+    h5.write_matrix(root + "/overlap/ground_weight", o.ground_weight, o.s.size(), k, not_applicable("1", untracked), axes);
+    h5.write_matrix(root + "/overlap/energy", o.energy, o.s.size(), k, not_applicable("GHz", untracked), axes);
+    h5.write_matrix(root + "/overlap/dominant_excited_weight", o.dominant_excited_weight, o.s.size(), k,
+                    not_applicable("1", untracked), axes);
+    h5.write(root + "/overlap/perturbative_crossing_s", o.perturbative_crossing_s, "1");
   }
   {
     const std::size_t m = d.crossings.size(), r = d.runs.size();
-    std::vector<double> s, delta, slope, before, after, transferred, lz;
-    std::vector<long long> late;
-    for (const AvoidedCrossing& x : d.crossings) {
-      s.push_back(x.minimum.s);
-      delta.push_back(x.minimum.gap_ghz);
-      slope.push_back(x.diabatic_slope_ghz);
-      late.push_back(x.perturbative_crossing ? static_cast<long long>(*x.perturbative_crossing) : -1);
-      for (const CrossingPassage& p : x.passages) {
-        before.push_back(p.population_before);
-        after.push_back(p.population_after);
-        transferred.push_back(p.transferred);
-        lz.push_back(std::isfinite(p.landau_zener_loss) ? p.landau_zener_loss : std::numeric_limits<double>::quiet_NaN());
-      }
-    }
-    h5.write(root + "/crossings/s_star", s, "1");
-    h5.write(root + "/crossings/delta_min", delta, "GHz");
-    h5.write(root + "/crossings/diabatic_slope", slope, "GHz");
-    h5.write(root + "/crossings/perturbative_crossing_index", late,
+    const CrossingColumns x = crossing_columns(d);
+    h5.write(root + "/crossings/s_star", x.s_star, "1");
+    h5.write(root + "/crossings/delta_min", x.delta_min, "GHz");
+    h5.write(root + "/crossings/diabatic_slope", x.diabatic_slope, "GHz");
+    h5.write(root + "/crossings/perturbative_crossing_index", x.perturbative_crossing_index,
              DataMeaning("1").described("index into overlap/perturbative_crossing_s, -1 for none"));
-    std::vector<long long> crossing(m);
-    for (std::size_t i = 0; i < m; ++i) crossing[i] = static_cast<long long>(i);
-    h5.write(root + "/crossings/crossing", crossing, DataMeaning("1").described("crossing index (rows of the crossing matrices)"));
+    h5.write(root + "/crossings/crossing", x.crossing, DataMeaning("1").described("crossing index (rows of the crossing matrices)"));
     const std::vector<std::string> axes{root + "/crossings/crossing", root + "/durations"};
-    h5.write_matrix(root + "/crossings/population_before", before, m, r, "1", axes);
-    h5.write_matrix(root + "/crossings/population_after", after, m, r, "1", axes);
-    h5.write_matrix(root + "/crossings/transferred", transferred, m, r, "1", axes);
-    h5.write_matrix(root + "/crossings/landau_zener_loss", lz, m, r, not_applicable("1", "end gap (no Landau-Zener number)"), axes);
-    std::vector<long long> end;
-    for (const AvoidedCrossing& x : d.crossings) end.push_back(x.at_end_point);
-    h5.write(root + "/crossings/end_gap", end,
+    h5.write_matrix(root + "/crossings/population_before", x.population_before, m, r, "1", axes);
+    h5.write_matrix(root + "/crossings/population_after", x.population_after, m, r, "1", axes);
+    h5.write_matrix(root + "/crossings/transferred", x.transferred, m, r, "1", axes);
+    h5.write_matrix(root + "/crossings/landau_zener_loss", x.landau_zener_loss, m, r,
+                    not_applicable("1", "end gap (no Landau-Zener number)"), axes);
+    h5.write(root + "/crossings/end_gap", x.end_gap,
              DataMeaning("1").flagged({0, 1}, "interior end_gap").described("1: smallest gap at an end of the path"));
-    std::vector<long long> broad, check_run;
-    std::vector<double> lz_t, check_p, check_loss;
-    for (const AvoidedCrossing& x : d.crossings) {
-      broad.push_back(x.broad);
-      check_run.push_back(x.check.has_value());
-      lz_t.push_back(std::isfinite(x.landau_zener_duration_ns) ? x.landau_zener_duration_ns
-                                                               : std::numeric_limits<double>::quiet_NaN());
-      check_p.push_back(x.check ? x.check_ground_probability : std::numeric_limits<double>::quiet_NaN());
-      check_loss.push_back(x.check ? x.check->transferred : 0.0);
-    }
-    h5.write(root + "/crossings/broad", broad,
+    h5.write(root + "/crossings/broad", x.broad,
              DataMeaning("1").flagged({0, 1}, "isolated broad").described("1: window narrowed, not an isolated crossing"));
-    h5.write(root + "/crossings/landau_zener_duration", lz_t, not_applicable("ns", "end gap (no Landau-Zener number)"));
-    h5.write(root + "/crossings/check_run", check_run,
+    h5.write(root + "/crossings/landau_zener_duration", x.landau_zener_duration, not_applicable("ns", "end gap (no Landau-Zener number)"));
+    h5.write(root + "/crossings/check_run", x.check_run,
              DataMeaning("1").flagged({0, 1}, "not_run run").described("1: an anneal was simulated at landau_zener_duration"));
-    h5.write(root + "/crossings/check_ground_probability", check_p,
+    h5.write(root + "/crossings/check_ground_probability", x.check_ground_probability,
              not_applicable("1", "no anneal was simulated (check_run 0)").described("p simulated at landau_zener_duration"));
-    h5.write(root + "/crossings/check_transferred", check_loss,
+    h5.write(root + "/crossings/check_transferred", x.check_transferred,
              DataMeaning("1").described("loss at this crossing in that run; 0 when check_run is 0"));
   }
   for (std::size_t r = 0; r < d.runs.size(); ++r) {
@@ -477,6 +440,51 @@ void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const s
   }
   if (extra) extra(h5);
   h5.commit();
+}
+
+
+OverlapColumns overlap_columns(const Diagnosis& d) {
+  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+  OverlapColumns o;
+  o.levels = d.overlap.points.empty() ? 0 : d.overlap.points.front().levels.size();
+  for (const OverlapPoint& p : d.overlap.points) {
+    o.s.push_back(p.s);
+    for (std::size_t q = 0; q < o.levels; ++q) {
+      const bool has = q < p.levels.size();
+      o.ground_weight.push_back(has ? p.levels[q].ground_weight : kNaN);
+      o.energy.push_back(has ? p.levels[q].energy_ghz : kNaN);
+      o.dominant_excited_weight.push_back(has ? p.levels[q].dominant_excited_weight : kNaN);
+    }
+  }
+  for (const PerturbativeCrossing& l : d.overlap.perturbative_crossings) o.perturbative_crossing_s.push_back(l.s_switch);
+  return o;
+}
+
+CrossingColumns crossing_columns(const Diagnosis& d) {
+  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+  auto finite_or_nan = [](double v) { return std::isfinite(v) ? v : kNaN; };
+  CrossingColumns c;
+  for (std::size_t i = 0; i < d.crossings.size(); ++i) {
+    const AvoidedCrossing& x = d.crossings[i];
+    c.crossing.push_back(static_cast<long long>(i));
+    c.s_star.push_back(x.minimum.s);
+    c.delta_min.push_back(x.minimum.gap_ghz);
+    c.diabatic_slope.push_back(x.diabatic_slope_ghz);
+    c.perturbative_crossing_index.push_back(x.perturbative_crossing ? static_cast<long long>(*x.perturbative_crossing) : -1);
+    for (const CrossingPassage& p : x.passages) {
+      c.population_before.push_back(p.population_before);
+      c.population_after.push_back(p.population_after);
+      c.transferred.push_back(p.transferred);
+      c.landau_zener_loss.push_back(finite_or_nan(p.landau_zener_loss));
+    }
+    c.end_gap.push_back(x.at_end_point);
+    c.broad.push_back(x.broad);
+    c.check_run.push_back(x.check.has_value());
+    c.landau_zener_duration.push_back(finite_or_nan(x.landau_zener_duration_ns));
+    c.check_ground_probability.push_back(x.check ? x.check_ground_probability : kNaN);
+    c.check_transferred.push_back(x.check ? x.check->transferred : 0.0);
+  }
+  return c;
 }
 
 }  // namespace gapwise

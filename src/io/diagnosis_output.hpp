@@ -9,6 +9,7 @@
 //   write_diagnosis_hdf5(d, context, "why.h5");
 #include <functional>
 #include <string>
+#include <vector>
 
 #include "io/hdf5_output.hpp"
 
@@ -30,5 +31,26 @@ toml::table diagnosis_json(const Diagnosis& d, const DiagnosisContext& c);
 /// given, adds groups of its own (e.g. diagnose --bath's /thermal) before commit.
 void write_diagnosis_hdf5(const Diagnosis& d, const DiagnosisContext& c, const std::string& path,
                           const std::function<void(Hdf5Output&)>& extra = {});
+
+/// The overlap track as the columns of /diagnosis/overlap (the file and the
+/// Python module read them from here): matrices row-major, points x `levels`,
+/// NaN where a level is not tracked at that s.
+struct OverlapColumns {
+  std::size_t levels = 0;
+  std::vector<double> s, ground_weight, energy, dominant_excited_weight, perturbative_crossing_s;
+};
+OverlapColumns overlap_columns(const Diagnosis& d);
+
+/// The crossings as the columns of /diagnosis/crossings: one entry per
+/// crossing, matrices row-major crossings x durations; NaN where a number does
+/// not apply (end gaps have no Landau-Zener numbers; crossings not checked by a
+/// simulation have no check probability); -1: no perturbative crossing.
+struct CrossingColumns {
+  std::vector<long long> crossing, perturbative_crossing_index, end_gap, broad, check_run;
+  std::vector<double> s_star, delta_min, diabatic_slope, landau_zener_duration, check_ground_probability,
+      check_transferred;
+  std::vector<double> population_before, population_after, transferred, landau_zener_loss;
+};
+CrossingColumns crossing_columns(const Diagnosis& d);
 
 }  // namespace gapwise

@@ -12,7 +12,6 @@
 #include "io/hdf5_output.hpp"
 
 namespace gapwise {
-namespace {
 
 const char* needed_status_name(NeededStatus s) {
   switch (s) {
@@ -22,6 +21,8 @@ const char* needed_status_name(NeededStatus s) {
   }
   return "?";
 }
+
+namespace {
 
 void write_bracket(Hdf5Output& h5, const std::string& g, const CrossingBracket& b) {
   h5.attribute(g, "lower_ns", b.lower_ns);

@@ -32,6 +32,10 @@ struct DurationStudyInputs {
   double agreement_floor = 1e-5;                      ///< accuracy of the simulated 1 - p
 };
 
+/// The needed duration's status as the result file (and the Python module) spells it:
+/// "reached", "reached at the shortest duration", "not reached".
+const char* needed_status_name(NeededStatus status);
+
 void write_duration_study_hdf5(const std::string& path, const DurationStudyInputs& in,
                                const std::map<double, DurationPoint>& known, const DurationStudy* finished);
 

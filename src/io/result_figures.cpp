@@ -65,14 +65,26 @@ std::string clip_note(std::size_t clipped) {
                  : std::string();
 }
 
-// A caveat as one note line, shortened to what fits under the title.
-std::string caveat_line(std::string text) {
+// A caveat as note lines: "caveat: " and the text, wrapped at spaces onto as
+// many lines as it needs to fit under the title (never cut short).
+std::string caveat_line(const std::string& text) {
   constexpr std::size_t kWidth = 95;
-  if (text.size() > kWidth) {
-    std::size_t cut = text.rfind(' ', kWidth - 4);
-    text = text.substr(0, cut == std::string::npos ? kWidth - 4 : cut) + " ...";
+  std::string out, line = "caveat:";
+  std::size_t from = 0;
+  while (from < text.size()) {
+    std::size_t to = text.find(' ', from);
+    if (to == std::string::npos) to = text.size();
+    const std::string word = text.substr(from, to - from);
+    from = to + 1;
+    if (word.empty()) continue;
+    if (line.size() + 1 + word.size() > kWidth && !line.empty()) {
+      out += (out.empty() ? "" : "\n") + line;
+      line = word;
+    } else {
+      line += (line.empty() ? "" : " ") + word;
+    }
   }
-  return "caveat: " + text;
+  return out + (out.empty() ? "" : "\n") + line;
 }
 
 void add_line(std::string& note, const std::string& line) {
@@ -205,7 +217,7 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
                                 "so the optimum is only a local one",
                                 in.attribute_finite(O, "random_guess_probability"))));
     else if (in.has_attribute(O, "at_range_edge") && in.attribute_finite(O, "at_range_edge") != 0)
-      add_line(tts_caveats, "caveat: the optimum sits at an end of the durations simulated; the true optimum may lie beyond it");
+      add_line(tts_caveats, caveat_line("the optimum sits at an end of the durations simulated; the true optimum may lie beyond it"));
   }
   emit("probability", [&](const std::string& path) { render_figure(fp, path); });
 
@@ -440,14 +452,17 @@ void chain_strength_scan(const Hdf5Input& in, const Emit& emit) {
 
   LinePlot fp;
   fp.title = fmt::format("Chain strength and success at t#df#u = {:.4g} ns", t_f);
-  fp.note = bound_text;
+  // Short legend labels (a legend this size finds a free corner); what they
+  // mean goes into the note.
+  fp.note = "p#dlogical#u: logical ground state by majority vote per chain; p#dphysical#u: physical ground states\n"
+            "broken-chain share: the expected share of chains that end broken\n" + bound_text;
   fp.x_label = "chain coupling |J#dchain#u| (problem units)";
   fp.y_label = "probability / fraction";
   fp.y_range = std::pair{0.0, 1.05};
-  fp.series.push_back({"p#dlogical#u (majority vote per chain)", c, in.read_finite(S + "/p_logical"), SeriesStyle::LinePoints, 0});
-  fp.series.push_back({"p#dphysical#u (physical ground states)", c, in.read_finite(S + "/p_physical"), SeriesStyle::Dashed, 1});
-  fp.series.push_back({"expected broken-chain share", c, in.read_finite(S + "/broken_chain_share"), SeriesStyle::LinePoints, 2});
-  fp.series.push_back({fmt::format("logical problem, unembedded: p = {:.4f}",
+  fp.series.push_back({"p#dlogical#u", c, in.read_finite(S + "/p_logical"), SeriesStyle::LinePoints, 0});
+  fp.series.push_back({"p#dphysical#u", c, in.read_finite(S + "/p_physical"), SeriesStyle::Dashed, 1});
+  fp.series.push_back({"broken-chain share", c, in.read_finite(S + "/broken_chain_share"), SeriesStyle::LinePoints, 2});
+  fp.series.push_back({fmt::format("unembedded: p = {:.4f}",
                                    in.attribute_finite(E + "/logical", "ground_probability")),
                        c_ends, constant(in.attribute_finite(E + "/logical", "ground_probability")), SeriesStyle::Dashed, 6});
   if (bound >= c_span.first && bound <= c_span.second) fp.vertical_lines.push_back(bound);

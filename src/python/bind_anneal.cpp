@@ -10,6 +10,7 @@
 #include "dynamics/accuracy_guard.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -18,12 +19,13 @@ namespace gapwise::python {
 namespace {
 
 py::dict anneal(const PyProblem& problem, const PySchedule& schedule, std::optional<double> duration_ns,
-                double tolerance, const std::string& propagator, int trace_points, int top, bool p_only, bool check) {
+                double tolerance, const std::string& propagator, int trace_points, int top, bool p_only, bool check,
+                py::object progress) {
   check_tolerance_arg("anneal", tolerance);
   check_propagator_arg("anneal", propagator);
-  check_count_arg("anneal", "trace_points", trace_points, 0, 10000);
-  check_count_arg("anneal", "top", top, 0, 1000);
-  if (duration_ns) check_duration_ns(*duration_ns, {"gapwise.anneal", 0, 0, "duration_ns"});
+  check_count_arg("anneal", "trace_points", trace_points, kTracePoints);
+  check_count_arg("anneal", "top", top, kTopOutcomes);
+  if (duration_ns) check_duration_ns(*duration_ns, keyword_place("anneal", "duration_ns"));
   const IsingProblem& p = problem.file.ising;
   const Schedule& sch = schedule.schedule;
 
@@ -35,8 +37,8 @@ py::dict anneal(const PyProblem& problem, const PySchedule& schedule, std::optio
     std::vector<AccuracyIssue> accuracy;
   };
   Out out;
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("anneal", std::move(progress));
+  watch.run([&] {
     check_memory(p.qubits, 10, 0, problem.file.qubits_place);
     const TransverseIsingHamiltonian H(p);
     out.gm = find_ground_manifold(p, H.diagonal());
@@ -45,6 +47,7 @@ py::dict anneal(const PyProblem& problem, const PySchedule& schedule, std::optio
     SimulationOptions sim;
     sim.propagator = propagator;
     sim.propagation.tolerance = tolerance;
+    sim.propagation.progress = watch.propagation_hook("anneal");
     if (p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();
     sim.samples_per_piece = trace_points;
     sim.top_outcomes = top;
@@ -56,11 +59,12 @@ py::dict anneal(const PyProblem& problem, const PySchedule& schedule, std::optio
       SimulationOptions tight = sim;
       tight.propagation.tolerance = tolerance / 10.0;
       tight.top_outcomes = 0;
+      tight.propagation.progress = watch.propagation_hook("convergence check at tolerance/10");
       out.delta_p = std::abs(simulate_anneal(H, out.gm, sch.scales, path, psi0, tight).ground_probability -
                              out.r.ground_probability);
     }
     out.accuracy = check_accuracy(out.r, tolerance, out.delta_p);
-  }
+  });
   for (const auto& issue : out.accuracy)
     if (issue.check == "non_finite") throw std::runtime_error("the simulation produced a non-finite result: " + issue.message);
   const AnnealResult& r = out.r;
@@ -116,7 +120,8 @@ py::dict anneal(const PyProblem& problem, const PySchedule& schedule, std::optio
 
 void bind_anneal(py::module_& m) {
   m.def("_anneal", &anneal, py::arg("problem"), py::arg("schedule"), py::arg("duration_ns"), py::arg("tolerance"),
-        py::arg("propagator"), py::arg("trace_points"), py::arg("top"), py::arg("p_only"), py::arg("check"));
+        py::arg("propagator"), py::arg("trace_points"), py::arg("top"), py::arg("p_only"), py::arg("check"),
+        py::arg("progress"));
 }
 
 }  // namespace gapwise::python

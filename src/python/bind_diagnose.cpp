@@ -1,7 +1,8 @@
 // gapwise.diagnose: why an anneal loses the ground state, as `gapwise diagnose`
 // computes it (same options and defaults), returned under the names of the
-// HDF5 result (/diagnosis; see io/diagnosis_output.cpp, which this mirrors:
-// runs as a list indexed like /diagnosis/runs/<r>, NaN where the file has NaN).
+// HDF5 result (/diagnosis; the overlap and crossing columns come from
+// io/diagnosis_output, as the file's do; runs as a list indexed like
+// /diagnosis/runs/<r>, NaN where the file has NaN).
 #include <cmath>
 #include <limits>
 #include <optional>
@@ -12,7 +13,9 @@
 
 #include "hamiltonian/memory_budget.hpp"
 #include "hamiltonian/spin_flip_sector.hpp"
+#include "io/diagnosis_output.hpp"
 #include "io/input_error.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -27,27 +30,21 @@ py::dict diagnose_py(const PyProblem& problem, const PySchedule& schedule, const
                      double tolerance, const std::string& propagator, int levels, double window, double target_loss,
                      double check_max_ns, long long samples, std::optional<double> sigma_h, std::optional<double> sigma_j,
                      bool relative, unsigned long long seed, bool control_gaps, std::optional<double> control_tolerance,
-                     int threads) {
+                     int threads, py::object progress) {
   const std::string fn = "diagnose";
-  auto at = [&](const char* key) { return SourcePlace{"gapwise." + fn, 0, 0, key}; };
+  auto at = [&](const char* key) { return keyword_place(fn, key); };
   check_durations_arg(fn, durations_ns);
   check_tolerance_arg(fn, tolerance);
   check_propagator_arg(fn, propagator);
-  check_count_arg(fn, "levels", levels, 2, 64);
-  check_count_arg(fn, "threads", threads, 0, 4096);
-  check_count_arg(fn, "samples", samples, 0, 1000000);
-  for (const auto& [key, sigma] : {std::pair{"sigma_h", sigma_h}, std::pair{"sigma_j", sigma_j}})
-    if (sigma && (!(*sigma >= 0.0) || !std::isfinite(*sigma)))
-      throw InputError(at(key), fmt::format("control-error sigma {} is not a finite number >= 0", *sigma),
-                       "give a standard deviation >= 0 (0 switches that error off), e.g. 0.03");
-  if (control_tolerance) check_tolerance_arg(fn, *control_tolerance);
-  if (!(target_loss > 0 && target_loss < 1))
-    throw InputError(at("target_loss"), fmt::format("target loss {} is outside (0, 1)", target_loss), "e.g. target_loss=0.01");
-  if (!(check_max_ns >= 0))
-    throw InputError(at("check_max_ns"), fmt::format("{} ns is negative", check_max_ns),
-                     "give a duration in ns, or 0 to skip the simulated checks");
-  if (!(window > 0) || !std::isfinite(window))
-    throw InputError(at("window"), fmt::format("window factor {} is not a positive number", window), "e.g. window=5");
+  check_count_arg(fn, "levels", levels, kSpectrumLevels);
+  check_threads_arg(fn, threads);
+  check_count_arg(fn, "samples", samples, kControlSamples);
+  if (sigma_h) check_sigma_value(*sigma_h, at("sigma_h"));
+  if (sigma_j) check_sigma_value(*sigma_j, at("sigma_j"));
+  if (control_tolerance) check_tolerance_arg(fn, *control_tolerance, "control_tolerance");
+  check_target_loss_value(target_loss, at("target_loss"));
+  check_max_check_ns_value(check_max_ns, at("check_max_ns"));
+  check_window_value(window, at("window"));
 
   DiagnosisOptions d;
   d.durations_ns = durations_ns;
@@ -71,11 +68,16 @@ py::dict diagnose_py(const PyProblem& problem, const PySchedule& schedule, const
     d.control = c;
   }
   std::optional<Diagnosis> result;
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("diagnose", std::move(progress));
+  d.simulation.propagation.progress = watch.propagation_hook();
+  d.gap.progress = watch.gap_hook();
+  d.progress = [&](const DiagnosisProgress& p) {
+    watch.report(p.stage, static_cast<double>(p.done), static_cast<double>(p.total));
+  };
+  watch.run([&] {
     check_memory(problem.file.ising.qubits, 12, 0, problem.file.qubits_place);
     result = diagnose_anneal(problem.file.ising, schedule.schedule, d);
-  }
+  });
   const Diagnosis& r = *result;
 
   py::dict out;
@@ -95,67 +97,34 @@ py::dict diagnose_py(const PyProblem& problem, const PySchedule& schedule, const
     out["spectrum"] = spectrum;
   }
   {
-    const std::size_t k = r.overlap.points.empty() ? 0 : r.overlap.points.front().levels.size();
-    std::vector<double> s, w, e, dom;
-    for (const OverlapPoint& p : r.overlap.points) {
-      s.push_back(p.s);
-      for (std::size_t q = 0; q < k; ++q) {
-        const bool has = q < p.levels.size();
-        w.push_back(has ? p.levels[q].ground_weight : kNaN);
-        e.push_back(has ? p.levels[q].energy_ghz : kNaN);
-        dom.push_back(has ? p.levels[q].dominant_excited_weight : kNaN);
-      }
-    }
-    std::vector<double> sw;
-    for (const PerturbativeCrossing& l : r.overlap.perturbative_crossings) sw.push_back(l.s_switch);
+    const OverlapColumns o = overlap_columns(r);
     py::dict overlap;
-    overlap["s"] = to_numpy(s);
-    overlap["ground_weight"] = to_numpy(w, s.size(), k);
-    overlap["energy"] = to_numpy(e, s.size(), k);
-    overlap["dominant_excited_weight"] = to_numpy(dom, s.size(), k);
-    overlap["perturbative_crossing_s"] = to_numpy(sw);
+    overlap["s"] = to_numpy(o.s);
+    overlap["ground_weight"] = to_numpy(o.ground_weight, o.s.size(), o.levels);
+    overlap["energy"] = to_numpy(o.energy, o.s.size(), o.levels);
+    overlap["dominant_excited_weight"] = to_numpy(o.dominant_excited_weight, o.s.size(), o.levels);
+    overlap["perturbative_crossing_s"] = to_numpy(o.perturbative_crossing_s);
     out["overlap"] = overlap;
   }
   {
     const std::size_t m = r.crossings.size(), nr = r.runs.size();
-    std::vector<double> s, delta, slope, before, after, transferred, lz, lz_t, check_p, check_loss;
-    std::vector<long long> late, end, broad, check_run, crossing;
-    for (std::size_t i = 0; i < m; ++i) {
-      const AvoidedCrossing& x = r.crossings[i];
-      crossing.push_back(static_cast<long long>(i));
-      s.push_back(x.minimum.s);
-      delta.push_back(x.minimum.gap_ghz);
-      slope.push_back(x.diabatic_slope_ghz);
-      late.push_back(x.perturbative_crossing ? static_cast<long long>(*x.perturbative_crossing) : -1);
-      for (const CrossingPassage& p : x.passages) {
-        before.push_back(p.population_before);
-        after.push_back(p.population_after);
-        transferred.push_back(p.transferred);
-        lz.push_back(std::isfinite(p.landau_zener_loss) ? p.landau_zener_loss : kNaN);
-      }
-      end.push_back(x.at_end_point);
-      broad.push_back(x.broad);
-      check_run.push_back(x.check.has_value());
-      lz_t.push_back(std::isfinite(x.landau_zener_duration_ns) ? x.landau_zener_duration_ns : kNaN);
-      check_p.push_back(x.check ? x.check_ground_probability : kNaN);
-      check_loss.push_back(x.check ? x.check->transferred : 0.0);
-    }
+    const CrossingColumns x = crossing_columns(r);
     py::dict c;
-    c["crossing"] = to_numpy(crossing);
-    c["s_star"] = to_numpy(s);
-    c["delta_min"] = to_numpy(delta);
-    c["diabatic_slope"] = to_numpy(slope);
-    c["perturbative_crossing_index"] = to_numpy(late);
-    c["population_before"] = to_numpy(before, m, nr);
-    c["population_after"] = to_numpy(after, m, nr);
-    c["transferred"] = to_numpy(transferred, m, nr);
-    c["landau_zener_loss"] = to_numpy(lz, m, nr);
-    c["end_gap"] = to_numpy(end);
-    c["broad"] = to_numpy(broad);
-    c["landau_zener_duration"] = to_numpy(lz_t);
-    c["check_run"] = to_numpy(check_run);
-    c["check_ground_probability"] = to_numpy(check_p);
-    c["check_transferred"] = to_numpy(check_loss);
+    c["crossing"] = to_numpy(x.crossing);
+    c["s_star"] = to_numpy(x.s_star);
+    c["delta_min"] = to_numpy(x.delta_min);
+    c["diabatic_slope"] = to_numpy(x.diabatic_slope);
+    c["perturbative_crossing_index"] = to_numpy(x.perturbative_crossing_index);
+    c["population_before"] = to_numpy(x.population_before, m, nr);
+    c["population_after"] = to_numpy(x.population_after, m, nr);
+    c["transferred"] = to_numpy(x.transferred, m, nr);
+    c["landau_zener_loss"] = to_numpy(x.landau_zener_loss, m, nr);
+    c["end_gap"] = to_numpy(x.end_gap);
+    c["broad"] = to_numpy(x.broad);
+    c["landau_zener_duration"] = to_numpy(x.landau_zener_duration);
+    c["check_run"] = to_numpy(x.check_run);
+    c["check_ground_probability"] = to_numpy(x.check_ground_probability);
+    c["check_transferred"] = to_numpy(x.check_transferred);
     out["crossings"] = c;
   }
   py::list runs;
@@ -215,7 +184,8 @@ void bind_diagnose(py::module_& m) {
   m.def("_diagnose", &diagnose_py, py::arg("problem"), py::arg("schedule"), py::arg("durations_ns"), py::arg("tolerance"),
         py::arg("propagator"), py::arg("levels"), py::arg("window"), py::arg("target_loss"), py::arg("check_max_ns"),
         py::arg("samples"), py::arg("sigma_h"), py::arg("sigma_j"), py::arg("relative"), py::arg("seed"),
-        py::arg("control_gaps"), py::arg("control_tolerance"), py::arg("threads"));
+        py::arg("control_gaps"), py::arg("control_tolerance"), py::arg("threads"),
+        py::arg("progress"));
 }
 
 }  // namespace gapwise::python

@@ -11,9 +11,11 @@
 
 #include <pybind11/stl.h>
 
+#include "io/duration_study_file.hpp"
 #include "io/input_error.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "platform/thread_count.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -24,15 +26,6 @@ namespace gapwise::python {
 namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-const char* needed_status_text(NeededStatus s) {
-  switch (s) {
-    case NeededStatus::Reached: return "reached";
-    case NeededStatus::ReachedAtShortest: return "reached at the shortest duration";
-    case NeededStatus::NotReached: return "not reached";
-  }
-  return "?";
-}
 
 py::dict bracket_dict(const CrossingBracket& b) {
   py::dict d;
@@ -47,19 +40,16 @@ py::dict bracket_dict(const CrossingBracket& b) {
 
 py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, std::optional<std::vector<double>> durations,
                         double target, double tolerance, const std::string& propagator, bool p_only, bool search,
-                        bool predictions_on, double resolution, int probes, double agreement, int threads) {
+                        bool predictions_on, double resolution, int probes, double agreement, int threads,
+                        py::object progress) {
   const std::string fn = "duration_study";
   check_tolerance_arg(fn, tolerance);
   check_target_arg(fn, target);
   check_propagator_arg(fn, propagator);
-  check_count_arg(fn, "probes", probes, 1, 64);
-  check_count_arg(fn, "threads", threads, 0, 4096);
-  if (!(resolution > 0.0 && resolution < 1.0))
-    throw InputError({"gapwise." + fn, 0, 0, "resolution"}, "resolution is not inside (0, 1)",
-                     "give the relative width at which bisection stops, e.g. 0.005");
-  if (!(agreement > 1.0) || !std::isfinite(agreement))
-    throw InputError({"gapwise." + fn, 0, 0, "agreement"}, "agreement factor is not above 1",
-                     "give the factor within which 1 - p of a prediction and of the simulation must agree, e.g. 2");
+  check_count_arg(fn, "probes", probes, kBisectionProbes);
+  check_threads_arg(fn, threads);
+  check_resolution_value(resolution, keyword_place(fn, "resolution"));
+  check_agreement_value(agreement, keyword_place(fn, "agreement"));
   std::vector<double> grid;
   if (durations) {
     check_durations_arg(fn, *durations);
@@ -75,8 +65,8 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
     PredictionVerdicts verdicts;
   } out;
   const double p_noise = std::max(10.0 * tolerance, 1e-9);
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("duration_study", std::move(progress));
+  watch.run([&] {
 #ifdef _OPENMP
     const int nthreads = thread_count_or_default(threads);
 #else
@@ -86,12 +76,22 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
     SimulationOptions sim;
     sim.propagator = propagator;
     sim.propagation.tolerance = tolerance;
+    sim.propagation.progress = watch.propagation_hook();
     if (p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();
     const AnnealSetup& setup = out.setup.emplace(p, schedule.schedule, sim);
-    if (predictions_on) out.predictions = predict_anneal(setup);
+    if (predictions_on) {
+      PredictionOptions po;
+      po.progress = watch.gap_hook();
+      out.predictions = predict_anneal(setup, po);
+    }
     const bool grid_chosen = grid.empty();
     if (grid_chosen) grid = default_duration_grid(out.predictions ? &*out.predictions : nullptr, target);
     DurationEvaluator ev(setup, nullptr);
+    std::size_t planned = 0, finished = 0;  // under the evaluator's lock
+    ev.on_batch = [&](const std::vector<double>& batch) { planned += batch.size(); };
+    ev.on_finished = [&](const DurationPoint&) {
+      watch.report("anneals", static_cast<double>(++finished), static_cast<double>(planned));
+    };
     DurationStudyOptions so;
     so.durations_ns = grid;
     so.target = target;
@@ -105,7 +105,7 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
     out.st = run_duration_study(ev, so);
     out.known = ev.known();
     if (out.predictions) out.verdicts = judge_predictions(*out.predictions, out.known, out.st, agreement, p_noise);
-  }
+  });
   const AnnealSetup& setup = *out.setup;
   const DurationStudy& st = out.st;
   grid.clear();
@@ -187,20 +187,14 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
   if (st.needed) {
     const auto& dn = *st.needed;
     py::dict n;
-    n["status"] = needed_status_text(dn.status);
+    n["status"] = needed_status_name(dn.status);
     n["lost_at_longest"] = dn.lost_at_longest;
     n["first_crossing"] = bracket_dict(dn.first);
     if (dn.stays_reached) n["stays_reached"] = bracket_dict(*dn.stays_reached);
-    std::vector<double> from, to, pf, pt;
-    for (const auto& s : dn.decreasing) {
-      from.push_back(s.from_ns); to.push_back(s.to_ns); pf.push_back(s.p_from); pt.push_back(s.p_to);
-    }
-    py::dict ds;
-    ds["from_ns"] = to_numpy(from);
-    ds["to_ns"] = to_numpy(to);
-    ds["p_from"] = to_numpy(pf);
-    ds["p_to"] = to_numpy(pt);
-    n["decreasing_stretches"] = ds;
+    n["decreasing_stretches"] = columns_dict(dn.decreasing, {{"from_ns", &PStretch::from_ns},
+                                                             {"to_ns", &PStretch::to_ns},
+                                                             {"p_from", &PStretch::p_from},
+                                                             {"p_to", &PStretch::p_to}});
     n["simulated_duration_ns"] = simulated_duration_needed(st);
     d["duration_needed"] = n;
   }
@@ -273,7 +267,8 @@ py::dict duration_study(const PyProblem& problem, const PySchedule& schedule, st
 void bind_durations(py::module_& m) {
   m.def("_duration_study", &duration_study, py::arg("problem"), py::arg("schedule"), py::arg("durations_ns"),
         py::arg("target"), py::arg("tolerance"), py::arg("propagator"), py::arg("p_only"), py::arg("search"),
-        py::arg("predictions"), py::arg("resolution"), py::arg("probes"), py::arg("agreement"), py::arg("threads"));
+        py::arg("predictions"), py::arg("resolution"), py::arg("probes"), py::arg("agreement"), py::arg("threads"),
+        py::arg("progress"));
 }
 
 }  // namespace gapwise::python

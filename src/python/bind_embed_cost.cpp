@@ -13,6 +13,7 @@
 #include "io/embedding_file.hpp"
 #include "io/input_error.hpp"
 #include "io/toml_reader.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -40,16 +41,14 @@ py::dict embed_cost(const PyProblem& problem, const PyEmbedding& emb, const PySc
                     std::optional<std::vector<double>> strengths, bool absolute, std::optional<double> term_limit,
                     bool use_file_term_limit, std::optional<double> duration_ns,
                     std::optional<std::vector<double>> search_durations, double target, double tolerance,
-                    double resolution, const std::string& propagator, int threads) {
+                    double resolution, const std::string& propagator, int threads, py::object progress) {
   const std::string fn = "embed_cost";
-  auto at = [&](const char* key) { return SourcePlace{"gapwise." + fn, 0, 0, key}; };
+  auto at = [&](const char* key) { return keyword_place(fn, key); };
   check_tolerance_arg(fn, tolerance);
   check_target_arg(fn, target);
   check_propagator_arg(fn, propagator);
-  check_count_arg(fn, "threads", threads, 0, 4096);
-  if (!(resolution > 0.0 && resolution < 1.0))
-    throw InputError(at("resolution"), fmt::format("resolution {} is not inside (0, 1)", resolution),
-                     "give the relative width at which bisection stops, e.g. 0.005");
+  check_threads_arg(fn, threads);
+  check_resolution_value(resolution, at("resolution"));
   if (strengths) {
     if (strengths->empty()) throw InputError(at("strengths"), "no chain strengths given", "give at least one, e.g. [1, 2, 3]");
     for (double s : *strengths)
@@ -82,11 +81,13 @@ py::dict embed_cost(const PyProblem& problem, const PyEmbedding& emb, const PySc
   scan.simulation.propagation.tolerance = tolerance;
   scan.threads = threads;
   std::optional<ChainScanResult> result;
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("embed_cost", std::move(progress));
+  scan.simulation.propagation.progress = watch.propagation_hook();
+  scan.progress = [&](const std::string& stage) { watch.report(stage, 0, 0); };
+  watch.run([&] {
     check_memory(embedding.physical_qubits, 10, 0, emb.source);
     result = scan_chain_strength(logical, embedding, sch, scan);
-  }
+  });
   const ChainScanResult& r = *result;
   const ChainScanPoint& best = r.points[r.best];
 
@@ -156,7 +157,7 @@ void bind_embed_cost(py::module_& m) {
   m.def("_embed_cost", &embed_cost, py::arg("problem"), py::arg("embedding"), py::arg("schedule"), py::arg("strengths"),
         py::arg("absolute"), py::arg("term_limit"), py::arg("use_file_term_limit"), py::arg("duration_ns"),
         py::arg("search_durations"), py::arg("target"), py::arg("tolerance"), py::arg("resolution"),
-        py::arg("propagator"), py::arg("threads"));
+        py::arg("propagator"), py::arg("threads"), py::arg("progress"));
 }
 
 }  // namespace gapwise::python

@@ -7,6 +7,7 @@
 
 #include "hamiltonian/spin_flip_sector.hpp"
 #include "io/input_error.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -17,11 +18,10 @@ namespace {
 
 py::dict gap_scan(const PyProblem& problem, const PySchedule& schedule, int levels, int points, int max_points,
                   double s_tolerance, const std::string& sector, const std::string& solver, std::optional<double> s_first,
-                  std::optional<double> s_last, bool other_sector, bool level_check) {
+                  std::optional<double> s_last, bool other_sector, bool level_check, py::object progress) {
   const IsingProblem& p = problem.file.ising;
-  const SourcePlace here{"gapwise.gap_scan", 0, 0, ""};
-  auto at = [&](const char* key) { SourcePlace w = here; w.key = key; return w; };
-  check_count_arg("gap_scan", "levels", levels, 2, 64);
+  auto at = [&](const char* key) { return keyword_place("gap_scan", key); };
+  check_count_arg("gap_scan", "levels", levels, kSpectrumLevels);
   GapSearchOptions opt;
   opt.levels = levels;
   if (sector == "full") opt.sector = SpinFlipSector::Full;
@@ -47,14 +47,15 @@ py::dict gap_scan(const PyProblem& problem, const PySchedule& schedule, int leve
   const Schedule& sch = schedule.schedule;
 
   MinimumGapReport r;
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("gap_scan", std::move(progress));
+  opt.progress = watch.gap_hook();
+  watch.run([&] {
     check_gap_search_size(p.qubits, opt.sector.value_or(default_sector(p)), levels, opt.method, problem.file.qubits_place);
     check_gap_point_budget(opt);
     const TransverseIsingHamiltonian H(p);
     check_gap_search_options(opt, sch.scales);
     r = find_minimum_gap(H, sch.scales, opt);
-  }
+  });
 
   py::dict d;
   d["s_star"] = r.s_star;
@@ -92,16 +93,10 @@ py::dict gap_scan(const PyProblem& problem, const PySchedule& schedule, int leve
   if (others.size() == n * k) curve["other_sector_energies"] = to_numpy(others, n, k);
   d["curve"] = curve;
 
-  std::vector<double> ms, msu, mg, mgu;
-  for (const auto& mm : r.minima) {
-    ms.push_back(mm.s); msu.push_back(mm.s_uncertainty); mg.push_back(mm.gap_ghz); mgu.push_back(mm.gap_uncertainty_ghz);
-  }
-  py::dict minima;
-  minima["s"] = to_numpy(ms);
-  minima["s_uncertainty"] = to_numpy(msu);
-  minima["gap"] = to_numpy(mg);
-  minima["gap_uncertainty"] = to_numpy(mgu);
-  d["minima"] = minima;
+  d["minima"] = columns_dict(r.minima, {{"s", &GapMinimum::s},
+                                        {"s_uncertainty", &GapMinimum::s_uncertainty},
+                                        {"gap", &GapMinimum::gap_ghz},
+                                        {"gap_uncertainty", &GapMinimum::gap_uncertainty_ghz}});
 
   std::vector<double> fe, fpe;
   std::vector<long long> fstate, fground;
@@ -125,7 +120,8 @@ py::dict gap_scan(const PyProblem& problem, const PySchedule& schedule, int leve
 void bind_gap(py::module_& m) {
   m.def("_gap_scan", &gap_scan, py::arg("problem"), py::arg("schedule"), py::arg("levels"), py::arg("points"),
         py::arg("max_points"), py::arg("s_tolerance"), py::arg("sector"), py::arg("solver"), py::arg("s_first"),
-        py::arg("s_last"), py::arg("other_sector"), py::arg("level_check"));
+        py::arg("s_last"), py::arg("other_sector"), py::arg("level_check"),
+        py::arg("progress"));
 }
 
 }  // namespace gapwise::python

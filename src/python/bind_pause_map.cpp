@@ -7,6 +7,7 @@
 
 #include "hamiltonian/memory_budget.hpp"
 #include "io/input_error.hpp"
+#include "python/call_watch.hpp"
 #include "python/keyword_checks.hpp"
 #include "python/numpy_out.hpp"
 #include "python/python_inputs.hpp"
@@ -16,7 +17,7 @@ namespace gapwise::python {
 namespace {
 
 void check_values(const std::vector<double>& v, double lo, double hi, const std::string& key, const std::string& what) {
-  const SourcePlace at{"gapwise.pause_map", 0, 0, key};
+  const SourcePlace at = keyword_place("pause_map", key);
   if (v.empty()) throw InputError(at, fmt::format("no {} given", what), fmt::format("give {} values", what));
   for (double x : v)
     if (!(x >= lo && x <= hi))
@@ -26,17 +27,18 @@ void check_values(const std::vector<double>& v, double lo, double hi, const std:
 
 py::dict pause_map_py(const PyProblem& problem, const PySchedule& schedule, double duration_ns,
                       const std::vector<double>& pause_s, const std::vector<double>& pause_ns, const std::string& cost,
-                      double target, double tolerance, const std::string& propagator, int threads) {
+                      double target, double tolerance, const std::string& propagator, int threads,
+                      py::object progress) {
   const std::string fn = "pause_map";
   check_tolerance_arg(fn, tolerance);
   check_target_arg(fn, target);
   check_propagator_arg(fn, propagator);
-  check_count_arg(fn, "threads", threads, 0, 4096);
-  check_duration_ns(duration_ns, {"gapwise." + fn, 0, 0, "duration_ns"});
+  check_threads_arg(fn, threads);
+  check_duration_ns(duration_ns, keyword_place(fn, "duration_ns"));
   check_values(pause_s, 0.0, 1.0, "pause_s", "pause location s");
   check_values(pause_ns, 0.0, 1e12, "pause_ns", "pause duration (ns)");
   if (cost != "total" && cost != "added")
-    throw InputError({"gapwise." + fn, 0, 0, "cost"}, fmt::format("unknown cost \"{}\"", cost),
+    throw InputError(keyword_place(fn, "cost"), fmt::format("unknown cost \"{}\"", cost),
                      "use \"total\" (every run takes duration_ns) or \"added\" (the pause adds to it)");
   PauseMapOptions mo;
   mo.pause_s = pause_s;
@@ -49,12 +51,15 @@ py::dict pause_map_py(const PyProblem& problem, const PySchedule& schedule, doub
   sim.propagator = propagator;
   sim.propagation.tolerance = tolerance;
   PauseMap m;
-  {
-    py::gil_scoped_release release;
+  CallWatch watch("pause_map", std::move(progress));
+  sim.propagation.progress = watch.propagation_hook();
+  watch.run([&] {
     check_memory(problem.file.ising.qubits, 10, 0, problem.file.qubits_place);
     const AnnealSetup setup(problem.file.ising, schedule.schedule, sim);
-    m = pause_map(setup, mo);
-  }
+    m = pause_map(setup, mo, nullptr, [&](std::size_t done, std::size_t total) {
+      watch.report("anneals", static_cast<double>(done), static_cast<double>(total));
+    });
+  });
   const std::size_t ni = pause_s.size(), nj = pause_ns.size();
   std::vector<double> pg, tts, tot, nd;
   for (std::size_t i = 0; i < ni; ++i)
@@ -87,7 +92,7 @@ py::dict pause_map_py(const PyProblem& problem, const PySchedule& schedule, doub
 void bind_pause_map(py::module_& m) {
   m.def("_pause_map", &pause_map_py, py::arg("problem"), py::arg("schedule"), py::arg("duration_ns"), py::arg("pause_s"),
         py::arg("pause_ns"), py::arg("cost"), py::arg("target"), py::arg("tolerance"), py::arg("propagator"),
-        py::arg("threads"));
+        py::arg("threads"), py::arg("progress"));
 }
 
 }  // namespace gapwise::python

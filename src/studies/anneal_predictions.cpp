@@ -88,6 +88,7 @@ AnnealPredictions predict_anneal(const AnnealSetup& setup, const PredictionOptio
   GapSearchOptions go;
   go.s_tolerance = po.s_tolerance;
   go.coarse_points = po.coarse_points;
+  go.progress = po.progress;
   go.s_first = shape.s_min();
   go.s_last = shape.s_max();
   check_gap_search_size(setup.problem.qubits, default_sector(setup.problem), go.levels, go.method,

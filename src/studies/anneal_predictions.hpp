@@ -30,10 +30,12 @@
 //   AnnealPredictions pr = predict_anneal(setup, {});
 //   if (pr.lz.applicable) pr.lz.p_at(50.0);
 //   pr.adiabatic.duration_for(0.99);
+#include <functional>
 #include <limits>
 #include <string>
 #include <vector>
 
+#include "spectrum/gap_search.hpp"
 #include "studies/duration_sweep.hpp"
 
 namespace gapwise {
@@ -89,6 +91,8 @@ struct AnnealPredictions {
 struct PredictionOptions {
   double s_tolerance = 1e-7;   ///< precision of s* asked from the gap search
   int coarse_points = 101;
+  /// Called after each point of the gap search (empty: never); results do not depend on it.
+  std::function<void(const GapSearchProgress&)> progress;
 };
 
 /// Refuses (InputError at the schedule's path key) a path that stays at one s, where

@@ -13,6 +13,13 @@ Problems and schedules may be given as Problem/Schedule objects, file paths, or
 dicts with the keys of the TOML files (rendered to TOML and read by the same
 reader, so bad input raises gapwise.InputError with the command line's message).
 Computation releases the GIL: other Python threads run meanwhile.
+Ctrl-C (SIGINT) stops a running call within a fraction of a second and raises
+KeyboardInterrupt; nothing of the call is kept. Every computing function takes
+progress=: None (quiet), True (a line on stderr, rewritten in place), or a
+callable given one dict {"call", "stage", "done", "total", "fraction", "seconds"}
+a few times a second and once more at the end with stage "done" (or "interrupted");
+fraction is -1 when the total is not known. An exception it raises stops the call
+and is re-raised.
 Units: durations in ns, energies in GHz (H in GHz; d psi/dt = -i 2 pi H psi).
 """
 import math
@@ -159,6 +166,26 @@ def _as_list(v):
     return v
 
 
+def _stderr_progress(info):
+    """progress=True: one line on stderr, rewritten in place, ended at "done"."""
+    import sys
+    frac = info["fraction"]
+    where = f"{100 * frac:5.1f} %" if frac >= 0 else f"{info['done']:.0f} done"
+    end = "\n" if info["stage"] in ("done", "interrupted") else ""
+    sys.stderr.write(f"\r{info['call']}: {info['stage']}: {where}, {info['seconds']:.1f} s\033[K{end}")
+    sys.stderr.flush()
+
+
+def _progress_arg(progress):
+    if progress is None or progress is False:
+        return None
+    if progress is True:
+        return _stderr_progress
+    if callable(progress):
+        return progress
+    raise TypeError(f"progress must be None, True or a callable taking one dict, not {type(progress).__name__}")
+
+
 def problem(source):
     """A Problem from a file path (str or os.PathLike), a Problem (returned as is), or a
     dict with the keys of the problem file (kind, qubits, fields, couplings, terms,
@@ -240,38 +267,39 @@ def schedule(source=None):
 
 
 def anneal(problem_, schedule_, duration_ns=None, *, tolerance=1e-6, propagator="split-auto", trace_points=20,
-           top=8, p_only=False, check=True):
+           top=8, p_only=False, check=True, progress=None):
     """One anneal, as `gapwise anneal` runs it. Returns a dict named as /anneal in the HDF5
     result: ground_probability, duration_ns, norm_drift, convergence_delta_p (NaN with
     check=False), trace {t, s, ground_probability, energy, norm}, final_probabilities,
     ground_states, outcomes, accuracy_ok, ..."""
     return _core._anneal(problem(problem_), schedule(schedule_), duration_ns, tolerance, propagator,
-                         trace_points, top, p_only, check)
+                         trace_points, top, p_only, check, _progress_arg(progress))
 
 
 def gap_scan(problem_, schedule_=None, *, levels=4, points=26, max_points=3000, s_tolerance=1e-6, sector="auto",
-             solver="auto", s_first=None, s_last=None, other_sector=False, level_check=True):
+             solver="auto", s_first=None, s_last=None, other_sector=False, level_check=True, progress=None):
     """The minimum-gap search, as `gapwise gap` runs it. Returns a dict named as /gap in the
     HDF5 result: s_star, gap_ghz, definition, curve {s, a, b, energies (points x levels),
     gap, ...}, minima, final_levels, notes."""
     return _core._gap_scan(problem(problem_), schedule(schedule_), levels, points, max_points, s_tolerance,
-                           sector, solver, s_first, s_last, other_sector, level_check)
+                           sector, solver, s_first, s_last, other_sector, level_check, _progress_arg(progress))
 
 
 def duration_study(problem_, schedule_, durations_ns=None, *, target=0.99, tolerance=1e-6, propagator="split-auto",
                    p_only=False, search=True, predictions=True, resolution=5e-3, probes=2, agreement=2.0,
-                   threads=0):
+                   threads=0, progress=None):
     """The anneal-time study, as `gapwise durations` runs it. Returns a dict named as
     /durations in the HDF5 result: grid_ns, points {duration_ns, ground_probability,
     tts_ns (inf when p = 0), repetitions, p_landau_zener (NaN: not applicable), ...},
     tts_optimum, duration_needed, predictions."""
     grid = None if durations_ns is None else [float(t) for t in _as_list(durations_ns)]
     return _core._duration_study(problem(problem_), schedule(schedule_), grid, target, tolerance, propagator,
-                                 p_only, search, predictions, resolution, probes, agreement, threads)
+                                 p_only, search, predictions, resolution, probes, agreement, threads,
+                                 _progress_arg(progress))
 
 
 def pause_map(problem_, schedule_, duration_ns, pause_s, pause_ns, *, cost="total", target=0.99, tolerance=1e-6,
-              propagator="split-auto", threads=0):
+              propagator="split-auto", threads=0, progress=None):
     """Ground-state probability over pause location (pause_s, schedule parameter s) x pause
     duration (pause_ns, ns), as `gapwise pause-map` computes it. cost="total": every run takes
     duration_ns and the pause eats into the ramp; "added": the pause adds to it (the unpaused
@@ -280,12 +308,12 @@ def pause_map(problem_, schedule_, duration_ns, pause_s, pause_ns, *, cost="tota
     reference_ground_probability, reference_total_ns (one per pause duration), ..."""
     return _core._pause_map(problem(problem_), schedule(schedule_), float(duration_ns),
                             [float(x) for x in _as_list(pause_s)], [float(x) for x in _as_list(pause_ns)], cost,
-                            target, tolerance, propagator, threads)
+                            target, tolerance, propagator, threads, _progress_arg(progress))
 
 
 def diagnose(problem_, schedule_, durations_ns, *, tolerance=1e-6, propagator="split-auto", levels=4, window=5.0,
              target_loss=0.01, check_max_ns=10000.0, samples=100, sigma_h=None, sigma_j=None, relative=False, seed=1,
-             control_gaps=True, control_tolerance=None, threads=0):
+             control_gaps=True, control_tolerance=None, threads=0, progress=None):
     """Why an anneal loses the ground state, as `gapwise diagnose` computes it (same defaults;
     sigma_h / sigma_j default to 0.03 and are then marked as defaults; samples=0 skips the
     control-error Monte Carlo). Returns a dict named as /diagnosis in the HDF5 result:
@@ -293,7 +321,7 @@ def diagnose(problem_, schedule_, durations_ns, *, tolerance=1e-6, propagator="s
     duration: ground_probability, channel_kind, channel_loss, channel_verdict, ...), control {...}."""
     return _core._diagnose(problem(problem_), schedule(schedule_), [float(t) for t in _as_list(durations_ns)],
                            tolerance, propagator, levels, window, target_loss, check_max_ns, samples, sigma_h, sigma_j,
-                           relative, seed, control_gaps, control_tolerance, threads)
+                           relative, seed, control_gaps, control_tolerance, threads, _progress_arg(progress))
 
 
 def embedding(source):
@@ -313,7 +341,7 @@ def embedding(source):
 
 def embed_cost(problem_, embedding_, schedule_, *, strengths=None, absolute=False, term_limit=None,
                file_term_limit=True, duration_ns=None, search_durations=None, target=0.99, tolerance=1e-6,
-               resolution=5e-3, propagator="split-auto", threads=0):
+               resolution=5e-3, propagator="split-auto", threads=0, progress=None):
     """What an embedding costs, as `gapwise embed-cost` computes it: chain strengths scanned
     (relative to the largest logical term unless absolute=True; default 0.5, 1, 1.5, 2, 3, 4,
     plus the embedding file's own), each physical problem's minimum gap, p_logical at the
@@ -325,4 +353,4 @@ def embed_cost(problem_, embedding_, schedule_, *, strengths=None, absolute=Fals
     values = None if strengths is None else [float(x) for x in _as_list(strengths)]
     return _core._embed_cost(problem(problem_), embedding(embedding_), schedule(schedule_), values, absolute,
                              term_limit, file_term_limit, duration_ns, grid, target, tolerance, resolution,
-                             propagator, threads)
+                             propagator, threads, _progress_arg(progress))
