@@ -316,7 +316,8 @@ void render_figure(const LinePlot& requested, const std::string& path) {
   const auto [y0_, y1_] = plot.y_range ? std::pair{plot.log_y ? std::log10(plot.y_range->first) : plot.y_range->first,
                                            plot.log_y ? std::log10(plot.y_range->second) : plot.y_range->second}
                                : range_of(plot, true, plot.log_y);
-  const double x0 = x0_, x1 = x1_, y0 = y0_, y1 = y1_;
+  const double x0 = x0_, x1 = x1_, y0 = y0_;
+  double y1 = y1_;
   std::size_t entries = 0, longest = 0;
   for (const auto& b : plot.bands)
     if (!b.label.empty()) { ++entries; longest = std::max(longest, visible_length(b.label)); }
@@ -333,6 +334,17 @@ void render_figure(const LinePlot& requested, const std::string& path) {
                                : free_legend_corner(occupied_points(plot, x0, x1, y0, y1), legend_w, legend_h);
     if (plot.legend == LinePlot::Legend::Outside)  // no corner free of everything: one free of data
       plot.legend = free_legend_corner(occupied_points(plot, x0, x1, y0, y1, false), legend_w, legend_h);
+    if (plot.legend == LinePlot::Legend::Outside && plot.raise_top_for_legend) {
+      // Still no free corner: raise the top of the y axis by the legend's height
+      // (data keep their place, the frame keeps its width) and try the top corners.
+      const double room = legend_h + 0.06;
+      const double raised = y1 + (y1 - y0) * room / (1 - room);
+      const LinePlot::Legend corner = free_legend_corner(occupied_points(plot, x0, x1, y0, raised), legend_w, legend_h);
+      if (corner == LinePlot::Legend::TopRight || corner == LinePlot::Legend::TopLeft) {
+        plot.legend = corner;
+        y1 = raised;
+      }
+    }
   }
   // Outside: the frame gives up the width of the legend on the right.
   const double frame_right = plot.legend == LinePlot::Legend::Outside ? std::max(0.45, 0.93 - 0.85 * legend_w) : 0.95;

@@ -57,6 +57,9 @@ struct LinePlot {
   /// Auto: the first corner of the frame (top right, top left, bottom right,
   /// bottom left) where the legend covers no data; right of the frame when none is free.
   enum class Legend { Auto, TopRight, BottomRight, TopLeft, BottomLeft, Outside } legend = Legend::Auto;
+  /// With an automatic legend and no free corner, the top of the y axis may be
+  /// raised to make room above the data (never for probability axes).
+  bool raise_top_for_legend = false;
 };
 
 struct HeatMap {

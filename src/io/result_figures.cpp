@@ -411,6 +411,7 @@ void ensemble_scaling(const Hdf5Input& in, const Emit& emit) {
       return e;
     };
     fig.y_range = std::pair{step_125(lo / 1.05, false), step_125(hi * 1.05, true)};
+    fig.raise_top_for_legend = true;  // sizes on x, times or gaps on y: room above is harmless
     const std::string range_label = fmt::format("quantiles q{:g} to q{:g} over instances", levels[lo_q], levels[hi_q]);
     if (n.size() > 1) {
       fig.bands.push_back({range_label, n, q_lo, q_hi, 0});
