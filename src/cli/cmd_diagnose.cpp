@@ -11,6 +11,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "cli/input_loading.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
@@ -35,10 +36,10 @@ struct DiagnoseOptions {
 
 void run_diagnose(const DiagnoseOptions& o) {
   const std::vector<double> durations_ns = parse_value_list(o.durations, "--durations", ListOf::Durations);
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out"));
-  const ProblemFile p_file = parse_problem_file(o.problem);
-  const IsingProblem& p = p_file.ising;
-  const Schedule sch = read_schedule_file(o.schedule);
+  const RunInputs loaded =
+      load_run_inputs(RunFiles{}.problem(o.problem).schedule(o.schedule).plan(FilePlan{}.output(o.out, "--out")));
+  const IsingProblem& p = loaded.problem();
+  const Schedule& sch = loaded.schedule;
   check_tolerance(o.tolerance);
   check_sigma(o.sigma_h, "--sigma-h");
   check_sigma(o.sigma_j, "--sigma-j");
@@ -53,7 +54,7 @@ void run_diagnose(const DiagnoseOptions& o) {
     throw InputError({"--check-max-ns", 0, 0, "--check-max-ns"}, fmt::format("{} ns is negative", o.check_max_ns),
                      "give a duration in ns, or 0 to skip the simulated checks");
   if (!o.out.empty()) check_output_path(o.out, "--out");
-  check_memory(p.qubits, 12, 0, p_file.qubits_place);
+  loaded.check_memory(12);
 
   DiagnosisOptions d;
   d.durations_ns = durations_ns;
