@@ -13,11 +13,6 @@
 #include "io/value_limits.hpp"
 #include "cli/value_lists.hpp"
 
-namespace gapwise {
-struct EnsembleResult;
-class TextTable;
-}  // namespace gapwise
-
 namespace gapwise::cli {
 
 /// Exit codes: 0 success, 2 bad input, 1 internal failure, 3 an accuracy check
@@ -89,12 +84,5 @@ CLI::Option* add_allow_long_flag(CLI::App* sub, bool& allow_long);
 
 void register_ensemble(CLI::App& app);
 void register_merge_shards(CLI::App& app);
-
-/// Shared by `ensemble` and `merge-shards`: the per-size table, and the summary
-/// they print (with the table also written as CSV when `csv` is given).
-TextTable ensemble_size_table(const EnsembleResult& result);
-void print_ensemble_summary(const EnsembleResult& result, const std::string& out, const std::string& csv);
-/// The same as JSON on stdout (`--json` of ensemble and merge-shards); writes csv too when given.
-void print_ensemble_json(const EnsembleResult& result, const std::string& csv);
 
 }  // namespace gapwise::cli

@@ -11,11 +11,13 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "cli/input_loading.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/accuracy_guard.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "dynamics/level_population_observer.hpp"
 #include "hamiltonian/memory_budget.hpp"
+#include "io/anneal_report.hpp"
 #include "io/atomic_file.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/input_error.hpp"
@@ -41,17 +43,15 @@ struct AnnealOptions {
 constexpr double kProgressAfterSeconds = 2.0;
 
 void run_anneal(const AnnealOptions& o) {
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").input(o.bath, "--bath").output(o.out, "--out").output(o.csv, "--csv"));
-  const ProblemFile p_file = parse_problem_file(o.problem);
-  const IsingProblem& p = p_file.ising;
-  const Schedule sch = read_schedule_file(o.schedule);
-  const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
+  const RunInputs loaded = load_run_inputs(RunFiles{}.problem(o.problem).schedule(o.schedule).bath(o.bath).plan(
+      FilePlan{}.output(o.out, "--out").output(o.csv, "--csv")));
+  const IsingProblem& p = loaded.problem();
+  const Schedule& sch = loaded.schedule;
+  const std::optional<OhmicBath>& bath = loaded.bath;
   check_tolerance(o.tolerance);
   check_count(o.trace_points, kTracePoints, "--trace-points");
   check_count(o.top, kTopOutcomes, "--top");
-  if (!o.out.empty()) check_output_path(o.out, "--out");
-  if (!o.csv.empty()) check_output_path(o.csv, "--csv");
-  check_memory(p.qubits, 10, 0, p_file.qubits_place);
+  loaded.check_memory(10);
   const TransverseIsingHamiltonian H(p);
   const GroundManifold gm = find_ground_manifold(p, H.diagonal());
   std::optional<double> duration_ns;
@@ -117,9 +117,6 @@ void run_anneal(const AnnealOptions& o) {
                 pp.fraction);
     };
   const AnnealResult r = simulate_anneal(H, gm, sch.scales, path, psi0, sim, observers);
-  std::vector<TraceObserver::Row> requested_rows;
-  for (const auto& row : trace.rows())
-    if (row.requested) requested_rows.push_back(row);
   std::optional<double> delta_p;
   if (!o.no_check) {
     SimulationOptions tight = sim;
@@ -144,217 +141,32 @@ void run_anneal(const AnnealOptions& o) {
     if (issue.check == "non_finite")  // never passed off as a result; nothing is written
       throw std::runtime_error("the simulation produced a non-finite result: " + issue.message);
 
-  TextTable outcomes({"rank", fmt::format("bits q0..q{}", p.qubits - 1), "spins", "energy", "probability", "ground"});
-  for (std::size_t k = 0; k < r.top_outcomes.size(); ++k) {
-    const auto& oc = r.top_outcomes[k];
-    outcomes.add({std::to_string(k + 1), bits_string(oc.state, p.qubits), spins_string(oc.state, p.qubits),
-                  fmt_num(oc.energy, 8), fmt_num(oc.probability, 6), oc.in_ground_manifold ? "yes" : ""});
+  AnnealReport rep;
+  rep.problem_file = o.problem;
+  rep.schedule_file = o.schedule;
+  rep.tolerance = o.tolerance;
+  rep.p_only = o.p_only;
+  rep.levels = o.levels;
+  rep.observed = !observe_s.empty();
+  rep.problem = &p;
+  rep.schedule = &sch;
+  rep.path = &path;
+  rep.ground = &gm;
+  rep.result = &r;
+  rep.delta_p = delta_p;
+  rep.accuracy_ok = accuracy.empty();
+  rep.trace = &trace.rows();
+  if (pops) rep.level_rows = pops->rows();
+  rep.sector = lpo.sector;
+  if (open) {
+    rep.with_bath = true;
+    rep.open_text = open_system_text(*bath, *open, r.ground_probability);
+    put_open_system_json(rep.open_json, *bath, *open);
+    rep.write_open_hdf5 = [&](Hdf5Output& h5) { write_open_system_hdf5(h5, "/anneal/open_system", *bath, *open); };
   }
-  std::vector<std::string> trace_head{"t_ns", "s", "p_ground", "energy_ghz", "norm"};
-  if (!observe_s.empty()) trace_head.push_back("requested");
-  TextTable tr(trace_head);
-  for (const auto& row : trace.rows()) {
-    std::vector<std::string> cells{fmt_num(row.t_ns, 8), fmt::format("{:.12g}", row.s), fmt_num(row.ground_probability, 10),
-                                   fmt_num(row.energy_ghz, 10), fmt_num(row.norm, 14)};
-    if (!observe_s.empty()) cells.push_back(row.requested ? "1" : "0");
-    tr.add(std::move(cells));
-  }
-  // The requested observations on their own (terminal and JSON).
-  std::vector<std::string> obs_head{"t_ns", "s", "p_ground", "energy_ghz", "norm"};
-  for (int j = 0; j < o.levels; ++j) obs_head.push_back(fmt::format("pop_level{}", j));
-  TextTable obs(obs_head);
-  for (std::size_t i = 0; i < requested_rows.size(); ++i) {
-    const auto& row = requested_rows[i];
-    std::vector<std::string> cells{fmt_num(row.t_ns, 8), fmt::format("{:.12g}", row.s), fmt_num(row.ground_probability, 10),
-                                   fmt_num(row.energy_ghz, 10), fmt_num(row.norm, 14)};
-    for (int j = 0; j < o.levels; ++j) cells.push_back(fmt_num(pops->rows().at(i).levels.populations.at(j), 8));
-    obs.add(std::move(cells));
-  }
-
-  if (o.json) {
-    toml::table j;
-    put(j, "problem_file", o.problem);
-    put(j, "schedule_file", o.schedule);
-    put(j, "duration_ns", r.duration_ns);
-    put(j, "ground_probability", r.ground_probability);
-    put(j, "ground_energy", gm.energy);
-    put(j, "ground_degeneracy", static_cast<long long>(gm.degeneracy()));
-    put(j, "norm_drift", r.norm_drift);
-    put(j, "integrator_error_estimate", r.stats.error_estimate);
-    put(j, "accuracy_ok", accuracy.empty());
-    if (delta_p) put(j, "convergence_delta_p", *delta_p);
-    put(j, "tolerance", o.tolerance);
-    put(j, "p_only", o.p_only);
-    put(j, "propagator", r.propagator);
-    put(j, "steps", static_cast<long long>(r.stats.steps));
-    put(j, "hamiltonian_applications", static_cast<long long>(r.stats.hamiltonian_applications));
-    put(j, "error_estimate", r.stats.error_estimate);
-    put(j, "wall_seconds", r.wall_seconds);
-    if (r.propagator == "frame") {
-      put(j, "frame_levels", static_cast<long long>(r.stats.frame_levels));
-      put(j, "frame_grid_points", static_cast<long long>(r.stats.frame_grid_points));
-      put(j, "frame_top_level_population", r.stats.frame_top_level_population);
-      put(j, "frame_truncation_estimate", r.stats.frame_truncation_estimate);
-      put(j, "frame_pieces", static_cast<long long>(r.stats.frame_pieces));
-      put(j, "frame_fallback_pieces", static_cast<long long>(r.stats.frame_fallback_pieces));
-    }
-    toml::array arr;
-    for (const auto& oc : r.top_outcomes) {
-      toml::table e;
-      put(e, "bits", bits_string(oc.state, p.qubits));
-      put(e, "spins", spins_string(oc.state, p.qubits));
-      put(e, "energy", oc.energy);
-      put(e, "probability", oc.probability);
-      put(e, "ground", oc.in_ground_manifold);
-      arr.push_back(std::move(e));
-    }
-    j.insert_or_assign("outcomes", std::move(arr));
-    if (!observe_s.empty()) {
-      toml::array oa;
-      for (std::size_t i = 0; i < requested_rows.size(); ++i) {
-        const auto& row = requested_rows[i];
-        toml::table e;
-        put(e, "t_ns", row.t_ns);
-        put(e, "s", row.s);
-        put(e, "ground_probability", row.ground_probability);
-        put(e, "energy_ghz", row.energy_ghz);
-        put(e, "norm", row.norm);
-        if (o.levels > 0) {
-          toml::array pe, pp;
-          for (int k = 0; k < o.levels; ++k) {
-            pe.push_back(pops->rows().at(i).levels.energies_ghz.at(k));
-            pp.push_back(pops->rows().at(i).levels.populations.at(k));
-          }
-          e.insert_or_assign("level_energies_ghz", std::move(pe));
-          e.insert_or_assign("level_populations", std::move(pp));
-        }
-        oa.push_back(std::move(e));
-      }
-      j.insert_or_assign("observations", std::move(oa));
-    }
-    if (open) put_open_system_json(j, *bath, *open);
-    std::cout << to_json(j) << "\n";
-  } else {
-    std::cout << fmt::format("problem      {}: {} qubits, {} couplings; ground energy {:.10g}, degeneracy {}\n", terminal_text(o.problem),
-                             p.qubits, p.couplings.size(), gm.energy, gm.degeneracy());
-    std::cout << fmt::format("schedule     {}: {}\n", o.schedule, sch.scales.describe());
-    std::cout << fmt::format("path         {} waypoints, duration {} ns, start: {}\n", path.points().size(),
-                             r.duration_ns, sch.start.kind == StartKind::Ground ? "ground state of H(s0)" : "classical state");
-    std::cout << fmt::format("propagator   {} (tolerance {:.0e}): {} steps, {} H applications, {:.3f} s\n", r.propagator,
-                             o.tolerance, r.stats.steps, r.stats.hamiltonian_applications, r.wall_seconds);
-    std::cout << fmt::format("\nground-state probability  {:.8f}\n", r.ground_probability);
-    if (delta_p)
-      std::cout << fmt::format("convergence               |dp| = {:.1e} when the tolerance is tightened tenfold{}\n", *delta_p,
-                               *delta_p > o.tolerance ? "  (WARNING: larger than expected)" : "");
-    std::cout << fmt::format("norm drift                {:.1e}\n", r.norm_drift);
-    // One error estimate per run; what it measures depends on the propagator.
-    if (r.propagator == "odeint")
-      std::cout << fmt::format("integrator error est.     {:.1e} (sum of the accepted steps' local error estimates of the\n"
-                               "                          amplitudes; a bound-like figure, not the error of p itself)\n",
-                               r.stats.error_estimate);
-    else if (r.propagator == "frame") {
-      const PropagationStats& fs = r.stats;
-      std::cout << fmt::format("error estimate of p       {:.1e} (per piece: the frame's grid against every other grid point,\n"
-                               "                          plus the change of p when K drops to 3K/4, plus the start's\n"
-                               "                          weight outside the kept levels; summed over pieces)\n",
-                               fs.error_estimate);
-      std::cout << fmt::format("frame                     K = {} levels, {} grid points, {} eigen-solves ({} warm started)\n",
-                               fs.frame_levels, fs.frame_grid_points, fs.frame_eigen_solves, fs.frame_warm_solves);
-      std::cout << fmt::format("leakage                   largest population of the highest kept level {:.1e}; change of p\n"
-                               "                          with K {:.1e}\n",
-                               fs.frame_top_level_population, fs.frame_truncation_estimate);
-      std::cout << fmt::format("pieces                    {} in the frame, {} by full propagation (split4){}\n", fs.frame_pieces,
-                               fs.frame_fallback_pieces,
-                               fs.frame_fallback_pieces > 0 && fs.frame_pieces > 0 ? "  (hybrid: the frame could not hold those to the tolerance)"
-                               : fs.frame_fallback_pieces > 0 ? "  (FALLBACK: the frame could not hold the run to the tolerance)"
-                                                              : "");
-    } else
-      std::cout << fmt::format("error estimate of p       {:.1e} (the accepted step grid against a coarser one with 4/5\n"
-                               "                          or 1/2 of its steps, Richardson-scaled; {})\n",
-                               r.stats.error_estimate,
-                               o.p_only ? "--p-only: other outcomes not controlled"
-                                        : "any other set of outcomes\n                          within 100x the tolerance");
-    if (!accuracy.empty()) std::cout << "accuracy                  NOT within the tolerance (see warnings)\n";
-    if (open) std::cout << open_system_text(*bath, *open, r.ground_probability);
-    std::cout << "\n";
-    std::cout << "most probable outcomes" << (open ? " (closed system)" : "") << "\n" << outcomes.render();
-    if (!requested_rows.empty()) {
-      std::cout << "\nobservations at the requested s"
-                << (o.levels > 0 ? fmt::format(" (pop_levelJ: weight on the J-th lowest distinct level of H(s), {})",
-                                               describe_sector(lpo.sector))
-                                 : std::string())
-                << "\n"
-                << obs.render();
-    }
-  }
-
-  if (!o.csv.empty()) write_file_atomically(o.csv, tr.csv());
-  if (!o.out.empty()) {
-    Hdf5Output h5(o.out, {"gapwise-anneal", 1});
-    write_provenance(h5, command_line(), {o.problem, o.schedule});
-    h5.attribute("/anneal", "duration_ns", r.duration_ns);
-    h5.attribute("/anneal", "ground_probability", r.ground_probability);
-    h5.attribute("/anneal", "norm_drift", r.norm_drift);
-    h5.attribute("/anneal", "integrator_error_estimate", r.stats.error_estimate);
-    h5.attribute("/anneal", "accuracy_ok", static_cast<long long>(accuracy.empty()));
-    h5.attribute("/anneal", "tolerance", o.tolerance);
-    h5.attribute("/anneal", "p_only", static_cast<long long>(o.p_only));
-    h5.attribute("/anneal", "propagator", r.propagator);
-    h5.attribute("/anneal", "steps", static_cast<long long>(r.stats.steps));
-    h5.attribute("/anneal", "error_estimate", r.stats.error_estimate);
-    if (r.propagator == "frame") {
-      h5.attribute("/anneal", "frame_levels", static_cast<long long>(r.stats.frame_levels));
-      h5.attribute("/anneal", "frame_grid_points", static_cast<long long>(r.stats.frame_grid_points));
-      h5.attribute("/anneal", "frame_top_level_population", r.stats.frame_top_level_population);
-      h5.attribute("/anneal", "frame_truncation_estimate", r.stats.frame_truncation_estimate);
-      h5.attribute("/anneal", "frame_pieces", static_cast<long long>(r.stats.frame_pieces));
-      h5.attribute("/anneal", "frame_fallback_pieces", static_cast<long long>(r.stats.frame_fallback_pieces));
-    }
-    if (delta_p) h5.attribute("/anneal", "convergence_delta_p", *delta_p);
-    h5.attribute("/anneal", "ground_energy", gm.energy);
-    std::vector<long long> gstates(gm.states.begin(), gm.states.end());
-    h5.write("/anneal/ground_states", gstates, DataMeaning("1").described("basis index (bit i = qubit i)"));
-    std::vector<double> t, s, pg, e, nrm;
-    for (const auto& row : trace.rows()) {
-      t.push_back(row.t_ns); s.push_back(row.s); pg.push_back(row.ground_probability);
-      e.push_back(row.energy_ghz); nrm.push_back(row.norm);
-    }
-    h5.write("/anneal/trace/t", t, "ns");
-    h5.write("/anneal/trace/s", s, "1");
-    h5.write("/anneal/trace/ground_probability", pg, "1");
-    h5.write("/anneal/trace/energy", e, "GHz");
-    h5.write("/anneal/trace/norm", nrm, "1");
-    if (!observe_s.empty()) {
-      std::vector<long long> req;
-      for (const auto& row : trace.rows()) req.push_back(row.requested ? 1 : 0);
-      h5.write("/anneal/trace/requested", req, DataMeaning("1").flagged({0, 1}, "sampled observe_s_value"));
-      std::vector<double> ot, os, op, oe, on, le, lp;
-      for (std::size_t i = 0; i < requested_rows.size(); ++i) {
-        const auto& row = requested_rows[i];
-        ot.push_back(row.t_ns); os.push_back(row.s); op.push_back(row.ground_probability);
-        oe.push_back(row.energy_ghz); on.push_back(row.norm);
-        for (int k = 0; k < o.levels; ++k) {
-          le.push_back(pops->rows().at(i).levels.energies_ghz.at(k));
-          lp.push_back(pops->rows().at(i).levels.populations.at(k));
-        }
-      }
-      h5.write("/anneal/observations/t", ot, "ns");
-      h5.write("/anneal/observations/s", os, "1");
-      h5.write("/anneal/observations/ground_probability", op, "1");
-      h5.write("/anneal/observations/energy", oe, "GHz");
-      h5.write("/anneal/observations/norm", on, "1");
-      if (o.levels > 0) {
-        const std::size_t m = requested_rows.size(), kk = static_cast<std::size_t>(o.levels);
-        h5.write_matrix("/anneal/observations/level_energies", le, m, kk, "GHz", {"/anneal/observations/s", h5.level_axis("/anneal/observations", kk)});
-        h5.write_matrix("/anneal/observations/level_populations", lp, m, kk, "1", {"/anneal/observations/s", h5.level_axis("/anneal/observations", kk)});
-        h5.attribute("/anneal/observations/level_populations", "sector", sector_name(lpo.sector));
-      }
-    }
-    const auto probs = probabilities(r.final_state);
-    h5.write("/anneal/final_probabilities", probs, DataMeaning("1").described("probability of basis state b at the end (index b, bit i = qubit i)"));
-    if (open) write_open_system_hdf5(h5, "/anneal/open_system", *bath, *open);
-    h5.commit();
-  }
+  std::cout << (o.json ? anneal_report_json(rep) : anneal_report_text(rep));
+  if (!o.csv.empty()) write_file_atomically(o.csv, anneal_trace_table(rep).csv());
+  if (!o.out.empty()) write_anneal_result(o.out, rep, command_line());
 }
 
 }  // namespace

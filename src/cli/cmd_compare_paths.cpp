@@ -15,6 +15,7 @@
 
 #include "cli/bath_option.hpp"
 #include "cli/cli_common.hpp"
+#include "cli/input_loading.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
@@ -71,13 +72,12 @@ Schedule with_shape(const Schedule& base, const ForwardShapeSpec& spec, const st
 
 void run_compare(const CompareOptions& o) {
   FilePlan plan;
-  plan.input(o.problem, "problem");
   for (const auto& f : o.schedules) plan.input(f, "schedule");
-  check_file_plan(plan.input(o.bath, "--bath").output(o.out, "--out").output(o.csv, "--csv"));
-  const ProblemFile p_file = parse_problem_file(o.problem);
-  const IsingProblem& p = p_file.ising;
-  const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
-  check_memory(p.qubits, 10, 0, p_file.qubits_place);
+  const RunInputs loaded = load_run_inputs(
+      RunFiles{}.problem(o.problem).bath(o.bath).plan(plan.output(o.out, "--out").output(o.csv, "--csv")));
+  const IsingProblem& p = loaded.problem();
+  const std::optional<OhmicBath>& bath = loaded.bath;
+  loaded.check_memory(10);
   if (!o.out.empty()) check_output_path(o.out, "--out");
   if (!o.csv.empty()) check_output_path(o.csv, "--csv");
   check_target_probability(o.target);

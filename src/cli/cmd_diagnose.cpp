@@ -12,6 +12,7 @@
 
 #include "cli/bath_option.hpp"
 #include "cli/cli_common.hpp"
+#include "cli/input_loading.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
@@ -38,14 +39,14 @@ struct DiagnoseOptions {
 
 void run_diagnose(const DiagnoseOptions& o) {
   const std::vector<double> durations_ns = parse_value_list(o.durations, "--durations", ListOf::Durations);
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").input(o.bath, "--bath").output(o.out, "--out"));
-  const ProblemFile p_file = parse_problem_file(o.problem);
-  const IsingProblem& p = p_file.ising;
-  const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
+  const RunInputs loaded = load_run_inputs(
+      RunFiles{}.problem(o.problem).schedule(o.schedule).bath(o.bath).plan(FilePlan{}.output(o.out, "--out")));
+  const IsingProblem& p = loaded.problem();
+  const Schedule& sch = loaded.schedule;
+  const std::optional<OhmicBath>& bath = loaded.bath;
   if (!bath && o.thermal_points_given)
     throw InputError({"--thermal-points", 0, 0, "--thermal-points"}, "--thermal-points is for the thermal channel",
                      "add --bath FILE, or leave out --thermal-points");
-  const Schedule sch = read_schedule_file(o.schedule);
   check_tolerance(o.tolerance);
   check_sigma(o.sigma_h, "--sigma-h");
   check_sigma(o.sigma_j, "--sigma-j");
@@ -57,7 +58,7 @@ void run_diagnose(const DiagnoseOptions& o) {
   check_max_check_ns_value(o.check_max_ns, {"--check-max-ns", 0, 0, "--check-max-ns"});
   check_window_value(o.window, {"--window", 0, 0, "--window"});
   if (!o.out.empty()) check_output_path(o.out, "--out");
-  check_memory(p.qubits, 12, 0, p_file.qubits_place);
+  loaded.check_memory(12);
 
   DiagnosisOptions d;
   d.durations_ns = durations_ns;

@@ -21,6 +21,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "cli/input_loading.hpp"
 #include "cli/journaled_run.hpp"
 #include "io/infinite_tts.hpp"
 #include "hamiltonian/memory_budget.hpp"
@@ -58,17 +59,11 @@ struct DurationsOptions {
 };
 
 void run_durations(const DurationsOptions& o) {
-  check_file_plan(FilePlan{}
-                      .input(o.problem, "problem")
-                      .input(o.schedule, "schedule")
-                      .input(o.bath, "--bath")
-                      .output(o.out, "--out")
-                      .output(o.csv, "--csv")
-                      .journal_of(!o.out.empty() ? o.out : o.csv));
-  const ProblemFile problem_file = parse_problem_file(o.problem);
-  const IsingProblem& problem = problem_file.ising;
-  const Schedule schedule = read_schedule_file(o.schedule);
-  const std::optional<OhmicBath> bath = load_bath(o.bath, problem.qubits);
+  const RunInputs loaded = load_run_inputs(RunFiles{}.problem(o.problem).schedule(o.schedule).bath(o.bath).plan(
+      FilePlan{}.output(o.out, "--out").output(o.csv, "--csv").journal_of(!o.out.empty() ? o.out : o.csv)));
+  const IsingProblem& problem = loaded.problem();
+  const Schedule& schedule = loaded.schedule;
+  const std::optional<OhmicBath>& bath = loaded.bath;
   check_tolerance(o.tolerance);
   check_target_probability(o.target);
   check_threads(o.threads);
@@ -84,7 +79,7 @@ void run_durations(const DurationsOptions& o) {
 #else
   const int threads = 1;
 #endif
-  check_memory(problem.qubits, 10 * std::max(1, threads), 0, problem_file.qubits_place);
+  loaded.check_memory(10 * std::max(1, threads));
 
   SimulationOptions sim;
   sim.propagator = o.propagator;

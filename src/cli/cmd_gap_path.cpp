@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "cli/input_loading.hpp"
 #include "io/output_paths.hpp"
 #include "io/atomic_file.hpp"
 #include "io/input_error.hpp"
@@ -23,11 +24,10 @@ struct GapPathOptions {
 };
 
 void run_gap_path(const GapPathOptions& o) {
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out"));
-  const ProblemFile p_file = parse_problem_file(o.problem);
-  const IsingProblem& p = p_file.ising;
-  Schedule base = read_schedule_file(o.schedule);
-  check_output_path(o.out, "--out");
+  RunInputs loaded =
+      load_run_inputs(RunFiles{}.problem(o.problem).schedule(o.schedule).plan(FilePlan{}.output(o.out, "--out")));
+  const IsingProblem& p = loaded.problem();
+  Schedule& base = loaded.schedule;
   if (!o.durations.empty()) {
     const double d = parse_single_value(o.durations, "--durations", ListOf::Durations,
                                         "a schedule file holds one default duration",
@@ -35,7 +35,7 @@ void run_gap_path(const GapPathOptions& o) {
     check_duration_ns(d, {"--durations", 0, 0, "--durations"});
     base.duration_ns = d;
   }
-  check_gap_search_size(p.qubits, default_sector(p), o.levels, EigenMethod::Auto, p_file.qubits_place);
+  check_gap_search_size(p.qubits, default_sector(p), o.levels, EigenMethod::Auto, loaded.problem_file->qubits_place);
   const TransverseIsingHamiltonian H(p);
   GapSearchOptions search;
   search.levels = o.levels;

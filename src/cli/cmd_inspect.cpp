@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "cli/input_loading.hpp"
 #include "io/output_paths.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/json_summary.hpp"
@@ -23,14 +24,12 @@ struct InspectOptions {
 };
 
 void run_inspect(const InspectOptions& o) {
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule"));
-  const ProblemFile pf = parse_problem_file(o.problem);
   // Every input is read before anything is printed: a bad schedule must not
   // leave half a report on stdout.
-  std::optional<Schedule> schedule;
-  if (!o.schedule.empty()) schedule = read_schedule_file(o.schedule);
+  const RunInputs loaded = load_run_inputs(RunFiles{}.problem(o.problem).schedule(o.schedule));
+  const ProblemFile& pf = *loaded.problem_file;
   const IsingProblem& p = pf.ising;
-  check_memory(p.qubits, 0, 0, pf.qubits_place);
+  loaded.check_memory(0);
   const GroundManifold gm = find_ground_manifold(p);
   int nfields = 0;
   for (double x : p.h) nfields += x != 0.0;
@@ -75,7 +74,7 @@ void run_inspect(const InspectOptions& o) {
                            human_bytes(estimate_bytes(p.qubits, 1, 0) - std::ldexp(8.0, p.qubits)), human_bytes(dyn_bytes),
                            human_bytes(available_bytes()));
   if (!o.schedule.empty()) {
-    const Schedule& s = *schedule;
+    const Schedule& s = loaded.schedule;
     std::cout << fmt::format("schedule     {}{}\n", terminal_text(o.schedule),
                              s.description.empty() ? "" : "  (" + terminal_text(s.description) + ")");
     std::cout << fmt::format("  scales     {}\n", s.scales.describe());

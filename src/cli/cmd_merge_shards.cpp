@@ -4,6 +4,7 @@
 
 #include "cli/cli_common.hpp"
 #include "io/output_paths.hpp"
+#include "io/ensemble_report.hpp"
 #include "io/ensemble_result_file.hpp"
 #include "io/atomic_file.hpp"
 #include "studies/ensemble_study.hpp"

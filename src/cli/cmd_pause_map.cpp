@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "cli/input_loading.hpp"
 #include "cli/journaled_run.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
@@ -72,16 +73,16 @@ void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const
 }
 
 void run_pause_map(PauseMapCli o) {
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").input(o.bath, "--bath").output(o.out, "--out").journal_of(o.out));
-  const ProblemFile p_file = parse_problem_file(o.problem);
-  const IsingProblem& p = p_file.ising;
-  const Schedule sch = read_schedule_file(o.schedule);
-  const std::optional<OhmicBath> bath = load_bath(o.bath, p.qubits);
+  const RunInputs loaded = load_run_inputs(RunFiles{}.problem(o.problem).schedule(o.schedule).bath(o.bath).plan(
+      FilePlan{}.output(o.out, "--out").journal_of(o.out)));
+  const IsingProblem& p = loaded.problem();
+  const Schedule& sch = loaded.schedule;
+  const std::optional<OhmicBath>& bath = loaded.bath;
   check_output_path(o.out, "--out");
   check_target_probability(o.target);
   check_tolerance(o.tolerance);
   check_threads(o.threads);
-  check_memory(p.qubits, 10, 0, p_file.qubits_place);
+  loaded.check_memory(10);
   PauseMapOptions mo;
   o.duration_ns = parse_single_value(o.durations, "--durations", ListOf::Durations, "a pause map holds one anneal duration",
                                      "give one duration and run one map per duration");

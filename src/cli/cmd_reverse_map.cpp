@@ -6,6 +6,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "cli/input_loading.hpp"
 #include "cli/journaled_run.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
@@ -31,15 +32,14 @@ struct ReverseMapCli {
 };
 
 void run_reverse_map(const ReverseMapCli& o) {
-  check_file_plan(FilePlan{}.input(o.problem, "problem").input(o.schedule, "schedule").output(o.out, "--out").journal_of(o.out));
-  const ProblemFile p_file = parse_problem_file(o.problem);
-  const IsingProblem& p = p_file.ising;
-  Schedule sch = read_schedule_file(o.schedule);
-  check_output_path(o.out, "--out");
+  RunInputs loaded = load_run_inputs(
+      RunFiles{}.problem(o.problem).schedule(o.schedule).plan(FilePlan{}.output(o.out, "--out").journal_of(o.out)));
+  const IsingProblem& p = loaded.problem();
+  Schedule& sch = loaded.schedule;
   check_target_probability(o.target);
   check_tolerance(o.tolerance);
   check_threads(o.threads);
-  check_memory(p.qubits, 10, 0, p_file.qubits_place);
+  loaded.check_memory(10);
   if (!o.start_bits.empty()) {
     sch.start.kind = StartKind::Classical;
     sch.start.bits.clear();

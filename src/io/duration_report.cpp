@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "io/infinite_tts.hpp"
+#include "io/json_run_keys.hpp"
 #include "io/json_summary.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
@@ -35,14 +36,10 @@ void print_duration_report_json(const DurationReport& r, std::ostream& os) {
   const TtsOptimum& opt = st.optimum;
 
   toml::table j;
-  put(j, "problem_file", o.problem);
-  put(j, "schedule_file", o.schedule);
+  put_input_files(j, o.problem, o.schedule);
   put(j, "target", o.target);
-  put(j, "propagator", o.propagator);
-  put(j, "tolerance", o.tolerance);
-  put(j, "p_only", o.p_only);
-  put(j, "ground_energy", setup.ground.energy);
-  put(j, "ground_degeneracy", static_cast<long long>(setup.ground.degeneracy()));
+  put_propagation(j, o.propagator, o.tolerance, o.p_only);
+  put_ground_manifold(j, setup.ground);
   toml::array pts;
   for (const auto& [t, pt] : known) {
     toml::table e;

@@ -10,6 +10,7 @@
 #include <fmt/format.h>
 
 #include "hamiltonian/memory_budget.hpp"
+#include "io/embed_cost_report.hpp"
 #include "io/embedding_file.hpp"
 #include "io/input_error.hpp"
 #include "io/toml_reader.hpp"
@@ -27,15 +28,6 @@ struct PyEmbedding {
   Embedding embedding;
   std::string source;
 };
-
-long long needed_bound_code(const NeededDuration& n) {
-  switch (n.kind) {
-    case NeededDuration::Kind::Bracketed: return 0;
-    case NeededDuration::Kind::AtMost: return -1;
-    case NeededDuration::Kind::MoreThan: return 1;
-  }
-  return 0;
-}
 
 py::dict embed_cost(const PyProblem& problem, const PyEmbedding& emb, const PySchedule& schedule,
                     std::optional<std::vector<double>> strengths, bool absolute, std::optional<double> term_limit,
