@@ -13,6 +13,12 @@
 namespace gapwise::cli {
 
 namespace {
+/// How K was chosen: "all levels" (ame-full), "automatic" or "fixed, not checked".
+std::string levels_choice(const OpenAnnealResult& open) {
+  if (open.levels == 0) return "all levels";
+  return open.levels_fixed ? "fixed, not checked" : "automatic";
+}
+
 void put_bath_json(toml::table& j, const OhmicBath& bath) {
   toml::table b;
   put(b, "file", bath.source);
@@ -33,6 +39,36 @@ CLI::Option* add_bath_option(CLI::App* sub, std::string& bath_file) {
                    "temperature_mk, coupling, cutoff_ghz; see the user guide) with the adiabatic master\n"
                    "equation, full density matrix (at most 9 qubits), and report it beside the closed system")
       ->check(readable_input_file());
+}
+
+CLI::Option* add_bath_levels_option(CLI::App* sub, int& levels) {
+  return sub->add_option("--bath-levels", levels,
+                         "with --bath: keep exactly K lowest instantaneous levels (truncated master equation, any\n"
+                         "size of problem) instead of the automatic K = 6, 10, 14, ... that reruns the anneal until p\n"
+                         "changes less than the tolerance; reported as 'fixed, not checked' (0: automatic)")
+      ->capture_default_str();
+}
+
+void check_bath_levels(int levels, bool has_bath, int qubits) {
+  if (levels == 0) return;
+  if (!has_bath)
+    throw InputError({"--bath-levels", 0, 0, "--bath-levels"}, "--bath-levels is given without --bath",
+                     "add --bath FILE, or leave out --bath-levels");
+  const double states = std::ldexp(1.0, qubits);
+  if (levels < 2 || levels > states)
+    throw InputError({"--bath-levels", 0, 0, "--bath-levels"},
+                     fmt::format("{} levels kept: the problem's {} qubits have {} levels", levels, qubits, states),
+                     fmt::format("give K from 2 to {} (0: chosen automatically)", states));
+}
+
+OpenPropagatorOptions open_propagator_options(double tolerance, int levels) {
+  OpenPropagatorOptions oo{.tolerance = tolerance};
+  if (levels > 0) {
+    oo.method = "ame-truncated";
+    oo.levels = levels;
+    oo.check_levels = false;
+  }
+  return oo;
 }
 
 std::optional<OhmicBath> load_bath(const std::string& bath_file, int qubits) {
@@ -58,7 +94,11 @@ std::string open_system_text(const OhmicBath& bath, const OpenAnnealResult& open
                      open.stats.steps, open.stats.rejected_steps, open.stats.eigen_solves, open.stats.error_estimate,
                      open.wall_seconds);
   out += fmt::format("open-system method        {}", open.propagator);
-  if (open.levels > 0)
+  if (open.levels > 0 && open.levels_fixed)
+    out += fmt::format(", K = {} lowest levels, fixed by --bath-levels, not checked (highest kept level held at "
+                       "most {:.1e}; no |p(K) - p(K')|: leave out --bath-levels for the automatic K)",
+                       open.levels, open.top_level_population);
+  else if (open.levels > 0)
     out += fmt::format(", K = {} lowest levels (highest kept level held at most {:.1e}; |p(K) - p(K')| = {:.1e}{})",
                        open.levels, open.top_level_population, open.truncation_estimate,
                        open.level_cap_hit ? ", level cap reached without meeting the tolerance" : "");
@@ -79,8 +119,9 @@ void put_open_system_json(toml::table& j, const OhmicBath& bath, const OpenAnnea
   put(r, "propagator", open.propagator);
   put(r, "levels", static_cast<long long>(open.levels));
   put(r, "top_level_population", open.top_level_population);
-  put(r, "truncation_estimate", open.truncation_estimate);
+  if (std::isfinite(open.truncation_estimate)) put(r, "truncation_estimate", open.truncation_estimate);  // absent: not checked
   put(r, "level_cap_hit", open.level_cap_hit);
+  put(r, "levels_choice", levels_choice(open));
   put(r, "wall_seconds", open.wall_seconds);
   j.insert_or_assign("open_system", std::move(r));
 }
@@ -100,7 +141,8 @@ void write_open_system_hdf5(Hdf5Output& h5, const std::string& group, const Ohmi
   h5.attribute(group, "propagator", open.propagator);
   h5.attribute(group, "levels", static_cast<long long>(open.levels));
   h5.attribute(group, "top_level_population", open.top_level_population);
-  h5.attribute(group, "truncation_estimate", open.truncation_estimate);
+  h5.attribute_allowing_inf_nan(group, "truncation_estimate", open.truncation_estimate);  // NaN: check not run
+  h5.attribute(group, "levels_choice", levels_choice(open));
   h5.write(group + "/final_populations", open.populations, "1");
 }
 
