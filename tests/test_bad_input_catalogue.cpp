@@ -171,6 +171,9 @@ std::vector<Row> rows() {
       {"G10", "", "", "durations TRIANGLE LINEAR -d 1,,2"},
       {"G11", "s.toml", kScheduleHead + "a_max_ghz = 5.0\nb_max_ghz = 5.0\n[path]\ntime = \"fraction\"\n"
                         "duration_ns = 5e-324\npoints = [[0.0, 0.0], [0.3, 0.5], [1.0, 1.0]]\n", "anneal TRIANGLE DIR/s.toml"},
+      // --- h18-outputs: fixed levels of the open-system anneal ---
+      {"HO1", "", "", "anneal TRIANGLE LINEAR -d 5 --bath-levels 8"},
+      {"HO2", "b.toml", kBathHead, "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml --bath-levels 9"},
   };
 }
 

@@ -112,7 +112,7 @@ void put_open_system_json(toml::table& j, const OhmicBath& bath, const OpenAnnea
   put(r, "ground_probability", open.ground_probability);
   put(r, "max_trace_deviation", open.stats.max_trace_deviation);
   put(r, "min_eigenvalue", open.stats.min_eigenvalue);
-  put(r, "error_estimate", open.stats.error_estimate);
+  if (std::isfinite(open.stats.error_estimate)) put(r, "error_estimate", open.stats.error_estimate);  // absent: not checked
   put(r, "steps", static_cast<long long>(open.stats.steps));
   put(r, "rejected_steps", static_cast<long long>(open.stats.rejected_steps));
   put(r, "eigen_solves", static_cast<long long>(open.stats.eigen_solves));
@@ -136,7 +136,7 @@ void write_open_system_hdf5(Hdf5Output& h5, const std::string& group, const Ohmi
   h5.attribute(group, "ground_probability", open.ground_probability);
   h5.attribute(group, "max_trace_deviation", open.stats.max_trace_deviation);
   h5.attribute(group, "min_eigenvalue", open.stats.min_eigenvalue);
-  h5.attribute(group, "error_estimate", open.stats.error_estimate);
+  h5.attribute_allowing_inf_nan(group, "error_estimate", open.stats.error_estimate);  // NaN: K not checked
   h5.attribute(group, "steps", static_cast<long long>(open.stats.steps));
   h5.attribute(group, "propagator", open.propagator);
   h5.attribute(group, "levels", static_cast<long long>(open.levels));
@@ -179,7 +179,7 @@ void put_open_durations_json(toml::table& j, const OhmicBath& bath, const std::v
     put_tts(e, "tts_ns", r.open_tts.tts_ns);
     put(e, "max_trace_deviation", r.open.stats.max_trace_deviation);
     put(e, "min_eigenvalue", r.open.stats.min_eigenvalue);
-    put(e, "error_estimate", r.open.stats.error_estimate);
+    if (std::isfinite(r.open.stats.error_estimate)) put(e, "error_estimate", r.open.stats.error_estimate);
     put(e, "steps", static_cast<long long>(r.open.stats.steps));
     put(e, "propagator", r.open.propagator);
     put(e, "levels", static_cast<long long>(r.open.levels));
