@@ -90,8 +90,10 @@ std::string open_system_text(const OhmicBath& bath, const OpenAnnealResult& open
   out += fmt::format("ground-state probability  {:<15.8f} {:.8f}\n", p_closed, open.ground_probability);
   out += fmt::format("density matrix            trace error {:.1e} (largest along the run), smallest eigenvalue {:.1e}\n",
                      open.stats.max_trace_deviation, open.stats.min_eigenvalue);
-  out += fmt::format("open-system run           {} steps ({} rejected), {} eigen-decompositions, error estimate {:.1e}, {:.2f} s\n",
-                     open.stats.steps, open.stats.rejected_steps, open.stats.eigen_solves, open.stats.error_estimate,
+  out += fmt::format("open-system run           {} steps ({} rejected), {} eigen-decompositions, error estimate {}, {:.2f} s\n",
+                     open.stats.steps, open.stats.rejected_steps, open.stats.eigen_solves,
+                     std::isfinite(open.stats.error_estimate) ? fmt::format("{:.1e}", open.stats.error_estimate)
+                                                              : std::string("none (K not checked)"),
                      open.wall_seconds);
   out += fmt::format("open-system method        {}", open.propagator);
   if (open.levels > 0 && open.levels_fixed)
