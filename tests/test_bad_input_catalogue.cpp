@@ -177,6 +177,10 @@ std::vector<Row> rows() {
       {"H19L3", "", "", "diagnose TRIANGLE LINEAR -d 5 --window 0"},
       {"H19L4", "", "", "diagnose TRIANGLE LINEAR -d 5 --samples 2000000"},
       {"H19L5", "", "", "durations TRIANGLE LINEAR --probes 65"},
+
+      // --- h18-outputs: fixed levels of the open-system anneal ---
+      {"HO1", "", "", "anneal TRIANGLE LINEAR -d 5 --bath-levels 8"},
+      {"HO2", "b.toml", kBathHead, "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml --bath-levels 9"},
   };
 }
 

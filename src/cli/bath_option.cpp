@@ -13,6 +13,12 @@
 namespace gapwise::cli {
 
 namespace {
+/// How K was chosen: "all levels" (ame-full), "automatic" or "fixed, not checked".
+std::string levels_choice(const OpenAnnealResult& open) {
+  if (open.levels == 0) return "all levels";
+  return open.levels_fixed ? "fixed, not checked" : "automatic";
+}
+
 void put_bath_json(toml::table& j, const OhmicBath& bath) {
   toml::table b;
   put(b, "file", bath.source);
@@ -35,6 +41,36 @@ CLI::Option* add_bath_option(CLI::App* sub, std::string& bath_file) {
       ->check(readable_input_file());
 }
 
+CLI::Option* add_bath_levels_option(CLI::App* sub, int& levels) {
+  return sub->add_option("--bath-levels", levels,
+                         "with --bath: keep exactly K lowest instantaneous levels (truncated master equation, any\n"
+                         "size of problem) instead of the automatic K = 6, 10, 14, ... that reruns the anneal until p\n"
+                         "changes less than the tolerance; reported as 'fixed, not checked' (0: automatic)")
+      ->capture_default_str();
+}
+
+void check_bath_levels(int levels, bool has_bath, int qubits) {
+  if (levels == 0) return;
+  if (!has_bath)
+    throw InputError({"--bath-levels", 0, 0, "--bath-levels"}, "--bath-levels is given without --bath",
+                     "add --bath FILE, or leave out --bath-levels");
+  const double states = std::ldexp(1.0, qubits);
+  if (levels < 2 || levels > states)
+    throw InputError({"--bath-levels", 0, 0, "--bath-levels"},
+                     fmt::format("{} levels kept: the problem's {} qubits have {} levels", levels, qubits, states),
+                     fmt::format("give K from 2 to {} (0: chosen automatically)", states));
+}
+
+OpenPropagatorOptions open_propagator_options(double tolerance, int levels) {
+  OpenPropagatorOptions oo{.tolerance = tolerance};
+  if (levels > 0) {
+    oo.method = "ame-truncated";
+    oo.levels = levels;
+    oo.check_levels = false;
+  }
+  return oo;
+}
+
 std::optional<OhmicBath> load_bath(const std::string& bath_file, int qubits) {
   if (bath_file.empty()) return std::nullopt;
   OhmicBath bath = read_bath_file(bath_file);
@@ -54,11 +90,17 @@ std::string open_system_text(const OhmicBath& bath, const OpenAnnealResult& open
   out += fmt::format("ground-state probability  {:<15.8f} {:.8f}\n", p_closed, open.ground_probability);
   out += fmt::format("density matrix            trace error {:.1e} (largest along the run), smallest eigenvalue {:.1e}\n",
                      open.stats.max_trace_deviation, open.stats.min_eigenvalue);
-  out += fmt::format("open-system run           {} steps ({} rejected), {} eigen-decompositions, error estimate {:.1e}, {:.2f} s\n",
-                     open.stats.steps, open.stats.rejected_steps, open.stats.eigen_solves, open.stats.error_estimate,
+  out += fmt::format("open-system run           {} steps ({} rejected), {} eigen-decompositions, error estimate {}, {:.2f} s\n",
+                     open.stats.steps, open.stats.rejected_steps, open.stats.eigen_solves,
+                     std::isfinite(open.stats.error_estimate) ? fmt::format("{:.1e}", open.stats.error_estimate)
+                                                              : std::string("none (K not checked)"),
                      open.wall_seconds);
   out += fmt::format("open-system method        {}", open.propagator);
-  if (open.levels > 0)
+  if (open.levels > 0 && open.levels_fixed)
+    out += fmt::format(", K = {} lowest levels, fixed by --bath-levels, not checked (highest kept level held at "
+                       "most {:.1e}; no |p(K) - p(K')|: leave out --bath-levels for the automatic K)",
+                       open.levels, open.top_level_population);
+  else if (open.levels > 0)
     out += fmt::format(", K = {} lowest levels (highest kept level held at most {:.1e}; |p(K) - p(K')| = {:.1e}{})",
                        open.levels, open.top_level_population, open.truncation_estimate,
                        open.level_cap_hit ? ", level cap reached without meeting the tolerance" : "");
@@ -72,15 +114,16 @@ void put_open_system_json(toml::table& j, const OhmicBath& bath, const OpenAnnea
   put(r, "ground_probability", open.ground_probability);
   put(r, "max_trace_deviation", open.stats.max_trace_deviation);
   put(r, "min_eigenvalue", open.stats.min_eigenvalue);
-  put(r, "error_estimate", open.stats.error_estimate);
+  if (std::isfinite(open.stats.error_estimate)) put(r, "error_estimate", open.stats.error_estimate);  // absent: not checked
   put(r, "steps", static_cast<long long>(open.stats.steps));
   put(r, "rejected_steps", static_cast<long long>(open.stats.rejected_steps));
   put(r, "eigen_solves", static_cast<long long>(open.stats.eigen_solves));
   put(r, "propagator", open.propagator);
   put(r, "levels", static_cast<long long>(open.levels));
   put(r, "top_level_population", open.top_level_population);
-  put(r, "truncation_estimate", open.truncation_estimate);
+  if (std::isfinite(open.truncation_estimate)) put(r, "truncation_estimate", open.truncation_estimate);  // absent: not checked
   put(r, "level_cap_hit", open.level_cap_hit);
+  put(r, "levels_choice", levels_choice(open));
   put(r, "wall_seconds", open.wall_seconds);
   j.insert_or_assign("open_system", std::move(r));
 }
@@ -95,12 +138,13 @@ void write_open_system_hdf5(Hdf5Output& h5, const std::string& group, const Ohmi
   h5.attribute(group, "ground_probability", open.ground_probability);
   h5.attribute(group, "max_trace_deviation", open.stats.max_trace_deviation);
   h5.attribute(group, "min_eigenvalue", open.stats.min_eigenvalue);
-  h5.attribute(group, "error_estimate", open.stats.error_estimate);
+  h5.attribute_allowing_inf_nan(group, "error_estimate", open.stats.error_estimate);  // NaN: K not checked
   h5.attribute(group, "steps", static_cast<long long>(open.stats.steps));
   h5.attribute(group, "propagator", open.propagator);
   h5.attribute(group, "levels", static_cast<long long>(open.levels));
   h5.attribute(group, "top_level_population", open.top_level_population);
-  h5.attribute(group, "truncation_estimate", open.truncation_estimate);
+  h5.attribute_allowing_inf_nan(group, "truncation_estimate", open.truncation_estimate);  // NaN: check not run
+  h5.attribute(group, "levels_choice", levels_choice(open));
   h5.write(group + "/final_populations", open.populations, "1");
 }
 
@@ -137,7 +181,7 @@ void put_open_durations_json(toml::table& j, const OhmicBath& bath, const std::v
     put_tts(e, "tts_ns", r.open_tts.tts_ns);
     put(e, "max_trace_deviation", r.open.stats.max_trace_deviation);
     put(e, "min_eigenvalue", r.open.stats.min_eigenvalue);
-    put(e, "error_estimate", r.open.stats.error_estimate);
+    if (std::isfinite(r.open.stats.error_estimate)) put(e, "error_estimate", r.open.stats.error_estimate);
     put(e, "steps", static_cast<long long>(r.open.stats.steps));
     put(e, "propagator", r.open.propagator);
     put(e, "levels", static_cast<long long>(r.open.levels));

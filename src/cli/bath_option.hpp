@@ -18,6 +18,18 @@ namespace gapwise::cli {
 /// Adds `--bath FILE` to a command.
 CLI::Option* add_bath_option(CLI::App* sub, std::string& bath_file);
 
+/// Adds `--bath-levels K`: the truncated master equation keeps exactly K levels,
+/// without the automatic ladder of K and without its check ("fixed, not checked").
+CLI::Option* add_bath_levels_option(CLI::App* sub, int& levels);
+
+/// InputError (key --bath-levels) for K given without --bath, K < 2 or K above
+/// the 2^n levels of the problem.
+void check_bath_levels(int levels, bool has_bath, int qubits);
+
+/// The open-system options of a command: the tolerance, and with levels > 0 the
+/// truncated master equation at that K, unchecked.
+OpenPropagatorOptions open_propagator_options(double tolerance, int levels);
+
 /// The bath of `bath_file` ("" -> nullopt). InputError (key --bath) when the
 /// problem has more qubits than the full-space master equation holds.
 std::optional<OhmicBath> load_bath(const std::string& bath_file, int qubits);

@@ -33,6 +33,7 @@ namespace {
 
 struct AnnealOptions {
   std::string problem, schedule, out, csv, propagator = "split-auto", observe_s, durations, bath;
+  int bath_levels = 0;
   double tolerance = 1e-6;
   bool p_only = false;
   int trace_points = 20, top = 8, levels = 0;
@@ -48,6 +49,7 @@ void run_anneal(const AnnealOptions& o) {
   const IsingProblem& p = loaded.problem();
   const Schedule& sch = loaded.schedule;
   const std::optional<OhmicBath>& bath = loaded.bath;
+  check_bath_levels(o.bath_levels, bath.has_value(), p.qubits);
   check_tolerance(o.tolerance);
   check_count(o.trace_points, kTracePoints, "--trace-points");
   check_count(o.top, kTopOutcomes, "--top");
@@ -128,8 +130,15 @@ void run_anneal(const AnnealOptions& o) {
 
   std::optional<OpenAnnealResult> open;
   if (bath) {
-    OpenPropagatorOptions oo{.tolerance = o.tolerance};
-    if (bar.enabled()) oo.progress = [&](const PropagationProgress& pp) { bar.stage("with the bath", pp.fraction); };
+    OpenPropagatorOptions oo = open_propagator_options(o.tolerance, o.bath_levels);
+    if (bar.enabled())
+      oo.progress = [&](const PropagationProgress& pp) {
+        const bool truncated = resolve_open_method(oo.method, p.qubits) == "ame-truncated";
+        bar.stage(!truncated ? std::string("with the bath")
+                  : o.bath_levels > 0 ? fmt::format("with the bath, K = {} (fixed)", o.bath_levels)
+                                      : fmt::format("with the bath, K pass {} (K = 6, 10, ... until p settles)", pp.pass),
+                  pp.fraction);
+      };
     open = simulate_open_anneal(H, gm, sch.scales, path, psi0, *bath, oo);
   }
   bar.done();
@@ -214,6 +223,7 @@ void register_anneal(CLI::App& app) {
   sub->add_option("--csv", o->csv, "write the trace (t, s, p_ground, energy, norm) as CSV");
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   add_bath_option(sub, o->bath);
+  add_bath_levels_option(sub, o->bath_levels);
   add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
   sub->add_flag("--progress", o->progress,

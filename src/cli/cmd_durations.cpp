@@ -54,7 +54,7 @@ struct DurationsOptions {
   std::string problem, schedule, out, csv, durations, propagator = SimulationOptions{}.propagator, bath;
   bool p_only = false;
   double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3, agreement = kDefaultAgreementFactor;
-  int threads = 0, probes = 2;
+  int threads = 0, probes = 2, bath_levels = 0;
   bool json = false, no_search = false, no_predictions = false, fresh = false, quiet = false, allow_long = false;
 };
 
@@ -64,6 +64,7 @@ void run_durations(const DurationsOptions& o) {
   const IsingProblem& problem = loaded.problem();
   const Schedule& schedule = loaded.schedule;
   const std::optional<OhmicBath>& bath = loaded.bath;
+  check_bath_levels(o.bath_levels, bath.has_value(), problem.qubits);
   check_tolerance(o.tolerance);
   check_target_probability(o.target);
   check_threads(o.threads);
@@ -164,10 +165,14 @@ void run_durations(const DurationsOptions& o) {
   std::vector<OpenDurationPoint> open_rows;
   if (bath) {
     ProgressBar open_bar("durations with the bath", grid.size(), static_cast<double>(grid.size()), o.quiet ? 0 : -1);
-    open_rows = open_duration_scan(setup, *bath, grid, o.tolerance, o.target,
+    open_rows = open_duration_scan(setup, *bath, grid, open_propagator_options(o.tolerance, o.bath_levels), o.target,
                                    [&](double t) { return ev.known().at(t).ground_probability; },
                                    [&](std::size_t) { open_bar.finished_item(1.0); });
     open_bar.done();
+    // The result files again, now with the open-system datasets and columns.
+    in.bath = &*bath;
+    in.open_rows = &open_rows;
+    write_outputs(&st);
   }
 
   // ---- report
@@ -246,6 +251,7 @@ void register_durations(CLI::App& app) {
   sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");
   sub->add_flag("-q,--quiet", o->quiet, "no progress bar or resume message on stderr");
   add_bath_option(sub, o->bath);
+  add_bath_levels_option(sub, o->bath_levels);
   add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json, "print a JSON summary instead of text");
   sub->callback([o] { run_durations(*o); });

@@ -32,12 +32,19 @@ struct PauseMapCli {
   std::string problem, schedule, out, durations, at = "lin:0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = SimulationOptions{}.propagator, bath;
   double duration_ns = 0;  // from `durations`, one value
   double tolerance = 1e-6, target = kDefaultTargetProbability;
-  int threads = 0;
+  int threads = 0, bath_levels = 0;
   bool json = false, allow_long = false, fresh = false, quiet = false;
 };
 
+// The open-system map: p with the bath per cell and per unpaused reference.
+struct OpenPauseMap {
+  const OhmicBath* bath = nullptr;
+  std::vector<double> p, reference;  ///< p row-major (rows: --at), reference per pause length
+  std::vector<OpenAnnealResult> runs;  ///< every open-system run, for the method report
+};
+
 void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const PauseMap& m, std::size_t bi,
-                          std::size_t bj, double reference_tts) {
+                          std::size_t bj, double reference_tts, const OpenPauseMap& open) {
   toml::table j;
   put(j, "problem_file", o.problem);
   put(j, "schedule_file", o.schedule);
@@ -69,6 +76,55 @@ void print_pause_map_json(const PauseMapCli& o, const PauseMapOptions& mo, const
   put_tts(b, "tts_ns", m.tts_ns(bi, bj));
   put_tts(b, "reference_tts_ns", reference_tts);
   j.insert_or_assign("best", std::move(b));
+  if (open.bath) {
+    // The same grid with the bath, its best cell, and how the open system was run.
+    toml::table bt;
+    put(bt, "file", open.bath->source);
+    put(bt, "temperature_mk", open.bath->temperature_mk);
+    put(bt, "theta_ghz", open.bath->theta_ghz());
+    put(bt, "coupling", open.bath->coupling);
+    put(bt, "cutoff_ghz", open.bath->cutoff_ghz);
+    j.insert_or_assign("bath", std::move(bt));
+    toml::table os;
+    const std::size_t nj = mo.pause_ns.size();
+    toml::array orows, oref;
+    for (double v : open.reference) oref.push_back(v);
+    std::size_t oi = 0, oj = 0;
+    double obest = -2;
+    for (std::size_t i = 0; i < mo.pause_s.size(); ++i) {
+      toml::array row;
+      for (std::size_t k = 0; k < nj; ++k) {
+        const double v = open.p[i * nj + k];
+        row.push_back(v);
+        if (v - open.reference[k] > obest) { obest = v - open.reference[k]; oi = i; oj = k; }
+      }
+      orows.push_back(std::move(row));
+    }
+    os.insert_or_assign("ground_probability", std::move(orows));
+    os.insert_or_assign("reference_ground_probability", std::move(oref));
+    const OpenAnnealResult& first = open.runs.front();
+    put(os, "method", first.propagator);
+    put(os, "levels_choice", std::string(first.levels == 0 ? "all levels"
+                                         : first.levels_fixed ? "fixed, not checked" : "automatic"));
+    long long kmax = 0;
+    double trace = 0, mineig = 0;
+    for (const auto& r : open.runs) {
+      kmax = std::max<long long>(kmax, r.levels);
+      trace = std::max(trace, r.stats.max_trace_deviation);
+      mineig = std::min(mineig, r.stats.min_eigenvalue);
+    }
+    put(os, "largest_levels", kmax);
+    put(os, "max_trace_deviation", trace);
+    put(os, "min_eigenvalue", mineig);
+    toml::table ob;
+    put(ob, "pause_s", mo.pause_s[oi]);
+    put(ob, "pause_ns", mo.pause_ns[oj]);
+    put(ob, "ground_probability", open.p[oi * nj + oj]);
+    put(ob, "reference_ground_probability", open.reference[oj]);
+    put(ob, "gain", obest);
+    os.insert_or_assign("best", std::move(ob));
+    j.insert_or_assign("open_system", std::move(os));
+  }
   std::cout << to_json(j) << "\n";
 }
 
@@ -78,6 +134,7 @@ void run_pause_map(PauseMapCli o) {
   const IsingProblem& p = loaded.problem();
   const Schedule& sch = loaded.schedule;
   const std::optional<OhmicBath>& bath = loaded.bath;
+  check_bath_levels(o.bath_levels, bath.has_value(), p.qubits);
   check_output_path(o.out, "--out");
   check_target_probability(o.target);
   check_tolerance(o.tolerance);
@@ -109,15 +166,18 @@ void run_pause_map(PauseMapCli o) {
   const PauseMap m = pause_map(setup, mo, run.journal(), AnnealCounter(o.quiet));
   const bool tty = ::isatty(2) && !o.quiet;
   // With the bath: the same paths once more, open system (serial, not journaled).
-  std::vector<double> open_p, open_ref;
+  OpenPauseMap open;
+  std::vector<double>& open_p = open.p;
+  std::vector<double>& open_ref = open.reference;
   if (bath) {
+    open.bath = &*bath;
     const auto paths = pause_map_paths(setup, mo);
     std::size_t done = 0;
     std::map<std::vector<double>, double> value;
     for (const auto& [key, path] : paths) {
-      value[key] = simulate_open_anneal(setup.hamiltonian, setup.ground, sch.scales, path, setup.start, *bath,
-                                        {.tolerance = o.tolerance})
-                       .ground_probability;
+      open.runs.push_back(simulate_open_anneal(setup.hamiltonian, setup.ground, sch.scales, path, setup.start, *bath,
+                                               open_propagator_options(o.tolerance, o.bath_levels)));
+      value[key] = open.runs.back().ground_probability;
       if (tty) std::cerr << fmt::format("\r{} / {} anneals with the bath", ++done, paths.size()) << std::flush;
     }
     if (tty) std::cerr << "\n";
@@ -137,7 +197,7 @@ void run_pause_map(PauseMapCli o) {
   const double reference_tts =
       time_to_solution(m.reference[bj].total_ns, std::clamp(m.reference[bj].ground_probability, 0.0, 1.0), o.target).tts_ns;
   if (o.json) {
-    print_pause_map_json(o, mo, m, bi, bj, reference_tts);
+    print_pause_map_json(o, mo, m, bi, bj, reference_tts, open);
   } else {
     std::cout << fmt::format("problem   {} ({} qubits); schedule {}\n", terminal_text(o.problem), p.qubits, terminal_text(o.schedule));
     std::cout << fmt::format("cost      {}\n", mo.cost == PauseCost::EqualTotal
@@ -211,8 +271,14 @@ void run_pause_map(PauseMapCli o) {
   h5.attribute("/pause_map", "target_probability", o.target);
   h5.attribute("/pause_map", "tolerance", o.tolerance);
   if (bath) {
-    h5.write_matrix("/pause_map/open_system/ground_probability", open_p, ni, nj, "1");
+    h5.write_matrix("/pause_map/open_system/ground_probability", open_p, ni, nj, "1",
+                    {"/pause_map/pause_s", "/pause_map/pause_ns"});
     h5.write("/pause_map/open_system/reference_ground_probability", open_ref, "1");
+    h5.attach_scales("/pause_map/open_system/reference_ground_probability", {"/pause_map/pause_ns"});
+    h5.attribute("/pause_map/open_system", "method", open.runs.front().propagator);
+    h5.attribute("/pause_map/open_system", "levels_choice",
+                 std::string(open.runs.front().levels == 0 ? "all levels"
+                             : open.runs.front().levels_fixed ? "fixed, not checked" : "automatic"));
     h5.attribute("/pause_map/open_system", "bath_file", bath->source);
     h5.attribute("/pause_map/open_system", "temperature_mk", bath->temperature_mk);
     h5.attribute("/pause_map/open_system", "coupling", bath->coupling);
@@ -252,6 +318,7 @@ void register_pause_map(CLI::App& app) {
   sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");
   sub->add_flag("-q,--quiet", o->quiet, "no progress on stderr");
   add_bath_option(sub, o->bath);
+  add_bath_levels_option(sub, o->bath_levels);
   add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json,
                 "print a JSON summary instead of the table: the grid, p per cell (rows: --at), the unpaused\n"

@@ -117,6 +117,10 @@ struct OpenPropagatorOptions {
   /// ame-truncated: the number K of kept levels (0: chosen by the error control,
   /// from start_levels in steps of level_step up to max_levels).
   int levels = 0;
+  /// With levels > 0: also run K - 2 and report |p(K) - p(K-2)| as the
+  /// truncation estimate (true), or run K alone and report the estimate as NaN,
+  /// the K "fixed, not checked" (false; the command line's --bath-levels).
+  bool check_levels = true;
   int start_levels = 6;
   int level_step = 4;
   int max_levels = 40;
@@ -156,6 +160,7 @@ struct OpenAnnealResult {
   double lost_population = 0;         ///< population moved out of the kept levels (1 - Tr rho_K)
   double truncation_estimate = 0;     ///< |p(K) - p(K')| of the error control (NaN when not run)
   bool level_cap_hit = false;         ///< the error control reached max_levels without meeting the tolerance
+  bool levels_fixed = false;          ///< K given (levels > 0, check_levels false): not checked, estimate NaN
 };
 
 /// rho0 = |psi0><psi0| (psi0 from initial_state), propagated piece by piece

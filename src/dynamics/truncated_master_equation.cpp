@@ -226,6 +226,7 @@ void TruncatedMasterEquation::advance(const AnnealDrive& drive, double t0, doubl
     ++stats_.grid_points;
     note_top();
     t = last ? t1 : t + step;
+    if (on_interval) on_interval(t);
     // Next step: aim at 70 % of the allowed turn.
     const double grow = turn > 0 ? std::clamp(0.7 * options_.max_rotation / turn, 0.5, 2.0) : 2.0;
     dt = step * grow;
@@ -286,6 +287,9 @@ TruncatedRun run_truncated(const TransverseIsingHamiltonian& h, const GroundMani
   Eigen::Map<const Eigen::VectorXcd> psi(psi0.data(), static_cast<Eigen::Index>(h.dim()));
   me.start(drive, pts.front().t_ns, Eigen::VectorXcd(psi));
   const double duration = path.duration_ns();
+  const double t_start = pts.front().t_ns;
+  if (options.progress && duration > 0)
+    me.on_interval = [&](double t) { options.progress({pass, std::clamp((t - t_start) / duration, 0.0, 1.0)}); };
   for (std::size_t j = 0; j + 1 < pts.size(); ++j) {
     me.advance(drive, pts[j].t_ns, pts[j + 1].t_ns);
     if (options.progress) options.progress({pass, duration > 0 ? pts[j + 1].t_ns / duration : 1.0});
@@ -321,7 +325,10 @@ OpenAnnealResult simulate_truncated_open_anneal(const TransverseIsingHamiltonian
   if (options.levels > 0) {
     const int k = std::min(options.levels, dim);
     kept = run_truncated(h, ground, scales, path, psi0, bath, k, options, pass++);
-    if (k - 2 >= 2) {
+    if (!options.check_levels) {
+      out.truncation_estimate = NAN;
+      out.levels_fixed = true;
+    } else if (k - 2 >= 2) {
       previous = run_truncated(h, ground, scales, path, psi0, bath, k - 2, options, pass++);
       out.truncation_estimate = std::abs(kept.p - previous.p);
     } else {

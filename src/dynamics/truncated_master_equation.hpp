@@ -30,6 +30,7 @@
 //   me.start(drive, t0, psi0);
 //   me.advance(drive, t0, t1);            // piece by piece
 //   double p = me.probability_of(ground.states);
+#include <functional>
 #include <vector>
 
 #include <Eigen/Dense>
@@ -79,6 +80,9 @@ class TruncatedMasterEquation {
   const Eigen::VectorXd& energies() const { return here_.energies; }
   TruncatedStats stats() const;
   int levels() const { return k_; }
+  /// Called after every accepted interval with the time reached (ns): progress
+  /// inside a long piece of the path.
+  std::function<void(double t_ns)> on_interval;
 
  private:
   struct Point {

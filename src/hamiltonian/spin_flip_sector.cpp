@@ -66,8 +66,12 @@ void SectorHamiltonian::apply(double a_ghz, double b_ghz, const double* x, doubl
   // sigma^x on qubit n-1 maps representative b to p * (b with all lower bits flipped).
   const double c = (sector_ == SpinFlipSector::Even ? -0.5 : 0.5) * a_ghz;
   const std::size_t last = dim_ - 1;
-#pragma omp parallel for schedule(static) if (dim_ >= (std::size_t{1} << 16))
-  for (std::size_t k = 0; k < dim_; ++k) y[k] += c * x[last - k];
+  if (dim_ >= (std::size_t{1} << 16)) {
+#pragma omp parallel for schedule(static)
+    for (std::size_t k = 0; k < dim_; ++k) y[k] += c * x[last - k];
+  } else {  // no team of one: its barrier costs a system call (transverse_ising.hpp)
+    for (std::size_t k = 0; k < dim_; ++k) y[k] += c * x[last - k];
+  }
 }
 
 std::vector<double> SectorHamiltonian::to_full(const double* x) const {

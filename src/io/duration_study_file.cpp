@@ -35,6 +35,90 @@ void write_bracket(Hdf5Output& h5, const std::string& g, const CrossingBracket& 
 
 double clamp01(double p) { return std::clamp(p, 0.0, 1.0); }
 
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+// The open-system point at duration d (nullptr: a bisection probe, not run with the bath).
+const OpenDurationPoint* open_at(const DurationStudyInputs& in, double d) {
+  if (!in.open_rows) return nullptr;
+  for (const auto& r : *in.open_rows)
+    if (r.duration_ns == d) return &r;
+  return nullptr;
+}
+
+// /durations/open_system: one entry per grid duration, each dataset with the
+// duration axis as its dimension scale; and p_bath, tts_bath_ns in /points.
+void write_open_durations(Hdf5Output& h5, const std::string& root, const DurationStudyInputs& in,
+                          const std::map<double, DurationPoint>& known) {
+  const OhmicBath& bath = *in.bath;
+  const auto& rows = *in.open_rows;
+  const std::string g = root + "/open_system";
+  h5.group(g);
+  h5.attribute(g, "bath_file", bath.source);
+  h5.attribute(g, "temperature_mk", bath.temperature_mk);
+  h5.attribute(g, "theta_ghz", bath.theta_ghz());
+  h5.attribute(g, "coupling", bath.coupling);
+  h5.attribute(g, "cutoff_ghz", bath.cutoff_ghz);
+  h5.attribute(g, "illustrative_defaults_used",
+               static_cast<long long>(bath.temperature_defaulted || bath.coupling_defaulted || bath.cutoff_defaulted));
+  h5.attribute(g, "method", rows.empty() ? std::string("none") : rows.front().open.propagator);
+  const bool fixed = !rows.empty() && rows.front().open.levels_fixed;
+  const bool truncated = !rows.empty() && rows.front().open.levels > 0;
+  h5.attribute(g, "levels_choice", std::string(!truncated ? "all levels" : fixed ? "fixed, not checked" : "automatic"));
+  h5.attribute(g, "lamb_shift", std::string("neglected"));
+  std::vector<double> t, pc, pb, tc, tb, trace, mineig, est, top, wall;
+  std::vector<long long> levels, steps;
+  for (const auto& r : rows) {
+    t.push_back(r.duration_ns);
+    pc.push_back(r.closed_probability);
+    pb.push_back(r.open.ground_probability);
+    tc.push_back(stored_tts(r.closed_tts.tts_ns));
+    tb.push_back(stored_tts(r.open_tts.tts_ns));
+    trace.push_back(r.open.stats.max_trace_deviation);
+    mineig.push_back(r.open.stats.min_eigenvalue);
+    est.push_back(r.open.levels > 0 && std::isfinite(r.open.truncation_estimate) ? r.open.truncation_estimate : kNaN);
+    top.push_back(r.open.levels > 0 ? r.open.top_level_population : kNaN);
+    levels.push_back(r.open.levels);
+    steps.push_back(r.open.stats.steps);
+    wall.push_back(r.open.wall_seconds);
+  }
+  const std::string axis = g + "/duration_ns";
+  h5.write(axis, t, DataMeaning("ns").described("grid durations run with the bath"));
+  auto put = [&](const std::string& name, const std::vector<double>& v, const DataMeaning& m) {
+    h5.write(g + "/" + name, v, m);
+    h5.attach_scales(g + "/" + name, {axis});
+  };
+  auto put_int = [&](const std::string& name, const std::vector<long long>& v, const DataMeaning& m) {
+    h5.write(g + "/" + name, v, m);
+    h5.attach_scales(g + "/" + name, {axis});
+  };
+  put("ground_probability", pb, DataMeaning("1").described("p with the bath (adiabatic master equation)"));
+  put("closed_ground_probability", pc, DataMeaning("1").described("p of the closed system, same duration"));
+  put("tts_ns", tb, tts_meaning("ns").described("time to solution with the bath"));
+  put("closed_tts_ns", tc, tts_meaning("ns").described("time to solution of the closed system"));
+  put("max_trace_deviation", trace, DataMeaning("1").described("largest |Tr rho - 1| along the run"));
+  put("min_eigenvalue", mineig, DataMeaning("1").described("smallest eigenvalue of rho (positivity)"));
+  put("truncation_estimate", est,
+      DataMeaning("1").described("|p(K) - p(K')| of the automatic choice of K")
+          .nan_means("not applicable: all levels kept (ame-full), or K fixed by --bath-levels and not checked"));
+  put("top_level_population", top,
+      DataMeaning("1").described("largest population of the highest kept level along the run")
+          .nan_means("not applicable: all levels kept (ame-full)"));
+  put_int("levels", levels, DataMeaning("1").described("K kept levels; 0 = all levels (ame-full)"));
+  put_int("steps", steps, DataMeaning("1").described("accepted steps (grid intervals for ame-truncated)"));
+  put("wall_seconds", wall, "s");
+
+  // Beside every known point: p and TTS with the bath, NaN at bisection probes.
+  std::vector<double> pp, pt;
+  for (const auto& [d, pt_] : known) {
+    const OpenDurationPoint* r = open_at(in, d);
+    pp.push_back(r ? r->open.ground_probability : kNaN);
+    pt.push_back(r ? stored_tts(r->open_tts.tts_ns) : kNaN);
+  }
+  const std::string why = "bisection probe: only grid durations are run with the bath";
+  h5.write(root + "/points/p_bath", pp, not_applicable("1", why));
+  h5.write(root + "/points/tts_bath_ns", pt, tts_meaning("ns").nan_means(why));
+}
+
 }  // namespace
 
 void write_duration_study_hdf5(const std::string& path, const DurationStudyInputs& in,
@@ -80,7 +164,6 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     steps.push_back(pt.steps);
     wall.push_back(pt.wall_seconds);
     if (in.predictions) {
-      constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
       lz.push_back(in.predictions->lz.applicable ? in.predictions->lz.p_at(d) : kNaN);
       ad.push_back(in.predictions->adiabatic.applicable ? in.predictions->adiabatic.p_at(d) : kNaN);
     }
@@ -101,6 +184,8 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
     h5.write(pts + "/p_landau_zener", lz, not_applicable("1", "see /durations/predictions/landau_zener@why_not"));
     h5.write(pts + "/p_adiabatic", ad, not_applicable("1", "see /durations/predictions/adiabatic@why_not"));
   }
+
+  if (in.bath && in.open_rows) write_open_durations(h5, root, in, known);
 
   if (finished) {
     const std::string opt = root + "/tts_optimum";
@@ -218,18 +303,29 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
 }
 
 TextTable duration_points_table(const DurationStudyInputs& in, const std::map<double, DurationPoint>& known) {
-  TextTable t({"duration_ns", "kind", "ground_probability", "tts_ns", "repetitions", "tts_case", "p_landau_zener",
-               "p_adiabatic", "norm_drift", "steps", "wall_seconds"});
+  std::vector<std::string> head{"duration_ns", "kind", "ground_probability", "tts_ns", "repetitions", "tts_case",
+                                "p_landau_zener", "p_adiabatic", "norm_drift", "steps", "wall_seconds"};
+  if (in.open_rows) {
+    head.push_back("p_bath");
+    head.push_back("tts_bath_ns");
+  }
+  TextTable t(head);
   const std::set<double> grid(in.grid_ns.begin(), in.grid_ns.end());
   auto num = [](double x) { return fmt::format("{:.17g}", x); };
   for (const auto& [d, pt] : known) {
     const auto x = time_to_solution(d, clamp01(pt.ground_probability), in.target);
     const auto* pr = in.predictions;
-    t.add({num(d), grid.count(d) ? "grid" : "probe", num(pt.ground_probability),
+    std::vector<std::string> row{num(d), grid.count(d) ? "grid" : "probe", num(pt.ground_probability),
            tts_text(x.tts_ns, 17), tts_text(x.repetitions, 17),
            tts_case_name(x.kind), pr && pr->lz.applicable ? num(pr->lz.p_at(d)) : "",
            pr && pr->adiabatic.applicable ? num(pr->adiabatic.p_at(d)) : "", num(pt.norm_drift),
-           std::to_string(pt.steps), fmt::format("{:.3f}", pt.wall_seconds)});
+           std::to_string(pt.steps), fmt::format("{:.3f}", pt.wall_seconds)};
+    if (in.open_rows) {
+      const OpenDurationPoint* r = open_at(in, d);
+      row.push_back(r ? num(r->open.ground_probability) : "");
+      row.push_back(r ? tts_text(r->open_tts.tts_ns, 17) : "");
+    }
+    t.add(row);
   }
   return t;
 }

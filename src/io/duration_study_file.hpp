@@ -16,6 +16,7 @@
 #include "io/text_table.hpp"
 #include "studies/anneal_predictions.hpp"
 #include "studies/duration_study.hpp"
+#include "studies/open_duration_scan.hpp"
 
 namespace gapwise {
 
@@ -30,6 +31,10 @@ struct DurationStudyInputs {
   const AnnealPredictions* predictions = nullptr;  ///< null when not computed
   double agreement_factor = kDefaultAgreementFactor;  ///< see judge_prediction
   double agreement_floor = 1e-5;                      ///< accuracy of the simulated 1 - p
+  /// `durations --bath`: the bath and the open-system anneal at each grid
+  /// duration (null without a bath, or before the open-system runs are done).
+  const OhmicBath* bath = nullptr;
+  const std::vector<OpenDurationPoint>* open_rows = nullptr;
 };
 
 /// The needed duration's status as the result file (and the Python module) spells it:
@@ -41,7 +46,9 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
 
 /// One row per known duration (grid points and bisection probes), ascending:
 /// duration_ns, kind (grid/probe), ground_probability, tts_ns, repetitions,
-/// tts_case, p_landau_zener, p_adiabatic, norm_drift, steps, wall_seconds.
+/// tts_case, p_landau_zener, p_adiabatic, norm_drift, steps, wall_seconds; with
+/// in.open_rows also p_bath and tts_bath_ns (empty for bisection probes, which
+/// are not run with the bath).
 TextTable duration_points_table(const DurationStudyInputs& in, const std::map<double, DurationPoint>& known);
 
 }  // namespace gapwise

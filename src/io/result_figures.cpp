@@ -194,7 +194,19 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   fp.log_x = true;
   fp.y_range = std::pair{0.0, 1.05};
   std::vector<PlotSeries> curves;  // drawn as p here and as 1 - p in the companion figure
-  curves.push_back({"simulated", t, p, SeriesStyle::LinePoints, 0});
+  // With a bath (durations --bath): p with the bath beside the closed system's.
+  const std::string OS = R + "/open_system";
+  const bool bath = in.has(OS + "/duration_ns") && in.has(OS + "/ground_probability");
+  std::vector<double> tb, pb;
+  std::string bath_label;
+  if (bath) {
+    tb = in.read_finite(OS + "/duration_ns");
+    pb = in.read_finite(OS + "/ground_probability");
+    bath_label = fmt::format("with the bath ({:g} mK, #gy = {:g})", in.attribute_finite(OS, "temperature_mk"),
+                             in.attribute_finite(OS, "coupling"));
+  }
+  curves.push_back({bath ? "simulated, closed system" : "simulated", t, p, SeriesStyle::LinePoints, 0});
+  if (bath) curves.push_back({bath_label, tb, pb, SeriesStyle::LinePoints, 3});
   if (in.has(P + "/p_landau_zener"))
     curves.push_back({"Landau-Zener at the minimum gap", t, applicable(in.read_finite(P + "/p_landau_zener")), SeriesStyle::Dashed, 1});
   if (in.has(P + "/p_adiabatic"))
@@ -232,8 +244,8 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   std::size_t clipped = 0;
   double lo = 1 - target;
   for (auto ser : curves) {
-    if (ser.label == "simulated") {
-      clipped = miss_of(ser.y);
+    if (ser.label.rfind("simulated", 0) == 0 || (bath && ser.label == bath_label)) {
+      clipped += miss_of(ser.y);
       for (double v : ser.y) if (std::isfinite(v) && v > 0) lo = std::min(lo, v);
     } else {
       for (double& v : ser.y) if (std::isfinite(v)) v = 1 - v;
@@ -259,7 +271,14 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
   ft.log_x = ft.log_y = true;
   auto tts = in.read_finite(P + "/tts_ns");
   for (double& x : tts) if (!(x > 0) || std::isinf(x)) x = std::numeric_limits<double>::quiet_NaN();  // +inf: p = 0
-  ft.series.push_back({"TTS(t#df#u) = t#df#u ln(1 − p*) / ln(1 − p)", t, tts, SeriesStyle::LinePoints, 0});
+  ft.series.push_back({bath ? "closed system: TTS(t#df#u) = t#df#u ln(1 − p*) / ln(1 − p)"
+                            : "TTS(t#df#u) = t#df#u ln(1 − p*) / ln(1 − p)",
+                       t, tts, SeriesStyle::LinePoints, 0});
+  if (bath && in.has(OS + "/tts_ns")) {
+    auto tts_b = in.read_finite(OS + "/tts_ns");
+    for (double& x : tts_b) if (!(x > 0) || std::isinf(x)) x = std::numeric_limits<double>::quiet_NaN();
+    ft.series.push_back({bath_label, tb, tts_b, SeriesStyle::LinePoints, 3});
+  }
   if (in.has(R + "/tts_optimum")) {
     // tts_ns is +inf when p = 0 at every duration: no optimum to mark.
     const double d = in.attribute_finite(R + "/tts_optimum", "duration_ns"), v = in.attribute_double(R + "/tts_optimum", "tts_ns");
@@ -275,15 +294,17 @@ void duration_study(const Hdf5Input& in, const Emit& emit) {
 // A heat map of ground-state probability over a 2-D grid of shape parameters.
 void probability_map(const Hdf5Input& in, const Emit& emit, const std::string& root, const std::string& xname,
                      const std::string& yname, const std::string& kind, const std::string& title,
-                     const std::string& x_label, const std::string& y_label) {
+                     const std::string& x_label, const std::string& y_label, std::string axes_root = {},
+                     const std::string& extra_note = {}) {
   if (!in.has(root + "/ground_probability")) return;
+  if (axes_root.empty()) axes_root = root;
   HeatMap m;
   m.title = title;
   m.x_label = x_label;
   m.y_label = y_label;
   m.value_label = "ground-state probability p";
-  m.x = in.read_finite(root + "/" + xname);
-  m.y = in.read_finite(root + "/" + yname);
+  m.x = in.read_finite(axes_root + "/" + xname);
+  m.y = in.read_finite(axes_root + "/" + yname);
   m.values = in.read_finite(root + "/ground_probability");
   if (m.values.size() != m.x.size() * m.y.size() || m.x.empty() || m.y.empty()) return;
   // The best cell against the unpaused (or unreversed) reference of the same cost, when the file has one.
@@ -299,15 +320,16 @@ void probability_map(const Hdf5Input& in, const Emit& emit, const std::string& r
     }
   const double pb = m.values[bi * m.y.size() + bj];
   if (!reference.empty()) {
-    const std::string cost = in.has_attribute(root, "cost") ? in.attribute_string(root, "cost") : "";
+    const std::string cost = in.has_attribute(axes_root, "cost") ? in.attribute_string(axes_root, "cost") : "";
     m.note = fmt::format("best {:.4f} against {:.4f} without a pause at the same cost ({}{})", pb, reference[bj],
                          cost.empty() ? "" : cost + ", ",
-                         in.has_attribute(root, "duration_ns") ? fmt::format("T = {:g} ns", in.attribute_finite(root, "duration_ns")) : "");
+                         in.has_attribute(axes_root, "duration_ns") ? fmt::format("T = {:g} ns", in.attribute_finite(axes_root, "duration_ns")) : "");
     m.markers.push_back({m.x[bi], m.y[bj], fmt::format("best p = {:.4f}", pb)});
   } else {
     m.note = fmt::format("best p = {:.4f} at ({:.4g}, {:.4g})", pb, m.x[bi], m.y[bj]);
     m.markers.push_back({m.x[bi], m.y[bj], fmt::format("best p = {:.4f}", pb)});
   }
+  add_line(m.note, extra_note);
   emit(kind, [&](const std::string& path) { render_figure(m, path); });
   // Where the best cells come near p = 1 the linear colour scale cannot tell
   // 0.99 from 0.999: a companion map of log10(1 - p).
@@ -612,6 +634,18 @@ std::vector<std::string> draw_result_figures(const std::string& result_file, con
   duration_study(in, emit);
   probability_map(in, emit, "/pause_map", "pause_s", "pause_ns", "pause-map", "Pause map: ground-state probability",
                   "pause location s#dp#u", "pause duration (ns)");
+  // pause-map --bath: the thermal map beside the closed one (same axes, own colour scale).
+  if (in.has("/pause_map/open_system/ground_probability")) {
+    const std::string OS = "/pause_map/open_system";
+    probability_map(in, emit, OS, "pause_s", "pause_ns", "pause-map-bath",
+                    "Pause map with the bath: ground-state probability", "pause location s#dp#u", "pause duration (ns)",
+                    "/pause_map",
+                    fmt::format("bath {:g} mK, #gy = {:g}, cutoff {:g} GHz (adiabatic master equation); closed "
+                                "system: {}-pause-map",
+                                in.attribute_finite(OS, "temperature_mk"), in.attribute_finite(OS, "coupling"),
+                                in.attribute_finite(OS, "cutoff_ghz"),
+                                std::filesystem::path(result_file).stem().string()));
+  }
   probability_map(in, emit, "/reverse_map", "turn_s", "dwell_ns", "reverse-map",
                   "Reverse anneal: ground-state probability", "turn point s#dturn#u", "dwell (ns)");
   level_populations(in, emit);

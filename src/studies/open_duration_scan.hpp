@@ -26,4 +26,11 @@ std::vector<OpenDurationPoint> open_duration_scan(const AnnealSetup& setup, cons
                                                   double target, const std::function<double(double)>& closed_p,
                                                   const std::function<void(std::size_t done)>& on_point = {});
 
+/// The same with every open-system option (method, fixed K, progress).
+std::vector<OpenDurationPoint> open_duration_scan(const AnnealSetup& setup, const OhmicBath& bath,
+                                                  const std::vector<double>& durations_ns,
+                                                  const OpenPropagatorOptions& options, double target,
+                                                  const std::function<double(double)>& closed_p,
+                                                  const std::function<void(std::size_t done)>& on_point = {});
+
 }  // namespace gapwise
