@@ -105,6 +105,45 @@ double SplitOperatorPropagator::accepted_steps_per_ns() const {
   return len > 0 ? steps / len : 0.0;
 }
 
+// Measured on the benchmark's classes (errors of p against a tight run after
+// uniform steps, 10 and 12 qubits, 100 ns; see prepare()): Strang and the triple
+// jump are past their threshold from about 0.7 T rate steps, Suzuki's from 0.6,
+// Blanes-Moan's from 0.5; the first fine run takes 1/0.8 of that (its coarse
+// partner 0.8 of the fine). At tolerance 1e-6, Strang needed about 1.2 T rate
+// on the classes where p (not TV) set the step, Blanes-Moan about 0.55.
+double SplitOperatorPropagator::floor_steps(SplitComposition c) {
+  switch (c) {
+    case SplitComposition::Suzuki4: return 0.9;
+    case SplitComposition::BlanesMoan4: return 0.75;
+    default: return 1.0;
+  }
+}
+
+double SplitOperatorPropagator::start_steps(SplitComposition c) {
+  switch (c) {
+    case SplitComposition::Suzuki4: return 0.9;
+    case SplitComposition::BlanesMoan4: return 0.5;
+    default: return 1.0;
+  }
+}
+
+double SplitOperatorPropagator::fine_steps(SplitComposition c, double tolerance) {
+  const double order = c == SplitComposition::Strang2 || c == SplitComposition::Auto ? 2.0 : 4.0;
+  return std::max(floor_steps(c), start_steps(c) * std::pow(1e-6 / tolerance, 1.0 / order));
+}
+
+double SplitOperatorPropagator::first_pair_work(SplitComposition c, double tolerance) {
+  const double stages = c == SplitComposition::BlanesMoan4 ? 6 : c == SplitComposition::Suzuki4 ? 5
+                        : c == SplitComposition::Yoshida4 ? 3 : 1;
+  return stages * (1.0 + static_cast<double>(kFirstCoarse) / kFirstFine) * fine_steps(c, tolerance);
+}
+
+void SplitOperatorPropagator::switch_to_blanes_moan() {
+  composition_ = SplitComposition::BlanesMoan4;
+  weights_.clear();
+  aba_coefficients(composition_, aba_phase_, aba_rot_);
+}
+
 void SplitOperatorPropagator::open_step_aba(const AnnealDrive& drive, double t, double h, SplitState& x,
                                             double& pending_phi) const {
   constexpr double pi = std::numbers::pi;
@@ -169,35 +208,45 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
   const auto& pts = drive.path.points();
   const double total = drive.path.duration_ns();
   const double eps = 1e-12 * std::max(1.0, total);
-  // First guess for the step: h0, the splitting threshold estimated from the
-  // largest single-flip phase and the transverse rotation. Measured on seeded
-  // +-1 and Gaussian glasses with and without fields (8-14 qubits, 10-1000 ns,
-  // linear 5 GHz scales): results are meaningless from about 1.6 h0 on and
-  // converged from about 1.25 h0 on, so the coarse trial run steps 1.25 h0 and
-  // the first fine run half that.
+  // First guess for the grid. rate = the largest single-flip phase rate plus the
+  // transverse one; T x rate uniform steps is the unit the thresholds are
+  // measured in. Measured on the benchmark's five classes (10 and 12 qubits,
+  // 100 ns, linear 5 GHz scales; notebooks-free-docs/bench-steps-2026-12-04.txt):
+  // below about 0.6 T rate steps Strang's results are meaningless (p off by
+  // 1e-3 .. 1), the fourth-order methods below about 0.45-0.55 T rate; just
+  // past it the error of p falls steeply, then as h^order. The first fine run
+  // therefore takes floor_steps() x T rate steps at loose tolerances and
+  // start_steps() x (1e-6 / tolerance)^(1/order) x T rate at tight ones (the
+  // step a tolerance of 1e-6 needed on those classes, scaled by the order), so
+  // a looser tolerance starts coarser and a tighter one finer.
   const double rate = drive.scales->b_max_ghz() * flip_max_ + 2.0 * drive.scales->a_max_ghz();
-  // A tighter tolerance starts finer (error ~ h^p), so the anneal command's
-  // re-run at tolerance/10 compares two different grids.
-  const double h0 = std::min(1.0, std::pow(opt_.tolerance / 1e-6, 1.0 / order())) / std::max(rate, 1e-3);
+  // Auto at tight tolerances: Strang's first pair alone would cost more than
+  // kSwitchBias x Blanes-Moan's; start with Blanes-Moan.
+  if (adaptive_ && composition_ == SplitComposition::Strang2 &&
+      first_pair_work(SplitComposition::Strang2, opt_.tolerance) >
+          kSwitchBias * first_pair_work(SplitComposition::BlanesMoan4, opt_.tolerance))
+    switch_to_blanes_moan();
+  const double fine_per_rate = fine_steps(composition_, opt_.tolerance);
+  const double h0 = 1.0 / (std::max(rate, 1e-3) * fine_per_rate);  // the first fine run's step
   // Pieces: the path's linear pieces, cut again where s(t) crosses a knot of
   // an energy-scale table (a kink of A(s) or B(s) with linear interpolation, a
   // jump of the second derivative with the cubic): a step across a kink loses
   // the method's order and makes the error erratic in N, which step doubling
   // cannot read.
   pieces_.clear();
-  // The first pair of runs: the coarse one at about 1.25 h0 (4m steps), the
-  // fine one with 5m steps, 5/4 of it, costing 9m steps where a halving pair
-  // cost 12m. Just past the threshold the error of p need not fall with N at
-  // all: it can sit on a hump or a plateau (measured, +-1 glass of 8 qubits at
-  // 10 ns: e(400) = 1.06e-6, e(500) = 1.11e-6, e(1000) = 4.5e-7; of 14 qubits
-  // at 100 ns: 2e-8 to 4e-8 from 4000 to 9000 steps), where two close grids
-  // differ by far less than their error. The pair's difference is therefore
-  // trusted only as 1/20 of the error (err = 20 d; the 8-qubit case needs 20,
-  // the order-one reading d / (5/4 - 1) = 4 d would pass it at twice the
-  // tolerance). Later pairs halve the step and use Richardson's d / (r - 1).
+  // The first pair of runs: the coarse one with 4m steps, the fine one with 5m
+  // (h0), costing 9m steps where a halving pair costs 12m. Just past the
+  // threshold the error of p need not fall with N at all: it can sit on a hump
+  // or a plateau (measured, +-1 glass of 8 qubits at 10 ns: e(400) = 1.06e-6,
+  // e(500) = 1.11e-6, e(1000) = 4.5e-7; of 14 qubits at 100 ns: 2e-8 to 4e-8
+  // from 4000 to 9000 steps), where two close grids differ by far less than
+  // their error. This pair alone therefore accepts only with err = 20 d (the
+  // 8-qubit case needs 20). Otherwise the next grid is predicted from the
+  // pair's Richardson reading and the following pairs are read with the order
+  // they show (see below).
   auto add_piece = [&](double a, double b) {
     if (!(b > a + eps)) return;
-    const long m = std::max(1L, static_cast<long>(std::ceil((b - a) / (1.25 * h0) / kFirstCoarse)));
+    const long m = std::max(1L, static_cast<long>(std::ceil((b - a) / h0 / kFirstFine)));
     pieces_.push_back({a, b, kFirstFine * m});
   };
   const std::vector<double> no_knots;
@@ -228,25 +277,40 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
   if (keep)
     for (std::size_t k = 0; k < pieces_.size(); ++k) kept_.emplace_back(dim);
 
-  // Richardson: with a measured ratio r of successive differences (the error
-  // shrinks by r per halving), the finer run's error is d / (r - 1); r is
-  // capped at the method's 2^p and, before two halving differences exist,
-  // taken as 2 (d itself bounds the finer run's error when the coarse one is
-  // at least twice as far off); the first (4:5) pair's d is read as 20 d (above).
-  // Two differences d are controlled: that of the watched set's probability
-  // (p) to the tolerance, and TV (any set of outcomes) to others_factor x
-  // tolerance; with nothing watched, TV to the tolerance.
+  // Reading a pair of runs with N and q N steps: if the error falls as
+  // N^-k, the finer run's error is d / (q^k - 1) (Richardson). k is the
+  // method's order unless the differences so far show a slower fall: with the
+  // previous pair's ratio q1 and difference d1, the order k predicts
+  // d1 / d = (q1^k - 1) / (1 - q^-k); the largest k <= order that the measured
+  // ratio supports is used (at least 1), so a run still on a plateau is not
+  // credited with the method's order. The first (4:5) pair accepts only with
+  // err = 20 d on the controlled quantity (above); its Richardson reading at the
+  // method's order predicts the next grid. Two differences are controlled: that
+  // of the watched set's probability (p) to the tolerance, and TV (any set of
+  // outcomes) to others_factor x tolerance; with nothing watched, TV to the
+  // tolerance (and TV takes the 20 d rule). Accepted when both are at most half
+  // their limit; otherwise the next grid aims at 0.4 x the limit, q from 1.4 to 4.
   const bool watching = !opt_.watched_states.empty();
   const double tv_limit = watching ? opt_.others_factor * opt_.tolerance : opt_.tolerance;
-  const double ideal = std::pow(2.0, order());
-  auto shrink = [&](double previous, double now) {
-    return previous > 0.0 && now > 0.0 ? std::clamp(previous / now, 2.0, ideal) : 2.0;
+  const double full_order = order();
+  auto supported_order = [&](double q1, double d1, double q, double d) {
+    if (!(d1 > 0.0) || !(d > 0.0)) return full_order;  // no second difference to compare
+    const double ratio = d1 / d;
+    for (double k = full_order; k > 1.0; k -= 0.125)
+      if ((std::pow(q1, k) - 1.0) / (1.0 - std::pow(q, -k)) <= ratio) return k;
+    return 1.0;
+  };
+  auto grid_steps = [&] {
+    double g = 0;
+    for (const auto& p : pieces_) g += static_cast<double>(p.steps);
+    return g;
   };
   long steps = 0;
   pass_ = 0;
   coarse_.load(psi);
   steps += run_pieces(drive, coarse_, kFirstCoarse, kFirstFine, false);
-  double err = 0.0, err_tv = 0.0, previous_tv = -1.0, previous_dp = -1.0;
+  double err = 0.0, err_tv = 0.0;
+  double q = static_cast<double>(kFirstFine) / kFirstCoarse, q_prev = 0.0, dp_prev = 0.0, tv_prev = 0.0;
   for (bool first = true;; first = false) {
     x_.load(psi);
     steps += run_pieces(drive, x_, 1, 1, keep);
@@ -254,41 +318,43 @@ void SplitOperatorPropagator::prepare(const AnnealDrive& drive, double t_start, 
     const double dp = watching ? std::abs(x_.probability_of(opt_.watched_states) -
                                           coarse_.probability_of(opt_.watched_states))
                                : tv;
-    err_tv = first ? kFirstPairFactor * tv : tv / (shrink(previous_tv, tv) - 1.0);
-    err = watching ? (first ? kFirstPairFactor * dp : dp / (shrink(previous_dp, dp) - 1.0)) : err_tv;
+    const double k_p = first ? full_order : supported_order(q_prev, dp_prev, q, dp);
+    const double k_tv = first ? full_order : supported_order(q_prev, tv_prev, q, tv);
+    const double rich_p = dp / (std::pow(q, k_p) - 1.0), rich_tv = tv / (std::pow(q, k_tv) - 1.0);
+    err = first ? kFirstPairFactor * dp : rich_p;
+    err_tv = first && !watching ? kFirstPairFactor * tv : rich_tv;
     if (!std::isfinite(err) || !std::isfinite(err_tv))
       throw std::runtime_error("the state became non-finite during split-operator propagation");
     if (err <= 0.5 * opt_.tolerance && err_tv <= 0.5 * tv_limit) break;
+    // How much finer the next grid must be, from the Richardson readings.
+    const double need = std::max(std::pow(rich_p / (0.4 * opt_.tolerance), 1.0 / k_p),
+                                 std::pow(rich_tv / (0.4 * tv_limit), 1.0 / k_tv));
     // Auto: second order is the cheapest while the splitting threshold sets the
-    // step (one stage per step). The first pair's Richardson reading at order
-    // 2, d / ((5/4)^2 - 1) (not the cautious 20 d used for acceptance), predicts
-    // the step factor Strang still needs; from kSwitchSteps on (three halvings:
-    // 9 + 70 = 79 grid units of work against Blanes-Moan's 6 x 9 = 54 at the
-    // threshold grid, where the benchmark's classes accept it) start over with
+    // step (one stage per step). When the first pair predicts that Strang's
+    // remaining work (need x its fine grid) exceeds kSwitchBias x a Blanes-Moan
+    // first pair (the classes whose outcome distribution, TV, converges slowly:
+    // degenerate ground manifolds; anneals far from adiabatic), start over with
     // Blanes-Moan. The Strang runs count in the statistics.
-    const double richardson2 = std::pow(static_cast<double>(kFirstFine) / kFirstCoarse, 2) - 1.0;
     if (first && adaptive_ && composition_ == SplitComposition::Strang2 &&
-        std::max(dp / richardson2 / (0.5 * opt_.tolerance), tv / richardson2 / (0.5 * tv_limit)) >
-            kSwitchSteps * kSwitchSteps) {
-      composition_ = SplitComposition::BlanesMoan4;
-      weights_.clear();
-      aba_coefficients(composition_, aba_phase_, aba_rot_);
+        need * fine_per_rate > kSwitchBias * first_pair_work(SplitComposition::BlanesMoan4, opt_.tolerance)) {
+      switch_to_blanes_moan();
       stats.steps += steps;
       stats.hamiltonian_applications += steps;  // one stage per Strang step
       prepare(drive, t_start, psi, stats);
       return;
     }
-    // Only differences of halvings are compared with each other.
-    previous_tv = first ? -1.0 : tv;
-    previous_dp = first ? -1.0 : dp;
-    double grid = 0;
-    for (auto& p : pieces_) grid += 2.0 * static_cast<double>(p.steps);
-    if (grid > kMaxStepsPerRun)
+    const double q_next = std::clamp(need, 1.4, 4.0);
+    const double before = grid_steps();
+    if (2.0 * before * q_next > kMaxStepsPerRun)
       throw std::runtime_error(fmt::format(
           "split propagator: the estimated error {:.2e} is still above the tolerance with {:.0f} steps; "
-          "raise the tolerance or use the odeint propagator", err, grid / 2));
+          "raise the tolerance or use the odeint propagator", err, before));
+    for (auto& p : pieces_) p.steps = static_cast<long>(std::ceil(static_cast<double>(p.steps) * q_next));
+    q_prev = q;
+    dp_prev = dp;
+    tv_prev = tv;
+    q = grid_steps() / before;
     std::swap(coarse_, x_);
-    for (auto& p : pieces_) p.steps *= 2;
   }
   others_error_ = err_tv;
   replay_pass_ = pass_ + 1;

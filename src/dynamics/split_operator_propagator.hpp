@@ -16,7 +16,7 @@
 // merged, also across consecutive steps inside a piece, so a step of S stages
 // costs S rotation sweeps, each fused with one phase (one more per piece).
 //
-// Error control by step doubling over the whole run (global Richardson), on
+// Error control by refining the whole run (global Richardson), on
 // the quantity users read: outcome probabilities. Splitting has a sharp
 // accuracy threshold (the phase pi h b dE of a single spin flip must stay well
 // below pi per step), after which the error of probabilities falls much faster
@@ -32,14 +32,17 @@
 //                                        the ground manifold in simulate_anneal)
 //   TV  = (1/2) sum_b | p_fine(b) - p_coarse(b) |
 //
-// as err = d / (r - 1) each (TV bounds the difference of the probability of
-// any set of outcomes). r is the measured ratio of successive differences,
-// capped at 2^p (Richardson); the first pair's difference is read as
-// err = 20 d (just past the splitting threshold the error can stall in N, see
-// prepare), and the first halving's as err = d (r = 2). Accepted
-// when err_p <= tolerance/2 and err_TV <= others_factor x tolerance/2
-// (nothing watched: err_TV <= tolerance/2); else N doubles (the old fine run
-// becomes the coarse one). The
+// (TV bounds the difference of the probability of any set of outcomes). The
+// first pair's d of the controlled quantity is read as err = 20 d (just past
+// the splitting threshold the error can stall in N, see prepare); every later
+// pair, N and q N steps, as err = d / (q^k - 1), k the method's order or less
+// when successive differences fall more slowly than that order predicts.
+// Accepted when err_p <= tolerance/2 and err_TV <= others_factor x tolerance/2
+// (nothing watched: err_TV <= tolerance/2); else the next grid is q times
+// finer, q (1.4 to 4) predicted from the Richardson reading to land at 0.4 x
+// the limit (the old fine run becomes the coarse one). The first grid scales
+// with the tolerance: coarser when it is looser (down to just past the
+// composition's threshold), finer when it is tighter. The
 // run the caller sees then replays the
 // accepted fine run on the same grid (bit for bit, so the estimate is its
 // own); states at the path's waypoints are kept from the pilot, so a run
@@ -80,14 +83,26 @@ class SplitOperatorPropagator final : public Propagator {
  public:
   SplitOperatorPropagator(const TransverseIsingHamiltonian& h, PropagatorOptions options, SplitComposition composition);
   std::string name() const override;
-  /// Auto: the step-count factor second order may still need before the switch.
-  static constexpr double kSwitchSteps = 6.0;
+  /// Auto: Blanes-Moan is taken (from the start, or after Strang's first pair)
+  /// when Strang's predicted remaining work exceeds this fraction of a
+  /// Blanes-Moan first pair (work in exponential stages; see prepare()).
+  static constexpr double kSwitchBias = 0.65;
   /// The composition in use (Auto: Strang2 until it switches to BlanesMoan4).
   SplitComposition composition() const { return composition_; }
   void advance(const AnnealDrive& drive, double t0_ns, double t1_ns, QuantumState& psi,
                PropagationStats& stats) override;
 
   int order() const { return composition_ == SplitComposition::Strang2 ? 2 : 4; }
+  /// Steps of the first fine run per unit of T x rate (rate: the largest
+  /// single-flip phase rate plus twice A's), at loose tolerances: just past the
+  /// composition's splitting threshold (measured, see prepare()).
+  static double floor_steps(SplitComposition c);
+  /// The same at tolerance 1e-6; scaled by (1e-6 / tolerance)^(1/order) at others.
+  static double start_steps(SplitComposition c);
+  /// The first fine run's steps per unit of T x rate: the larger of the two.
+  static double fine_steps(SplitComposition c, double tolerance);
+  /// Work (exponential stages per unit of T x rate) of the first pair of runs.
+  static double first_pair_work(SplitComposition c, double tolerance);
   /// One composed step of length h_ns from t_ns, no error control (used by the
   /// step-doubling controller, and by tests of the order of convergence).
   void fixed_step(const AnnealDrive& drive, double t_ns, double h_ns, SplitState& x) const;
@@ -116,6 +131,7 @@ class SplitOperatorPropagator final : public Propagator {
     double h() const { return (t1 - t0) / static_cast<double>(steps); }
     double at(long j) const { return j == steps ? t1 : t0 + static_cast<double>(j) * h(); }
   };
+  void switch_to_blanes_moan();
   void open_step_aba(const AnnealDrive& drive, double t_ns, double h_ns, SplitState& x, double& pending_phi) const;
   void prepare(const AnnealDrive& drive, double t_start, const QuantumState& psi, PropagationStats& stats);
   /// Runs x through the pieces with `factor` times the grid's steps; keeps the
