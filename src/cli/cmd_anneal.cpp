@@ -14,6 +14,7 @@
 #include "io/output_paths.hpp"
 #include "dynamics/accuracy_guard.hpp"
 #include "dynamics/anneal_simulation.hpp"
+#include "frame/frame_point_cache.hpp"
 #include "dynamics/level_population_observer.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
@@ -86,6 +87,8 @@ void run_anneal(const AnnealOptions& o) {
                      "add --observe-s, e.g. --observe-s 0.3,0.5,0.7");
 
   SimulationOptions sim;
+  // The run and its accuracy re-run share the solved eigenpairs (frame propagator only).
+  sim.propagation.frame_cache = std::make_shared<FramePointCache>();
   sim.propagator = o.propagator;
   sim.propagation.tolerance = o.tolerance;
   if (o.p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();
@@ -193,6 +196,7 @@ void run_anneal(const AnnealOptions& o) {
     if (r.propagator == "frame") {
       put(j, "frame_levels", static_cast<long long>(r.stats.frame_levels));
       put(j, "frame_grid_points", static_cast<long long>(r.stats.frame_grid_points));
+      put(j, "frame_reused_points", static_cast<long long>(r.stats.frame_reused_points));
       put(j, "frame_top_level_population", r.stats.frame_top_level_population);
       put(j, "frame_truncation_estimate", r.stats.frame_truncation_estimate);
       put(j, "frame_pieces", static_cast<long long>(r.stats.frame_pieces));
@@ -258,8 +262,10 @@ void run_anneal(const AnnealOptions& o) {
                                "                          plus the change of p when K drops to 3K/4, plus the start's\n"
                                "                          weight outside the kept levels; summed over pieces)\n",
                                fs.error_estimate);
-      std::cout << fmt::format("frame                     K = {} levels, {} grid points, {} eigen-solves ({} warm started)\n",
-                               fs.frame_levels, fs.frame_grid_points, fs.frame_eigen_solves, fs.frame_warm_solves);
+      std::cout << fmt::format("frame                     K = {} levels, {} grid points, {} eigen-solves ({} warm started),\n"
+                               "                          {} points reused from earlier pieces or runs\n",
+                               fs.frame_levels, fs.frame_grid_points, fs.frame_eigen_solves, fs.frame_warm_solves,
+                               fs.frame_reused_points);
       std::cout << fmt::format("leakage                   largest population of the highest kept level {:.1e}; change of p\n"
                                "                          with K {:.1e}\n",
                                fs.frame_top_level_population, fs.frame_truncation_estimate);
@@ -305,6 +311,7 @@ void run_anneal(const AnnealOptions& o) {
     if (r.propagator == "frame") {
       h5.attribute("/anneal", "frame_levels", static_cast<long long>(r.stats.frame_levels));
       h5.attribute("/anneal", "frame_grid_points", static_cast<long long>(r.stats.frame_grid_points));
+      h5.attribute("/anneal", "frame_reused_points", static_cast<long long>(r.stats.frame_reused_points));
       h5.attribute("/anneal", "frame_top_level_population", r.stats.frame_top_level_population);
       h5.attribute("/anneal", "frame_truncation_estimate", r.stats.frame_truncation_estimate);
       h5.attribute("/anneal", "frame_pieces", static_cast<long long>(r.stats.frame_pieces));
