@@ -1,14 +1,14 @@
 // Long anneals: the frame propagator ("frame") beside full-space propagation
-// (split4), side by side in one run, on seeded Gaussian spin glasses (ring plus
+// (split-auto, the default), side by side in one run, on seeded Gaussian spin glasses (ring plus
 // 0.5 random chords per qubit, seed 2026) WITH real-valued fields h_i drawn
 // uniformly from [-0.5, 0.5] (seed 2027), under linear scales A = 5 GHz (1 - s),
 // B = 5 GHz s, tolerance 1e-6 on p.
 //
 //   build/bench/bench_frame --n 10 --durations-us 1,10,100 --full-max-us 10
 //
-// Each row: qubits, duration, propagator, wall seconds, p, |p - p_split4| when
-// split4 ran, the frame's K, grid points, eigen-solves (and how many were warm
-// started), pieces that fell back to split4, and the process's peak memory.
+// Each row: qubits, duration, propagator, wall seconds, p, |p - p_split-auto| when
+// split-auto ran, the frame's K, grid points, eigen-solves (and how many were warm
+// started), points taken from the shared store, pieces that fell back to split4, and the process's peak memory.
 // Times on a shared machine are noisy: compare rows of the same run only.
 //
 // --build-only: instead, the frame's construction alone (K levels over s: 0 -> 1
@@ -30,6 +30,7 @@
 #include <chrono>
 
 #include "dynamics/anneal_simulation.hpp"
+#include "frame/frame_point_cache.hpp"
 #include "frame/instantaneous_frame.hpp"
 #include "problem/classical_spectrum.hpp"
 #include "problem/instance_families.hpp"
@@ -67,7 +68,7 @@ int main(int argc, char** argv) {
   double tol = 1e-6;
   app.add_option("--n", n, "qubits")->capture_default_str();
   app.add_option("--durations-us", durations, "comma-separated durations in microseconds")->capture_default_str();
-  app.add_option("--full-max-us", full_max_us, "run split4 only up to this duration")->capture_default_str();
+  app.add_option("--full-max-us", full_max_us, "run split-auto only up to this duration")->capture_default_str();
   app.add_option("--tolerance", tol, "tolerance on p")->capture_default_str();
   bool build_only = false;
   int levels = 8;
@@ -101,25 +102,29 @@ int main(int argc, char** argv) {
     }
     return 0;
   }
-  std::printf("%3s %10s %8s %9s %12s %10s %3s %6s %7s %6s %5s %8s\n", "n", "T_us", "prop", "wall_s", "p", "|dp|",
-              "K", "points", "solves", "warm", "fallb", "peak_MiB");
+  std::printf("%3s %10s %12s %9s %12s %10s %3s %6s %7s %6s %6s %5s %8s\n", "n", "T_us", "prop", "wall_s", "p", "|dp|",
+              "K", "points", "solves", "warm", "reused", "fallb", "peak_MiB");
+  // frame-shared: one store of solved eigenpairs for all durations of the run,
+  // in the order given (as a duration study shares it); frame: a fresh frame each.
+  const auto shared_cache = std::make_shared<FramePointCache>();
   std::stringstream ss(durations);
   for (std::string item; std::getline(ss, item, ',');) {
     const double us = std::stod(item);
     const AnnealPath path = sch.path_for(us * 1000.0);
     const QuantumState psi0 = initial_state(h, sch, path);
     double p_full = std::nan("");
-    for (const char* prop : {"split4", "frame"}) {
-      if (std::string(prop) == "split4" && us > full_max_us) continue;
+    for (const char* prop : {"split-auto", "frame", "frame-shared"}) {
+      if (std::string(prop) == "split-auto" && us > full_max_us) continue;
       SimulationOptions o;
-      o.propagator = prop;
+      o.propagator = std::string(prop) == "frame-shared" ? "frame" : prop;
+      if (std::string(prop) == "frame-shared") o.propagation.frame_cache = shared_cache;
       o.propagation.tolerance = tol;
       const AnnealResult r = simulate_anneal(h, gm, sch.scales, path, psi0, o);
-      if (std::string(prop) == "split4") p_full = r.ground_probability;
+      if (std::string(prop) == "split-auto") p_full = r.ground_probability;
       const PropagationStats& s = r.stats;
-      std::printf("%3d %10.3g %8s %9.2f %12.9f %10.2e %3d %6ld %7ld %6ld %5ld %8.0f\n", n, us, prop, r.wall_seconds,
+      std::printf("%3d %10.3g %12s %9.2f %12.9f %10.2e %3d %6ld %7ld %6ld %6ld %5ld %8.0f\n", n, us, prop, r.wall_seconds,
                   r.ground_probability, std::abs(r.ground_probability - p_full), s.frame_levels, s.frame_grid_points,
-                  s.frame_eigen_solves, s.frame_warm_solves, s.frame_fallback_pieces, peak_mib());
+                  s.frame_eigen_solves, s.frame_warm_solves, s.frame_reused_points, s.frame_fallback_pieces, peak_mib());
       std::fflush(stdout);
     }
   }

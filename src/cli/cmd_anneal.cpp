@@ -15,6 +15,7 @@
 #include "io/output_paths.hpp"
 #include "dynamics/accuracy_guard.hpp"
 #include "dynamics/anneal_simulation.hpp"
+#include "frame/frame_point_cache.hpp"
 #include "dynamics/level_population_observer.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/anneal_report.hpp"
@@ -88,6 +89,8 @@ void run_anneal(const AnnealOptions& o) {
                      "add --observe-s, e.g. --observe-s 0.3,0.5,0.7");
 
   SimulationOptions sim;
+  // The run and its accuracy re-run share the solved eigenpairs (frame propagator only).
+  sim.propagation.frame_cache = std::make_shared<FramePointCache>();
   sim.propagator = o.propagator;
   sim.propagation.tolerance = o.tolerance;
   if (o.p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();

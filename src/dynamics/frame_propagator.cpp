@@ -8,6 +8,7 @@
 #include <Eigen/Eigenvalues>
 
 #include "dynamics/split_operator_propagator.hpp"
+#include "frame/frame_point_cache.hpp"
 #include "frame/instantaneous_frame.hpp"
 #include "frame/oscillatory_quadrature.hpp"
 #include "spectrum/lowest_levels.hpp"
@@ -210,7 +211,8 @@ double total_variation(const QuantumState& x, const QuantumState& y) {
 }  // namespace
 
 FramePropagator::FramePropagator(const TransverseIsingHamiltonian& h, PropagatorOptions options)
-    : h_(&h), opt_(std::move(options)) {
+    : h_(&h), opt_(std::move(options)), cache_(opt_.frame_cache) {
+  if (!cache_) cache_ = std::make_shared<FramePointCache>();
   full_ = std::make_unique<SectorHamiltonian>(h, SpinFlipSector::Full);
   if (!h.problem().has_fields() && h.qubits() >= 2) {
     even_ = std::make_unique<SectorHamiltonian>(h, SpinFlipSector::Even);
@@ -261,15 +263,50 @@ bool FramePropagator::advance_in_frame(const AnnealDrive& drive, double t0, doub
   // K must not cut a near-degenerate group at the start (near s = 0 the first
   // excited level of the transverse term is n-fold degenerate): a cut group's
   // kept part is an arbitrary pick inside it, and its couplings are noise.
+  fo.cache = cache_.get();
+  fo.first_ds = next_ds_;
+  // The levels at s0 for that check: solved once with vectors (kmax + 1 of
+  // them) and stored, so that the frames starting there take them too.
   auto whole_groups = [&](int want) {
-    LevelOptions lo;
-    lo.levels = std::min(kmax + 1, static_cast<int>(sec.dim()));
-    Levels lv = lowest_levels(sec, drive.scales->a_ghz(s0), drive.scales->b_ghz(s0), lo);
-    ++stats.frame_eigen_solves;
+    const int levels = std::min(kmax + 1, static_cast<int>(sec.dim()));
+    // A stored point at s0 with fewer levels (the end of the previous piece)
+    // answers when a gap shows up among its levels.
+    if (const auto few = cache_->find(sec, *drive.scales, s0, std::min(want, kmax) + 1)) {
+      const std::vector<double>& e = few->energies_ghz;
+      int kk = std::min(want, kmax);
+      while (kk < static_cast<int>(e.size()) &&
+             e[static_cast<std::size_t>(kk)] - e[static_cast<std::size_t>(kk - 1)] < fo.group_gap_ghz)
+        ++kk;
+      if (kk < static_cast<int>(e.size())) {
+        cache_->count_reuse();
+        ++stats.frame_reused_points;
+        return kk;
+      }
+    }
+    std::shared_ptr<const SolvedPoint> at = cache_->find(sec, *drive.scales, s0, levels);
+    if (at) {
+      cache_->count_reuse();
+      ++stats.frame_reused_points;
+    } else {
+      LevelOptions lo;
+      lo.levels = levels;
+      lo.vectors = true;
+      Levels lv = lowest_levels(sec, drive.scales->a_ghz(s0), drive.scales->b_ghz(s0), lo);
+      ++stats.frame_eigen_solves;
+      stats.hamiltonian_applications += lv.operator_applications;
+      auto sp = std::make_shared<SolvedPoint>();
+      sp->s = s0;
+      sp->energies_ghz = lv.energies_ghz;
+      sp->vectors = std::move(lv.vectors);
+      for (Eigen::Index c = 0; c < sp->vectors.cols(); ++c) sp->vectors.col(c).normalize();
+      sp->h_applications = lv.operator_applications;
+      cache_->store(sec, *drive.scales, *sp);
+      at = sp;
+    }
+    const std::vector<double>& e = at->energies_ghz;
     int kk = std::min(want, kmax);
-    while (kk < static_cast<int>(lv.energies_ghz.size()) &&
-           lv.energies_ghz[static_cast<std::size_t>(kk)] - lv.energies_ghz[static_cast<std::size_t>(kk - 1)] <
-               fo.group_gap_ghz)
+    while (kk < static_cast<int>(e.size()) &&
+           e[static_cast<std::size_t>(kk)] - e[static_cast<std::size_t>(kk - 1)] < fo.group_gap_ghz)
       ++kk;
     return kk;
   };
@@ -289,6 +326,8 @@ bool FramePropagator::advance_in_frame(const AnnealDrive& drive, double t0, doub
     }
     stats.frame_eigen_solves += fr->eigen_solves();
     stats.frame_warm_solves += fr->warm_solves();
+    stats.frame_reused_points += fr->reused_points();
+    stats.hamiltonian_applications += fr->h_applications();
     const int kk = fr->levels();
     const Eigen::VectorXcd c0 = fr->first_vectors_full().cast<Complex>().adjoint() * x;
     const double outside = std::max(0.0, 1.0 - c0.squaredNorm());
@@ -319,6 +358,7 @@ bool FramePropagator::advance_in_frame(const AnnealDrive& drive, double t0, doub
     const bool ok = err_p <= tol / 2 && (w.empty() || err_tv <= opt_.others_factor * tol / 2);
     if (ok) {
       psi = psi_fine;
+      if (!pause) next_ds_ = fr->next_ds();
       stats.steps += static_cast<long>(fr->intervals().size());
       stats.frame_grid_points += static_cast<long>(fr->points().size());
       stats.frame_levels = std::max(stats.frame_levels, kk);

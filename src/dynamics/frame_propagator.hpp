@@ -41,6 +41,7 @@
 namespace gapwise {
 
 class InstantaneousFrame;
+class FramePointCache;
 
 /// The K amplitudes at the end of a frame (not a pause) from c0 at its start:
 /// the interval steps alone, no error control (for convergence studies).
@@ -65,6 +66,8 @@ class FramePropagator final : public Propagator {
 
   const TransverseIsingHamiltonian* h_;
   PropagatorOptions opt_;
+  std::shared_ptr<FramePointCache> cache_;  ///< opt_.frame_cache, or one of its own
+  double next_ds_ = 0.0;                     ///< where the last piece's grid controller stood (0: none yet)
   std::unique_ptr<SectorHamiltonian> full_, even_, odd_;
 };
 

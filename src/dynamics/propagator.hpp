@@ -19,6 +19,8 @@
 
 namespace gapwise {
 
+class FramePointCache;
+
 /// Where a propagation stands, for a progress display. A propagator may pass
 /// over the path more than once: the split propagators' trial runs of the step
 /// doubling are passes 1, 2, ... and their final run along the chosen grid (the
@@ -48,6 +50,11 @@ struct PropagatorOptions {
   /// comes every ProgressTicker::kCheckEvery steps); the calls at fraction 1 are
   /// always made.
   double progress_interval_s = 0.25;
+  /// The frame propagator's store of solved eigenpairs (src/frame/frame_point_cache.hpp),
+  /// shared by every anneal of one problem and schedule (a duration study's
+  /// durations, the accuracy re-run). Empty: each frame propagator keeps its own,
+  /// shared by the pieces of its anneal. Other propagators ignore it.
+  std::shared_ptr<FramePointCache> frame_cache;
 };
 
 /// The throttle every propagator reports through: counts steps and looks at
@@ -92,6 +99,7 @@ struct PropagationStats {
   long frame_grid_points = 0;        ///< grid points in s over all pieces run in the frame
   long frame_eigen_solves = 0;       ///< eigen-decompositions (accepted and rejected grid points, all K tried)
   long frame_warm_solves = 0;        ///< of those, warm started from the previous point's vectors
+  long frame_reused_points = 0;      ///< grid points taken from the frame cache (solved by an earlier frame; not in frame_eigen_solves)
   double frame_top_level_population = 0.0;  ///< largest population seen on the highest kept level (leakage indicator)
   double frame_truncation_estimate = 0.0;   ///< sum over pieces of |p(K) - p(K')|, K' < K (change of p with K)
   long frame_pieces = 0;             ///< pieces run in the frame

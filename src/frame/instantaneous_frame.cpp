@@ -11,6 +11,7 @@
 #include <fmt/format.h>
 #include <unsupported/Eigen/MatrixFunctions>
 
+#include "frame/frame_point_cache.hpp"
 #include "spectrum/lowest_levels.hpp"
 
 namespace gapwise {
@@ -81,7 +82,7 @@ constexpr int kWarmGuard = 4;
 /// residuals are not below tol x max(1, |E|) GHz after the rounds (the caller
 /// then solves from scratch). On success x holds the new Ritz vectors (p).
 bool warm_start_levels(const SectorHamiltonian& h, double a, double b, const Eigen::MatrixXd& x0, int want, double tol,
-                       std::vector<double>& energies, Eigen::MatrixXd& x) {
+                       std::vector<double>& energies, Eigen::MatrixXd& x, long& applications) {
   const Eigen::Index dim = x0.rows(), p = x0.cols();
   constexpr int kDepth = 4, kRounds = 6;
   if (kDepth * p > dim) return false;
@@ -92,6 +93,7 @@ bool warm_start_levels(const SectorHamiltonian& h, double a, double b, const Eig
     for (int d = 1; d < kDepth; ++d)
       for (Eigen::Index c = 0; c < p; ++c)
         h.apply(a, b, krylov.col((d - 1) * p + c).data(), krylov.col(d * p + c).data());
+    applications += (kDepth - 1) * p + kDepth * p;
     // Orthonormal basis of the block (Householder QR: orthonormal even when
     // columns are nearly dependent, as they become near convergence).
     Eigen::HouseholderQR<Eigen::MatrixXd> qr(krylov);
@@ -142,16 +144,36 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
   // start (a level entering the kept set from above is already in the block).
   const int block = static_cast<int>(std::min<long>(solve_levels + (options.warm_start ? kWarmGuard : 0), dim));
   auto eigen_at = [&](double s, const Trial* from) {
-    ++solves_;
     const double a = scales.a_ghz(s), b = scales.b_ghz(s);
     Trial t;
     t.s = s;
-    bool warm = false;
-    if (options.warm_start && from != nullptr && from->warm.cols() == block && a != 0.0 && block < dim) {
-      warm = warm_start_levels(h, a, b, from->warm, solve_levels, options.warm_tolerance, t.energies, t.warm);
-      if (warm) ++warm_solves_;
+    bool warm = false, reused = false;
+    if (options.cache != nullptr) {
+      if (const auto cp = options.cache->find(h, scales, s, block)) {
+        t.energies.assign(cp->energies_ghz.begin(),
+                          cp->energies_ghz.begin() + std::min<long>(solve_levels, static_cast<long>(cp->energies_ghz.size())));
+        t.warm = cp->vectors.leftCols(block);
+        options.cache->count_reuse();
+        ++reused_;
+        reused = true;
+      }
     }
-    if (!warm) {
+    if (!reused) ++solves_;
+    if (!reused && options.warm_start && from != nullptr && from->warm.cols() == block && a != 0.0 && block < dim) {
+      long apps = 0;
+      warm = warm_start_levels(h, a, b, from->warm, solve_levels, options.warm_tolerance, t.energies, t.warm, apps);
+      h_applications_ += apps;
+      if (warm) ++warm_solves_;
+      if (warm && options.cache != nullptr) {
+        SolvedPoint sp;
+        sp.s = s;
+        sp.energies_ghz = t.energies;
+        sp.vectors = t.warm.leftCols(std::min<Eigen::Index>(t.warm.cols(), static_cast<Eigen::Index>(t.energies.size())));
+        sp.h_applications = apps;
+        options.cache->store(h, scales, std::move(sp));
+      }
+    }
+    if (!reused && !warm) {
       LevelOptions lo;
       lo.levels = block;
       lo.vectors = true;
@@ -164,6 +186,7 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
         lv = lowest_levels(h, a, b, lo);  // the seeded solve did not converge: from scratch
       }
       if (seeded) ++warm_solves_;
+      h_applications_ += lv.operator_applications;
       if (static_cast<int>(lv.energies_ghz.size()) < k || lv.vectors.cols() < k)
         throw std::runtime_error(fmt::format("instantaneous frame: {} levels at s = {} (asked for {})",
                                              lv.energies_ghz.size(), s, k));
@@ -171,6 +194,14 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
                         lv.energies_ghz.begin() + std::min<long>(solve_levels, static_cast<long>(lv.energies_ghz.size())));
       t.warm = std::move(lv.vectors);
       for (Eigen::Index c = 0; c < t.warm.cols(); ++c) t.warm.col(c).normalize();
+      if (options.cache != nullptr) {
+        SolvedPoint sp;
+        sp.s = s;
+        sp.energies_ghz = lv.energies_ghz;
+        sp.vectors = t.warm;
+        sp.h_applications = lv.operator_applications;
+        options.cache->store(h, scales, std::move(sp));
+      }
     }
     t.v_out = t.warm.leftCols(k);
     t.groups = groups_of(t.energies, k, options.group_gap_ghz);
@@ -262,6 +293,7 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
     const double a = scales.a_ghz(t.s), b = scales.b_ghz(t.s);
     const double da = scales.da_ds(t.s), db = scales.db_ds(t.s);
     Eigen::MatrixXd hv(dim, k), dv(dim, k);
+    h_applications_ += 2L * k;
     for (int c = 0; c < k; ++c) {
       h.apply(a, b, t.v_out.col(c).data(), hv.col(c).data());
       h.apply(da, db, t.v_out.col(c).data(), dv.col(c).data());
@@ -314,15 +346,25 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
   Eigen::MatrixXd two_back;  // v_out two points back (empty until there is one)
 
   const double span = std::abs(s_to - s_from);
-  double ds = std::max(span / 16.0, options.min_ds);
+  double ds = std::max(options.first_ds > 0.0 ? std::min(options.first_ds, span) : span / 16.0, options.min_ds);
   std::size_t next_stop = 0;
   const double two_pi = 2.0 * std::numbers::pi;
   while (next_stop < stops.size()) {
     const double stop = stops[next_stop];
     const double left = std::abs(stop - prev.s);
     const bool to_stop = ds >= left * (1.0 - 1e-9);
-    const double step = to_stop ? left : ds;
-    const double s_new = to_stop ? stop : prev.s + dir * step;
+    double step = to_stop ? left : ds;
+    double s_new = to_stop ? stop : prev.s + dir * step;
+    // A stored point within the step is free: step onto the farthest one (the
+    // checks below judge it as any other trial; a shorter step is always allowed).
+    bool snapped = false;
+    if (!to_stop && options.cache != nullptr)
+      if (const auto c = options.cache->farthest_towards(h, scales, prev.s, s_new, block)) {
+        s_new = *c;
+        step = std::abs(s_new - prev.s);
+        snapped = true;
+      }
+    const double proposed = ds;
     Trial t = eigen_at(s_new, &prev);
     align(t, prev);
     const Eigen::MatrixXd o = prev.v_out.transpose() * t.v_in;
@@ -362,9 +404,11 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
     prev = std::move(t);
     if (to_stop) ++next_stop;
     ds = step * std::min(2.0, ratio > 0 ? 0.8 / ratio : 2.0);
+    if (snapped) ds = std::max(ds, proposed);  // a short step onto a stored point says nothing against the longer one
     ds = std::max(ds, options.min_ds);
   }
   last_full_ = to_full(prev.v_out);
+  next_ds_ = ds;
 }
 
 }  // namespace gapwise

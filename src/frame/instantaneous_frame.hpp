@@ -46,6 +46,8 @@
 
 namespace gapwise {
 
+class FramePointCache;
+
 struct FrameOptions {
   int levels = 4;                 ///< K, the number of kept levels (capped at the sector dimension)
   double ns_per_unit_s = 1000.0;  ///< |dt/ds| of the stretch (ns): duration per unit of s
@@ -65,6 +67,14 @@ struct FrameOptions {
   bool seeded_lanczos = false;
   /// Residual asked of a warm-started eigenpair, relative to max(1, |E| in GHz).
   double warm_tolerance = 1e-10;
+  /// Eigenpairs solved earlier along the same problem and schedule
+  /// (frame_point_cache.hpp): points stored there are taken instead of solved,
+  /// the walk steps onto a stored point wherever one lies within its step, and
+  /// every point solved here is stored. nullptr: solve every point.
+  FramePointCache* cache = nullptr;
+  /// First trial step in s (0: a sixteenth of the stretch). A propagator cut
+  /// into pieces passes the step the previous piece ended with.
+  double first_ds = 0.0;
 };
 
 struct FramePoint {
@@ -99,12 +109,18 @@ class InstantaneousFrame {
   int levels() const { return k_; }
   const std::vector<FramePoint>& points() const { return points_; }
   const std::vector<FrameInterval>& intervals() const { return intervals_; }
-  /// Eigen-decompositions done (accepted and rejected trial points).
+  /// Eigen-decompositions done (accepted and rejected trial points; points from the cache not counted).
   long eigen_solves() const { return solves_; }
   /// Accepted points whose arriving interval saw kept levels cross (re-labelled there).
   long level_crossings() const { return crossings_; }
   /// Of eigen_solves(), those done by the warm start from the previous point's vectors.
   long warm_solves() const { return warm_solves_; }
+  /// Grid points (accepted or rejected) taken from FrameOptions::cache: not solved, not in eigen_solves().
+  long reused_points() const { return reused_; }
+  /// H x products spent building the frame (eigen-solves and projections).
+  long h_applications() const { return h_applications_; }
+  /// The step in s the grid controller would have taken next (for the next piece's first_ds).
+  double next_ds() const { return next_ds_; }
   /// Columns: the aligned frame vectors at the first / last point, in the 2^n basis.
   const Eigen::MatrixXd& first_vectors_full() const { return first_full_; }
   const Eigen::MatrixXd& last_vectors_full() const { return last_full_; }
@@ -114,6 +130,9 @@ class InstantaneousFrame {
   long solves_ = 0;
   long crossings_ = 0;
   long warm_solves_ = 0;
+  long reused_ = 0;
+  long h_applications_ = 0;
+  double next_ds_ = 0.0;
   std::vector<FramePoint> points_;
   std::vector<FrameInterval> intervals_;
   Eigen::MatrixXd first_full_, last_full_;

@@ -86,6 +86,7 @@ std::string anneal_report_json(const AnnealReport& a) {
   if (r.propagator == "frame") {
     put(j, "frame_levels", static_cast<long long>(r.stats.frame_levels));
     put(j, "frame_grid_points", static_cast<long long>(r.stats.frame_grid_points));
+    put(j, "frame_reused_points", static_cast<long long>(r.stats.frame_reused_points));
     put(j, "frame_top_level_population", r.stats.frame_top_level_population);
     put(j, "frame_truncation_estimate", r.stats.frame_truncation_estimate);
     put(j, "frame_pieces", static_cast<long long>(r.stats.frame_pieces));
@@ -161,8 +162,10 @@ std::string anneal_report_text(const AnnealReport& a) {
                              "                          plus the change of p when K drops to 3K/4, plus the start's\n"
                              "                          weight outside the kept levels; summed over pieces)\n",
                              fs.error_estimate);
-    os << fmt::format("frame                     K = {} levels, {} grid points, {} eigen-solves ({} warm started)\n",
-                             fs.frame_levels, fs.frame_grid_points, fs.frame_eigen_solves, fs.frame_warm_solves);
+    os << fmt::format("frame                     K = {} levels, {} grid points, {} eigen-solves ({} warm started),\n"
+                      "                          {} points reused from earlier pieces or runs\n",
+                      fs.frame_levels, fs.frame_grid_points, fs.frame_eigen_solves, fs.frame_warm_solves,
+                      fs.frame_reused_points);
     os << fmt::format("leakage                   largest population of the highest kept level {:.1e}; change of p\n"
                              "                          with K {:.1e}\n",
                              fs.frame_top_level_population, fs.frame_truncation_estimate);
@@ -211,6 +214,7 @@ void write_anneal_result(const std::string& path, const AnnealReport& a, const s
   if (r.propagator == "frame") {
     h5.attribute("/anneal", "frame_levels", static_cast<long long>(r.stats.frame_levels));
     h5.attribute("/anneal", "frame_grid_points", static_cast<long long>(r.stats.frame_grid_points));
+    h5.attribute("/anneal", "frame_reused_points", static_cast<long long>(r.stats.frame_reused_points));
     h5.attribute("/anneal", "frame_top_level_population", r.stats.frame_top_level_population);
     h5.attribute("/anneal", "frame_truncation_estimate", r.stats.frame_truncation_estimate);
     h5.attribute("/anneal", "frame_pieces", static_cast<long long>(r.stats.frame_pieces));

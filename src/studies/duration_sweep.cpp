@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include "frame/frame_point_cache.hpp"
 #include "io/input_error.hpp"
 #include "platform/thread_count.hpp"
 
@@ -25,6 +26,9 @@ AnnealSetup::AnnealSetup(IsingProblem p, Schedule s, SimulationOptions o)
       start(initial_state(hamiltonian, schedule, schedule.path_for(1.0))) {
   options.top_outcomes = 0;
   options.samples_per_piece = 0;
+  // The instantaneous eigenpairs along s do not depend on the duration: every
+  // anneal of this setup shares one store of them (used by the frame propagator).
+  if (!options.propagation.frame_cache) options.propagation.frame_cache = std::make_shared<FramePointCache>();
 }
 
 DurationPoint anneal_for_duration(const AnnealSetup& setup, double duration_ns) {

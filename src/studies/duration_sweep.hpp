@@ -4,6 +4,10 @@
 // duration). Durations run in parallel over OpenMP threads, one whole anneal per
 // thread; every anneal is the same deterministic computation whatever the
 // thread count, so a threaded sweep gives bit-for-bit the results of a serial one.
+// Exception: with the frame propagator the anneals share the eigenpairs solved
+// along s (FramePointCache), and which points a duration finds stored depends
+// on what ran before it, so its grid, and p within the tolerance, can differ
+// between thread counts, resumed runs and orders (never beyond its own checks).
 //
 //   AnnealSetup setup(problem, schedule, SimulationOptions{});   // the options' default propagator
 //   std::vector<double> t = log_spaced_durations(1.0, 1000.0, 13);
