@@ -118,3 +118,31 @@ TEST_CASE("a 13-qubit split-operator anneal sharing its state among threads is b
   CHECK(one.stats.steps == two.stats.steps);
   CHECK(one.ground_probability > 0.0);
 }
+
+// Small products called from inside another parallel region (a threaded study:
+// each thread applies its own H to its own vector) must be each thread's whole
+// product. An orphaned `omp for` in the small-vector path once bound to the
+// caller's team and split one thread's product among all threads (wrong sums,
+// then a deadlock at the mismatched barriers).
+TEST_CASE("small H products inside an outer parallel region are each thread's own") {
+  IsingProblem p(8);
+  for (int i = 0; i < 8; ++i) {
+    p.h[static_cast<std::size_t>(i)] = 0.15 * (i % 3) - 0.1;
+    p.couplings.push_back({std::min(i, (i + 1) % 8), std::max(i, (i + 1) % 8), -1.0 + 0.1 * i});
+  }
+  const TransverseIsingHamiltonian H(p);
+  const std::size_t dim = std::size_t{1} << 8;
+  std::vector<std::vector<double>> x(4, std::vector<double>(dim)), serial(4, std::vector<double>(dim)),
+      threaded(4, std::vector<double>(dim, -7.0));
+  std::mt19937 rng(5);
+  std::normal_distribution<double> normal;
+  for (auto& v : x)
+    for (double& e : v) e = normal(rng);
+  for (int t = 0; t < 4; ++t) H.apply(1.3, 0.7, x[t].data(), serial[t].data());
+#pragma omp parallel num_threads(4)
+  {
+    const int t = omp_get_thread_num();
+    for (int rep = 0; rep < 50; ++rep) H.apply(1.3, 0.7, x[t].data(), threaded[t].data());
+  }
+  for (int t = 0; t < 4; ++t) CHECK(std::memcmp(serial[t].data(), threaded[t].data(), dim * sizeof(double)) == 0);
+}

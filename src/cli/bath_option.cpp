@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "io/bath_attributes.hpp"
 #include "io/bath_file.hpp"
 #include "io/infinite_tts.hpp"
 #include "io/input_error.hpp"
@@ -62,7 +63,8 @@ void check_bath_levels(int levels, bool has_bath, int qubits) {
 }
 
 OpenPropagatorOptions open_propagator_options(double tolerance, int levels) {
-  OpenPropagatorOptions oo{.tolerance = tolerance};
+  OpenPropagatorOptions oo;
+  oo.tolerance = tolerance;
   if (levels > 0) {
     oo.method = "ame-truncated";
     oo.levels = levels;
@@ -130,11 +132,7 @@ void put_open_system_json(toml::table& j, const OhmicBath& bath, const OpenAnnea
 
 void write_open_system_hdf5(Hdf5Output& h5, const std::string& group, const OhmicBath& bath,
                             const OpenAnnealResult& open) {
-  h5.attribute(group, "bath_file", bath.source);
-  h5.attribute(group, "temperature_mk", bath.temperature_mk);
-  h5.attribute(group, "theta_ghz", bath.theta_ghz());
-  h5.attribute(group, "coupling", bath.coupling);
-  h5.attribute(group, "cutoff_ghz", bath.cutoff_ghz);
+  write_bath_attributes(h5, group, bath);
   h5.attribute(group, "ground_probability", open.ground_probability);
   h5.attribute(group, "max_trace_deviation", open.stats.max_trace_deviation);
   h5.attribute(group, "min_eigenvalue", open.stats.min_eigenvalue);

@@ -10,6 +10,7 @@
 #include "cli/cli_common.hpp"
 #include "cli/input_loading.hpp"
 #include "cli/journaled_run.hpp"
+#include "io/bath_attributes.hpp"
 #include "io/output_paths.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
@@ -279,10 +280,7 @@ void run_pause_map(PauseMapCli o) {
     h5.attribute("/pause_map/open_system", "levels_choice",
                  std::string(open.runs.front().levels == 0 ? "all levels"
                              : open.runs.front().levels_fixed ? "fixed, not checked" : "automatic"));
-    h5.attribute("/pause_map/open_system", "bath_file", bath->source);
-    h5.attribute("/pause_map/open_system", "temperature_mk", bath->temperature_mk);
-    h5.attribute("/pause_map/open_system", "coupling", bath->coupling);
-    h5.attribute("/pause_map/open_system", "cutoff_ghz", bath->cutoff_ghz);
+    write_bath_attributes(h5, "/pause_map/open_system", *bath);
   }
   h5.commit();
   if (!o.json) std::cout << fmt::format("wrote {}\n", o.out);

@@ -51,35 +51,42 @@ template <class T, class C>
 void TransverseIsingHamiltonian::apply_terms(C c_x, C c_d, const T* x, T* y) const {
   const std::size_t dim = dim_;
   const double* d = diag_.data();
-  // The worksharing loops below run in a thread team only for large vectors.
-  // Small ones call them outside any parallel region (orphaned: one thread, no
-  // barrier): a team of one, as `parallel if (false)` makes, still ends every
-  // loop with a barrier that costs a futex system call (measured: half the time
-  // of an 8-qubit open-system anneal, whose Lanczos solves apply H ~10^5 times).
-  auto sweep = [&] {
-#pragma omp for schedule(static)
-    for (std::size_t k = 0; k < dim; ++k) y[k] = (c_d * d[k]) * x[k];
-    for (int q = 0; q < n_; ++q) {
-      const std::size_t stride = std::size_t{1} << q;
-      // Blocks of 2*stride: the lower half pairs with the upper half.
-#pragma omp for schedule(static)
-      for (std::size_t base = 0; base < dim; base += 2 * stride) {
-        T* lo = y + base;
-        T* hi = y + base + stride;
-        const T* xl = x + base;
-        const T* xh = x + base + stride;
-        for (std::size_t k = 0; k < stride; ++k) {
-          lo[k] += c_x * xh[k];
-          hi[k] += c_x * xl[k];
-        }
-      }
+  auto diagonal_row = [&](std::size_t k) { y[k] = (c_d * d[k]) * x[k]; };
+  // Blocks of 2*stride: the lower half pairs with the upper half.
+  auto flip_block = [&](std::size_t base, std::size_t stride) {
+    T* lo = y + base;
+    T* hi = y + base + stride;
+    const T* xl = x + base;
+    const T* xh = x + base + stride;
+    for (std::size_t k = 0; k < stride; ++k) {
+      lo[k] += c_x * xh[k];
+      hi[k] += c_x * xl[k];
     }
   };
   if (dim >= (std::size_t{1} << 16)) {
 #pragma omp parallel
-    sweep();
+    {
+#pragma omp for schedule(static)
+      for (std::size_t k = 0; k < dim; ++k) diagonal_row(k);
+      for (int q = 0; q < n_; ++q) {
+        const std::size_t stride = std::size_t{1} << q;
+#pragma omp for schedule(static)
+        for (std::size_t base = 0; base < dim; base += 2 * stride) flip_block(base, stride);
+      }
+    }
   } else {
-    sweep();
+    // Small vectors: plain loops, no OpenMP construct at all. A team of one
+    // (`parallel if (false)`) ends every worksharing loop with a barrier that
+    // costs a futex system call (measured: half the time of an 8-qubit
+    // open-system anneal, whose Lanczos solves apply H ~10^5 times). Orphaned
+    // `omp for` loops are no way out: called from inside another parallel
+    // region (a control-error ensemble, threaded studies) they would bind to
+    // that region's team and split one thread's product among all threads.
+    for (std::size_t k = 0; k < dim; ++k) diagonal_row(k);
+    for (int q = 0; q < n_; ++q) {
+      const std::size_t stride = std::size_t{1} << q;
+      for (std::size_t base = 0; base < dim; base += 2 * stride) flip_block(base, stride);
+    }
   }
 }
 

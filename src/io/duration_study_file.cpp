@@ -8,6 +8,7 @@
 
 #include <fmt/format.h>
 
+#include "io/bath_attributes.hpp"
 #include "io/infinite_tts.hpp"
 #include "io/hdf5_output.hpp"
 
@@ -53,13 +54,7 @@ void write_open_durations(Hdf5Output& h5, const std::string& root, const Duratio
   const auto& rows = *in.open_rows;
   const std::string g = root + "/open_system";
   h5.group(g);
-  h5.attribute(g, "bath_file", bath.source);
-  h5.attribute(g, "temperature_mk", bath.temperature_mk);
-  h5.attribute(g, "theta_ghz", bath.theta_ghz());
-  h5.attribute(g, "coupling", bath.coupling);
-  h5.attribute(g, "cutoff_ghz", bath.cutoff_ghz);
-  h5.attribute(g, "illustrative_defaults_used",
-               static_cast<long long>(bath.temperature_defaulted || bath.coupling_defaulted || bath.cutoff_defaulted));
+  write_bath_attributes(h5, g, bath);
   h5.attribute(g, "method", rows.empty() ? std::string("none") : rows.front().open.propagator);
   const bool fixed = !rows.empty() && rows.front().open.levels_fixed;
   const bool truncated = !rows.empty() && rows.front().open.levels > 0;

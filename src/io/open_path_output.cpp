@@ -5,6 +5,7 @@
 
 #include <fmt/format.h>
 
+#include "io/bath_attributes.hpp"
 #include "io/infinite_tts.hpp"
 
 namespace gapwise {
@@ -85,11 +86,7 @@ toml::table open_path_json(const OpenPathComparison& r, const OhmicBath& bath) {
 void write_open_path_hdf5(Hdf5Output& h5, const OpenPathComparison& r, const OhmicBath& bath) {
   const std::string g = "/compare/bath";
   h5.group(g);
-  h5.attribute(g, "bath_file", bath.source);
-  h5.attribute(g, "temperature_mk", bath.temperature_mk);
-  h5.attribute(g, "theta_ghz", bath.theta_ghz());
-  h5.attribute(g, "coupling", bath.coupling);
-  h5.attribute(g, "cutoff_ghz", bath.cutoff_ghz);
+  write_bath_attributes(h5, g, bath);
   std::vector<double> p, tts, trace, eig;
   std::vector<std::string> method;
   for (const auto& x : r.runs) {

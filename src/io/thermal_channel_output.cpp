@@ -4,6 +4,7 @@
 
 #include <fmt/format.h>
 
+#include "io/bath_attributes.hpp"
 #include "io/infinite_tts.hpp"
 #include "io/text_table.hpp"
 
@@ -144,11 +145,7 @@ void write_thermal_channel_hdf5(Hdf5Output& h5, const ThermalChannel& tc, const 
                                 const std::vector<double>& closed_p) {
   const std::string root = "/thermal";
   h5.group(root);
-  h5.attribute(root, "bath_file", bath.source);
-  h5.attribute(root, "temperature_mk", bath.temperature_mk);
-  h5.attribute(root, "theta_ghz", tc.theta_ghz);
-  h5.attribute(root, "coupling", bath.coupling);
-  h5.attribute(root, "cutoff_ghz", bath.cutoff_ghz);
+  write_bath_attributes(h5, root, bath);
   h5.attribute(root, "ground_levels", static_cast<long long>(tc.ground_levels));
   h5.attribute(root, "gap_definition", std::string("E_g - E_0, full space"));
   h5.attribute(root, "freeze_out_definition",
