@@ -156,7 +156,6 @@ std::vector<Row> rows() {
       {"TB6", "b.toml", kBathHead + "coupling = 5\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
       {"TB7", "b.toml", kBathHead + "temperature_mk = nan\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
       {"TB8", "b.toml", kBathHead + "temperature_mk = \"12 mK\"\n", "anneal TRIANGLE LINEAR -d 5 --bath DIR/b.toml"},
-      {"TB9", "p.toml", "qubits = 10\n", "anneal DIR/p.toml LINEAR -d 5 --bath SRC/data-samples/bath-12mk.toml"},
       {"TB10", "", "", "anneal TRIANGLE LINEAR -d 5 --bath DIR/no-bath.toml"},
       // --- One command-line grammar: lists, ranges, single durations, numbers a double cannot hold ---
       {"G1", "", "", "pause-map TRIANGLE LINEAR -d 5 --at 1:1000:4 --out DIR/m.h5"},

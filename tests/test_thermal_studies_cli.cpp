@@ -148,7 +148,6 @@ TEST_CASE("diagnose --bath: /thermal read back, p equal to anneal --bath's, refu
   } rows[] = {
       {"TS1", "diagnose " + tri + " " + lin + " -d 5 --samples 0 --thermal-points 41"},
       {"TS2", "diagnose " + q(p10) + " " + lin + " -d 5 --bath " + bath},
-      {"TS3", "compare-paths " + q(p10) + " " + lin + " -d 5 --bath " + bath},
   };
   for (const auto& row : rows) {
     const auto e = run_gapwise(row.args, dir);

@@ -5,8 +5,11 @@
 #include <fmt/format.h>
 
 #include "cli/cli_common.hpp"
+#include "dynamics/truncated_master_equation.hpp"
+#include "hamiltonian/memory_budget.hpp"
 #include "io/bath_attributes.hpp"
 #include "io/bath_file.hpp"
+#include "studies/thermal_channel.hpp"
 #include "io/infinite_tts.hpp"
 #include "io/input_error.hpp"
 #include "io/text_table.hpp"
@@ -38,7 +41,8 @@ CLI::Option* add_bath_option(CLI::App* sub, std::string& bath_file) {
       ->add_option("--bath", bath_file,
                    "also run the anneal coupled to a thermal bath described in FILE (format gapwise-bath:\n"
                    "temperature_mk, coupling, cutoff_ghz; see the user guide) with the adiabatic master\n"
-                   "equation, full density matrix (at most 9 qubits), and report it beside the closed system")
+                   "equation (full density matrix up to 6 qubits, the lowest K levels beyond, as far as memory\n"
+                   "allows), and report it beside the closed system")
       ->check(readable_input_file());
 }
 
@@ -60,6 +64,7 @@ void check_bath_levels(int levels, bool has_bath, int qubits) {
     throw InputError({"--bath-levels", 0, 0, "--bath-levels"},
                      fmt::format("{} levels kept: the problem's {} qubits have {} levels", levels, qubits, states),
                      fmt::format("give K from 2 to {} (0: chosen automatically)", states));
+  check_bath_size(qubits, levels);
 }
 
 OpenPropagatorOptions open_propagator_options(double tolerance, int levels) {
@@ -73,15 +78,58 @@ OpenPropagatorOptions open_propagator_options(double tolerance, int levels) {
   return oo;
 }
 
+void check_bath_size(int qubits, int levels) {
+  const SourcePlace where{"--bath", 0, 0, "--bath"};
+  const OpenPropagatorOptions defaults;
+  const std::string method = resolve_open_method(defaults.method, qubits);
+  if (method == "ame-full") {
+    // Up to kAutoFullSpaceQubits: the full density matrix, far inside its own limit.
+    if (qubits > kMaxFullSpaceOpenQubits)
+      throw InputError(where,
+                       fmt::format("the problem has {} qubits; the full-space master equation keeps the 2^n x 2^n "
+                                   "density matrix and holds at most {} qubits",
+                                   qubits, kMaxFullSpaceOpenQubits),
+                       "leave out --bath, or use a smaller problem");
+    return;
+  }
+  // The truncated master equation: K vectors of 2^n amplitudes (K up to the top of the automatic ladder).
+  const int k = levels > 0 ? levels : defaults.max_levels;
+  const int vectors = truncated_working_vectors(k);
+  const double need = estimate_bytes(qubits, 0, vectors);
+  const double have = available_bytes();
+  if (qubits > kMaxQubits || (have > 0 && need > 0.9 * have))
+    throw InputError(
+        where,
+        fmt::format("the problem has {} qubits; the open-system anneal (truncated master equation, {} {} lowest "
+                    "levels as vectors of 2^{} amplitudes, about {} real vectors) needs about {} of memory, but {}",
+                    qubits, levels > 0 ? "the" : "up to the", k, qubits, vectors, human_bytes(need),
+                    qubits > kMaxQubits ? fmt::format("gapwise accepts at most {} qubits", kMaxQubits)
+                                        : fmt::format("only {} is available{}", human_bytes(have),
+                                                      ranks_on_this_node() > 1
+                                                          ? fmt::format(" (the share of one of the {} MPI ranks "
+                                                                        "on this node)",
+                                                                        ranks_on_this_node())
+                                                          : "")),
+        levels > 0 ? "keep fewer levels with --bath-levels, leave out --bath, or use a machine with more memory "
+                     "(each qubit doubles the need)"
+                   : "leave out --bath, or use a machine with more memory (each qubit doubles the need)");
+}
+
+void check_thermal_channel_size(int qubits) {
+  if (qubits > kMaxThermalChannelQubits)
+    throw InputError({"--bath", 0, 0, "--bath"},
+                     fmt::format("the problem has {} qubits; diagnose's thermal channel reads the level populations "
+                                 "from the full spectrum of H(s) (a dense eigen-decomposition of the 2^n x 2^n "
+                                 "Hamiltonian at every observation point) and holds at most {} qubits",
+                                 qubits, kMaxThermalChannelQubits),
+                     "leave out --bath in diagnose and run `anneal --bath` or `durations --bath`, which keep only "
+                     "the lowest levels and accept larger problems");
+}
+
 std::optional<OhmicBath> load_bath(const std::string& bath_file, int qubits) {
   if (bath_file.empty()) return std::nullopt;
   OhmicBath bath = read_bath_file(bath_file);
-  if (qubits > kMaxFullSpaceOpenQubits)
-    throw InputError({"--bath", 0, 0, "--bath"},
-                     fmt::format("the problem has {} qubits; the open-system anneal keeps the full 2^n x 2^n "
-                                 "density matrix and holds at most {} qubits",
-                                 qubits, kMaxFullSpaceOpenQubits),
-                     fmt::format("leave out --bath, or use a problem of at most {} qubits", kMaxFullSpaceOpenQubits));
+  check_bath_size(qubits, 0);
   return bath;
 }
 

@@ -23,15 +23,27 @@ CLI::Option* add_bath_option(CLI::App* sub, std::string& bath_file);
 CLI::Option* add_bath_levels_option(CLI::App* sub, int& levels);
 
 /// InputError (key --bath-levels) for K given without --bath, K < 2 or K above
-/// the 2^n levels of the problem.
+/// the 2^n levels of the problem; then check_bath_size at that K.
 void check_bath_levels(int levels, bool has_bath, int qubits);
 
 /// The open-system options of a command: the tolerance, and with levels > 0 the
 /// truncated master equation at that K, unchecked.
 OpenPropagatorOptions open_propagator_options(double tolerance, int levels);
 
-/// The bath of `bath_file` ("" -> nullopt). InputError (key --bath) when the
-/// problem has more qubits than the full-space master equation holds.
+/// The one size check of every command that runs the open-system anneal with
+/// --bath (anneal, durations, pause-map, compare-paths, ensemble). Up to
+/// kAutoFullSpaceQubits the full density matrix runs (limit kMaxFullSpaceOpenQubits);
+/// beyond, the truncated master equation, whose working vectors of 2^n amplitudes
+/// for K levels (levels > 0: that K; 0: the top of the automatic ladder) must fit
+/// in the memory this process may still use. InputError (key --bath) with the
+/// need and the room when they do not.
+void check_bath_size(int qubits, int levels);
+
+/// diagnose's thermal channel: dense spectra along s, at most kMaxThermalChannelQubits.
+/// InputError (key --bath) beyond.
+void check_thermal_channel_size(int qubits);
+
+/// The bath of `bath_file` ("" -> nullopt), checked by check_bath_size(qubits, 0).
 std::optional<OhmicBath> load_bath(const std::string& bath_file, int qubits);
 
 /// Terminal lines: the bath, p closed and open side by side, trace/positivity.

@@ -294,7 +294,8 @@ void register_compare_paths(CLI::App& app) {
   add_bath_option(sub, o->bath)->description(
       "run every path once more coupled to the bath of FILE (format gapwise-bath) with the adiabatic\n"
       "master equation: p and TTS closed and with the bath side by side, and the best path with and\n"
-      "without the bath (at most 9 qubits; see the user guide, 'compare-paths --bath')");
+      "without the bath (the lowest K levels from 7 qubits, as far as memory allows; see the user\n"
+      "guide, 'compare-paths --bath')");
   sub->add_flag("--json", o->json, "print a JSON summary instead of the text report");
   sub->add_flag("-q,--quiet", o->quiet, "no progress lines on stderr");
   add_allow_long_flag(sub, o->allow_long);

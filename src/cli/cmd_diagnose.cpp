@@ -44,6 +44,7 @@ void run_diagnose(const DiagnoseOptions& o) {
   const IsingProblem& p = loaded.problem();
   const Schedule& sch = loaded.schedule;
   const std::optional<OhmicBath>& bath = loaded.bath;
+  if (bath) check_thermal_channel_size(p.qubits);
   if (!bath && o.thermal_points_given)
     throw InputError({"--thermal-points", 0, 0, "--thermal-points"}, "--thermal-points is for the thermal channel",
                      "add --bath FILE, or leave out --thermal-points");
@@ -208,7 +209,7 @@ void register_diagnose(CLI::App& app) {
   add_bath_option(sub, o->bath)->description(
       "add a thermal channel with the bath of FILE (format gapwise-bath): level populations along s from\n"
       "the adiabatic master equation, the gap against k_B T/h, and where relaxation freezes out\n"
-      "(at most 9 qubits; see the user guide, 'diagnose --bath')");
+      "(dense spectra along s: at most 9 qubits; see the user guide, 'diagnose --bath')");
   sub->add_option("--thermal-points", o->thermal_points,
                   "with --bath: observations along s (evenly in s, plus the path's waypoints and the gap minima)")
       ->capture_default_str()->check(CLI::Range(2, 2001));

@@ -169,7 +169,10 @@ OpenAnnealResult simulate_open_anneal(const TransverseIsingHamiltonian& h, const
                                       const EnergyScales& scales, const AnnealPath& path, const QuantumState& psi0,
                                       const OhmicBath& bath, const OpenPropagatorOptions& options);
 
-/// The largest number of qubits the full-space master equation accepts.
+/// The largest number of qubits the full-space master equation (ame-full) accepts:
+/// it holds 2^n x 2^n complex matrices and decomposes H densely at every step.
+/// The truncated master equation (ame-truncated) has no fixed limit: it holds K
+/// vectors of length 2^n and is bounded by memory (truncated_working_vectors).
 inline constexpr int kMaxFullSpaceOpenQubits = 9;
 /// method "auto": ame-full up to this many qubits, ame-truncated beyond.
 inline constexpr int kAutoFullSpaceQubits = 6;

@@ -302,6 +302,11 @@ TruncatedRun run_truncated(const TransverseIsingHamiltonian& h, const GroundMani
 }
 }  // namespace
 
+int truncated_working_vectors(int levels) {
+  const int k = std::max(levels, 1);
+  return 10 * k + 2 * (2 * std::max(k, 7) + 2) + 16;
+}
+
 OpenAnnealResult simulate_truncated_open_anneal(const TransverseIsingHamiltonian& h, const GroundManifold& ground,
                                                 const EnergyScales& scales, const AnnealPath& path,
                                                 const QuantumState& psi0, const OhmicBath& bath,

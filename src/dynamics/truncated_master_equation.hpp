@@ -109,6 +109,13 @@ class TruncatedMasterEquation {
   TruncatedStats stats_;
 };
 
+/// Real vectors of length 2^n the truncated master equation holds at once with
+/// K levels: the eigenvectors at the two ends of an interval and their aligned
+/// copy, the sigma^z products, the tracker's warm start and its Lanczos basis
+/// (up to 2 (2K + 2) vectors after a failed restart), the final populations; with
+/// a margin. Every memory check of a run with a bath multiplies it by 2^n.
+int truncated_working_vectors(int levels);
+
 /// The open anneal by the truncated master equation, K chosen by the error
 /// control (options.levels == 0: K = start_levels, then K + level_step, ... until
 /// |p(K) - p(K + level_step)| <= tolerance or K reaches max_levels, which is

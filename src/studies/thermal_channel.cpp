@@ -129,10 +129,11 @@ ThermalLevels thermal_levels(const TransverseIsingHamiltonian& h, double a_ghz, 
 ThermalChannel thermal_channel(const TransverseIsingHamiltonian& h, const GroundManifold& ground,
                                const Schedule& schedule, const std::vector<double>& durations_ns,
                                const OhmicBath& bath, const ThermalChannelOptions& o) {
-  if (h.qubits() > kMaxFullSpaceOpenQubits)
-    throw std::invalid_argument(fmt::format("the thermal channel holds at most {} qubits (dense spectra and a "
-                                            "2^n x 2^n density matrix); this problem has {}",
-                                            kMaxFullSpaceOpenQubits, h.qubits()));
+  if (h.qubits() > kMaxThermalChannelQubits)
+    throw std::invalid_argument(fmt::format("the thermal channel holds at most {} qubits (a dense eigen-decomposition "
+                                            "of the 2^n x 2^n Hamiltonian at every observation point, populations "
+                                            "from the full density matrix); this problem has {}",
+                                            kMaxThermalChannelQubits, h.qubits()));
   if (o.points < 2) throw std::invalid_argument("the thermal channel needs at least 2 observation points");
   struct EigenThreads {  // as the master equation: single-threaded dense products (measured faster here)
     int saved = Eigen::nbThreads();

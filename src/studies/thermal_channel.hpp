@@ -90,13 +90,18 @@ struct ThermalChannelOptions {
   std::function<void(std::size_t duration_index, const PropagationProgress&)> progress;
 };
 
+/// The largest problem the thermal channel takes: it decomposes H(s) densely
+/// (2^n x 2^n) at every observation point and reads the populations from the
+/// full density matrix, whichever master equation ran.
+inline constexpr int kMaxThermalChannelQubits = kMaxFullSpaceOpenQubits;
+
 /// Gamma, the gap and the lowest `levels` energies of H(a, b) (dense
-/// eigen-decomposition; for up to kMaxFullSpaceOpenQubits qubits).
+/// eigen-decomposition; for up to kMaxThermalChannelQubits qubits).
 ThermalLevels thermal_levels(const TransverseIsingHamiltonian& h, double a_ghz, double b_ghz, const OhmicBath& bath,
                              int ground_levels, int levels);
 
 /// The thermal channel at each duration (the schedule's shape stretched to it).
-/// Throws std::invalid_argument beyond kMaxFullSpaceOpenQubits qubits.
+/// Throws std::invalid_argument beyond kMaxThermalChannelQubits qubits.
 ThermalChannel thermal_channel(const TransverseIsingHamiltonian& h, const GroundManifold& ground,
                                const Schedule& schedule, const std::vector<double>& durations_ns,
                                const OhmicBath& bath, const ThermalChannelOptions& options);
