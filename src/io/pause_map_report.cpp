@@ -94,7 +94,6 @@ std::string pause_map_report_json(const PauseMapReport& r) {
   const PauseMap& m = *r.map;
   const PauseMapOptions& mo = m.options;
   const PauseMapCell best = best_pause(m);
-  const std::size_t bi = best.i, bj = best.j;
   toml::table j;
   put(j, "problem_file", r.problem_file);
   put(j, "schedule_file", r.schedule_file);
@@ -118,13 +117,13 @@ std::string pause_map_report_json(const PauseMapReport& r) {
   j.insert_or_assign("reference_ground_probability", std::move(ref));
   j.insert_or_assign("ground_probability", std::move(rows));
   toml::table b;
-  put(b, "pause_s", mo.pause_s[bi]);
-  put(b, "pause_ns", mo.pause_ns[bj]);
-  put(b, "ground_probability", m.at(bi, bj).ground_probability);
-  put(b, "reference_ground_probability", m.reference[bj].ground_probability);
-  put(b, "gain", m.at(bi, bj).ground_probability - m.reference[bj].ground_probability);
-  put_tts(b, "tts_ns", m.tts_ns(bi, bj));
-  put_tts(b, "reference_tts_ns", reference_tts(m, bj));
+  put(b, "pause_s", mo.pause_s[best.i]);
+  put(b, "pause_ns", mo.pause_ns[best.j]);
+  put(b, "ground_probability", m.at(best.i, best.j).ground_probability);
+  put(b, "reference_ground_probability", m.reference[best.j].ground_probability);
+  put(b, "gain", m.at(best.i, best.j).ground_probability - m.reference[best.j].ground_probability);
+  put_tts(b, "tts_ns", m.tts_ns(best.i, best.j));
+  put_tts(b, "reference_tts_ns", reference_tts(m, best.j));
   j.insert_or_assign("best", std::move(b));
   if (r.open) {
     // The same grid with the bath, its best cell, and how the open system was run.
