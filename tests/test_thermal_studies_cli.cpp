@@ -10,6 +10,7 @@
 #include <fmt/format.h>
 
 #include "io/hdf5_input.hpp"
+#include "io/thermal_figures.hpp"
 #include "test_support.hpp"
 
 using namespace gapwise;
@@ -155,5 +156,35 @@ TEST_CASE("diagnose --bath: /thermal read back, p equal to anneal --bath's, refu
     CHECK(e.exit_code == 2);
     CHECK(e.out.empty());
     CHECK(e.err == catalogue_message(row.id) + "\n");
+  }
+}
+
+TEST_CASE("diagnose --bath figures: the notes explain the dashed gap = theta lines only when some are drawn") {
+  // kTwoQubits has its minimum gap of about 1.85 GHz: at 12 mK (theta = 0.25 GHz) the gap never falls
+  // to theta, at 200 mK (theta = 4.17 GHz; theta = k_B T / h = 20.8366 GHz/K x T, CODATA) it does.
+  TempDir dir;
+  const auto prob = dir.path / "two.toml", sched = dir.path / "linear.toml";
+  std::ofstream(prob) << kTwoQubits;
+  std::ofstream(sched) << kLinear;
+  for (const double mk : {12.0, 200.0}) {
+    CAPTURE(mk);
+    const auto bath = dir.path / fmt::format("bath-{}.toml", mk), out = dir.path / fmt::format("d-{}.h5", mk);
+    std::ofstream(bath) << bath_text(mk, 1e-3);
+    const auto r = run_gapwise("diagnose " + q(prob) + " " + q(sched) + " -d 5 --samples 0 -q --bath " + q(bath) +
+                                   " --out " + q(out),
+                               dir);
+    INFO(r.err);
+    REQUIRE(r.exit_code == 0);
+    const Hdf5Input in(out.string());
+    const auto cross = in.read("/thermal/gap_theta_crossings_s");
+    const bool lines = !cross.empty() && std::isfinite(cross.front());
+    CHECK(lines == (mk > 100));  // the two baths straddle the minimum gap
+    const auto plots = thermal_channel_plots(in);
+    REQUIRE(plots.size() == 2);
+    for (const auto& [kind, plot] : plots) {
+      CAPTURE(kind);
+      CHECK(plot.vertical_lines.size() == cross.size());
+      CHECK((plot.note.find("dashed vertical lines") != std::string::npos) == lines);
+    }
   }
 }

@@ -1,7 +1,6 @@
 // `gapwise anneal PROBLEM SCHEDULE`: one anneal of a given duration; the
 // ground-state probability, the most probable outcomes, and the checks that
 // make the number trustworthy (norm drift, convergence under a tighter tolerance).
-#include <limits>
 #include <algorithm>
 #include <cmath>
 #include <iostream>
@@ -13,10 +12,6 @@
 #include "cli/cli_common.hpp"
 #include "cli/input_loading.hpp"
 #include "io/output_paths.hpp"
-#include "dynamics/accuracy_guard.hpp"
-#include "dynamics/anneal_simulation.hpp"
-#include "frame/frame_point_cache.hpp"
-#include "dynamics/level_population_observer.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/anneal_report.hpp"
 #include "io/atomic_file.hpp"
@@ -27,6 +22,7 @@
 #include "io/progress_bar.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
+#include "studies/single_anneal.hpp"
 #include "studies/work_estimate.hpp"
 
 namespace gapwise::cli {
@@ -55,8 +51,6 @@ void run_anneal(const AnnealOptions& o) {
   check_count(o.trace_points, kTracePoints, "--trace-points");
   check_count(o.top, kTopOutcomes, "--top");
   loaded.check_memory(10);
-  const TransverseIsingHamiltonian H(p);
-  const GroundManifold gm = find_ground_manifold(p, H.diagonal());
   std::optional<double> duration_ns;
   if (!o.durations.empty()) {
     duration_ns = parse_single_value(o.durations, "--durations", ListOf::Durations, "anneal runs one duration",
@@ -67,15 +61,14 @@ void run_anneal(const AnnealOptions& o) {
   const WorkEstimate work = anneal_work(p, sch.scales, path.duration_ns(), o.no_check ? 1.0 : 2.0);
   check_work_limit(work, o.allow_long,
                    duration_ns ? SourcePlace{"--durations", 0, 0, "--durations"} : SourcePlace{o.schedule, 0, 0, "path"});
-  const QuantumState psi0 = initial_state(H, sch, path);
 
+  SingleAnnealOptions so;
   // Observations at chosen s: every passage of the path through each value.
-  std::vector<double> observe_s;
   if (!o.observe_s.empty()) {
-    observe_s = parse_value_list(o.observe_s, "--observe-s");
-    std::sort(observe_s.begin(), observe_s.end());
-    observe_s.erase(std::unique(observe_s.begin(), observe_s.end()), observe_s.end());
-    for (double s : observe_s)
+    so.observe_s = parse_value_list(o.observe_s, "--observe-s");
+    std::sort(so.observe_s.begin(), so.observe_s.end());
+    so.observe_s.erase(std::unique(so.observe_s.begin(), so.observe_s.end()), so.observe_s.end());
+    for (double s : so.observe_s)
       if (times_at_s(path, s).empty())
         throw InputError({"--observe-s", 0, 0, "--observe-s"},
                          fmt::format("the path of {} never reaches s = {} (it covers s from {} to {})", o.schedule, s,
@@ -84,72 +77,43 @@ void run_anneal(const AnnealOptions& o) {
   }
   if (o.levels < 0 || o.levels > 16)
     throw InputError({"--levels", 0, 0, "--levels"}, fmt::format("{} levels", o.levels), "give 1 to 16 levels (0: none)");
-  if (o.levels > 0 && observe_s.empty())
+  if (o.levels > 0 && so.observe_s.empty())
     throw InputError({"--levels", 0, 0, "--levels"}, "level populations are recorded at the --observe-s points, and none were given",
                      "add --observe-s, e.g. --observe-s 0.3,0.5,0.7");
-
-  SimulationOptions sim;
-  // The run and its accuracy re-run share the solved eigenpairs (frame propagator only).
-  sim.propagation.frame_cache = std::make_shared<FramePointCache>();
-  sim.propagator = o.propagator;
-  sim.propagation.tolerance = o.tolerance;
-  if (o.p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();
-  sim.samples_per_piece = std::max(0, o.trace_points);
-  sim.top_outcomes = o.top;
-  sim.observe_s = observe_s;
-  TraceObserver trace(H, gm);
-  // Populations of the lowest levels of H(s), at the requested s only (one
-  // eigenproblem each). Without fields a forward anneal from the ground state
-  // stays in the even spin-flip sector; its levels are the ones that matter.
-  LevelPopulationOptions lpo;
-  lpo.levels = std::max(o.levels, 1);
-  lpo.requested_only = true;
-  const bool even = !p.has_fields() && sch.start.kind == StartKind::Ground;
-  lpo.sector = even ? SpinFlipSector::Even : SpinFlipSector::Full;
-  check_levels_fit(o.levels, p.qubits, lpo.sector);
-  std::optional<LevelPopulationObserver> pops;
-  std::vector<AnnealObserver*> observers{&trace};
-  if (o.levels > 0) observers.push_back(&pops.emplace(H, lpo));
+  check_levels_fit(o.levels, p.qubits, single_anneal_sector(p, sch));
+  so.propagator = o.propagator;
+  so.tolerance = o.tolerance;
+  so.p_only = o.p_only;
+  so.check = !o.no_check;
+  so.trace_points = o.trace_points;
+  so.top = o.top;
+  so.levels = o.levels;
+  if (bath) {
+    so.bath = &*bath;
+    so.open = open_propagator_options(o.tolerance, o.bath_levels);
+  }
   // Progress on stderr for long runs (the passes of the propagator over the path).
-  const int runs = o.no_check ? 1 : 2;
   // With a bath the open-system run dominates and is not in the estimate: always show on a terminal.
   const bool show = !o.quiet && (o.progress || bath || work.core_seconds() > kProgressAfterSeconds);
   ProgressBar bar("anneal", 0, 0.0, !show ? 0 : (o.progress ? 1 : -1));
-  int run = 1;
   if (bar.enabled())
-    sim.propagation.progress = [&](const PropagationProgress& pp) {
-      bar.stage(fmt::format("run {} of {}{}, pass {}", run, runs, run == 2 ? " (check at tolerance/10)" : "", pp.pass),
-                pp.fraction);
-    };
-  const AnnealResult r = simulate_anneal(H, gm, sch.scales, path, psi0, sim, observers);
-  std::optional<double> delta_p;
-  if (!o.no_check) {
-    SimulationOptions tight = sim;
-    tight.propagation.tolerance = o.tolerance / 10.0;
-    tight.top_outcomes = 0;
-    run = 2;
-    delta_p = std::abs(simulate_anneal(H, gm, sch.scales, path, psi0, tight).ground_probability - r.ground_probability);
-  }
-
-  std::optional<OpenAnnealResult> open;
-  if (bath) {
-    OpenPropagatorOptions oo = open_propagator_options(o.tolerance, o.bath_levels);
-    if (bar.enabled())
-      oo.progress = [&](const PropagationProgress& pp) {
-        const bool truncated = resolve_open_method(oo.method, p.qubits) == "ame-truncated";
-        bar.stage(!truncated ? std::string("with the bath")
+    so.progress = [&](const SingleAnnealStage& st, const PropagationProgress& pp) {
+      if (st.run > 0)
+        bar.stage(fmt::format("run {} of {}{}, pass {}", st.run, st.runs, st.run == 2 ? " (check at tolerance/10)" : "",
+                              pp.pass),
+                  pp.fraction);
+      else
+        bar.stage(!st.truncated ? std::string("with the bath")
                   : o.bath_levels > 0 ? fmt::format("with the bath, K = {} (fixed)", o.bath_levels)
                                       : fmt::format("with the bath, K pass {} (K = 6, 10, ... until p settles)", pp.pass),
                   pp.fraction);
-      };
-    open = simulate_open_anneal(H, gm, sch.scales, path, psi0, *bath, oo);
-  }
+    };
+  const SingleAnneal a = run_single_anneal(p, sch, path, so);
   bar.done();
 
-  const std::vector<AccuracyIssue> accuracy = check_accuracy(r, o.tolerance, delta_p);
-  for (const auto& issue : accuracy) std::cerr << "gapwise: warning: " << issue.message << "\n";
-  if (o.strict && !accuracy.empty()) exit_code() = kExitAccuracy;
-  for (const auto& issue : accuracy)
+  for (const auto& issue : a.accuracy) std::cerr << "gapwise: warning: " << issue.message << "\n";
+  if (o.strict && !a.accuracy.empty()) exit_code() = kExitAccuracy;
+  for (const auto& issue : a.accuracy)
     if (issue.check == "non_finite")  // never passed off as a result; nothing is written
       throw std::runtime_error("the simulation produced a non-finite result: " + issue.message);
 
@@ -159,22 +123,22 @@ void run_anneal(const AnnealOptions& o) {
   rep.tolerance = o.tolerance;
   rep.p_only = o.p_only;
   rep.levels = o.levels;
-  rep.observed = !observe_s.empty();
+  rep.observed = !so.observe_s.empty();
   rep.problem = &p;
   rep.schedule = &sch;
   rep.path = &path;
-  rep.ground = &gm;
-  rep.result = &r;
-  rep.delta_p = delta_p;
-  rep.accuracy_ok = accuracy.empty();
-  rep.trace = &trace.rows();
-  if (pops) rep.level_rows = pops->rows();
-  rep.sector = lpo.sector;
-  if (open) {
+  rep.ground = &a.ground;
+  rep.result = &a.result;
+  rep.delta_p = a.delta_p;
+  rep.accuracy_ok = a.accuracy.empty();
+  rep.trace = &a.trace;
+  rep.level_rows = a.level_rows;
+  rep.sector = a.sector;
+  if (a.open) {
     rep.with_bath = true;
-    rep.open_text = open_system_text(*bath, *open, r.ground_probability);
-    put_open_system_json(rep.open_json, *bath, *open);
-    rep.write_open_hdf5 = [&](Hdf5Output& h5) { write_open_system_hdf5(h5, "/anneal/open_system", *bath, *open); };
+    rep.open_text = open_system_text(*bath, *a.open, a.result.ground_probability);
+    put_open_system_json(rep.open_json, *bath, *a.open);
+    rep.write_open_hdf5 = [&](Hdf5Output& h5) { write_open_system_hdf5(h5, "/anneal/open_system", *bath, *a.open); };
   }
   std::cout << (o.json ? anneal_report_json(rep) : anneal_report_text(rep));
   if (!o.csv.empty()) write_file_atomically(o.csv, anneal_trace_table(rep).csv());

@@ -71,10 +71,8 @@ Schedule with_shape(const Schedule& base, const ForwardShapeSpec& spec, const st
 }
 
 void run_compare(const CompareOptions& o) {
-  FilePlan plan;
-  for (const auto& f : o.schedules) plan.input(f, "schedule");
-  const RunInputs loaded = load_run_inputs(
-      RunFiles{}.problem(o.problem).bath(o.bath).plan(plan.output(o.out, "--out").output(o.csv, "--csv")));
+  const RunInputs loaded = load_run_inputs(RunFiles{}.problem(o.problem).bath(o.bath).candidate_schedules(o.schedules).plan(
+      FilePlan{}.output(o.out, "--out").output(o.csv, "--csv")));
   const IsingProblem& p = loaded.problem();
   const std::optional<OhmicBath>& bath = loaded.bath;
   loaded.check_memory(10);
@@ -84,8 +82,9 @@ void run_compare(const CompareOptions& o) {
   check_tolerance(o.tolerance);
   check_threads(o.threads);
   std::vector<ShapeCandidate> cands;
-  const Schedule base = read_schedule_file(o.schedules.front());
-  for (const auto& f : o.schedules) cands.push_back({std::filesystem::path(f).filename().string(), read_schedule_file(f)});
+  const Schedule& base = loaded.candidate_schedules.front();
+  for (std::size_t i = 0; i < o.schedules.size(); ++i)
+    cands.push_back({std::filesystem::path(o.schedules[i]).filename().string(), loaded.candidate_schedules[i]});
   for (const auto& text : o.pauses) {
     const auto [s, f] = two_numbers(text, "--pause");
     cands.push_back({fmt::format("pause s={:g} for {:g}%", s, 100 * f), with_shape(base, {.pause = PauseSpec{s, f}}, "--pause")});

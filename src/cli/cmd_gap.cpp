@@ -28,6 +28,7 @@
 #include "io/result_journal.hpp"
 #include "io/terminal_text.hpp"
 #include "io/text_table.hpp"
+#include "spectrum/gap_eigenvectors.hpp"
 #include "spectrum/gap_search.hpp"
 
 namespace gapwise::cli {
@@ -174,18 +175,8 @@ void run_gap(const GapOptions& o) {
   progress.done();
 
   // Eigenvectors on request: at s* and/or the given s, in the sector searched.
-  std::vector<double> vector_s;
-  if (vreq.star) vector_s.push_back(r.s_star);
-  for (double s : vreq.s) {
-    if (s < r.s_first - 1e-12 || s > r.s_last + 1e-12)
-      throw InputError({"--vectors-at", 0, 0, "--vectors-at"},
-                       fmt::format("s = {} is outside the searched range {} to {}", s, r.s_first, r.s_last),
-                       fmt::format("give s values between {} and {}", r.s_first, r.s_last));
-    vector_s.push_back(s);
-  }
-  std::vector<EigenvectorsAt> vectors;
-  const int vk = o.vector_levels > 0 ? o.vector_levels : r.levels;
-  for (double s : vector_s) vectors.push_back(eigenvectors_at(H, sch.scales, s, vk, r.sector, r.method));
+  const std::vector<EigenvectorsAt> vectors =
+      gap_eigenvectors(H, sch.scales, r, {.at_star = vreq.star, .s = vreq.s, .levels = o.vector_levels});
 
   const GapReportInputs report{o.problem, o.schedule, &p, &sch.scales};
   std::cout << (o.json ? gap_report_json(report, r) : gap_report_text(report, r));

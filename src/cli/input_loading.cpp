@@ -14,6 +14,10 @@ RunFiles& RunFiles::problem(const std::string& path, const std::string& role) {
 RunFiles& RunFiles::embedding(const std::string& path) { embedding_ = path; return *this; }
 RunFiles& RunFiles::schedule(const std::string& path) { schedule_ = path; return *this; }
 RunFiles& RunFiles::bath(const std::string& path) { bath_ = path; return *this; }
+RunFiles& RunFiles::candidate_schedules(const std::vector<std::string>& paths) {
+  candidate_schedules_ = paths;
+  return *this;
+}
 RunFiles& RunFiles::instance_set(const std::string& path) { instance_set_ = path; return *this; }
 RunFiles& RunFiles::plan(FilePlan plan) { plan_ = std::move(plan); return *this; }
 
@@ -24,6 +28,7 @@ void check_run_files(const RunFiles& files) {
       .input(files.embedding_, "embedding")
       .input(files.schedule_, "schedule")
       .input(files.bath_, "--bath");
+  for (const auto& f : files.candidate_schedules_) plan.input(f, "schedule");
   plan.inputs.insert(plan.inputs.end(), files.plan_.inputs.begin(), files.plan_.inputs.end());
   plan.outputs = files.plan_.outputs;
   check_file_plan(plan);
@@ -40,6 +45,7 @@ RunInputs read_run_inputs(const RunFiles& files) {
   if (!files.schedule_.empty()) in.schedule = read_schedule_file(files.schedule_);
   if (in.embedding && in.problem_file) check_embedding_serves(*in.embedding, in.problem(), files.problem_);
   if (in.problem_file) in.bath = load_bath(files.bath_, in.problem().qubits);
+  for (const auto& f : files.candidate_schedules_) in.candidate_schedules.push_back(read_schedule_file(f));
   return in;
 }
 

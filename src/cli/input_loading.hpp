@@ -14,6 +14,7 @@
 // (so that a bad option is named before a file is parsed) calls the two halves.
 #include <optional>
 #include <string>
+#include <vector>
 
 #include "dynamics/master_equation.hpp"
 #include "io/instance_set_file.hpp"
@@ -38,17 +39,21 @@ class RunFiles {
   RunFiles& schedule(const std::string& path);
   /// --bath: a thermal bath file (closed system only when none).
   RunFiles& bath(const std::string& path);
+  /// Several schedule files compared with each other (compare-paths), each read
+  /// and refused like the one schedule (file:line: key '...').
+  RunFiles& candidate_schedules(const std::vector<std::string>& paths);
   /// An instance set: HDF5 file or folder of problem files (ensemble).
   RunFiles& instance_set(const std::string& path);
-  /// The run's other inputs (checked after those above, e.g. the candidate
-  /// schedules of compare-paths, which the command reads itself) and every
-  /// output and journal it writes (FilePlan::output, journal_of).
+  /// The run's other inputs (checked after those above; files the command
+  /// reads itself) and every output and journal it writes (FilePlan::output,
+  /// journal_of).
   RunFiles& plan(FilePlan plan);
 
  private:
   friend void check_run_files(const RunFiles& files);
   friend RunInputs read_run_inputs(const RunFiles& files);
   std::string problem_, problem_role_ = "problem", embedding_, schedule_, bath_, instance_set_;
+  std::vector<std::string> candidate_schedules_;
   FilePlan plan_;
 };
 
@@ -59,6 +64,7 @@ struct RunInputs {
   Schedule schedule;                       ///< Schedule{} when no schedule file was given
   std::optional<OhmicBath> bath;           ///< checked to hold the problem's qubits
   std::optional<InstanceSet> instance_set;
+  std::vector<Schedule> candidate_schedules;  ///< in the order given
 
   /// The problem as Ising (a QUBO converted exactly). Only when a problem was given.
   const IsingProblem& problem() const { return problem_file->ising; }
@@ -80,7 +86,8 @@ void check_run_files(const RunFiles& files);
 
 /// Reads the files given, in this order: instance set, problem, embedding
 /// (then checks that it serves the problem), schedule, bath (then checks that
-/// the problem fits the open-system simulation). The first refusal is thrown.
+/// the problem fits the open-system simulation), candidate schedules. The
+/// first refusal is thrown.
 RunInputs read_run_inputs(const RunFiles& files);
 
 /// check_run_files, then read_run_inputs: what a command does first.

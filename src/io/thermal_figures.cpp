@@ -10,9 +10,9 @@
 
 namespace gapwise {
 
-void thermal_channel_figures(const Hdf5Input& in, const FigureEmit& emit) {
+std::vector<std::pair<std::string, LinePlot>> thermal_channel_plots(const Hdf5Input& in) {
   const std::string T = "/thermal";
-  if (!in.has(T + "/grid_s") || !in.has(T + "/durations")) return;
+  if (!in.has(T + "/grid_s") || !in.has(T + "/durations")) return {};
   constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
   const double theta = in.attribute_finite(T, "theta_ghz");
   const auto gs = in.read(T + "/grid_s"), gg = in.read(T + "/grid_gap");
@@ -20,9 +20,12 @@ void thermal_channel_figures(const Hdf5Input& in, const FigureEmit& emit) {
   const auto cross = in.read(T + "/gap_theta_crossings_s");
   const std::string bath = fmt::format("{:.4g} mK (k#dB#uT/h = {:.4g} GHz), #gy = {:.3g}", in.attribute_finite(T, "temperature_mk"),
                                        theta, in.attribute_finite(T, "coupling"));
+  // The gap = theta lines are explained only where there are some to see.
+  const bool lines = std::any_of(cross.begin(), cross.end(), [](double s) { return std::isfinite(s); });
   LinePlot f;
   f.title = "Thermal channel: gap against k#dB#uT/h and the relaxations left";
-  f.note = "bath " + bath + "\nN(s): relaxations left, the integral of #gG dt from t(s) to t#df#u; squares where it falls to 1 (freeze-out)\ndashed vertical lines: gap = k#dB#uT/h";
+  f.note = "bath " + bath + "\nN(s): relaxations left, the integral of #gG dt from t(s) to t#df#u; squares where it falls to 1 (freeze-out)" +
+           std::string(lines ? "\ndashed vertical lines: gap = k#dB#uT/h" : "");
   f.x_label = "schedule parameter s";
   f.y_label = "gap / (k#dB#uT/h)   and   N(s)";
   f.log_y = true;
@@ -49,11 +52,14 @@ void thermal_channel_figures(const Hdf5Input& in, const FigureEmit& emit) {
   f.series.push_back({"", {gs.front(), gs.back()}, {1.0, 1.0}, SeriesStyle::Line, 7, {}, {}});
   f.y_range = std::pair{std::max(1e-3, std::min(lo / 2, 0.1)), hi * 2};
   f.vertical_lines = cross;
-  emit("diagnosis-thermal", [&](const std::string& path) { render_figure(f, path); });
 
   LinePlot p;
   p.title = "Thermal channel: population of the levels that end in the ground manifold";
-  p.note = "with the bath " + bath + "\ndashed vertical lines: gap = k#dB#uT/h; squares: freeze-out";
+  const bool freeze = std::any_of(fs.begin(), fs.end(), [](double s) { return std::isfinite(s); });
+  p.note = "with the bath " + bath;
+  if (lines || freeze)
+    p.note += "\n" + std::string(lines ? "dashed vertical lines: gap = k#dB#uT/h" : "") + (lines && freeze ? "; " : "") +
+              (freeze ? "squares: freeze-out" : "");
   p.x_label = "schedule parameter s";
   p.y_label = "population of the lowest g levels";
   p.y_range = std::pair{0.0, 1.05};
@@ -74,7 +80,12 @@ void thermal_channel_figures(const Hdf5Input& in, const FigureEmit& emit) {
     }
   }
   p.vertical_lines = cross;
-  emit("diagnosis-thermal-populations", [&](const std::string& path) { render_figure(p, path); });
+  return {{"diagnosis-thermal", std::move(f)}, {"diagnosis-thermal-populations", std::move(p)}};
+}
+
+void thermal_channel_figures(const Hdf5Input& in, const FigureEmit& emit) {
+  for (const auto& [kind, plot] : thermal_channel_plots(in))
+    emit(kind, [&plot](const std::string& path) { render_figure(plot, path); });
 }
 
 }  // namespace gapwise

@@ -8,12 +8,20 @@
 //                                  the gap = theta points dotted, the freeze-out marked.
 #include <functional>
 #include <string>
+#include <utility>
+#include <vector>
 
+#include "io/figure_plot.hpp"
 #include "io/hdf5_input.hpp"
 
 namespace gapwise {
 
 using FigureEmit = std::function<void(const std::string& kind, const std::function<void(const std::string&)>& draw)>;
+
+/// The two figures (kind, plot) in the order drawn; none when the file has no
+/// /thermal group. The notes mention the dashed gap = theta lines only when the
+/// gap crosses theta somewhere (a line is drawn).
+std::vector<std::pair<std::string, LinePlot>> thermal_channel_plots(const Hdf5Input& in);
 
 /// Nothing when the file has no /thermal group.
 void thermal_channel_figures(const Hdf5Input& in, const FigureEmit& emit);
