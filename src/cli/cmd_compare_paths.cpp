@@ -1,13 +1,11 @@
-#include <cmath>
 // `gapwise compare-paths PROBLEM SCHEDULE [MORE...] -d T[,T2...]`:
 // several paths on one problem at equal total duration: p, time to solution,
 // and where the instantaneous ground level loses population, per path.
+#include <cmath>
 #include <filesystem>
 #include <iostream>
-#include <limits>
 #include <memory>
 #include <optional>
-#include <sstream>
 
 #include <unistd.h>
 
@@ -20,13 +18,8 @@
 #include "dynamics/anneal_simulation.hpp"
 #include "hamiltonian/memory_budget.hpp"
 #include "io/atomic_file.hpp"
-#include "io/hdf5_output.hpp"
-#include "io/infinite_tts.hpp"
+#include "io/compare_paths_report.hpp"
 #include "io/input_error.hpp"
-#include "io/json_summary.hpp"
-#include "io/open_path_output.hpp"
-#include "io/terminal_text.hpp"
-#include "io/text_table.hpp"
 #include "studies/local_adiabatic_schedule.hpp"
 #include "studies/open_path_comparison.hpp"
 #include "studies/shape_comparison.hpp"
@@ -134,128 +127,23 @@ void run_compare(const CompareOptions& o) {
     open = compare_paths_open(p, cands, r, *bath, oo);
     if (tty) std::cerr << "\n";
   }
-  if (o.json) {
-    toml::table j;
-    put(j, "problem", o.problem);
-    put(j, "qubits", static_cast<long long>(p.qubits));
-    put(j, "target_probability", o.target);
-    toml::array runs;
-    for (std::size_t i = 0; i < r.names.size(); ++i)
-      for (std::size_t d = 0; d < r.durations_ns.size(); ++d) {
-        const ShapeRun& x = r.at(i, d);
-        toml::table e;
-        put(e, "path", x.name);
-        put(e, "duration_ns", x.duration_ns);
-        put(e, "end_time_ns", x.end_time_ns);
-        put(e, "ground_probability", x.ground_probability);
-        put_tts(e, "tts_ns", x.tts.tts_ns);
-        put(e, "largest_leak", x.leak.drop);
-        put(e, "largest_leak_s_from", x.leak.s_from);
-        put(e, "largest_leak_s_to", x.leak.s_to);
-        runs.push_back(std::move(e));
-      }
-    j.insert_or_assign("runs", std::move(runs));
-    if (open) j.insert_or_assign("open_system", open_path_json(*open, *bath));
-    std::cout << to_json(j) << "\n";
-  }
-
-  std::ostringstream text;
-  text << fmt::format("problem  {}: {} qubits; paths compared at equal total duration\n", terminal_text(o.problem), p.qubits);
-  text << fmt::format("levels   populations of the lowest {} instantaneous levels ({})\n", levels,
-                           describe_sector(r.sector));
-  if (gap)
-    text << fmt::format("gap      {:.6g} GHz at s* = {:.6g} ({}); local adiabatic I = {:.6g} ns\n", gap->report.gap_ghz,
-                             gap->report.s_star, gap->report.definition, gap->path.integral_ns);
-  std::vector<std::string> cols{"path", "duration_ns", "end_ns", "p_ground", fmt::format("TTS{:g}_ns", 100 * o.target),
-                                "largest leak (s)", "leak", "level0_end"};
+  ComparePathsReport rep;
+  rep.problem_file = o.problem;
+  rep.schedule_files = o.schedules;
+  rep.target_probability = o.target;
+  rep.levels = levels;
+  rep.problem = &p;
+  rep.candidates = &cands;
+  rep.comparison = &r;
+  if (gap) rep.local_adiabatic = &*gap;
   if (open) {
-    cols.push_back("p_bath");
-    cols.push_back(fmt::format("TTS{:g}_bath_ns", 100 * o.target));
+    rep.open = &*open;
+    rep.bath = &*bath;
   }
-  TextTable t(cols);
-  for (std::size_t j = 0; j < r.durations_ns.size(); ++j)
-    for (std::size_t i = 0; i < r.names.size(); ++i) {
-      const ShapeRun& x = r.at(i, j);
-      std::vector<std::string> row{x.name, fmt_num(x.duration_ns, 8), fmt_num(x.end_time_ns, 12),
-                                   fmt_num(x.ground_probability, 8), tts_text(x.tts.tts_ns, 6),
-                                   x.leak.drop > 0 ? fmt::format("{:.3f}-{:.3f}", x.leak.s_from, x.leak.s_to) : "-",
-                                   fmt_num(x.leak.drop, 4), fmt_num(x.leak.final_ground_level, 6)};
-      if (open) {
-        row.push_back(fmt_num(open->at(i, j).open.ground_probability, 8));
-        row.push_back(tts_text(open->at(i, j).open_tts.tts_ns, 6));
-      }
-      t.add(row);
-    }
-  text << "\n" << t.render();
-  text << "\nleak: the largest drop of the instantaneous ground level's population between two observations,\n"
-               "and where along s it happened; level0_end: that population at the end (= p_ground when A(1) = 0).\n";
-  if (open) text << open_path_text(*open, *bath);
-  if (!o.json) std::cout << text.str();
-  if (!o.csv.empty()) write_file_atomically(o.csv, t.csv());
+  std::cout << (o.json ? compare_paths_report_json(rep) : compare_paths_report_text(rep));
+  if (!o.csv.empty()) write_file_atomically(o.csv, compare_paths_report_csv(rep));
   if (!o.out.empty()) {
-    Hdf5Output h5(o.out, {"gapwise-compare-paths", 1});
-    std::vector<std::string> inputs{o.problem};
-    for (const auto& f : o.schedules) inputs.push_back(f);
-    write_provenance(h5, command_line(), inputs);
-    h5.write_strings("/compare/paths", r.names, "the compared paths (rows of the matrices)");
-    h5.write("/compare/durations_ns", r.durations_ns, "ns");
-    std::vector<double> pg, tts, end;
-    for (const auto& x : r.runs) {
-      pg.push_back(x.ground_probability);
-      tts.push_back(stored_tts(x.tts.tts_ns));
-      end.push_back(x.end_time_ns);
-    }
-    const std::size_t ni = r.names.size(), nj = r.durations_ns.size();
-    h5.write_matrix("/compare/ground_probability", pg, ni, nj, "1", {"/compare/paths", "/compare/durations_ns"});
-    h5.write_matrix("/compare/tts_ns", tts, ni, nj, tts_meaning("ns"), {"/compare/paths", "/compare/durations_ns"});
-    h5.write_matrix("/compare/end_time_ns", end, ni, nj, "ns", {"/compare/paths", "/compare/durations_ns"});
-    h5.attribute("/compare", "target_probability", o.target);
-    h5.attribute("/compare", "level_sector", sector_name(r.sector));
-    if (open) write_open_path_hdf5(h5, *open, *bath);
-    for (std::size_t i = 0; i < ni; ++i) {
-      // Each path's waypoints (fractions of the duration), so the file says what ran.
-      std::vector<double> wt, ws;
-      // The scaled path is kept in a variable: a range-for over points() of the
-      // temporary would read it after its lifetime ended (found by ASan).
-      const AnnealPath unit = cands[i].schedule.shape.scaled_to(1.0);
-      for (const auto& w : unit.points()) { wt.push_back(w.t_ns); ws.push_back(w.s); }
-      h5.write(fmt::format("/compare/path_{}/waypoint_time_fraction", i), wt, "1");
-      h5.write(fmt::format("/compare/path_{}/waypoint_s", i), ws, "1");
-      h5.attribute(fmt::format("/compare/path_{}", i), "name", r.names[i]);
-      for (std::size_t j = 0; j < nj; ++j) {
-        const ShapeRun& x = r.at(i, j);
-        const std::string g = fmt::format("/compare/path_{}/duration_{}", i, j);
-        std::vector<double> tt, ss, e, pop, deg, resolved;
-        for (const auto& row : x.populations) {
-          tt.push_back(row.t_ns);
-          ss.push_back(row.s);
-          for (int l = 0; l < levels; ++l) {
-            // A level group that runs past the computed levels is unresolved (NaN in
-            // memory); files get NaN there (nan_meaning) and the mask level_resolved.
-            const double en = row.levels.energies_ghz[static_cast<std::size_t>(l)];
-            const double po = row.levels.populations[static_cast<std::size_t>(l)];
-            const bool ok = std::isfinite(en) && std::isfinite(po);
-            e.push_back(ok ? en : std::numeric_limits<double>::quiet_NaN());
-            pop.push_back(ok ? po : std::numeric_limits<double>::quiet_NaN());
-            deg.push_back(row.levels.degeneracy[static_cast<std::size_t>(l)]);
-            resolved.push_back(ok ? 1.0 : 0.0);
-          }
-        }
-        h5.write(g + "/t", tt, "ns");
-        h5.write(g + "/s", ss, "1");
-        const std::size_t nl = static_cast<std::size_t>(levels);
-        const std::vector<std::string> axes{g + "/t", h5.level_axis(g, nl)};
-        const std::string unresolved = "the level group runs past the levels computed (level_resolved 0)";
-        h5.write_matrix(g + "/level_energy", e, tt.size(), nl, not_applicable("GHz", unresolved), axes);
-        h5.write_matrix(g + "/level_population", pop, tt.size(), nl, not_applicable("1", unresolved), axes);
-        h5.write_matrix(g + "/level_degeneracy", deg, tt.size(), nl, "1", axes);
-        h5.write_matrix(g + "/level_resolved", resolved, tt.size(), nl, DataMeaning("1").flagged({0, 1}, "unresolved resolved"), axes);
-        h5.attribute(g, "duration_ns", x.duration_ns);
-        h5.attribute(g, "ground_probability", x.ground_probability);
-        h5.attribute(g, "norm_drift", x.norm_drift);
-      }
-    }
-    h5.commit();
+    write_compare_paths_result(o.out, rep, command_line());
     if (!o.json) std::cout << fmt::format("wrote {}\n", o.out);
   }
 }
