@@ -82,3 +82,20 @@ TEST_CASE("durations --bath: bath points are journaled; a resumed run reuses the
   REQUIRE_MESSAGE(fresh.exit_code == 0, fresh.err);
   CHECK(fresh.err.find("with the bath: 2 open-system anneal(s) (0 from the journal") != std::string::npos);
 }
+
+TEST_CASE("durations --bath: an output named like the bath journal is refused before any work") {
+  TempDir dir;
+  const auto bath = dir.path / "bath.toml";
+  std::ofstream(bath) << "format = \"gapwise-bath\"\ntemperature_mk = 40.0\ncoupling = 1e-3\ncutoff_ghz = 8.0\n";
+  const auto out = dir.path / "z.h5";
+  const auto r = run_gapwise("durations " + sample("data-samples/triangle.toml") + " " +
+                                 sample("schedules/hardware-like.toml") + " -d 5 --no-search --bath '" +
+                                 bath.string() + "' --out '" + out.string() + "' --csv '" + out.string() +
+                                 ".bath.journal'",
+                             dir);
+  CHECK(r.exit_code == 2);
+  CHECK(r.out.empty());
+  CHECK(r.err.find("z.h5.bath.journal: key 'journal': --csv") != std::string::npos);
+  CHECK(r.err.find("are the same file") != std::string::npos);
+  CHECK(!std::filesystem::exists(out));
+}

@@ -61,7 +61,10 @@ struct DurationsOptions {
 
 void run_durations(const DurationsOptions& o) {
   const RunInputs loaded = load_run_inputs(RunFiles{}.problem(o.problem).schedule(o.schedule).bath(o.bath).plan(
-      FilePlan{}.output(o.out, "--out").output(o.csv, "--csv").journal_of(!o.out.empty() ? o.out : o.csv)));
+      FilePlan{}.output(o.out, "--out").output(o.csv, "--csv").journal_of(!o.out.empty() ? o.out : o.csv)
+          // the bath points' journal (below)
+          .journal_of(!o.bath.empty() && (!o.out.empty() || !o.csv.empty()) ? (!o.out.empty() ? o.out : o.csv) + ".bath"
+                                                                            : std::string())));
   const IsingProblem& problem = loaded.problem();
   const Schedule& schedule = loaded.schedule;
   const std::optional<OhmicBath>& bath = loaded.bath;
