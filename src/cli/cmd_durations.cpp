@@ -6,6 +6,7 @@
 // output file and a rerun of the same command skips them.
 #include <limits>
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <cstring>
 #include <filesystem>
@@ -60,7 +61,10 @@ struct DurationsOptions {
 
 void run_durations(const DurationsOptions& o) {
   const RunInputs loaded = load_run_inputs(RunFiles{}.problem(o.problem).schedule(o.schedule).bath(o.bath).plan(
-      FilePlan{}.output(o.out, "--out").output(o.csv, "--csv").journal_of(!o.out.empty() ? o.out : o.csv)));
+      FilePlan{}.output(o.out, "--out").output(o.csv, "--csv").journal_of(!o.out.empty() ? o.out : o.csv)
+          // the bath points' journal (below)
+          .journal_of(!o.bath.empty() && (!o.out.empty() || !o.csv.empty()) ? (!o.out.empty() ? o.out : o.csv) + ".bath"
+                                                                            : std::string())));
   const IsingProblem& problem = loaded.problem();
   const Schedule& schedule = loaded.schedule;
   const std::optional<OhmicBath>& bath = loaded.bath;
@@ -122,6 +126,18 @@ void run_durations(const DurationsOptions& o) {
   JournaledRun run(!o.out.empty() ? o.out : o.csv, o.fresh, duration_journal_layout(), input_fingerprint(inputs),
                    {o.out, o.csv});
   ResultJournal* journal = run.journal();
+  // The bath points have a journal of their own ("<result>.bath.journal"; its
+  // inputs add the bath file and --bath-levels), opened here so that a journal
+  // of another bath is refused before any work.
+  std::unique_ptr<ResultJournal> open_journal;
+  if (bath && journal) {
+    const std::string path = journal_path_for((!o.out.empty() ? o.out : o.csv) + ".bath");
+    if (o.fresh) std::filesystem::remove(path);
+    std::vector<std::string> open_inputs = inputs;
+    open_inputs.push_back(read_text_file(o.bath));
+    open_inputs.push_back(fmt::format("levels={}", o.bath_levels));
+    open_journal = std::make_unique<ResultJournal>(path, open_duration_journal_layout(), input_fingerprint(open_inputs));
+  }
   DurationEvaluator ev(setup, journal);
   if (journal && journal->resumed() > 0 && !o.quiet)
     std::cerr << fmt::format("gapwise: resuming from {}: {} finished duration(s) reused\n", journal->path(),
@@ -161,13 +177,52 @@ void run_durations(const DurationsOptions& o) {
   write_outputs(&st);
   run.results_written();
 
-  // ---- with the bath: the grid durations again, open system (not journaled)
+  // ---- with the bath: the grid durations again, open system, journaled in a
+  // journal of their own beside the closed one (its inputs include the bath).
   std::vector<OpenDurationPoint> open_rows;
   if (bath) {
+    const OpenPropagatorOptions opo = open_propagator_options(o.tolerance, o.bath_levels);
+    // The work estimate: how many open-system anneals, at which K, and (after the
+    // first one) a rough time, scaled by duration (the cost grows about linearly
+    // with t_f at fixed K).
+    std::size_t reused = 0;
+    double todo_ns = 0;
+    for (double t : grid) {
+      if (open_journal && open_journal->find({t})) ++reused;
+      else todo_ns += t;
+    }
+    const std::string method = resolve_open_method(opo.method, problem.qubits);
+    if (!o.quiet)
+      std::cerr << fmt::format(
+          "gapwise: with the bath: {} open-system anneal(s) ({} from the journal {}), {}, {}; total {} ns of anneal\n",
+          grid.size() - reused, reused, open_journal ? open_journal->path() : std::string("(none)"), method,
+          method == "ame-truncated"
+              ? (o.bath_levels > 0 ? fmt::format("K = {} fixed", o.bath_levels)
+                                   : std::string("K from 6 upward until p changes less than the tolerance (a pass per K)"))
+              : fmt::format("full {}x{} density matrix", 1 << problem.qubits, 1 << problem.qubits),
+          fmt_num(todo_ns, 6));
+    bool estimated = false;
+    std::size_t simulated_before = open_journal ? open_journal->size() : 0;
     ProgressBar open_bar("durations with the bath", grid.size(), static_cast<double>(grid.size()), o.quiet ? 0 : -1);
-    open_rows = open_duration_scan(setup, *bath, grid, open_propagator_options(o.tolerance, o.bath_levels), o.target,
-                                   [&](double t) { return ev.known().at(t).ground_probability; },
-                                   [&](std::size_t) { open_bar.finished_item(1.0); });
+    const auto started = std::chrono::steady_clock::now();
+    open_rows = open_duration_scan(setup, *bath, grid, opo, o.target,
+                                   [&](double t) { return ev.known().at(t).ground_probability; }, open_journal.get(),
+                                   [&](std::size_t done) {
+                                     open_bar.finished_item(1.0);
+                                     const double t = grid[done - 1];
+                                     const bool simulated = !open_journal || open_journal->size() > simulated_before;
+                                     if (open_journal) simulated_before = open_journal->size();
+                                     if (!estimated && simulated && !o.quiet && todo_ns > t) {
+                                       estimated = true;
+                                       const double s = std::chrono::duration<double>(
+                                                            std::chrono::steady_clock::now() - started).count();
+                                       std::cerr << fmt::format(
+                                           "\ngapwise: with the bath: the first open-system anneal ({} ns) took {:.1f} s; "
+                                           "the other {} ns need roughly {:.0f} s more (scaled linearly with t_f; longer anneals "
+                                           "usually take fewer steps per ns, so this tends to be high)\n",
+                                           fmt_num(t, 6), s, fmt_num(todo_ns - t, 6), s * (todo_ns - t) / t);
+                                     }
+                                   });
     open_bar.done();
     // The result files again, now with the open-system datasets and columns.
     in.bath = &*bath;

@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "dynamics/master_equation.hpp"
+#include "io/result_journal.hpp"
 #include "studies/duration_sweep.hpp"
 #include "studies/time_to_solution.hpp"
 
@@ -31,6 +32,21 @@ std::vector<OpenDurationPoint> open_duration_scan(const AnnealSetup& setup, cons
                                                   const std::vector<double>& durations_ns,
                                                   const OpenPropagatorOptions& options, double target,
                                                   const std::function<double(double)>& closed_p,
+                                                  const std::function<void(std::size_t done)>& on_point = {});
+
+/// The journal layout of the open-system points (one record per duration): the
+/// numbers every output of `durations --bath` shows. The final populations are
+/// not journaled: a point taken from the journal has none.
+JournalLayout open_duration_journal_layout();
+
+/// The scan with a journal (may be null): a duration found in it is taken from
+/// it, not simulated again; each simulated one is appended when it finishes.
+/// `on_point(done)` is called for simulated and journaled points alike.
+std::vector<OpenDurationPoint> open_duration_scan(const AnnealSetup& setup, const OhmicBath& bath,
+                                                  const std::vector<double>& durations_ns,
+                                                  const OpenPropagatorOptions& options, double target,
+                                                  const std::function<double(double)>& closed_p,
+                                                  ResultJournal* journal,
                                                   const std::function<void(std::size_t done)>& on_point = {});
 
 }  // namespace gapwise
