@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <iostream>
+#include <limits>
 
 #include <fmt/format.h>
 
@@ -63,7 +64,7 @@ void print_ensemble_summary(const EnsembleResult& r, const std::string& out, con
                            r.settings.simulation.propagator, r.settings.simulation.propagation.tolerance);
   if (r.settings.bath) {
     const OhmicBath& b = *r.settings.bath;
-    double trace = 0, eig = 0;
+    double trace = 0, eig = std::numeric_limits<double>::infinity();
     for (const auto& o : r.instances) {
       trace = std::max(trace, o.bath_max_trace_error);
       eig = std::min(eig, o.bath_min_eigenvalue);
