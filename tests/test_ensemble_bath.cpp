@@ -158,6 +158,13 @@ TEST_CASE("command line: ensemble --bath writes the bath columns; a missing bath
   const auto missing = run_gapwise("ensemble" + common + "--bath " + p("no-such-bath.toml") + " --out " + p("m.h5"), dir);
   CHECK(missing.exit_code != 0);
   CHECK(missing.err.find("no-such-bath.toml") != std::string::npos);
+  // The shared size check of --bath, applied to the largest instance, names it.
+  REQUIRE(run_gapwise("generate --graph ring --sizes 4,10 --count 1 --seed 5 --out " + p("big.h5"), dir).exit_code == 0);
+  const auto big = run_gapwise("ensemble " + p("big.h5") + " '" + schedule_path() + "' -d 1 --bath '" + bath + "' --out " + p("b.h5"), dir);
+  CHECK(big.exit_code == 2);
+  CHECK(big.err.find("instance 'n10-000'") != std::string::npos);
+  CHECK(big.err.find("10 qubits") != std::string::npos);
+  CHECK_FALSE(std::filesystem::exists(p("b.h5")));
   const auto levels = run_gapwise("ensemble" + common + "--bath-levels 4 --out " + p("l.h5"), dir);
   CHECK(levels.exit_code == 2);
   CHECK(levels.err.find("--bath-levels") != std::string::npos);

@@ -76,12 +76,19 @@ void run_ensemble(const EnsembleOptions& o) {
       // The bath must hold the largest instance (the shared size check of
       // --bath) and --bath-levels K must fit the smallest one.
       int largest = 0, smallest = 0;
+      std::string largest_name;
       for (const auto& inst : set.instances) {
+        if (inst.problem.qubits > largest) largest_name = inst.name;
         largest = std::max(largest, inst.problem.qubits);
         smallest = smallest == 0 ? inst.problem.qubits : std::min(smallest, inst.problem.qubits);
       }
       check_bath_levels(o.bath_levels, !o.bath.empty(), smallest);
-      st.bath = load_bath(o.bath, largest);
+      try {
+        st.bath = load_bath(o.bath, largest);
+      } catch (const InputError& e) {  // the shared check speaks of "the problem": name the instance
+        throw InputError(e.place(), fmt::format("instance '{}' of the set: {}", terminal_text(largest_name), e.problem()),
+                         e.fix());
+      }
       st.open = open_propagator_options(o.tolerance, o.bath_levels);
     }
     st.validate();
