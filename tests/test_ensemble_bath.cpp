@@ -154,6 +154,11 @@ TEST_CASE("command line: ensemble --bath writes the bath columns; a missing bath
   CHECK(json.out.find("\"p_bath\"") != std::string::npos);
   CHECK(json.out.find("\"bath_tts_ns\"") != std::string::npos);
   CHECK(read_ensemble_result(p("e.h5")).settings.bath.has_value());
+  // The figure of the TTS with the bath is drawn beside the closed ones (looked at by eye when added).
+  const auto fig = run_gapwise("figure " + p("e.h5") + " --out-dir " + p("figs") + " --format svg", dir);
+  REQUIRE(fig.exit_code == 0);
+  CHECK(fig.out.find("e-ensemble-tts-bath.svg") != std::string::npos);
+  CHECK(std::filesystem::file_size(dir.path / "figs" / "e-ensemble-tts-bath.svg") > 1000);
 
   const auto missing = run_gapwise("ensemble" + common + "--bath " + p("no-such-bath.toml") + " --out " + p("m.h5"), dir);
   CHECK(missing.exit_code != 0);
