@@ -193,6 +193,10 @@ def main():
             run(exe, args + ["--out", str(tmp / out)], tmp)
         run(exe, ["ensemble", str(tmp / "set.h5"), lin, "-d", "0.5,2,8", "--out", str(tmp / "ens.h5")], tmp)
         jobs.append(("ens.h5", "gapwise-ensemble-result", None))
+        # ensemble --bath (branch h18-ensemble2): /ensemble/bath and the bath_* datasets.
+        run(exe, ["ensemble", str(tmp / "set.h5"), lin, "-d", "0.5", "-q", "--bath",
+                  str(root / "data-samples" / "bath-12mk.toml"), "--out", str(tmp / "ens-bath.h5")], tmp)
+        jobs.append(("ens-bath.h5", "gapwise-ensemble-result", None))
         matrices = 0
         for out, fmt, _ in jobs:
             if (tmp / out).exists():

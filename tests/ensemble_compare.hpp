@@ -19,7 +19,7 @@ inline std::string ensemble_difference(const std::string& a_path, const std::str
     if (names != b.members(group)) return group + ": different members";
     for (const auto& n : names) {
       const std::string path = group + "/" + n;
-      if (n == "instances" || n == "by_size") continue;
+      if (n == "instances" || n == "by_size" || n == "bath") continue;  // groups (bath: attributes only)
       if (n == "name") {
         if (a.read_strings(path) != b.read_strings(path)) return path + " differs";
         continue;

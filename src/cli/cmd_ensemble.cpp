@@ -2,6 +2,7 @@
 // every instance of a set, and per size the median and quantiles with bootstrap
 // intervals. Runs on threads, or under mpirun on every rank; resumable from its
 // journal; `--shard i/N` for job arrays, merged by `gapwise merge-shards`.
+#include <algorithm>
 #include <iostream>
 #include <memory>
 #include <optional>
@@ -9,6 +10,7 @@
 
 #include <fmt/format.h>
 
+#include "cli/bath_option.hpp"
 #include "cli/cli_common.hpp"
 #include "cli/input_loading.hpp"
 #include "cli/journaled_run.hpp"
@@ -33,9 +35,9 @@ namespace {
 
 struct EnsembleOptions {
   std::string set, schedule, out, csv, durations = "0.1,0.2,0.5,1,2,5,10,20,50,100", shard = "0/1", quantiles = "0.25,0.5,0.75";
-  std::string propagator = SimulationOptions{}.propagator;
+  std::string propagator = SimulationOptions{}.propagator, bath;
   double target = kDefaultTargetProbability, tolerance = 1e-6, confidence = 0.95, gap_s_tolerance = 1e-6;
-  int threads = 0, resamples = 2000, gap_points = 101;
+  int threads = 0, resamples = 2000, gap_points = 101, bath_levels = 0;
   unsigned long long bootstrap_seed = 1;
   bool fresh = false, quiet = false, json = false, allow_long = false;
 };
@@ -47,7 +49,7 @@ namespace {
 void run_ensemble(const EnsembleOptions& o) {
   ProcessGroup& group = ProcessGroup::instance();
   try {
-    const RunInputs loaded = load_run_inputs(RunFiles{}.instance_set(o.set).schedule(o.schedule).plan(
+    const RunInputs loaded = load_run_inputs(RunFiles{}.instance_set(o.set).schedule(o.schedule).bath(o.bath).plan(
         FilePlan{}.output(o.out, "--out").journal_of(o.out).output(o.csv, "--csv")));
     const InstanceSet& set = *loaded.instance_set;
     const std::string schedule_text = read_text_file(o.schedule);
@@ -70,6 +72,25 @@ void run_ensemble(const EnsembleOptions& o) {
     if (o.bootstrap_seed > (1ULL << 63) - 1)
       throw InputError({"--bootstrap-seed", 0, 0, "--bootstrap-seed"}, "the seed must fit in 63 bits", "use a smaller seed");
     st.bootstrap_seed = o.bootstrap_seed;
+    if (!o.bath.empty() || o.bath_levels != 0) {
+      // The bath must hold the largest instance (the shared size check of
+      // --bath) and --bath-levels K must fit the smallest one.
+      int largest = 0, smallest = 0;
+      std::string largest_name;
+      for (const auto& inst : set.instances) {
+        if (inst.problem.qubits > largest) largest_name = inst.name;
+        largest = std::max(largest, inst.problem.qubits);
+        smallest = smallest == 0 ? inst.problem.qubits : std::min(smallest, inst.problem.qubits);
+      }
+      check_bath_levels(o.bath_levels, !o.bath.empty(), smallest);
+      try {
+        st.bath = load_bath(o.bath, largest);
+      } catch (const InputError& e) {  // the shared check speaks of "the problem": name the instance
+        throw InputError(e.place(), fmt::format("instance '{}' of the set: {}", terminal_text(largest_name), e.problem()),
+                         e.fix());
+      }
+      st.open = open_propagator_options(o.tolerance, o.bath_levels);
+    }
     st.validate();
 
     EnsembleRun run{set, sch, schedule_text, st, ShardSpec{}, 1, {}, {}};
@@ -79,6 +100,8 @@ void run_ensemble(const EnsembleOptions& o) {
       if (!run.shard.contains(i)) continue;
       const IsingProblem& ip = set.instances[i].problem;
       for (double t : st.durations_ns) work += anneal_work(ip, sch.scales, t);
+      // The master equation costs far more than the closed anneal, so this
+      // estimate is low with a bath; the size check of --bath bounds it.
       work += spectrum_work(ip.qubits, 4, 3.0 * st.gap_coarse_points);
     }
     check_work_limit(work, o.allow_long, {"--durations", 0, 0, "--durations"});
@@ -86,9 +109,12 @@ void run_ensemble(const EnsembleOptions& o) {
     if (!o.quiet)
       run.progress = [](const EnsembleProgress& p) {
         const double eta = p.seconds_left();
-        std::cerr << fmt::format("[{}/{}] {} (n={}): gap {} GHz, best TTS {} ns  ({:.2f} s; {:.0f} s elapsed, ~{:.0f} s left)\n",
+        std::cerr << fmt::format("[{}/{}] {} (n={}): gap {} GHz, best TTS {} ns{}  ({:.2f} s; {:.0f} s elapsed, ~{:.0f} s left)\n",
                                  p.done, p.total, terminal_text(p.last->name), p.last->qubits, fmt_num(p.last->gap_ghz, 4),
                                  tts_text(p.last->tts_ns, 4),
+                                 p.last->bath_ground_probability.empty()
+                                     ? std::string()
+                                     : fmt::format(", with the bath {} ns", tts_text(p.last->bath_tts_ns, 4)),
                                  p.last->wall_seconds, p.elapsed_seconds, eta);
       };
     // The one resumable-run scaffold, opened by the study on the collecting rank
@@ -140,7 +166,10 @@ void register_ensemble(CLI::App& app) {
       "join the results with `gapwise merge-shards`. Results are identical bit for bit\n"
       "whatever the thread, rank or shard count.\n"
       "The TTS optimum is only bracketed when the durations reach below it: with GHz\n"
-      "energy scales that means well below 1 ns (column `TTS at range edge`).\n" +
+      "energy scales that means well below 1 ns (column `TTS at range edge`).\n"
+      "With --bath FILE every anneal also runs as the adiabatic master equation with that\n"
+      "ohmic bath: p and the best TTS with the bath beside the closed ones, per instance\n"
+      "and per size (journaled and merged like the rest).\n" +
       std::string(kRandomGuessLimitText) + "\n"
       "Example: gapwise ensemble glasses.h5 schedules/linear.toml -d 0.1,0.2,0.5,1,2,5,10,30 --out study.h5\n"
       "         mpirun -np 8 gapwise ensemble glasses.h5 schedules/linear.toml --out study.h5");
@@ -164,6 +193,8 @@ void register_ensemble(CLI::App& app) {
   sub->add_option("--gap-points", o->gap_points, "gap search: uniform scan points before refinement")->capture_default_str();
   sub->add_option("--gap-s-tolerance", o->gap_s_tolerance, "gap search: precision of s*")->capture_default_str();
   sub->add_option("--csv", o->csv, "also write the per-size table as CSV");
+  add_bath_option(sub, o->bath);
+  add_bath_levels_option(sub, o->bath_levels);
   sub->add_flag("-q,--quiet", o->quiet, "no progress lines on stderr");
   add_allow_long_flag(sub, o->allow_long);
   sub->add_flag("--json", o->json,

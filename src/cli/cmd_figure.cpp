@@ -32,6 +32,7 @@ void register_figure(CLI::App& app) {
       "  diagnose       diagnosis-gap (crossings marked), diagnosis-ground-weight; with --bath\n"
       "                 diagnosis-thermal (gap/theta and relaxations left), diagnosis-thermal-populations\n"
       "  ensemble       ensemble-tts, ensemble-gap: median and quantile band against size\n"
+      "                 (with --bath also ensemble-tts-bath: the TTS with the bath)\n"
       "Example: gapwise figure run.h5 --out-dir figs --format png");
   sub->add_option("results", o->files, "HDF5 result files")->required()->check(readable_input_file());
   sub->add_option("--out-dir", o->out_dir, "folder for the figures (created if missing)")->capture_default_str();

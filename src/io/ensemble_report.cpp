@@ -1,13 +1,17 @@
 #include "io/ensemble_report.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <iostream>
+#include <limits>
 
 #include <fmt/format.h>
 
 #include "io/atomic_file.hpp"
 #include "io/infinite_tts.hpp"
 #include "io/json_summary.hpp"
+#include "io/terminal_text.hpp"
+#include "io/text_table.hpp"
 
 namespace gapwise {
 namespace {
@@ -28,6 +32,12 @@ TextTable ensemble_size_table(const EnsembleResult& r) {
   for (double q : qs) head.push_back(fmt::format("gap_GHz q{}", fmt_num(q, 3)));
   head.push_back("TTS at range edge");
   head.push_back("never solved");
+  const bool bath = r.settings.bath.has_value();
+  if (bath) {
+    for (double q : qs) head.push_back(fmt::format("bath TTS_ns q{} [{}% CI]", fmt_num(q, 3), ci));
+    head.push_back("bath TTS at range edge");
+    head.push_back("bath never solved");
+  }
   TextTable t(head);
   for (const auto& s : r.sizes) {
     std::vector<std::string> row = {std::to_string(s.qubits), std::to_string(s.tts_ns.count)};
@@ -35,6 +45,11 @@ TextTable ensemble_size_table(const EnsembleResult& r) {
     for (const auto& q : s.gap_ghz.quantiles) row.push_back(fmt_num(q.value, 4));
     row.push_back(std::to_string(s.tts_at_range_edge));
     row.push_back(std::to_string(s.never_solved));
+    if (bath) {
+      for (const auto& q : s.bath_tts_ns.quantiles) row.push_back(interval_text(q, 4));
+      row.push_back(std::to_string(s.bath_tts_at_range_edge));
+      row.push_back(std::to_string(s.bath_never_solved));
+    }
     t.add(row);
   }
   return t;
@@ -47,6 +62,20 @@ void print_ensemble_summary(const EnsembleResult& r, const std::string& out, con
                            r.settings.durations_ns.size(), fmt_num(r.settings.durations_ns.front(), 6),
                            fmt_num(r.settings.durations_ns.back(), 6), r.settings.target_probability,
                            r.settings.simulation.propagator, r.settings.simulation.propagation.tolerance);
+  if (r.settings.bath) {
+    const OhmicBath& b = *r.settings.bath;
+    double trace = 0, eig = std::numeric_limits<double>::infinity();
+    for (const auto& o : r.instances) {
+      trace = std::max(trace, o.bath_max_trace_error);
+      eig = std::min(eig, o.bath_min_eigenvalue);
+    }
+    std::cout << fmt::format("bath          {}{}; adiabatic master equation ({}{}), every anneal also run with it\n",
+                             b.source.empty() ? "" : b.source + ": ", b.summary(), r.settings.open.method,
+                             r.settings.open.levels > 0 ? fmt::format(", K = {} fixed, not checked", r.settings.open.levels)
+                                                        : std::string());
+    std::cout << fmt::format("density matrix  trace error at most {:.1e}, smallest eigenvalue {:.1e} over all runs\n",
+                             trace, eig);
+  }
   std::cout << fmt::format("work          {}: {} computed, {} from the journal, {:.1f} s\n", r.distribution, r.computed,
                            r.resumed, r.wall_seconds);
   int planted = 0, planted_ok = 0;
@@ -59,6 +88,23 @@ void print_ensemble_summary(const EnsembleResult& r, const std::string& out, con
                            r.settings.bootstrap_resamples, r.settings.bootstrap_seed);
   const TextTable t = ensemble_size_table(r);
   std::cout << t.render();
+  if (r.settings.bath) {
+    // p with the bath beside the closed p, per instance and duration.
+    std::vector<std::string> head = {"instance", "qubits"};
+    for (double d : r.settings.durations_ns) head.push_back(fmt::format("p closed / bath @ {} ns", fmt_num(d, 4)));
+    head.push_back("TTS_ns closed");
+    head.push_back("TTS_ns bath");
+    TextTable per(head);
+    for (const auto& o : r.instances) {
+      std::vector<std::string> row = {terminal_text(o.name), std::to_string(o.qubits)};
+      for (std::size_t k = 0; k < o.ground_probability.size(); ++k)
+        row.push_back(fmt::format("{:.6f} / {:.6f}", o.ground_probability[k], o.bath_ground_probability.at(k)));
+      row.push_back(tts_text(o.tts_ns, 4));
+      row.push_back(tts_text(o.bath_tts_ns, 4));
+      per.add(row);
+    }
+    std::cout << "\nground-state probability per instance, closed system / with the bath\n" << per.render();
+  }
   if (!csv.empty()) write_file_atomically(csv, t.csv());
   if (!out.empty()) std::cout << fmt::format("\nresult written to {}\n", out);
 }
@@ -106,6 +152,11 @@ void print_ensemble_json(const EnsembleResult& r, const std::string& csv) {
     put(e, "never_solved", static_cast<long long>(s.never_solved));
     e.insert_or_assign("tts_ns", quantiles(s.tts_ns));
     e.insert_or_assign("gap_ghz", quantiles(s.gap_ghz));
+    if (r.settings.bath) {
+      e.insert_or_assign("bath_tts_ns", quantiles(s.bath_tts_ns));
+      put(e, "bath_tts_at_range_edge", static_cast<long long>(s.bath_tts_at_range_edge));
+      put(e, "bath_never_solved", static_cast<long long>(s.bath_never_solved));
+    }
     edge += static_cast<long long>(s.tts_at_range_edge);
     never += static_cast<long long>(s.never_solved);
     sizes.push_back(std::move(e));
@@ -115,6 +166,37 @@ void print_ensemble_json(const EnsembleResult& r, const std::string& csv) {
   put(j, "planted_instances", planted);
   put(j, "planted_ground_energy_confirmed", planted_ok);
   j.insert_or_assign("sizes", std::move(sizes));
+  if (r.settings.bath) {
+    const OhmicBath& b = *r.settings.bath;
+    toml::table bt;
+    put(bt, "file", b.source);
+    put(bt, "temperature_mk", b.temperature_mk);
+    put(bt, "theta_ghz", b.theta_ghz());
+    put(bt, "coupling", b.coupling);
+    put(bt, "cutoff_ghz", b.cutoff_ghz);
+    put(bt, "method", r.settings.open.method);
+    put(bt, "levels", static_cast<long long>(r.settings.open.levels));
+    j.insert_or_assign("bath", std::move(bt));
+    // Per instance: p closed and with the bath at each duration, and both TTS
+    // (an infinite TTS is left out, with `*_tts_infinite` true).
+    toml::array per;
+    for (const auto& o : r.instances) {
+      toml::table e;
+      put(e, "name", o.name);
+      put(e, "qubits", static_cast<long long>(o.qubits));
+      toml::array pc, pb;
+      for (double x : o.ground_probability) pc.push_back(x);
+      for (double x : o.bath_ground_probability) pb.push_back(x);
+      e.insert_or_assign("p_closed", std::move(pc));
+      e.insert_or_assign("p_bath", std::move(pb));
+      put(e, "closed_tts_infinite", std::isinf(o.tts_ns));
+      if (std::isfinite(o.tts_ns)) put(e, "closed_tts_ns", o.tts_ns);
+      put(e, "bath_tts_infinite", std::isinf(o.bath_tts_ns));
+      if (std::isfinite(o.bath_tts_ns)) put(e, "bath_tts_ns", o.bath_tts_ns);
+      per.push_back(std::move(e));
+    }
+    j.insert_or_assign("open_system", std::move(per));
+  }
   if (!csv.empty()) write_file_atomically(csv, ensemble_size_table(r).csv());
   std::cout << to_json(j) << "\n";
 }

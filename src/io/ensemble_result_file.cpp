@@ -8,6 +8,7 @@
 #include "io/hdf5_input.hpp"
 #include "io/hdf5_output.hpp"
 #include "io/infinite_tts.hpp"
+#include "io/bath_attributes.hpp"
 
 namespace gapwise {
 namespace {
@@ -80,6 +81,31 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
   std::vector<double> p;
   for (const auto& o : v) p.insert(p.end(), o.ground_probability.begin(), o.ground_probability.end());
   out.write_matrix(g + "/ground_probability", p, v.size(), st.durations_ns.size(), "1", {g + "/set_index", e + "/durations_ns"});
+  if (st.bath) {
+    // --bath: the bath (attributes of /ensemble/bath) and the same numbers with it,
+    // beside the closed ones; these datasets exist only in a result run with a bath.
+    write_bath_attributes(out, e + "/bath", *st.bath);
+    out.attribute(e + "/bath", "open_method", st.open.method);
+    out.attribute(e + "/bath", "open_levels", static_cast<long long>(st.open.levels));
+    out.attribute(e + "/bath", "open_check_levels", static_cast<long long>(st.open.check_levels));
+    out.attribute(e + "/bath", "open_tolerance", st.open.tolerance);
+    std::vector<double> pb;
+    for (const auto& o : v) pb.insert(pb.end(), o.bath_ground_probability.begin(), o.bath_ground_probability.end());
+    out.write_matrix(g + "/bath_ground_probability", pb, v.size(), st.durations_ns.size(),
+                     DataMeaning("1").described("p(t_f) with the bath (adiabatic master equation); never NaN"),
+                     {g + "/set_index", e + "/durations_ns"});
+    out.write(g + "/bath_tts_ns", column(v, [](auto& o) { return stored_tts(o.bath_tts_ns); }),
+              tts_meaning("ns").described("best TTS with the bath; +inf exactly where bath_tts_never is 1"));
+    out.write(g + "/bath_tts_never", int_column(v, [](auto& o) { return std::isinf(o.bath_tts_ns); }),
+              DataMeaning("1").flagged({0, 1}, "solved never").described("1: p with the bath was 0 at every duration"));
+    out.write(g + "/bath_tts_duration_ns", column(v, [](auto& o) { return o.bath_tts_duration_ns; }), "ns");
+    out.write(g + "/bath_tts_at_range_edge", int_column(v, [](auto& o) { return o.bath_tts_at_range_edge; }),
+              DataMeaning("1").flagged({0, 1}, "no yes"));
+    out.write(g + "/bath_max_trace_error", column(v, [](auto& o) { return o.bath_max_trace_error; }),
+              DataMeaning("1").described("largest |Tr rho - 1| along the runs with the bath"));
+    out.write(g + "/bath_min_eigenvalue", column(v, [](auto& o) { return o.bath_min_eigenvalue; }),
+              DataMeaning("1").described("smallest eigenvalue of rho at the end of any run with the bath"));
+  }
 
   const std::string b = e + "/by_size";
   out.group(b);
@@ -94,6 +120,15 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
   out.write(b + "/count", count, DataMeaning("1").described("number of instances"));
   out.write(b + "/tts_at_range_edge", edge, DataMeaning("1").described("number of instances"));
   out.write(b + "/never_solved", never, DataMeaning("1").described("number of instances"));
+  if (st.bath) {
+    std::vector<long long> bedge, bnever;
+    for (const auto& s : r.sizes) {
+      bedge.push_back(static_cast<long long>(s.bath_tts_at_range_edge));
+      bnever.push_back(static_cast<long long>(s.bath_never_solved));
+    }
+    out.write(b + "/bath_tts_at_range_edge", bedge, DataMeaning("1").described("number of instances, with the bath"));
+    out.write(b + "/bath_never_solved", bnever, DataMeaning("1").described("number of instances, with the bath"));
+  }
   const std::size_t rows = r.sizes.size(), cols = st.quantile_levels.size();
   auto table = [&](const std::string& name, auto pick, auto value, const DataMeaning& unit) {
     std::vector<double> t;
@@ -112,6 +147,12 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
   table("gap_quantile_ghz", gap, val, "GHz");
   table("gap_low_ghz", gap, low, "GHz");
   table("gap_high_ghz", gap, high, "GHz");
+  if (st.bath) {
+    auto btts = [](const SizeSummary& s) -> const SampleSummary& { return s.bath_tts_ns; };
+    table("bath_tts_quantile_ns", btts, val, tts_meaning("ns"));
+    table("bath_tts_low_ns", btts, low, tts_meaning("ns"));
+    table("bath_tts_high_ns", btts, high, tts_meaning("ns"));
+  }
 
   out.write("/timing/wall_seconds", column(v, [](auto& o) { return o.wall_seconds; }), "s");
   out.attribute("/timing", "distribution", r.distribution);
@@ -171,6 +212,30 @@ EnsembleResult read_ensemble_result(const std::string& path) {
   const auto p = in.read(g + "/ground_probability");
   if (p.size() != n * k) in.fail(g + "/ground_probability", fmt::format("expected {} x {} values", n, k), "write the file with gapwise");
   const auto wall = in.read_list("/timing/wall_seconds", n);
+  const bool with_bath = in.has(e + "/bath");
+  std::vector<double> bp, btts, btd, btrace, beig;
+  std::vector<long long> bnever, bedge;
+  if (with_bath) {
+    OhmicBath bath;
+    bath.source = in.attribute_string(e + "/bath", "bath_file");
+    bath.temperature_mk = in.attribute_double(e + "/bath", "temperature_mk");
+    bath.coupling = in.attribute_double(e + "/bath", "coupling");
+    bath.cutoff_ghz = in.attribute_double(e + "/bath", "cutoff_ghz");
+    st.bath = bath;
+    st.open.method = in.attribute_string(e + "/bath", "open_method");
+    st.open.levels = static_cast<int>(in.attribute_int(e + "/bath", "open_levels"));
+    st.open.check_levels = in.attribute_int(e + "/bath", "open_check_levels") != 0;
+    st.open.tolerance = in.attribute_double(e + "/bath", "open_tolerance");
+    bp = in.read(g + "/bath_ground_probability");
+    if (bp.size() != n * k)
+      in.fail(g + "/bath_ground_probability", fmt::format("expected {} x {} values", n, k), "write the file with gapwise");
+    btts = in.read_list(g + "/bath_tts_ns", n);
+    bnever = in.read_int_list(g + "/bath_tts_never", n);
+    btd = in.read_list(g + "/bath_tts_duration_ns", n);
+    bedge = in.read_int_list(g + "/bath_tts_at_range_edge", n);
+    btrace = in.read_list(g + "/bath_max_trace_error", n);
+    beig = in.read_list(g + "/bath_min_eigenvalue", n);
+  }
   for (std::size_t i = 0; i < n; ++i) {
     if (idx[i] < 0 || static_cast<std::size_t>(idx[i]) >= r.set_size || (i && idx[i] <= idx[i - 1]))
       in.fail(fmt::format("{}/set_index[{}]", g, i), "set indices must be ascending and inside the set", "write the file with gapwise");
@@ -192,6 +257,14 @@ EnsembleResult read_ensemble_result(const std::string& path) {
     o.tts_at_range_edge = edge[i] != 0;
     o.ground_probability.assign(p.begin() + static_cast<long>(i * k), p.begin() + static_cast<long>((i + 1) * k));
     o.wall_seconds = wall[i];
+    if (with_bath) {
+      o.bath_ground_probability.assign(bp.begin() + static_cast<long>(i * k), bp.begin() + static_cast<long>((i + 1) * k));
+      o.bath_tts_ns = bnever[i] ? kInf : btts[i];
+      o.bath_tts_duration_ns = btd[i];
+      o.bath_tts_at_range_edge = bedge[i] != 0;
+      o.bath_max_trace_error = btrace[i];
+      o.bath_min_eigenvalue = beig[i];
+    }
     r.instances.push_back(std::move(o));
   }
   r.sizes = summarize_by_size(r.instances, st);  // recomputed: identical by construction (seeded)

@@ -26,6 +26,7 @@ InputError option_error(const std::string& key, const std::string& problem, cons
 }
 
 constexpr std::size_t kFixedValues = 14;  // to_values() fields before the p(t_f) list
+constexpr std::size_t kBathFixedValues = 5;  // with a bath: fields after the p(t_f) list, before the bath's p list
 
 std::string bytes_of(const std::vector<double>& v) {
   return std::string(reinterpret_cast<const char*>(v.data()), v.size() * sizeof(double));
@@ -38,8 +39,8 @@ std::vector<double> values_of(const std::string& s) {
 
 }  // namespace
 
-JournalLayout ensemble_journal_layout(std::size_t durations) {
-  return {"ensemble", {"set_index"}, InstanceOutcome::value_names(durations)};
+JournalLayout ensemble_journal_layout(std::size_t durations, bool with_bath) {
+  return {"ensemble", {"set_index"}, InstanceOutcome::value_names(durations, with_bath)};
 }
 
 std::string ensemble_fingerprint(const EnsembleRun& run) {
@@ -49,9 +50,17 @@ std::string ensemble_fingerprint(const EnsembleRun& run) {
 std::string EnsembleSettings::numerics_text() const {
   std::string d;
   for (double t : durations_ns) d += fmt::format("{}{:a}", d.empty() ? "" : ",", t);
-  return fmt::format("durations_ns=[{}] target={:a} propagator={} tolerance={:a} gap_coarse_points={} gap_s_tolerance={:a}",
-                     d, target_probability, simulation.propagator, simulation.propagation.tolerance, gap_coarse_points,
-                     gap_s_tolerance);
+  std::string text =
+      fmt::format("durations_ns=[{}] target={:a} propagator={} tolerance={:a} gap_coarse_points={} gap_s_tolerance={:a}",
+                  d, target_probability, simulation.propagator, simulation.propagation.tolerance, gap_coarse_points,
+                  gap_s_tolerance);
+  // Without a bath the text is the one of earlier versions, so their journals still resume.
+  if (bath)
+    text += fmt::format(" bath: temperature_mk={:a} coupling={:a} cutoff_ghz={:a} method={} levels={} check_levels={} "
+                        "open_tolerance={:a}",
+                        bath->temperature_mk, bath->coupling, bath->cutoff_ghz, open.method, open.levels,
+                        open.check_levels ? 1 : 0, open.tolerance);
+  return text;
 }
 
 void EnsembleSettings::validate() const {
@@ -115,11 +124,17 @@ ShardSpec ShardSpec::parse(const std::string& text) {
 
 std::string ShardSpec::text() const { return fmt::format("{}/{}", index, count); }
 
-std::vector<std::string> InstanceOutcome::value_names(std::size_t durations) {
+std::vector<std::string> InstanceOutcome::value_names(std::size_t durations, bool with_bath) {
   std::vector<std::string> n = {"qubits", "ground_energy", "ground_states", "planted_check", "gap_ghz",
                                 "gap_uncertainty_ghz", "gap_s", "gap_degeneracy", "gap_at_end_point", "max_norm_drift",
                                 "tts_ns", "tts_duration_ns", "tts_at_range_edge", "wall_seconds"};
   for (std::size_t k = 0; k < durations; ++k) n.push_back(fmt::format("p{}", k));
+  if (with_bath) {
+    for (const char* b : {"bath_tts_ns", "bath_tts_duration_ns", "bath_tts_at_range_edge", "bath_max_trace_error",
+                          "bath_min_eigenvalue"})
+      n.push_back(b);
+    for (std::size_t k = 0; k < durations; ++k) n.push_back(fmt::format("bath_p{}", k));
+  }
   return n;
 }
 
@@ -129,13 +144,20 @@ std::vector<double> InstanceOutcome::to_values() const {
                            static_cast<double>(gap_degeneracy), gap_at_end_point ? 1.0 : 0.0, max_norm_drift,
                            tts_ns, tts_duration_ns, tts_at_range_edge ? 1.0 : 0.0, wall_seconds};
   v.insert(v.end(), ground_probability.begin(), ground_probability.end());
+  if (!bath_ground_probability.empty()) {
+    v.insert(v.end(), {bath_tts_ns, bath_tts_duration_ns, bath_tts_at_range_edge ? 1.0 : 0.0, bath_max_trace_error,
+                       bath_min_eigenvalue});
+    v.insert(v.end(), bath_ground_probability.begin(), bath_ground_probability.end());
+  }
   return v;
 }
 
-InstanceOutcome InstanceOutcome::from_values(std::size_t set_index, const std::vector<double>& v, std::size_t durations) {
-  if (v.size() != kFixedValues + durations)
+InstanceOutcome InstanceOutcome::from_values(std::size_t set_index, const std::vector<double>& v, std::size_t durations,
+                                             bool with_bath) {
+  const std::size_t expected = kFixedValues + durations + (with_bath ? kBathFixedValues + durations : 0);
+  if (v.size() != expected)
     throw std::runtime_error(fmt::format("instance record {} has {} numbers, expected {}", set_index, v.size(),
-                                         kFixedValues + durations));
+                                         expected));
   InstanceOutcome o;
   o.set_index = set_index;
   o.qubits = static_cast<int>(v[0]);
@@ -152,7 +174,16 @@ InstanceOutcome InstanceOutcome::from_values(std::size_t set_index, const std::v
   o.tts_duration_ns = v[11];
   o.tts_at_range_edge = v[12] != 0;
   o.wall_seconds = v[13];
-  o.ground_probability.assign(v.begin() + kFixedValues, v.end());
+  const auto closed_end = v.begin() + static_cast<long>(kFixedValues + durations);
+  o.ground_probability.assign(v.begin() + kFixedValues, closed_end);
+  if (with_bath) {
+    o.bath_tts_ns = closed_end[0];
+    o.bath_tts_duration_ns = closed_end[1];
+    o.bath_tts_at_range_edge = closed_end[2] != 0;
+    o.bath_max_trace_error = closed_end[3];
+    o.bath_min_eigenvalue = closed_end[4];
+    o.bath_ground_probability.assign(closed_end + kBathFixedValues, v.end());
+  }
   return o;
 }
 
@@ -208,6 +239,27 @@ InstanceOutcome evaluate_instance(const Instance& instance, std::size_t set_inde
   o.tts_ns = best.tts_ns;
   o.tts_duration_ns = best.duration_ns;
   o.tts_at_range_edge = best.at_range_edge;
+  if (settings.bath) {
+    // The same anneals with the bath: the schedule stretched to each duration,
+    // from the same start state, one master-equation run each.
+    std::vector<double> pb;
+    o.bath_min_eigenvalue = std::numeric_limits<double>::infinity();
+    for (double t : settings.durations_ns) {
+      const OpenAnnealResult open = simulate_open_anneal(setup.hamiltonian, setup.ground, schedule.scales,
+                                                         setup.schedule.path_for(t), setup.start, *settings.bath,
+                                                         settings.open);
+      pb.push_back(open.ground_probability);
+      o.bath_max_trace_error = std::max(o.bath_max_trace_error, open.stats.max_trace_deviation);
+      o.bath_min_eigenvalue = std::min(o.bath_min_eigenvalue, open.min_eigenvalue);
+    }
+    std::vector<double> clamped;
+    for (double x : pb) clamped.push_back(std::clamp(x, 0.0, 1.0));
+    const TtsOptimum bbest = best_time_to_solution(settings.durations_ns, clamped, settings.target_probability);
+    o.bath_ground_probability = std::move(pb);
+    o.bath_tts_ns = bbest.tts_ns;
+    o.bath_tts_duration_ns = bbest.duration_ns;
+    o.bath_tts_at_range_edge = bbest.at_range_edge;
+  }
   o.wall_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   return o;
 }
@@ -220,8 +272,13 @@ std::vector<SizeSummary> summarize_by_size(const std::vector<InstanceOutcome>& o
     std::sort(list.begin(), list.end(), [](auto* a, auto* b) { return a->set_index < b->set_index; });
     SizeSummary s;
     s.qubits = n;
-    std::vector<double> tts, gap;
+    std::vector<double> tts, gap, bath_tts;
     for (const auto* o : list) {
+      if (st.bath) {
+        bath_tts.push_back(o->bath_tts_ns);
+        s.bath_tts_at_range_edge += o->bath_tts_at_range_edge;
+        s.bath_never_solved += std::isinf(o->bath_tts_ns);
+      }
       tts.push_back(o->tts_ns);
       gap.push_back(o->gap_ghz);
       s.tts_at_range_edge += o->tts_at_range_edge;
@@ -232,6 +289,9 @@ std::vector<SizeSummary> summarize_by_size(const std::vector<InstanceOutcome>& o
                                 derive_seed(st.bootstrap_seed, {key, 0}));
     s.gap_ghz = summarize_sample(gap, st.quantile_levels, st.bootstrap_resamples, st.confidence_level,
                                  derive_seed(st.bootstrap_seed, {key, 1}));
+    if (st.bath)
+      s.bath_tts_ns = summarize_sample(bath_tts, st.quantile_levels, st.bootstrap_resamples, st.confidence_level,
+                                       derive_seed(st.bootstrap_seed, {key, 2}));
     out.push_back(std::move(s));
   }
   return out;
@@ -244,6 +304,7 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
     throw InputError({run.set.source, 0, 0, ""}, "the instance set is empty", "give a set with at least one instance");
   ProcessGroup& group = ProcessGroup::instance();
   const std::size_t k_durations = run.settings.durations_ns.size();
+  const bool with_bath = run.settings.bath.has_value();
 
   EnsembleResult r;
   r.set_source = run.set.source;
@@ -263,12 +324,12 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
   std::map<std::size_t, InstanceOutcome> known;
   ResultJournal* journal = nullptr;
   if (group.is_collector() && run.open_journal)
-    journal = run.open_journal(ensemble_journal_layout(k_durations), r.numerics_fingerprint);
+    journal = run.open_journal(ensemble_journal_layout(k_durations, with_bath), r.numerics_fingerprint);
   if (journal) {
     for (const auto& [key, values] : journal->records()) {
       const auto i = static_cast<std::size_t>(key.at(0));
       if (i < run.set.instances.size() && run.shard.contains(i)) {
-        known.emplace(i, InstanceOutcome::from_values(i, values, k_durations));
+        known.emplace(i, InstanceOutcome::from_values(i, values, k_durations, with_bath));
         known.at(i).name = run.set.instances[i].name;
       }
     }
@@ -298,7 +359,7 @@ EnsembleResult run_ensemble_study(const EnsembleRun& run) {
     }
   };
   auto collect = [&](std::size_t i, std::string bytes) {
-    InstanceOutcome o = InstanceOutcome::from_values(i, values_of(bytes), k_durations);
+    InstanceOutcome o = InstanceOutcome::from_values(i, values_of(bytes), k_durations, with_bath);
     o.name = run.set.instances.at(i).name;
     if (journal) journal->append({static_cast<double>(i)}, o.to_values());
     auto it = known.insert_or_assign(i, std::move(o)).first;

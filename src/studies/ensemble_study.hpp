@@ -30,6 +30,8 @@
 #include <vector>
 
 #include "dynamics/anneal_simulation.hpp"
+#include "dynamics/master_equation.hpp"
+#include "dynamics/ohmic_bath.hpp"
 #include "io/result_journal.hpp"
 #include "io/instance_set_file.hpp"
 #include "schedule/schedule.hpp"
@@ -50,6 +52,10 @@ struct EnsembleSettings {
   double confidence_level = 0.95;
   int bootstrap_resamples = 2000;
   std::uint64_t bootstrap_seed = 1;
+  /// --bath: every anneal also runs as the adiabatic master equation with this
+  /// bath (p and TTS with the bath beside the closed ones); none: closed only.
+  std::optional<OhmicBath> bath;
+  OpenPropagatorOptions open;        ///< method, K and tolerance of the runs with the bath
 
   /// Every setting that decides per-instance numbers, as text (for fingerprints).
   std::string numerics_text() const;
@@ -86,11 +92,19 @@ struct InstanceOutcome {
   double tts_duration_ns = 0;          ///< where it is reached
   bool tts_at_range_edge = false;      ///< at the first or last duration: the optimum may lie outside
   double wall_seconds = 0;             ///< the only number that differs between runs
+  // With a bath (empty / unused otherwise): the same per duration, open system.
+  std::vector<double> bath_ground_probability;  ///< p(t_f) with the bath, one per duration
+  double bath_tts_ns = 0, bath_tts_duration_ns = 0;
+  bool bath_tts_at_range_edge = false;
+  double bath_max_trace_error = 0;     ///< largest |Tr rho - 1| along any of the runs
+  double bath_min_eigenvalue = 0;      ///< smallest eigenvalue of rho at the end of any run
 
-  /// Flat, exact encoding (journal records and messages between ranks).
+  /// Flat, exact encoding (journal records and messages between ranks); the
+  /// bath values follow the closed ones when `with_bath`.
   std::vector<double> to_values() const;
-  static InstanceOutcome from_values(std::size_t set_index, const std::vector<double>& v, std::size_t durations);
-  static std::vector<std::string> value_names(std::size_t durations);
+  static InstanceOutcome from_values(std::size_t set_index, const std::vector<double>& v, std::size_t durations,
+                                     bool with_bath = false);
+  static std::vector<std::string> value_names(std::size_t durations, bool with_bath = false);
 };
 
 InstanceOutcome evaluate_instance(const Instance& instance, std::size_t set_index, const Schedule& schedule,
@@ -102,10 +116,13 @@ struct SizeSummary {
   SampleSummary gap_ghz;    ///< minimum gap
   std::size_t tts_at_range_edge = 0;
   std::size_t never_solved = 0;  ///< instances with p = 0 at every duration (TTS infinite)
+  // With a bath: the optimal TTS with the bath (stream {n, 2}) and its counts.
+  SampleSummary bath_tts_ns;
+  std::size_t bath_tts_at_range_edge = 0, bath_never_solved = 0;
 };
 
 /// Per size, ascending; the bootstrap stream of size n is derive_seed(seed, {n, 0})
-/// for the TTS and {n, 1} for the gap.
+/// for the TTS, {n, 1} for the gap and {n, 2} for the TTS with the bath.
 std::vector<SizeSummary> summarize_by_size(const std::vector<InstanceOutcome>& outcomes, const EnsembleSettings& settings);
 
 struct EnsembleResult {
@@ -153,7 +170,7 @@ struct EnsembleRun {
 };
 
 /// The journal record layout of an ensemble with `durations` durations.
-JournalLayout ensemble_journal_layout(std::size_t durations);
+JournalLayout ensemble_journal_layout(std::size_t durations, bool with_bath = false);
 /// What a journal must match to be resumed: set, schedule and per-instance numerics.
 std::string ensemble_fingerprint(const EnsembleRun& run);
 
