@@ -33,6 +33,7 @@ namespace gapwise::cli {
 namespace {
 
 struct AnnealOptions {
+  double frame_above = std::numeric_limits<double>::quiet_NaN();  ///< --frame-above (NaN: the cost model)
   std::string problem, schedule, out, csv, propagator = "split-auto", observe_s, durations, bath;
   int bath_levels = 0;
   double tolerance = 1e-6;
@@ -52,6 +53,7 @@ void run_anneal(const AnnealOptions& o) {
   const std::optional<OhmicBath>& bath = loaded.bath;
   check_bath_levels(o.bath_levels, bath.has_value(), p.qubits);
   check_tolerance(o.tolerance);
+  check_frame_above(o.frame_above, o.propagator);
   check_count(o.trace_points, kTracePoints, "--trace-points");
   check_count(o.top, kTopOutcomes, "--top");
   loaded.check_memory(10);
@@ -92,6 +94,7 @@ void run_anneal(const AnnealOptions& o) {
   // The run and its accuracy re-run share the solved eigenpairs (frame propagator only).
   sim.propagation.frame_cache = std::make_shared<FramePointCache>();
   sim.propagator = o.propagator;
+  sim.choice.frame_above_ns = o.frame_above;
   sim.propagation.tolerance = o.tolerance;
   if (o.p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();
   sim.samples_per_piece = std::max(0, o.trace_points);
@@ -202,6 +205,7 @@ void register_anneal(CLI::App& app) {
                   "fourth order), split2 (second order), split4-yoshida (triple jump), split4-bm (Blanes-Moan\n"
                   "fourth order: smallest error per step), odeint (the generic reference)")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
+  add_frame_above_option(sub, o->frame_above);
   sub->add_option("--trace-points", o->trace_points, "evenly spaced observations inside each piece of the path (trace)")->capture_default_str();
   add_list_option(sub, "--observe-s", o->observe_s,
                   "also observe where the path passes these s values: a LIST such as 0.3,0.5,0.62\n"
