@@ -203,7 +203,9 @@ void register_anneal(CLI::App& app) {
                   "which propagator runs the dynamics: split-auto (default: second-order split steps while the\n"
                   "splitting threshold sets the step, Blanes-Moan fourth order when accuracy does), split4 (Suzuki\n"
                   "fourth order), split2 (second order), split4-yoshida (triple jump), split4-bm (Blanes-Moan\n"
-                  "fourth order: smallest error per step), odeint (the generic reference)")
+                  "fourth order: smallest error per step), odeint (the generic reference), frame (long anneals:\n"
+                  "the frame of the lowest instantaneous levels), auto (split-auto or frame, whichever its\n"
+                  "measured cost model predicts cheaper)")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
   add_frame_above_option(sub, o->frame_above);
   sub->add_option("--trace-points", o->trace_points, "evenly spaced observations inside each piece of the path (trace)")->capture_default_str();
