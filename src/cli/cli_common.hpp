@@ -71,6 +71,11 @@ inline CLI::Option* list_propagator_names(CLI::Option* opt, const std::vector<st
   return opt;
 }
 void check_target_probability(double p, const std::string& option = "--target");
+/// --frame-above NS: with --propagator auto, the frame at durations >= NS ns and
+/// split-auto below, instead of the cost model (dynamics/propagator_choice.hpp).
+CLI::Option* add_frame_above_option(CLI::App* sub, double& frame_above_ns);
+/// InputError unless not given (NaN) or a positive finite duration given with --propagator auto.
+void check_frame_above(double frame_above_ns, const std::string& propagator);
 void check_tolerance(double tolerance, const std::string& option = "--tolerance");
 void check_threads(long long threads, const std::string& option = "--threads");
 void check_sigma(double sigma, const std::string& option);

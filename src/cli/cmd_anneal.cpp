@@ -29,6 +29,7 @@ namespace gapwise::cli {
 namespace {
 
 struct AnnealOptions {
+  double frame_above = std::numeric_limits<double>::quiet_NaN();  ///< --frame-above (NaN: the cost model)
   std::string problem, schedule, out, csv, propagator = "split-auto", observe_s, durations, bath;
   int bath_levels = 0;
   double tolerance = 1e-6;
@@ -48,6 +49,7 @@ void run_anneal(const AnnealOptions& o) {
   const std::optional<OhmicBath>& bath = loaded.bath;
   check_bath_levels(o.bath_levels, bath.has_value(), p.qubits);
   check_tolerance(o.tolerance);
+  check_frame_above(o.frame_above, o.propagator);
   check_count(o.trace_points, kTracePoints, "--trace-points");
   check_count(o.top, kTopOutcomes, "--top");
   loaded.check_memory(10);
@@ -82,6 +84,7 @@ void run_anneal(const AnnealOptions& o) {
                      "add --observe-s, e.g. --observe-s 0.3,0.5,0.7");
   check_levels_fit(o.levels, p.qubits, single_anneal_sector(p, sch));
   so.propagator = o.propagator;
+  so.frame_above_ns = o.frame_above;
   so.tolerance = o.tolerance;
   so.p_only = o.p_only;
   so.check = !o.no_check;
@@ -164,8 +167,11 @@ void register_anneal(CLI::App& app) {
                   "which propagator runs the dynamics: split-auto (default: second-order split steps while the\n"
                   "splitting threshold sets the step, Blanes-Moan fourth order when accuracy does), split4 (Suzuki\n"
                   "fourth order), split2 (second order), split4-yoshida (triple jump), split4-bm (Blanes-Moan\n"
-                  "fourth order: smallest error per step), odeint (the generic reference)")
+                  "fourth order: smallest error per step), odeint (the generic reference), frame (long anneals:\n"
+                  "the frame of the lowest instantaneous levels), auto (split-auto or frame, whichever its\n"
+                  "measured cost model predicts cheaper)")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
+  add_frame_above_option(sub, o->frame_above);
   sub->add_option("--trace-points", o->trace_points, "evenly spaced observations inside each piece of the path (trace)")->capture_default_str();
   add_list_option(sub, "--observe-s", o->observe_s,
                   "also observe where the path passes these s values: a LIST such as 0.3,0.5,0.62\n"

@@ -52,7 +52,8 @@ namespace gapwise::cli {
 namespace {
 
 struct DurationsOptions {
-  std::string problem, schedule, out, csv, durations, propagator = SimulationOptions{}.propagator, bath;
+  double frame_above = std::numeric_limits<double>::quiet_NaN();  ///< --frame-above (NaN: the cost model)
+  std::string problem, schedule, out, csv, durations, propagator = "auto", bath;
   bool p_only = false;
   double target = kDefaultTargetProbability, tolerance = 1e-6, resolution = 5e-3, agreement = kDefaultAgreementFactor;
   int threads = 0, probes = 2, bath_levels = 0;
@@ -70,6 +71,7 @@ void run_durations(const DurationsOptions& o) {
   const std::optional<OhmicBath>& bath = loaded.bath;
   check_bath_levels(o.bath_levels, bath.has_value(), problem.qubits);
   check_tolerance(o.tolerance);
+  check_frame_above(o.frame_above, o.propagator);
   check_target_probability(o.target);
   check_threads(o.threads);
   check_resolution_value(o.resolution, {"--resolution", 0, 0, "--resolution"});
@@ -88,6 +90,7 @@ void run_durations(const DurationsOptions& o) {
 
   SimulationOptions sim;
   sim.propagator = o.propagator;
+  sim.choice.frame_above_ns = o.frame_above;
   sim.propagation.tolerance = o.tolerance;
   if (o.p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();
   const AnnealSetup setup(problem, schedule, sim);
@@ -300,6 +303,7 @@ void register_durations(CLI::App& app) {
                 "reads p alone; split propagators then often need fewer steps)");
   list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
+  add_frame_above_option(sub, o->frame_above);
   sub->add_option("--threads", o->threads, "threads (one duration each); 0: all cores (OMP_NUM_THREADS)")->capture_default_str();
   sub->add_option("--out", o->out, "HDF5 result file (all curves, predictions, inputs, tool version)");
   sub->add_option("--csv", o->csv, "CSV with one row per simulated duration");

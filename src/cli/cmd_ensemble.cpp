@@ -4,6 +4,7 @@
 // journal; `--shard i/N` for job arrays, merged by `gapwise merge-shards`.
 #include <algorithm>
 #include <iostream>
+#include <limits>
 #include <memory>
 #include <optional>
 #include <thread>
@@ -34,8 +35,9 @@ namespace gapwise::cli {
 namespace {
 
 struct EnsembleOptions {
+  double frame_above = std::numeric_limits<double>::quiet_NaN();  ///< --frame-above (NaN: the cost model)
   std::string set, schedule, out, csv, durations = "0.1,0.2,0.5,1,2,5,10,20,50,100", shard = "0/1", quantiles = "0.25,0.5,0.75";
-  std::string propagator = SimulationOptions{}.propagator, bath;
+  std::string propagator = "auto", bath;
   double target = kDefaultTargetProbability, tolerance = 1e-6, confidence = 0.95, gap_s_tolerance = 1e-6;
   int threads = 0, resamples = 2000, gap_points = 101, bath_levels = 0;
   unsigned long long bootstrap_seed = 1;
@@ -58,11 +60,13 @@ void run_ensemble(const EnsembleOptions& o) {
     if (!o.csv.empty()) check_output_path(o.csv, "--csv");
     check_target_probability(o.target);
     check_tolerance(o.tolerance);
+    check_frame_above(o.frame_above, o.propagator);
     check_threads(o.threads);
     EnsembleSettings st;
     st.durations_ns = parse_value_list(o.durations, "--durations", ListOf::Durations);
     st.target_probability = o.target;
     st.simulation.propagator = o.propagator;
+    st.simulation.choice.frame_above_ns = o.frame_above;
     st.simulation.propagation.tolerance = o.tolerance;
     st.gap_coarse_points = o.gap_points;
     st.gap_s_tolerance = o.gap_s_tolerance;
@@ -189,6 +193,7 @@ void register_ensemble(CLI::App& app) {
       ->capture_default_str();
   list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the anneals")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
+  add_frame_above_option(sub, o->frame_above);
   sub->add_option("--tolerance", o->tolerance, "target accuracy of each ground-state probability")->capture_default_str();
   sub->add_option("--gap-points", o->gap_points, "gap search: uniform scan points before refinement")->capture_default_str();
   sub->add_option("--gap-s-tolerance", o->gap_s_tolerance, "gap search: precision of s*")->capture_default_str();

@@ -1,6 +1,7 @@
 // `gapwise pause-map PROBLEM SCHEDULE -d T --at S-LIST --pause-ns D-LIST --out map.h5`:
 // p over pause location x pause duration, at equal cost; threaded, resumable.
 #include <iostream>
+#include <limits>
 #include <memory>
 #include <optional>
 
@@ -25,7 +26,8 @@ namespace gapwise::cli {
 namespace {
 
 struct PauseMapCli {
-  std::string problem, schedule, out, durations, at = "lin:0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = SimulationOptions{}.propagator, bath;
+  double frame_above = std::numeric_limits<double>::quiet_NaN();  ///< --frame-above (NaN: the cost model)
+  std::string problem, schedule, out, durations, at = "lin:0.2:0.8:7", pause_ns = "0,5,10,20", cost = "total", propagator = "auto", bath;
   double duration_ns = 0;  // from `durations`, one value
   double tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0, bath_levels = 0;
@@ -42,6 +44,7 @@ void run_pause_map(PauseMapCli o) {
   check_output_path(o.out, "--out");
   check_target_probability(o.target);
   check_tolerance(o.tolerance);
+  check_frame_above(o.frame_above, o.propagator);
   check_threads(o.threads);
   loaded.check_memory(10);
   PauseMapOptions mo;
@@ -55,6 +58,7 @@ void run_pause_map(PauseMapCli o) {
   mo.threads = o.threads;
   SimulationOptions sim;
   sim.propagator = o.propagator;
+  sim.choice.frame_above_ns = o.frame_above;
   sim.propagation.tolerance = o.tolerance;
   WorkEstimate work;
   for (double pause : mo.pause_ns) {
@@ -118,6 +122,7 @@ void register_pause_map(CLI::App& app) {
   sub->add_option("--tolerance", o->tolerance, "target accuracy of p")->capture_default_str();
   list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
+  add_frame_above_option(sub, o->frame_above);
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default)")->capture_default_str();
   sub->add_option("-o,--out", o->out, "HDF5 result (heat-map ready); the journal is <out>.journal")->required();
   sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");

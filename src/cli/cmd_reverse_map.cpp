@@ -1,6 +1,7 @@
 // `gapwise reverse-map PROBLEM SCHEDULE --turn S-LIST --dwell-ns D-LIST --ramp-ns R --out rev.h5`:
 // does a reverse anneal from a classical guess return the ground state?
 #include <iostream>
+#include <limits>
 #include <memory>
 
 #include <fmt/format.h>
@@ -25,7 +26,8 @@ namespace gapwise::cli {
 namespace {
 
 struct ReverseMapCli {
-  std::string problem, schedule, out, turn = "lin:0.3:0.9:7", dwell_ns = "0,5,10,20", start_bits, propagator = SimulationOptions{}.propagator;
+  double frame_above = std::numeric_limits<double>::quiet_NaN();  ///< --frame-above (NaN: the cost model)
+  std::string problem, schedule, out, turn = "lin:0.3:0.9:7", dwell_ns = "0,5,10,20", start_bits, propagator = "auto";
   double ramp_ns = 5, tolerance = 1e-6, target = kDefaultTargetProbability;
   int threads = 0;
   bool allow_long = false, fresh = false, quiet = false;
@@ -38,6 +40,7 @@ void run_reverse_map(const ReverseMapCli& o) {
   Schedule& sch = loaded.schedule;
   check_target_probability(o.target);
   check_tolerance(o.tolerance);
+  check_frame_above(o.frame_above, o.propagator);
   check_threads(o.threads);
   loaded.check_memory(10);
   if (!o.start_bits.empty()) {
@@ -69,6 +72,7 @@ void run_reverse_map(const ReverseMapCli& o) {
   check_work_limit(work, o.allow_long, {"--dwell-ns", 0, 0, "--dwell-ns"});
   SimulationOptions sim;
   sim.propagator = o.propagator;
+  sim.choice.frame_above_ns = o.frame_above;
   sim.propagation.tolerance = o.tolerance;
   const AnnealSetup setup(p, sch, sim);
   std::string bits;
@@ -154,6 +158,7 @@ void register_reverse_map(CLI::App& app) {
   sub->add_option("--tolerance", o->tolerance, "target accuracy of p")->capture_default_str();
   list_propagator_names(sub->add_option("--propagator", o->propagator, "which propagator runs the dynamics")
       ->check(CLI::IsMember(propagator_names()))->capture_default_str(), propagator_names());
+  add_frame_above_option(sub, o->frame_above);
   sub->add_option("--threads", o->threads, "OpenMP threads (0: default)")->capture_default_str();
   sub->add_option("-o,--out", o->out, "HDF5 result; the journal is <out>.journal")->required();
   sub->add_flag("--fresh", o->fresh, "discard the journal of an earlier run and start afresh");

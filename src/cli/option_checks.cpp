@@ -49,6 +49,25 @@ int fit_levels(int levels, bool given, int qubits, SpinFlipSector sector, const 
   return static_cast<int>(states);
 }
 
+CLI::Option* add_frame_above_option(CLI::App* sub, double& frame_above_ns) {
+  return sub->add_option("--frame-above", frame_above_ns,
+                         "with --propagator auto: run the frame propagator at durations >= NS ns and split-auto below,\n"
+                         "instead of choosing by predicted cost (for tests and for users who measured their own\n"
+                         "crossover; default: the cost model)")
+      ->option_text("NS");
+}
+
+void check_frame_above(double frame_above_ns, const std::string& propagator) {
+  if (std::isnan(frame_above_ns)) return;
+  if (propagator != "auto")
+    throw InputError(option_place("--frame-above"),
+                     fmt::format("--frame-above sets where --propagator auto switches to the frame, but the propagator is {}", propagator),
+                     "add --propagator auto, or drop --frame-above");
+  if (!(frame_above_ns > 0) || !std::isfinite(frame_above_ns))
+    throw InputError(option_place("--frame-above"), fmt::format("{} ns is not a positive duration", frame_above_ns),
+                     "give a duration in ns above 0, e.g. --frame-above 5000");
+}
+
 CLI::Option* add_allow_long_flag(CLI::App* sub, bool& allow_long) {
   return sub->add_flag("--allow-long", allow_long,
                        "run even when the estimated work is above the limit (2e13 amplitude updates, roughly half a\n"

@@ -80,9 +80,16 @@ AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundMa
   const auto t_start = std::chrono::steady_clock::now();
   PropagatorOptions popt = options.propagation;
   if (popt.watched_states.empty()) popt.watched_states.assign(ground.states.begin(), ground.states.end());
-  auto prop = make_propagator(options.propagator, h, popt);
-  AnnealDrive drive{&scales, path};
   AnnealResult r;
+  double choice_seconds = 0.0;
+  std::shared_ptr<PropagatorCostLedger> ledger = options.cost_ledger;
+  if (options.propagator == kAutoPropagator) {
+    if (!ledger) ledger = std::make_shared<PropagatorCostLedger>();
+    r.choice = choose_propagator(h, scales, path, popt.tolerance, options.choice, *ledger);
+    choice_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t_start).count();
+  }
+  auto prop = make_propagator(r.choice.chosen.empty() ? options.propagator : r.choice.chosen, h, popt);
+  AnnealDrive drive{&scales, path};
   r.duration_ns = path.duration_ns();
   r.propagator = prop->name();
   // Where to stop and observe: waypoints, evenly spaced samples inside each
@@ -151,6 +158,7 @@ AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundMa
   r.top_outcomes = most_probable_outcomes(psi, h, ground, options.top_outcomes);
   r.final_state = std::move(psi);
   r.wall_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t_start).count();
+  if (ledger) record_choice_outcome(h, r.choice, r.wall_seconds - choice_seconds, r.stats, *ledger);
   return r;
 }
 

@@ -13,6 +13,7 @@
 
 #include "dynamics/anneal_observer.hpp"
 #include "dynamics/propagator.hpp"
+#include "dynamics/propagator_choice.hpp"
 #include "schedule/schedule.hpp"
 
 namespace gapwise {
@@ -20,6 +21,11 @@ namespace gapwise {
 struct SimulationOptions {
   std::string propagator = "split-auto";  // the fast split-operator propagator (method notes: "Choosing the default"); "odeint" is the reference
   PropagatorOptions propagation;
+  /// propagator == "auto": split-auto or frame per anneal (propagator_choice.hpp).
+  PropagatorChoiceOptions choice;
+  /// Timings shared by the anneals of one study for "auto" (empty: each anneal
+  /// probes for itself).
+  std::shared_ptr<PropagatorCostLedger> cost_ledger;
   int samples_per_piece = 0;  ///< observations inside each piece, besides the waypoints
   /// Further observations wherever the path passes these s values (every
   /// passage: a reverse anneal passes most s twice; a pause at s is observed at
@@ -47,7 +53,8 @@ struct AnnealResult {
   std::vector<Outcome> top_outcomes;
   QuantumState final_state;
   double wall_seconds = 0;
-  std::string propagator;
+  std::string propagator;  ///< the propagator that ran (propagator_used in results; never "auto")
+  PropagatorChoice choice; ///< with "auto": the predictions and their basis (choice.chosen empty otherwise)
 };
 
 /// Ground state of H at the path's first s (|+>^n when B = 0 there) or the

@@ -117,6 +117,13 @@ class Propagator {
 
 /// Names of the propagators make_propagator knows.
 std::vector<std::string> propagator_names();
+/// A propagator's name as a number for numeric records (journals, HDF5 code
+/// datasets): its index in propagator_names(); -1 for an empty or unknown name.
+double propagator_code(const std::string& name);
+/// The inverse; "" for a code that names none.
+std::string propagator_name_of_code(double code);
+/// "0 split4 1 split2 ...": the codes' meaning, for a dataset attribute.
+std::string propagator_code_legend();
 /// Throws std::invalid_argument for an unknown name.
 std::unique_ptr<Propagator> make_propagator(const std::string& name, const TransverseIsingHamiltonian& h,
                                             const PropagatorOptions& options);

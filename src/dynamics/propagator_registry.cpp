@@ -1,3 +1,4 @@
+#include <cmath>
 #include <stdexcept>
 
 #include "dynamics/frame_propagator.hpp"
@@ -7,10 +8,32 @@
 
 namespace gapwise {
 
-std::vector<std::string> propagator_names() { return {"split4", "split2", "split4-yoshida", "split4-bm", "split-auto", "odeint", "frame"}; }
+std::vector<std::string> propagator_names() { return {"split4", "split2", "split4-yoshida", "split4-bm", "split-auto", "odeint", "frame", "auto"}; }
+// "auto": split-auto or frame per anneal, whichever is predicted cheaper
+// (propagator_choice.hpp); simulate_anneal resolves it before make_propagator.
 // "frame": propagation in the frame of the lowest instantaneous levels, for
 // long anneals (src/dynamics/frame_propagator.hpp); it checks itself and runs
 // split4 on the pieces it cannot hold to the tolerance.
+
+double propagator_code(const std::string& name) {
+  const auto names = propagator_names();
+  for (std::size_t k = 0; k < names.size(); ++k)
+    if (names[k] == name) return static_cast<double>(k);
+  return -1.0;
+}
+
+std::string propagator_name_of_code(double code) {
+  const auto names = propagator_names();
+  if (!(code >= 0) || code >= static_cast<double>(names.size()) || code != std::floor(code)) return "";
+  return names[static_cast<std::size_t>(code)];
+}
+
+std::string propagator_code_legend() {
+  const auto names = propagator_names();
+  std::string out;
+  for (std::size_t k = 0; k < names.size(); ++k) out += (k ? " " : "") + std::to_string(k) + " " + names[k];
+  return out;
+}
 
 std::unique_ptr<Propagator> make_propagator(const std::string& name, const TransverseIsingHamiltonian& h,
                                             const PropagatorOptions& options) {
@@ -22,6 +45,8 @@ std::unique_ptr<Propagator> make_propagator(const std::string& name, const Trans
   if (name == "split4-bm") return std::make_unique<SplitOperatorPropagator>(h, options, SplitComposition::BlanesMoan4);
   if (name == "split4-yoshida")
     return std::make_unique<SplitOperatorPropagator>(h, options, SplitComposition::Yoshida4);
+  if (name == "auto")
+    throw std::invalid_argument("propagator 'auto' is chosen per anneal: run it through simulate_anneal");
   throw std::invalid_argument("unknown propagator '" + name + "'");
 }
 

@@ -79,6 +79,15 @@ std::string anneal_report_json(const AnnealReport& a) {
   put(j, "accuracy_ok", a.accuracy_ok);
   if (a.delta_p) put(j, "convergence_delta_p", *a.delta_p);
   put_propagation(j, r.propagator, a.tolerance, a.p_only);
+  put(j, "propagator_used", r.propagator);
+  if (!r.choice.chosen.empty()) {
+    toml::table c;
+    put(c, "requested", std::string("auto"));
+    put(c, "basis", r.choice.basis);
+    if (std::isfinite(r.choice.split_seconds)) put(c, "split_seconds_predicted", r.choice.split_seconds);
+    if (std::isfinite(r.choice.frame_seconds)) put(c, "frame_seconds_predicted", r.choice.frame_seconds);
+    j.insert_or_assign("propagator_choice", std::move(c));
+  }
   put(j, "steps", static_cast<long long>(r.stats.steps));
   put(j, "hamiltonian_applications", static_cast<long long>(r.stats.hamiltonian_applications));
   put(j, "error_estimate", r.stats.error_estimate);
@@ -146,6 +155,11 @@ std::string anneal_report_text(const AnnealReport& a) {
                            r.duration_ns, sch.start.kind == StartKind::Ground ? "ground state of H(s0)" : "classical state");
   os << fmt::format("propagator   {} (tolerance {:.0e}): {} steps, {} H applications, {:.3f} s\n", r.propagator,
                            a.tolerance, r.stats.steps, r.stats.hamiltonian_applications, r.wall_seconds);
+  if (!r.choice.chosen.empty()) {
+    auto secs = [](double x) { return std::isfinite(x) ? fmt::format("{:.3g} s", x) : std::string("not needed"); };
+    os << fmt::format("choice       auto chose {} ({}; predicted split-auto {}, frame {})\n", r.choice.chosen,
+                      r.choice.basis, secs(r.choice.split_seconds), secs(r.choice.frame_seconds));
+  }
   os << fmt::format("\nground-state probability  {:.8f}\n", r.ground_probability);
   if (a.delta_p)
     os << fmt::format("convergence               |dp| = {:.1e} when the tolerance is tightened tenfold{}\n", *a.delta_p,
@@ -209,6 +223,12 @@ void write_anneal_result(const std::string& path, const AnnealReport& a, const s
   h5.attribute("/anneal", "tolerance", a.tolerance);
   h5.attribute("/anneal", "p_only", static_cast<long long>(a.p_only));
   h5.attribute("/anneal", "propagator", r.propagator);
+  h5.attribute("/anneal", "propagator_used", r.propagator);
+  if (!r.choice.chosen.empty()) {
+    h5.attribute("/anneal", "propagator_choice_basis", r.choice.basis);
+    h5.attribute_allowing_inf_nan("/anneal", "split_seconds_predicted", r.choice.split_seconds);
+    h5.attribute_allowing_inf_nan("/anneal", "frame_seconds_predicted", r.choice.frame_seconds);
+  }
   h5.attribute("/anneal", "steps", static_cast<long long>(r.stats.steps));
   h5.attribute("/anneal", "error_estimate", r.stats.error_estimate);
   if (r.propagator == "frame") {

@@ -3,6 +3,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <map>
 #include <set>
 
 #include <fmt/format.h>
@@ -48,6 +49,7 @@ void print_duration_report_json(const DurationReport& r, std::ostream& os) {
     put(e, "grid", grid_set.count(t) > 0);
     put(e, "ground_probability", pt.ground_probability);
     put(e, "tts_case", std::string(tts_case_name(tts.kind)));
+    put(e, "propagator_used", pt.propagator_used.empty() ? std::string("unknown") : pt.propagator_used);
     put_tts(e, "tts_ns", tts.tts_ns);
     if (predictions && predictions->lz.applicable) put(e, "p_landau_zener", predictions->lz.p_at(t));
     if (predictions && predictions->adiabatic.applicable) put(e, "p_adiabatic", predictions->adiabatic.p_at(t));
@@ -180,6 +182,13 @@ void print_duration_report_text(const DurationReport& r, std::ostream& os) {
                            schedule.scales.describe(), schedule.shape.points().size());
   os << fmt::format("numerics    propagator {} (tolerance {:.0e}), {} thread(s); {} duration(s) simulated now, {} reused\n",
                            o.propagator, o.tolerance, threads, r.simulated, known.size() - r.simulated);
+  if (o.propagator == "auto") {
+    std::map<std::string, int> used;
+    for (const auto& [t, pt] : known) ++used[pt.propagator_used.empty() ? "unknown" : pt.propagator_used];
+    std::string list;
+    for (const auto& [name, count] : used) list += fmt::format("{}{} by {}", list.empty() ? "" : ", ", count, name);
+    os << fmt::format("            auto chose per duration by predicted cost: {} (column note: frame)\n", list);
+  }
   if (predictions)
     os << fmt::format("gap         Delta_min = {:.6g} GHz at s* = {:.6g}  ({}; {}){}\n", predictions->gap_ghz,
                              predictions->s_star, predictions->gap_definition, predictions->sector,
@@ -196,6 +205,7 @@ void print_duration_report_text(const DurationReport& r, std::ostream& os) {
     const double p = std::clamp(pt.ground_probability, 0.0, 1.0);
     const auto tts = time_to_solution(t, p, o.target);
     std::string note = grid_set.count(t) ? "" : "bisection";
+    if (pt.propagator_used == "frame" && o.propagator == "auto") note += std::string(note.empty() ? "" : ", ") + "frame";
     if (t == best_t) note += std::string(note.empty() ? "" : ", ") + "TTS optimum";
     if (p >= o.target) note += std::string(note.empty() ? "" : ", ") + ">= p*";
     table.add({fmt_num(t, 6), p_text(p), ns_text(tts.tts_ns),

@@ -147,7 +147,9 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
   const std::set<double> grid(in.grid_ns.begin(), in.grid_ns.end());
   std::vector<double> t, p, tts, reps, drift, wall, lz, ad;
   std::vector<long long> on_grid, kind, steps;
+  std::vector<std::string> used;
   for (const auto& [d, pt] : known) {
+    used.push_back(pt.propagator_used.empty() ? "unknown" : pt.propagator_used);
     const auto x = time_to_solution(d, clamp01(pt.ground_probability), in.target);
     t.push_back(d);
     p.push_back(pt.ground_probability);
@@ -175,6 +177,8 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
   h5.write(pts + "/norm_drift", drift, "1");
   h5.write(pts + "/steps", steps, DataMeaning("1").described("accepted propagator steps"));
   h5.write(pts + "/wall_seconds", wall, "s");
+  h5.write_strings(pts + "/propagator_used", used,
+                   "the propagator that ran each anneal (with --propagator auto: split-auto or frame, chosen by cost)");
   if (in.predictions) {
     h5.write(pts + "/p_landau_zener", lz, not_applicable("1", "see /durations/predictions/landau_zener@why_not"));
     h5.write(pts + "/p_adiabatic", ad, not_applicable("1", "see /durations/predictions/adiabatic@why_not"));
@@ -299,7 +303,8 @@ void write_duration_study_hdf5(const std::string& path, const DurationStudyInput
 
 TextTable duration_points_table(const DurationStudyInputs& in, const std::map<double, DurationPoint>& known) {
   std::vector<std::string> head{"duration_ns", "kind", "ground_probability", "tts_ns", "repetitions", "tts_case",
-                                "p_landau_zener", "p_adiabatic", "norm_drift", "steps", "wall_seconds"};
+                                "p_landau_zener", "p_adiabatic", "norm_drift", "steps", "propagator_used",
+                                "wall_seconds"};  // wall_seconds last: the one machine-dependent column
   if (in.open_rows) {
     head.push_back("p_bath");
     head.push_back("tts_bath_ns");
@@ -314,7 +319,8 @@ TextTable duration_points_table(const DurationStudyInputs& in, const std::map<do
            tts_text(x.tts_ns, 17), tts_text(x.repetitions, 17),
            tts_case_name(x.kind), pr && pr->lz.applicable ? num(pr->lz.p_at(d)) : "",
            pr && pr->adiabatic.applicable ? num(pr->adiabatic.p_at(d)) : "", num(pt.norm_drift),
-           std::to_string(pt.steps), fmt::format("{:.3f}", pt.wall_seconds)};
+           std::to_string(pt.steps), pt.propagator_used.empty() ? "unknown" : pt.propagator_used,
+           fmt::format("{:.3f}", pt.wall_seconds)};
     if (in.open_rows) {
       const OpenDurationPoint* r = open_at(in, d);
       row.push_back(r ? num(r->open.ground_probability) : "");

@@ -29,6 +29,8 @@ AnnealSetup::AnnealSetup(IsingProblem p, Schedule s, SimulationOptions o)
   // The instantaneous eigenpairs along s do not depend on the duration: every
   // anneal of this setup shares one store of them (used by the frame propagator).
   if (!options.propagation.frame_cache) options.propagation.frame_cache = std::make_shared<FramePointCache>();
+  // With "auto", the timings that decide between split and frame are measured once per setup.
+  if (!options.cost_ledger) options.cost_ledger = std::make_shared<PropagatorCostLedger>();
 }
 
 DurationPoint anneal_for_duration(const AnnealSetup& setup, double duration_ns) {
@@ -42,6 +44,7 @@ DurationPoint anneal_for_duration(const AnnealSetup& setup, double duration_ns) 
   p.steps = r.stats.steps;
   p.hamiltonian_applications = r.stats.hamiltonian_applications;
   p.wall_seconds = r.wall_seconds;
+  p.propagator_used = r.propagator;
   return p;
 }
 
@@ -66,7 +69,7 @@ std::vector<double> log_spaced_durations(double first, double last, int count) {
 JournalLayout duration_journal_layout() {
   return {"duration-sweep",
           {"duration_ns"},
-          {"ground_probability", "norm_drift", "steps", "hamiltonian_applications", "wall_seconds"}};
+          {"ground_probability", "norm_drift", "steps", "hamiltonian_applications", "wall_seconds", "propagator_code"}};
 }
 
 DurationEvaluator::DurationEvaluator(const AnnealSetup& setup, ResultJournal* journal)
@@ -80,6 +83,7 @@ DurationEvaluator::DurationEvaluator(const AnnealSetup& setup, ResultJournal* jo
     p.steps = static_cast<long>(v[2]);
     p.hamiltonian_applications = static_cast<long>(v[3]);
     p.wall_seconds = v[4];
+    p.propagator_used = propagator_name_of_code(v[5]);
     p.resumed = true;
     known_[p.duration_ns] = p;
   }
@@ -115,7 +119,8 @@ std::vector<DurationPoint> DurationEvaluator::evaluate(const std::vector<double>
       if (stop) continue;
       if (journal_)
         journal_->append({p.duration_ns}, {p.ground_probability, p.norm_drift, static_cast<double>(p.steps),
-                                           static_cast<double>(p.hamiltonian_applications), p.wall_seconds});
+                                           static_cast<double>(p.hamiltonian_applications), p.wall_seconds,
+                                           propagator_code(p.propagator_used)});
       known_[p.duration_ns] = p;
       ++simulated_;
       if (on_finished) on_finished(p);

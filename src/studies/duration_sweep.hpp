@@ -50,6 +50,9 @@ struct DurationPoint {
   long steps = 0;
   long hamiltonian_applications = 0;
   double wall_seconds = 0;  ///< 0 for points read back from a journal written before wall time was kept
+  /// The propagator that ran this anneal (with "auto": the one chosen); from
+  /// the journal when resumed.
+  std::string propagator_used;
   bool resumed = false;     ///< read from the journal rather than simulated in this run
 };
 

@@ -25,6 +25,7 @@ SingleAnneal run_single_anneal(const IsingProblem& problem, const Schedule& sche
   // The run and its accuracy re-run share the solved eigenpairs (frame propagator only).
   sim.propagation.frame_cache = std::make_shared<FramePointCache>();
   sim.propagator = o.propagator;
+  sim.choice.frame_above_ns = o.frame_above_ns;
   sim.propagation.tolerance = o.tolerance;
   if (o.p_only) sim.propagation.others_factor = std::numeric_limits<double>::infinity();
   sim.samples_per_piece = std::max(0, o.trace_points);

@@ -7,6 +7,7 @@
 //   SingleAnnealOptions so;          // tolerance, observe_s, levels, bath, ...
 //   const SingleAnneal a = run_single_anneal(problem, schedule, path, so);
 //   a.result.ground_probability;     // p; a.delta_p: |dp| of the re-run
+#include <limits>
 #include <functional>
 #include <optional>
 #include <string>
@@ -32,6 +33,7 @@ struct SingleAnnealStage {
 
 struct SingleAnnealOptions {
   std::string propagator = SimulationOptions{}.propagator;
+  double frame_above_ns = std::numeric_limits<double>::quiet_NaN();  ///< forced crossover of "auto" (NaN: the cost model)
   double tolerance = 1e-6;
   bool p_only = false;     ///< hold only p to the tolerance
   bool check = true;       ///< the re-run at tolerance/10

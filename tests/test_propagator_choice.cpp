@@ -1,0 +1,149 @@
+// The automatic choice between split-auto and the frame ("auto",
+// src/dynamics/propagator_choice.hpp) and its record, propagator_used.
+//
+// The choice is a cost decision, so the tests check (1) that it picks split
+// where the frame cannot pay (a short anneal) and the frame where the model's
+// inputs say it is cheaper (ledger timings set so), (2) that a forced crossover
+// switches at the stated duration, (3) that the frame run it picks agrees with
+// full-space split propagation within the tolerance (both are checked
+// propagators; agreement with the tolerance is the project's acceptance rule),
+// and (4) that propagator_used reaches the anneal JSON and HDF5 and the
+// durations CSV, JSON and HDF5, read back with h5py. The problem: the 8-qubit
+// ring with weak fields (data-samples), where the frame is cheap at long
+// durations (method notes, "Choosing between split and frame").
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <cstdlib>
+#include <fstream>
+#include <string>
+
+#include "dynamics/anneal_simulation.hpp"
+#include "dynamics/propagator_choice.hpp"
+#include "io/problem_file.hpp"
+#include "io/schedule_file.hpp"
+#include "test_support.hpp"
+
+using namespace gapwise;
+using gapwise::testing::run_gapwise;
+using gapwise::testing::source_dir;
+using gapwise::testing::TempDir;
+
+namespace {
+
+std::string quoted(const char* rel) { return "'" + (source_dir() / rel).string() + "'"; }
+
+std::string slurp(const std::filesystem::path& p) {
+  std::ifstream f(p);
+  return std::string((std::istreambuf_iterator<char>(f)), {});
+}
+
+// Runs python3 (with h5py) on a snippet; returns its stdout.
+std::string python(const TempDir& dir, const std::string& code) {
+  const auto script = dir.write("check.py", code);
+  const auto out = dir.path / "py.txt";
+  const std::string cmd = "/usr/bin/python3 '" + script.string() + "' > '" + out.string() + "' 2>&1";
+  const int rc = std::system(cmd.c_str());
+  const std::string text = slurp(out);
+  INFO(text);
+  REQUIRE(rc == 0);
+  return text;
+}
+
+}  // namespace
+
+TEST_CASE("auto picks split for a short anneal and the frame where the measured costs say so") {
+  const IsingProblem p = read_problem_file((source_dir() / "data-samples/weak-field-ring.toml").string());
+  const Schedule sch = read_schedule_file((source_dir() / "schedules/linear.toml").string());
+  const TransverseIsingHamiltonian H(p);
+  PropagatorCostLedger ledger;
+  const PropagatorChoice short_run = choose_propagator(H, sch.scales, sch.path_for(20.0), 1e-6, {}, ledger);
+  CHECK(short_run.chosen == "split-auto");
+  CHECK(std::isfinite(short_run.split_seconds));
+  CHECK(std::isnan(short_run.frame_seconds));  // the probe solve is not paid for a short anneal
+
+  // Timings as a finished study would have measured them: split stages slow,
+  // eigen-solves fast. The model must then pick the frame at a long duration
+  // and still split at a short one (split linear in T, frame flat).
+  PropagatorCostLedger::Entry e;
+  e.stage_seconds = 1e-3;
+  e.solve_seconds = 1e-4;
+  e.frame_solves = 500;
+  ledger.put(H.dim(), e);
+  const PropagatorChoice long_run = choose_propagator(H, sch.scales, sch.path_for(5000.0), 1e-6, {}, ledger);
+  CHECK(long_run.chosen == "frame");
+  CHECK(long_run.frame_seconds == doctest::Approx(0.05));
+  CHECK(long_run.frame_seconds < long_run.split_seconds);
+  CHECK(choose_propagator(H, sch.scales, sch.path_for(0.01), 1e-6, {}, ledger).chosen == "split-auto");
+
+  PropagatorChoiceOptions forced;
+  forced.frame_above_ns = 1000.0;
+  CHECK(choose_propagator(H, sch.scales, sch.path_for(999.0), 1e-6, forced, ledger).chosen == "split-auto");
+  CHECK(choose_propagator(H, sch.scales, sch.path_for(1000.0), 1e-6, forced, ledger).chosen == "frame");
+}
+
+TEST_CASE("the frame chosen by auto agrees with split-auto within the tolerance") {
+  const IsingProblem p = read_problem_file((source_dir() / "data-samples/weak-field-ring.toml").string());
+  const Schedule sch = read_schedule_file((source_dir() / "schedules/linear.toml").string());
+  const TransverseIsingHamiltonian H(p);
+  const GroundManifold gm = find_ground_manifold(p, H.diagonal());
+  const AnnealPath path = sch.path_for(2000.0);
+  SimulationOptions split;
+  const AnnealResult a = simulate_anneal(H, gm, sch.scales, path, initial_state(H, sch, path), split);
+  SimulationOptions autos;
+  autos.propagator = "auto";
+  autos.choice.frame_above_ns = 1000.0;
+  const AnnealResult b = simulate_anneal(H, gm, sch.scales, path, initial_state(H, sch, path), autos);
+  CHECK(a.propagator == "split-auto");
+  CHECK(b.propagator == "frame");
+  CHECK(b.choice.chosen == "frame");
+  CHECK(b.stats.frame_pieces > 0);
+  CHECK(std::abs(a.ground_probability - b.ground_probability) <= 1e-6);
+}
+
+TEST_CASE("propagator_used in anneal JSON and HDF5, durations CSV, JSON and HDF5") {
+  TempDir dir;
+  const std::string prob = quoted("data-samples/weak-field-ring.toml"), sch = quoted("schedules/linear.toml");
+  const auto an = run_gapwise("anneal " + prob + " " + sch + " --durations 1500 --propagator auto --frame-above 1000 --json --out '" +
+                                  (dir.path / "a.h5").string() + "'",
+                              dir);
+  INFO(an.err);
+  REQUIRE(an.exit_code == 0);
+  dir.write("a.json", an.out);
+  const auto du = run_gapwise("durations " + prob + " " + sch + " --durations 50,1500 --frame-above 1000 --json --out '" +
+                                  (dir.path / "d.h5").string() + "' --csv '" + (dir.path / "d.csv").string() + "'",
+                              dir);
+  INFO(du.err);
+  REQUIRE(du.exit_code == 0);
+  dir.write("d.json", du.out);
+  const std::string seen = python(dir, "import json, csv, h5py\n"
+      "d = '" + dir.path.string() + "/'\n"
+      "a = json.load(open(d + 'a.json'))\n"
+      "assert a['propagator_used'] == 'frame', a['propagator_used']\n"
+      "assert a['propagator_choice']['basis'].startswith('forced'), a['propagator_choice']\n"
+      "f = h5py.File(d + 'a.h5', 'r')\n"
+      "assert f['/anneal'].attrs['propagator_used'] == 'frame'\n"
+      "j = json.load(open(d + 'd.json'))\n"
+      "pj = {p['duration_ns']: p['propagator_used'] for p in j['points']}\n"
+      "assert pj[50.0] == 'split-auto' and pj[1500.0] == 'frame', pj\n"
+      "assert all((v == 'frame') == (t >= 1000) for t, v in pj.items()), pj  # bisection probes too\n"
+      "rows = list(csv.DictReader(open(d + 'd.csv')))\n"
+      "pc = {float(r['duration_ns']): r['propagator_used'] for r in rows}\n"
+      "assert pc == pj, pc\n"
+      "g = h5py.File(d + 'd.h5', 'r')['/durations/points']\n"
+      "ph = dict(zip(g['duration_ns'][:], [x.decode() if isinstance(x, bytes) else x for x in g['propagator_used'][:]]))\n"
+      "assert ph == pj, ph\n"
+      "print('ok')\n");
+  CHECK(seen.find("ok") != std::string::npos);
+}
+
+TEST_CASE("--frame-above is refused without --propagator auto and for a non-positive duration") {
+  TempDir dir;
+  const std::string prob = quoted("data-samples/weak-field-ring.toml"), sch = quoted("schedules/linear.toml");
+  const auto a = run_gapwise("anneal " + prob + " " + sch + " --frame-above 5000", dir);
+  CHECK(a.exit_code == 2);
+  CHECK(a.err.find("--propagator auto") != std::string::npos);
+  const auto b = run_gapwise("durations " + prob + " " + sch + " --durations 20 --frame-above 0", dir);
+  CHECK(b.exit_code == 2);
+  CHECK(b.err.find("not a positive duration") != std::string::npos);
+}
