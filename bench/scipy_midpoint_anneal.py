@@ -15,9 +15,11 @@ second order (Hairer, Lubich and Wanner, Geometric Numerical Integration,
 Springer 2006); the probes' errors against the reference give the observed
 order q = log2(e(N0) / e(2 N0)), clamped to [2, 6] (before the asymptotic
 regime the error falls faster than 1/N^2), and N = 2 N0 (e(2 N0) / (0.7
-target))^(1/q). That run is accepted when |p - reference| <= target and |p -
-p_R| <= target, with p_R = p(2 N0) + (p(2 N0) - p(N0)) / (2^q - 1) the
-Richardson extrapolation of SciPy's own probes (its own convergence test);
+target))^(1/q). That run is accepted when |p - reference| <= target (the reference is a
+tight gapwise run at 1/1000 of the target). A Richardson check against the
+probes was dropped: with the order clamped before the asymptotic regime it
+extrapolated past 1 (field-free glass, n = 12, 2026-12-05) and rejected every
+run;
 otherwise it is repeated at 1.25 N, at most four times. The time reported is
 that of the accepted run alone; the whole search is reported as "search".
 
@@ -110,11 +112,10 @@ def main():
     p2, _ = timed(2 * n0)
     e1, e2 = abs(p1 - a.reference_p), abs(p2 - a.reference_p)
     q = float(np.clip(np.log2(e1 / e2), 2.0, 6.0)) if e1 > 0 and e2 > 0 else 2.0
-    p_rich = p2 + (p2 - p1) / (2.0 ** q - 1.0)
     steps = max(10, int(np.ceil(2 * n0 * (e2 / (0.7 * a.target)) ** (1.0 / q))))
     for _ in range(5):
         p, wall = timed(steps)
-        if abs(p - a.reference_p) <= a.target and abs(p - p_rich) <= a.target:
+        if abs(p - a.reference_p) <= a.target:
             break
         steps = int(np.ceil(1.25 * steps))
     else:
