@@ -278,7 +278,7 @@ int main(int argc, char** argv) {
 
   if (!rows_wanted) return 0;
   std::printf("\nPer problem: the default settings first, then each propagator; p_tight from split4 at tolerance/1000.\n"
-              "Peers (same problem, 100 ns, |p - p_tight| <= %.0e and converged against a finer run): SciPy's\n"
+              "Peers (same problem, 100 ns, |p - p_tight| <= %.0e): SciPy's\n"
               "expm_multiply at the largest midpoint step that meets it, QuTiP sesolve (array coefficients) at the\n"
               "loosest tolerance that meets it. 'x SciPy' = SciPy wall / this row's wall (same run, same machine).\n",
               tol);
