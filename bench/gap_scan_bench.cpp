@@ -21,7 +21,9 @@
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
+#include <algorithm>
 #include <cstring>
+#include <sstream>
 #include <limits>
 #include <random>
 #include <string>
@@ -181,7 +183,7 @@ ClassRun run_class(const IsingProblem& p, bool warm, int points) {
   return c;
 }
 
-int class_rows(const std::vector<int>& sizes, const std::string& python, const std::string& script, bool scipy) {
+int class_rows(const std::vector<int>& sizes, const std::string& python, const std::string& script, bool scipy, const std::vector<std::string>& kinds) {
   std::printf("gap search by problem class: linear 5 GHz scales, k = 4, s tolerance 1e-6; times in one run, "
               "side by side (busy machine: the ratios are what count)\n");
   std::printf("  default = warm-started LevelTracker, default grid; cold101 = every point a cold Lanczos solve on "
@@ -190,7 +192,7 @@ int class_rows(const std::vector<int>& sizes, const std::string& python, const s
   std::printf("%3s %-13s %-8s %6s %8s %9s %17s %9s %14s %9s %8s\n", "n", "class", "run", "evals", "H_ops", "time_s",
               "gap_ghz", "+-", "s*", "+-", "scipy/x");
   for (int n : sizes)
-    for (const std::string kind : {"glass-fields", "gaussian", "qubo", "glass"}) {
+    for (const std::string& kind : kinds) {
       const IsingProblem p = class_problem(kind, n);
       const ClassRun w = run_class(p, true, 0);
       const ClassRun c = run_class(p, false, 101);
@@ -240,6 +242,7 @@ int main(int argc, char** argv) {
       std::vector<int> sizes{12, 14};
       std::string python = "/usr/bin/python3", script = GAPWISE_SOURCE_DIR "/bench/scipy_gap_scan.py";
       bool scipy = true;
+      std::vector<std::string> kinds{"glass-fields", "gaussian", "qubo", "glass"};
       for (int j = 1; j < argc; ++j) {
         const std::string a = argv[j];
         if (a == "--sizes" && j + 1 < argc) {
@@ -251,8 +254,20 @@ int main(int argc, char** argv) {
           }
         } else if (a == "--python" && j + 1 < argc) python = argv[++j];
         else if (a == "--no-scipy") scipy = false;
+        else if (a == "--kinds" && j + 1 < argc) {
+          const std::vector<std::string> known = kinds;
+          kinds.clear();
+          std::stringstream ss(argv[++j]);
+          for (std::string k; std::getline(ss, k, ',');) {
+            if (std::find(known.begin(), known.end(), k) == known.end()) {
+              std::fprintf(stderr, "--kinds: unknown class '%s' (glass-fields, gaussian, qubo, glass)\n", k.c_str());
+              return 2;
+            }
+            kinds.push_back(k);
+          }
+        }
       }
-      return class_rows(sizes, python, script, scipy);
+      return class_rows(sizes, python, script, scipy, kinds);
     }
   int min_n = 10, max_n = 18, dense_max_n = 10, points = 21;
   bool sectors = true, no_check = true;
@@ -267,7 +282,7 @@ int main(int argc, char** argv) {
     else if (a == "--no-unchecked") no_check = false;
     else {
       std::printf("usage: bench_gap_scan [--min-n N] [--max-n N] [--dense-max-n N] [--points P] [--no-sectors] "
-                  "[--no-unchecked]\n       bench_gap_scan --classes [--sizes 12,14] [--python PY] [--no-scipy]\n");
+                  "[--no-unchecked]\n       bench_gap_scan --classes [--sizes 12,14] [--kinds glass-fields,gaussian,qubo,glass] [--python PY] [--no-scipy]\n");
       return a == "--help" ? 0 : 2;
     }
   }

@@ -140,6 +140,14 @@ PeerResult run_peer(const std::string& python, const std::string& script, const 
   return r;
 }
 
+// The SciPy script's tail "probes N0 search S": how the step count was found.
+std::string search_note(const std::string& text) {
+  double n0 = 0, total = 0;
+  const auto at = text.find("probes ");
+  if (at == std::string::npos || std::sscanf(text.c_str() + at, "probes %lf search %lf", &n0, &total) != 2) return "-";
+  return fmt::format("probes at {:.0f} and {:.0f} steps; whole search {:.0f} s", n0, 2 * n0, total);
+}
+
 std::vector<std::string> split_names(const std::string& s) {
   std::vector<std::string> v;
   std::stringstream ss(s);
@@ -155,7 +163,7 @@ int main(int argc, char** argv) {
   std::vector<std::string> kernel_variants = SplitExponentials::available_kernel_variants();
   std::vector<std::string> classes = kClasses;
   int odeint_max_n = 0, scipy_max_n = 14, qutip_max_n = 10, big_n = 16;
-  double odeint_max_t = 100, peer_budget_s = 300;
+  double odeint_max_t = 100, peer_budget_s = 600;  // at n = 12; scaled by 2.5^(n - 12)
   double tol = 1e-6;
   bool kernels = true, rows_wanted = true;
   std::string scipy = "bench/scipy_midpoint_anneal.py", qutip = "bench/qutip_sesolve_anneal.py";
@@ -210,7 +218,8 @@ int main(int argc, char** argv) {
           "  [--odeint-max-ns T]  ... and for durations <= T ns (default 100)\n"
           "  [--scipy SCRIPT] [--scipy-max-n N]  SciPy midpoint-exponential peer (default bench/scipy_midpoint_anneal.py, n <= 14)\n"
           "  [--qutip SCRIPT] [--qutip-max-n N]  QuTiP sesolve peer (default bench/qutip_sesolve_anneal.py, n <= 10)\n"
-          "  [--peer-budget-s S]  a peer's search for its accepted settings gives up after S s (default 300)\n"
+          "  [--peer-budget-s S]  a peer's search for its accepted settings gives up after S x 2.5^(n - 12) s\n"
+          "                       (default S = 600: 600 s at n = 12, 3750 s at n = 14; the work grows ~2.5x per qubit)\n"
           "  [--python /usr/bin/python3]\n"
           "  [--big-n N]          one extra run of the default propagator at 100 ns on N qubits of the glass\n"
           "                       with fields (default 16; 0 to skip)\n"
@@ -269,7 +278,7 @@ int main(int argc, char** argv) {
 
   if (!rows_wanted) return 0;
   std::printf("\nPer problem: the default settings first, then each propagator; p_tight from split4 at tolerance/1000.\n"
-              "Peers (same problem, 100 ns, |p - p_tight| <= %.0e and converged against a finer run): SciPy's\n"
+              "Peers (same problem, 100 ns, |p - p_tight| <= %.0e): SciPy's\n"
               "expm_multiply at the largest midpoint step that meets it, QuTiP sesolve (array coefficients) at the\n"
               "loosest tolerance that meets it. 'x SciPy' = SciPy wall / this row's wall (same run, same machine).\n",
               tol);
@@ -300,15 +309,15 @@ int main(int argc, char** argv) {
         PeerResult sp, qt;
         std::string notes;
         if (!scipy.empty() && n <= scipy_max_n) {
-          sp = run_peer(python, scipy, prob, T, tight.p, tol, peer_budget_s);
+          sp = run_peer(python, scipy, prob, T, tight.p, tol, peer_budget_s * std::pow(2.5, n - 12));
           notes += sp.wall < 0 ? fmt::format("    SciPy failed: {}\n", sp.text)
-                               : fmt::format("    SciPy  {:.0f} steps, p = {:.10f}, |p - p_tight| {:.1e}, {:.2f} s\n",
-                                             sp.steps, sp.p, sp.err, sp.wall);
+                               : fmt::format("    SciPy  {:.0f} steps, p = {:.10f}, |p - p_tight| {:.1e}, {:.2f} s ({})\n",
+                                             sp.steps, sp.p, sp.err, sp.wall, search_note(sp.text));
         } else if (!scipy.empty()) {
           notes += fmt::format("    SciPy  not run above n = {} (minutes per run; --scipy-max-n)\n", scipy_max_n);
         }
         if (!qutip.empty() && n <= qutip_max_n) {
-          qt = run_peer(python, qutip, prob, T, tight.p, tol, peer_budget_s);
+          qt = run_peer(python, qutip, prob, T, tight.p, tol, peer_budget_s * std::pow(2.5, n - 12));
           notes += qt.wall < 0 ? fmt::format("    QuTiP  failed: {}\n", qt.text)
                                : fmt::format("    QuTiP  tolerance {:.0e}, p = {:.10f}, |p - p_tight| {:.1e}, {:.2f} s\n",
                                              qt.steps, qt.p, qt.err, qt.wall);
