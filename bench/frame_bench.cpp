@@ -18,8 +18,12 @@
 //
 //   build/bench/bench_frame --n 12 --build-only --levels 8
 #include <sys/resource.h>
+#ifdef _OPENMP
+#include <omp.h>
+#endif
 
 #include <CLI/CLI.hpp>
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <random>
@@ -34,6 +38,7 @@
 #include "frame/instantaneous_frame.hpp"
 #include "problem/classical_spectrum.hpp"
 #include "problem/instance_families.hpp"
+#include "spectrum/lowest_levels.hpp"
 
 using namespace gapwise;
 
@@ -74,7 +79,52 @@ int main(int argc, char** argv) {
   int levels = 8;
   app.add_flag("--build-only", build_only, "time the frame construction alone, cold against warm-started solves");
   app.add_option("--levels", levels, "K for --build-only")->capture_default_str();
+  bool no_shared = false;
+  app.add_flag("--no-shared", no_shared, "leave out the frame-shared rows (one store for all durations of the run)");
+  bool breakeven = false;
+  app.add_flag("--solver-breakeven", breakeven,
+               "time one eigen-solve of the K + 1 lowest levels at s = 0.5, dense against Lanczos, for n = 6 ... --n");
   CLI11_PARSE(app, argc, argv);
+  if (breakeven) {
+    // One point's solve as the frame does it (K + 1 levels with vectors), cold
+    // Lanczos, Lanczos seeded from the vectors at s - 0.002, and the dense
+    // self-adjoint solver; the median of 5 repetitions each. One OpenMP thread,
+    // as the frame's build runs below dimension 2^16 (instantaneous_frame.cpp).
+#ifdef _OPENMP
+    omp_set_num_threads(1);
+#endif
+    std::printf("%3s %6s %3s %12s %12s %12s\n", "n", "dim", "K", "dense_ms", "lanczos_ms", "seeded_ms");
+    for (int q = 6; q <= n; ++q) {
+      const IsingProblem pq = glass_with_fields(q);
+      const TransverseIsingHamiltonian hq(pq);
+      const SectorHamiltonian sec(hq, SpinFlipSector::Full);
+      Schedule sq;
+      const double s0 = 0.5, a = sq.scales.a_ghz(s0), b = sq.scales.b_ghz(s0);
+      LevelOptions lo;
+      lo.levels = levels + 1;
+      lo.vectors = true;
+      lo.method = EigenMethod::Lanczos;
+      const Levels near = lowest_levels(sec, sq.scales.a_ghz(s0 - 0.002), sq.scales.b_ghz(s0 - 0.002), lo);
+      auto median_ms = [&](EigenMethod m, const Eigen::MatrixXd* start) {
+        std::vector<double> t;
+        LevelOptions o = lo;
+        o.method = m;
+        for (int rep = 0; rep < 5; ++rep) {
+          const auto t0 = std::chrono::steady_clock::now();
+          const Levels lv = lowest_levels(sec, a, b, o, start);
+          t.push_back(1e3 * std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count());
+          if (lv.energies_ghz.empty()) return std::nan("");
+        }
+        std::sort(t.begin(), t.end());
+        return t[2];
+      };
+      const double dense = sec.dim() <= 1024 ? median_ms(EigenMethod::Dense, nullptr) : std::nan("");
+      std::printf("%3d %6zu %3d %12.3f %12.3f %12.3f\n", q, sec.dim(), levels, dense,
+                  median_ms(EigenMethod::Lanczos, nullptr), median_ms(EigenMethod::Lanczos, &near.vectors));
+      std::fflush(stdout);
+    }
+    return 0;
+  }
 
   const IsingProblem prob = glass_with_fields(n);
   const TransverseIsingHamiltonian h(prob);
@@ -86,17 +136,18 @@ int main(int argc, char** argv) {
     std::printf("%3s %3s %10s %6s %9s %6s %7s %6s %9s\n", "n", "K", "T_us", "start", "wall_s", "ratio", "points", "solves",
                 "warm");
     double cold_s = 0.0;
-    for (int mode : {0, 1}) {
-      const bool warm = mode == 1;
+    for (int mode : {0, 1, 2}) {
+      const bool warm = mode >= 1;
       FrameOptions fo;
       fo.levels = levels;
       fo.ns_per_unit_s = us * 1000.0;
-      fo.seeded_lanczos = warm;
+      fo.seeded_lanczos = mode == 1;
+      fo.warm_start = mode == 2;
       const auto t0 = std::chrono::steady_clock::now();
       const InstantaneousFrame fr(sec, sch.scales, 0.0, 1.0, fo);
       const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
       if (!warm) cold_s = wall;
-      std::printf("%3d %3d %10.3g %6s %9.2f %6.2f %7zu %6ld %9ld\n", n, fr.levels(), us, warm ? "warm" : "cold", wall,
+      std::printf("%3d %3d %10.3g %6s %9.2f %6.2f %7zu %6ld %9ld\n", n, fr.levels(), us, mode == 0 ? "cold" : mode == 1 ? "seeded" : "block", wall,
                   wall / cold_s, fr.points().size(), fr.eigen_solves(), fr.warm_solves());
       std::fflush(stdout);
     }
@@ -115,6 +166,7 @@ int main(int argc, char** argv) {
     double p_full = std::nan("");
     for (const char* prop : {"split-auto", "frame", "frame-shared"}) {
       if (std::string(prop) == "split-auto" && us > full_max_us) continue;
+      if (std::string(prop) == "frame-shared" && no_shared) continue;
       SimulationOptions o;
       o.propagator = std::string(prop) == "frame-shared" ? "frame" : prop;
       if (std::string(prop) == "frame-shared") o.propagation.frame_cache = shared_cache;

@@ -30,6 +30,7 @@ TEST_CASE("a frame built with seeded Lanczos solves equals the one built from sc
   FrameOptions fo;
   fo.levels = 6;
   fo.ns_per_unit_s = 1000.0;
+  fo.seeded_lanczos = false;  // the default is seeded: the cold build is asked for
   const InstantaneousFrame cold(sec, scales, 0.0, 1.0, fo);
   fo.seeded_lanczos = true;
   const InstantaneousFrame seeded(sec, scales, 0.0, 1.0, fo);

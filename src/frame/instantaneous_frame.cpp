@@ -10,6 +10,9 @@
 
 #include <fmt/format.h>
 #include <unsupported/Eigen/MatrixFunctions>
+#ifdef _OPENMP
+#include <omp.h>
+#endif
 
 #include "frame/frame_point_cache.hpp"
 #include "spectrum/lowest_levels.hpp"
@@ -136,6 +139,21 @@ struct Trial {
 InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyScales& scales, double s_from,
                                        double s_to, const FrameOptions& options) {
   const long dim = static_cast<long>(h.dim());
+#ifdef _OPENMP
+  // Below 2^16 the H x products run on one thread anyway (transverse_ising.hpp);
+  // what OpenMP would still spread over threads is Eigen's products of K or
+  // Lanczos-subspace columns (V^T W, K x K results; Spectra's restarts), where
+  // the fork/join and spin-wait cost more than the arithmetic: profiled at 10
+  // qubits (dimension 1024, K = 11), about half of the frame's build time was
+  // in libgomp and in 2-thread GEMMs of 11 x 11 results. The thread count is
+  // the calling thread's own setting (no other thread is affected).
+  struct OneThreadBelow {
+    int saved = omp_get_max_threads();
+    bool on;
+    explicit OneThreadBelow(bool small) : on(small) { if (on) omp_set_num_threads(1); }
+    ~OneThreadBelow() { if (on) omp_set_num_threads(saved); }
+  } one_thread(dim < (1L << 16));
+#endif
   k_ = static_cast<int>(std::min<long>(std::max(options.levels, 1), dim));
   const int k = k_;
   const int solve_levels = static_cast<int>(std::min<long>(k + 1, dim));
