@@ -84,8 +84,11 @@ std::vector<std::pair<std::string, LinePlot>> thermal_channel_plots(const Hdf5In
 }
 
 void thermal_channel_figures(const Hdf5Input& in, const FigureEmit& emit) {
-  for (const auto& [kind, plot] : thermal_channel_plots(in))
-    emit(kind, [&plot](const std::string& path) { render_figure(plot, path); });
+  // No structured binding here: clang 14 (the fuzz build) cannot capture one in a lambda.
+  for (const auto& entry : thermal_channel_plots(in)) {
+    const auto& plot = entry.second;
+    emit(entry.first, [&plot](const std::string& path) { render_figure(plot, path); });
+  }
 }
 
 }  // namespace gapwise
