@@ -195,6 +195,7 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
       LevelOptions lo;
       lo.levels = block;
       lo.vectors = true;
+      lo.tolerance = options.solve_tolerance;
       const bool seeded = options.seeded_lanczos && from != nullptr && from->warm.cols() > 0;
       Levels lv;
       try {
