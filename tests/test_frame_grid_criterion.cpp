@@ -1,3 +1,4 @@
+// ctest-labels: slow
 // The frame's grid criterion with FrameOptions::strict_levels
 // (src/frame/instantaneous_frame.*): the turn of the frame is held to
 // max_rotation only in the rows and columns of the lowest levels, the block
