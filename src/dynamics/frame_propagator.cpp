@@ -312,6 +312,12 @@ bool FramePropagator::advance_in_frame(const AnnealDrive& drive, double t0, doub
   };
   k = whole_groups(k);
   if (k > kmax) return false;
+  // The frame's grid holds the turn of the levels that carry the state to
+  // max_rotation and the block among the levels above them to 4 x that
+  // (FrameOptions::strict_levels): the watched levels plus one, raised below
+  // when the start state reaches higher.
+  const int watched_levels = static_cast<int>((w.size() + per_pair - 1) / per_pair);
+  fo.strict_levels = std::max(2, watched_levels + 1);
   int refinements = 0;
   const bool pause = s0 == s1;
   fo.ns_per_unit_s = pause ? 0.0 : (t1 - t0) / std::abs(s1 - s0);
@@ -335,6 +341,15 @@ bool FramePropagator::advance_in_frame(const AnnealDrive& drive, double t0, doub
       if (k >= kmax) return false;
       k = std::min(kmax, 2 * k);
       continue;
+    }
+    {  // every level the start state occupies, and the one above, on the strict bound
+      int top = 0;
+      for (int n = 0; n < kk; ++n)
+        if (std::norm(c0(n)) > tol / 100) top = n;
+      if (top + 2 > fo.strict_levels && fo.strict_levels < kk) {
+        fo.strict_levels = top + 2;
+        continue;  // the stored eigenpairs make the rebuild cheaper
+      }
     }
     const double pause_ns = t1 - t0;
     const FrameRun fine = run_frame(*fr, c0, kk, false, fo.ns_per_unit_s, pause_ns);

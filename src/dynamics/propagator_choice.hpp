@@ -12,8 +12,9 @@
 //          this Hamiltonian, times a calibration factor (1 until a split run of
 //          the same dimension in this ledger measured actual / predicted).
 //          Linear in T.
-//   frame  solves x seconds per solve, flat in T. solves: 1000 (the count
-//          measured on 10 qubits with fields at 10 us, K = 11) until a frame
+//   frame  solves x seconds per solve, flat in T. solves: 300 (the count
+//          measured on 10 qubits with fields at 10 us, K = 11: 295 since the
+//          strict-level grid bound of h17-fast, 991 before) until a frame
 //          run of the same dimension in this ledger counted its own (solved
 //          plus reused points). Seconds per solve: one timed lowest_levels call
 //          (kProbeLevels levels with vectors, mid-path, in the sector the frame
@@ -77,7 +78,7 @@ class PropagatorCostLedger {
 };
 
 /// Eigen-solves a frame run is assumed to need before any was measured.
-inline constexpr double kModelFrameSolves = 1000.0;
+inline constexpr double kModelFrameSolves = 300.0;
 /// An eigen-solve costs at least this many split stages (a Lanczos solve of a
 /// few levels takes tens of H products; each costs about one stage).
 inline constexpr double kLeastStagesPerSolve = 20.0;

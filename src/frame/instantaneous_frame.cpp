@@ -393,7 +393,17 @@ InstantaneousFrame::InstantaneousFrame(const SectorHamiltonian& h, const EnergyS
     int k_eff = k;
     if (t.top_cut) k_eff = t.groups.back().first;
     if (prev.top_cut) k_eff = std::min(k_eff, prev.groups.back().first);
-    const double turn = k_eff > 0 ? l.topLeftCorner(k_eff, k_eff).norm() : 0.0;
+    const double turn_all = k_eff > 0 ? l.topLeftCorner(k_eff, k_eff).norm() : 0.0;
+    // With strict_levels = m, the bound max_rotation applies to the strip of L
+    // that touches the m lowest columns (the levels holding the state and their
+    // couplings to every kept level); the block among the upper levels only
+    // to upper_rotation_factor x max_rotation (see FrameOptions).
+    double turn = turn_all;
+    if (const int m = options.strict_levels; m > 0 && m < k_eff) {
+      const double upper = l.block(m, m, k_eff - m, k_eff - m).squaredNorm();
+      const double strip = std::sqrt(std::max(0.0, turn_all * turn_all - upper));
+      turn = std::max(strip, turn_all / std::max(1.0, options.upper_rotation_factor));
+    }
     FramePoint p;
     project(t, p);
     const double ds_signed = s_new - prev.s;
