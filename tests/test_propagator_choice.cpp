@@ -137,6 +137,52 @@ TEST_CASE("propagator_used in anneal JSON and HDF5, durations CSV, JSON and HDF5
   CHECK(seen.find("ok") != std::string::npos);
 }
 
+TEST_CASE("propagator_used per cell in pause-map (text, JSON, HDF5, resumed) and reverse-map (text, HDF5)") {
+  // Added-time pause map: the runs take 800, 900 and 1200 ns, so with the
+  // crossover forced at 1000 ns the 400 ns pauses (and their reference) run in
+  // the frame and the others split-auto; each cell must say what ran it.
+  TempDir dir;
+  const std::string prob = quoted("data-samples/weak-field-ring.toml");
+  const std::string pm = "pause-map " + prob + " " + quoted("schedules/linear.toml") +
+                         " -d 800 --cost added --at 0.4,0.6 --pause-ns 0,100,400 --frame-above 1000 --out '" +
+                         (dir.path / "pm.h5").string() + "'";
+  const auto part = run_gapwise(pm.substr(0, pm.find("--at")) + "--at 0.4 " + pm.substr(pm.find("--pause-ns")), dir);
+  INFO(part.err);
+  REQUIRE(part.exit_code == 0);
+  const auto full = run_gapwise(pm + " --json", dir);  // resumes the first row from the journal
+  INFO(full.err);
+  REQUIRE(full.exit_code == 0);
+  dir.write("pm.json", full.out);
+  const auto text = run_gapwise(pm, dir);  // everything read back
+  REQUIRE(text.exit_code == 0);
+  CHECK(text.out.find("propagators split-auto 4, frame 2 (map cells); split-auto 2, frame 1 (no-pause references)") !=
+        std::string::npos);
+  const auto rm = run_gapwise("reverse-map " + prob + " " + quoted("schedules/reverse-dwell.toml") +
+                                  " --start-bits 01010101 --turn 0.7 --dwell-ns 0,600 --ramp-ns 300 --frame-above 1000 "
+                                  "--out '" + (dir.path / "rm.h5").string() + "'",
+                              dir);
+  INFO(rm.err);
+  REQUIRE(rm.exit_code == 0);
+  CHECK(rm.out.find("propagators split-auto 1, frame 1 (map cells)") != std::string::npos);
+  const std::string seen = python(dir, "import json, h5py\n"
+      "d = '" + dir.path.string() + "/'\n"
+      "j = json.load(open(d + 'pm.json'))\n"
+      "assert j['resumed'] > 0 and j['simulated'] > 0, (j['resumed'], j['simulated'])\n"
+      "assert j['propagator_used'] == [['split-auto', 'split-auto', 'frame']] * 2, j['propagator_used']\n"
+      "assert j['reference_propagator_used'] == ['split-auto', 'split-auto', 'frame'], j\n"
+      "f = h5py.File(d + 'pm.h5', 'r')['/pause_map']\n"
+      "used = [x.decode() for x in f['propagator_used'][:]]\n"
+      "tot = f['total_ns'][()].ravel()\n"
+      "assert used == [('frame' if t >= 1000 else 'split-auto') for t in tot], (used, tot)\n"
+      "assert [x.decode() for x in f['reference_propagator_used'][:]] == ['split-auto', 'split-auto', 'frame']\n"
+      "r = h5py.File(d + 'rm.h5', 'r')['/reverse_map']\n"
+      "used = [x.decode() for x in r['propagator_used'][:]]\n"
+      "tot = r['total_ns'][()].ravel()\n"
+      "assert used == [('frame' if t >= 1000 else 'split-auto') for t in tot], (used, tot)\n"
+      "print('ok')\n");
+  CHECK(seen.find("ok") != std::string::npos);
+}
+
 TEST_CASE("--frame-above is refused without --propagator auto and for a non-positive duration") {
   TempDir dir;
   const std::string prob = quoted("data-samples/weak-field-ring.toml"), sch = quoted("schedules/linear.toml");
