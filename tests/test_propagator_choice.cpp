@@ -18,6 +18,7 @@
 #include <fstream>
 #include <string>
 
+#include "studies/ensemble_study.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "dynamics/propagator_choice.hpp"
 #include "io/problem_file.hpp"
@@ -181,6 +182,45 @@ TEST_CASE("propagator_used per cell in pause-map (text, JSON, HDF5, resumed) and
       "assert used == [('frame' if t >= 1000 else 'split-auto') for t in tot], (used, tot)\n"
       "print('ok')\n");
   CHECK(seen.find("ok") != std::string::npos);
+}
+
+TEST_CASE("propagator_used per anneal in ensemble results (text, JSON, HDF5, shards merged, journal, values)") {
+  TempDir dir;
+  const std::string d = dir.path.string() + "/";
+  const auto gen = run_gapwise("generate --graph ring-chords --couplings gaussian --sizes 6 --count 2 --seed 7 --out '" +
+                                   d + "set.h5'",
+                               dir);
+  REQUIRE(gen.exit_code == 0);
+  const std::string ens = "ensemble '" + d + "set.h5' " + quoted("schedules/linear.toml") + " -d 200,1500 --frame-above 1000";
+  const auto whole = run_gapwise(ens + " --out '" + d + "ens.h5'", dir);
+  INFO(whole.err);
+  REQUIRE(whole.exit_code == 0);
+  CHECK(whole.out.find("propagators   split-auto 2, frame 2") != std::string::npos);
+  const auto again = run_gapwise(ens + " --json --out '" + d + "ens.h5'", dir);  // every instance from the journal
+  REQUIRE(again.exit_code == 0);
+  dir.write("ens.json", again.out);
+  for (int s = 0; s < 2; ++s)
+    REQUIRE(run_gapwise(ens + " --shard " + std::to_string(s) + "/2 --out '" + d + "part" + std::to_string(s) + ".h5'", dir)
+                .exit_code == 0);
+  REQUIRE(run_gapwise("merge-shards '" + d + "part0.h5' '" + d + "part1.h5' --out '" + d + "merged.h5'", dir).exit_code == 0);
+  const std::string seen = python(dir, "import json, h5py\n"
+      "d = '" + d + "'\n"
+      "j = json.load(open(d + 'ens.json'))\n"
+      "assert j['propagator_counts'] == {'split-auto': 2, 'frame': 2}, j['propagator_counts']\n"
+      "for name in ('ens.h5', 'merged.h5'):\n"
+      "    g = h5py.File(d + name, 'r')['/ensemble']\n"
+      "    used = [x.decode() for x in g['instances/propagator_used'][:]]\n"
+      "    durs = list(g['durations_ns'][:]) * 2\n"
+      "    assert used == [('frame' if t >= 1000 else 'split-auto') for t in durs], (name, used, durs)\n"
+      "print('ok')\n");
+  CHECK(seen.find("ok") != std::string::npos);
+  // The exact encoding used by journals and between MPI ranks carries it.
+  InstanceOutcome o;
+  o.ground_probability = {0.5, 0.75};
+  o.propagator_used = {"split-auto", "frame"};
+  const InstanceOutcome back = InstanceOutcome::from_values(3, o.to_values(), 2);
+  CHECK(back.propagator_used == o.propagator_used);
+  CHECK(back.ground_probability == o.ground_probability);
 }
 
 TEST_CASE("--frame-above is refused without --propagator auto and for a non-positive duration") {

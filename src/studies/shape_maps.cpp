@@ -110,17 +110,7 @@ std::vector<std::string> propagators_used(const std::vector<MapPoint>& points) {
   return out;
 }
 
-std::string propagator_tally(const std::vector<MapPoint>& points) {
-  std::vector<std::pair<std::string, std::size_t>> counts;
-  for (const auto& name : propagators_used(points)) {
-    auto it = std::find_if(counts.begin(), counts.end(), [&](const auto& c) { return c.first == name; });
-    if (it == counts.end()) counts.emplace_back(name, 1);
-    else ++it->second;
-  }
-  std::string s;
-  for (const auto& [name, n] : counts) s += fmt::format("{}{} {}", s.empty() ? "" : ", ", name, n);
-  return s;
-}
+std::string propagator_tally(const std::vector<MapPoint>& points) { return propagator_tally(propagators_used(points)); }
 
 JournalLayout pause_map_journal_layout() { return {"pause-map", {"pause_s", "pause_ns"}, kValues}; }
 JournalLayout reverse_map_journal_layout() { return {"reverse-map", {"turn_s", "dwell_ns"}, kValues}; }
