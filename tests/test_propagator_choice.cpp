@@ -18,6 +18,7 @@
 #include <fstream>
 #include <string>
 
+#include "studies/ensemble_study.hpp"
 #include "dynamics/anneal_simulation.hpp"
 #include "dynamics/propagator_choice.hpp"
 #include "io/problem_file.hpp"
@@ -135,6 +136,91 @@ TEST_CASE("propagator_used in anneal JSON and HDF5, durations CSV, JSON and HDF5
       "assert ph == pj, ph\n"
       "print('ok')\n");
   CHECK(seen.find("ok") != std::string::npos);
+}
+
+TEST_CASE("propagator_used per cell in pause-map (text, JSON, HDF5, resumed) and reverse-map (text, HDF5)") {
+  // Added-time pause map: the runs take 800, 900 and 1200 ns, so with the
+  // crossover forced at 1000 ns the 400 ns pauses (and their reference) run in
+  // the frame and the others split-auto; each cell must say what ran it.
+  TempDir dir;
+  const std::string prob = quoted("data-samples/weak-field-ring.toml");
+  const std::string pm = "pause-map " + prob + " " + quoted("schedules/linear.toml") +
+                         " -d 800 --cost added --at 0.4,0.6 --pause-ns 0,100,400 --frame-above 1000 --out '" +
+                         (dir.path / "pm.h5").string() + "'";
+  const auto part = run_gapwise(pm.substr(0, pm.find("--at")) + "--at 0.4 " + pm.substr(pm.find("--pause-ns")), dir);
+  INFO(part.err);
+  REQUIRE(part.exit_code == 0);
+  const auto full = run_gapwise(pm + " --json", dir);  // resumes the first row from the journal
+  INFO(full.err);
+  REQUIRE(full.exit_code == 0);
+  dir.write("pm.json", full.out);
+  const auto text = run_gapwise(pm, dir);  // everything read back
+  REQUIRE(text.exit_code == 0);
+  CHECK(text.out.find("propagators split-auto 4, frame 2 (map cells); split-auto 2, frame 1 (no-pause references)") !=
+        std::string::npos);
+  const auto rm = run_gapwise("reverse-map " + prob + " " + quoted("schedules/reverse-dwell.toml") +
+                                  " --start-bits 01010101 --turn 0.7 --dwell-ns 0,600 --ramp-ns 300 --frame-above 1000 "
+                                  "--out '" + (dir.path / "rm.h5").string() + "'",
+                              dir);
+  INFO(rm.err);
+  REQUIRE(rm.exit_code == 0);
+  CHECK(rm.out.find("propagators split-auto 1, frame 1 (map cells)") != std::string::npos);
+  const std::string seen = python(dir, "import json, h5py\n"
+      "d = '" + dir.path.string() + "/'\n"
+      "j = json.load(open(d + 'pm.json'))\n"
+      "assert j['resumed'] > 0 and j['simulated'] > 0, (j['resumed'], j['simulated'])\n"
+      "assert j['propagator_used'] == [['split-auto', 'split-auto', 'frame']] * 2, j['propagator_used']\n"
+      "assert j['reference_propagator_used'] == ['split-auto', 'split-auto', 'frame'], j\n"
+      "f = h5py.File(d + 'pm.h5', 'r')['/pause_map']\n"
+      "used = [x.decode() for x in f['propagator_used'][:]]\n"
+      "tot = f['total_ns'][()].ravel()\n"
+      "assert used == [('frame' if t >= 1000 else 'split-auto') for t in tot], (used, tot)\n"
+      "assert [x.decode() for x in f['reference_propagator_used'][:]] == ['split-auto', 'split-auto', 'frame']\n"
+      "r = h5py.File(d + 'rm.h5', 'r')['/reverse_map']\n"
+      "used = [x.decode() for x in r['propagator_used'][:]]\n"
+      "tot = r['total_ns'][()].ravel()\n"
+      "assert used == [('frame' if t >= 1000 else 'split-auto') for t in tot], (used, tot)\n"
+      "print('ok')\n");
+  CHECK(seen.find("ok") != std::string::npos);
+}
+
+TEST_CASE("propagator_used per anneal in ensemble results (text, JSON, HDF5, shards merged, journal, values)") {
+  TempDir dir;
+  const std::string d = dir.path.string() + "/";
+  const auto gen = run_gapwise("generate --graph ring-chords --couplings gaussian --sizes 6 --count 2 --seed 7 --out '" +
+                                   d + "set.h5'",
+                               dir);
+  REQUIRE(gen.exit_code == 0);
+  const std::string ens = "ensemble '" + d + "set.h5' " + quoted("schedules/linear.toml") + " -d 200,1500 --frame-above 1000";
+  const auto whole = run_gapwise(ens + " --out '" + d + "ens.h5'", dir);
+  INFO(whole.err);
+  REQUIRE(whole.exit_code == 0);
+  CHECK(whole.out.find("propagators   split-auto 2, frame 2") != std::string::npos);
+  const auto again = run_gapwise(ens + " --json --out '" + d + "ens.h5'", dir);  // every instance from the journal
+  REQUIRE(again.exit_code == 0);
+  dir.write("ens.json", again.out);
+  for (int s = 0; s < 2; ++s)
+    REQUIRE(run_gapwise(ens + " --shard " + std::to_string(s) + "/2 --out '" + d + "part" + std::to_string(s) + ".h5'", dir)
+                .exit_code == 0);
+  REQUIRE(run_gapwise("merge-shards '" + d + "part0.h5' '" + d + "part1.h5' --out '" + d + "merged.h5'", dir).exit_code == 0);
+  const std::string seen = python(dir, "import json, h5py\n"
+      "d = '" + d + "'\n"
+      "j = json.load(open(d + 'ens.json'))\n"
+      "assert j['propagator_counts'] == {'split-auto': 2, 'frame': 2}, j['propagator_counts']\n"
+      "for name in ('ens.h5', 'merged.h5'):\n"
+      "    g = h5py.File(d + name, 'r')['/ensemble']\n"
+      "    used = [x.decode() for x in g['instances/propagator_used'][:]]\n"
+      "    durs = list(g['durations_ns'][:]) * 2\n"
+      "    assert used == [('frame' if t >= 1000 else 'split-auto') for t in durs], (name, used, durs)\n"
+      "print('ok')\n");
+  CHECK(seen.find("ok") != std::string::npos);
+  // The exact encoding used by journals and between MPI ranks carries it.
+  InstanceOutcome o;
+  o.ground_probability = {0.5, 0.75};
+  o.propagator_used = {"split-auto", "frame"};
+  const InstanceOutcome back = InstanceOutcome::from_values(3, o.to_values(), 2);
+  CHECK(back.propagator_used == o.propagator_used);
+  CHECK(back.ground_probability == o.ground_probability);
 }
 
 TEST_CASE("--frame-above is refused without --propagator auto and for a non-positive duration") {

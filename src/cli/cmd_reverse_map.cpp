@@ -88,7 +88,8 @@ void run_reverse_map(const ReverseMapCli& o) {
   std::cout << fmt::format("start     bits {} (qubit 0 first), energy {:.10g}{}\n", bits, e_start,
                            m.start_in_ground_manifold ? " (already a ground state)" : "");
   std::cout << fmt::format("path      s = 1 -> turn point in {} ns, dwell, back to s = 1 in {} ns\n", o.ramp_ns, o.ramp_ns);
-  std::cout << fmt::format("points    {} simulated, {} read back from {}\n\n", m.simulated, m.resumed, run.journal()->path());
+  std::cout << fmt::format("points    {} simulated, {} read back from {}\n", m.simulated, m.resumed, run.journal()->path());
+  std::cout << fmt::format("propagators {} (map cells)\n\n", propagator_tally(m.points));
   std::vector<std::string> head{"turn s \\ dwell ns"};
   for (double d : mo.dwell_ns) head.push_back(fmt_num(d, 6));
   TextTable tp(head), ts(head);
@@ -128,6 +129,9 @@ void run_reverse_map(const ReverseMapCli& o) {
   h5.write_matrix("/reverse_map/start_probability", ps, ni, nj, "1", {"/reverse_map/turn_s", "/reverse_map/dwell_ns"});
   h5.write_matrix("/reverse_map/total_ns", tot, ni, nj, "ns", {"/reverse_map/turn_s", "/reverse_map/dwell_ns"});
   h5.write_matrix("/reverse_map/tts_ns", tts, ni, nj, tts_meaning("ns"), {"/reverse_map/turn_s", "/reverse_map/dwell_ns"});
+  h5.write_strings("/reverse_map/propagator_used", propagators_used(m.points),
+                   "the propagator that ran each cell (with --propagator auto: split-auto or frame, chosen by cost); "
+                   "row-major over (turn_s, dwell_ns), the order of ground_probability's elements");
   h5.attribute("/reverse_map", "start_bits", bits);
   h5.attribute("/reverse_map", "ramp_ns", o.ramp_ns);
   h5.attribute("/reverse_map", "target_probability", o.target);

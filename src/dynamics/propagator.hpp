@@ -124,6 +124,10 @@ double propagator_code(const std::string& name);
 std::string propagator_name_of_code(double code);
 /// "0 split4 1 split2 ...": the codes' meaning, for a dataset attribute.
 std::string propagator_code_legend();
+/// How many runs each propagator made, in order of first appearance (an empty
+/// name counts as "unknown"), and the same as text: "split-auto 38, frame 2".
+std::vector<std::pair<std::string, std::size_t>> propagator_counts(const std::vector<std::string>& used);
+std::string propagator_tally(const std::vector<std::string>& used);
 /// Throws std::invalid_argument for an unknown name.
 std::unique_ptr<Propagator> make_propagator(const std::string& name, const TransverseIsingHamiltonian& h,
                                             const PropagatorOptions& options);

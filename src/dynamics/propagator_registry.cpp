@@ -1,3 +1,4 @@
+#include <algorithm>
 #include <cmath>
 #include <stdexcept>
 
@@ -33,6 +34,23 @@ std::string propagator_code_legend() {
   std::string out;
   for (std::size_t k = 0; k < names.size(); ++k) out += (k ? " " : "") + std::to_string(k) + " " + names[k];
   return out;
+}
+
+std::vector<std::pair<std::string, std::size_t>> propagator_counts(const std::vector<std::string>& used) {
+  std::vector<std::pair<std::string, std::size_t>> counts;
+  for (const auto& u : used) {
+    const std::string name = u.empty() ? "unknown" : u;
+    auto it = std::find_if(counts.begin(), counts.end(), [&](const auto& c) { return c.first == name; });
+    if (it == counts.end()) counts.emplace_back(name, 1);
+    else ++it->second;
+  }
+  return counts;
+}
+
+std::string propagator_tally(const std::vector<std::string>& used) {
+  std::string s;
+  for (const auto& [name, n] : propagator_counts(used)) s += (s.empty() ? "" : ", ") + name + " " + std::to_string(n);
+  return s;
 }
 
 std::unique_ptr<Propagator> make_propagator(const std::string& name, const TransverseIsingHamiltonian& h,

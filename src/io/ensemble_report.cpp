@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include "dynamics/propagator.hpp"
 #include "io/atomic_file.hpp"
 #include "io/infinite_tts.hpp"
 #include "io/json_summary.hpp"
@@ -62,6 +63,9 @@ void print_ensemble_summary(const EnsembleResult& r, const std::string& out, con
                            r.settings.durations_ns.size(), fmt_num(r.settings.durations_ns.front(), 6),
                            fmt_num(r.settings.durations_ns.back(), 6), r.settings.target_probability,
                            r.settings.simulation.propagator, r.settings.simulation.propagation.tolerance);
+  std::vector<std::string> used;
+  for (const auto& o : r.instances) used.insert(used.end(), o.propagator_used.begin(), o.propagator_used.end());
+  std::cout << fmt::format("propagators   {} (anneals: instances x durations)\n", propagator_tally(used));
   if (r.settings.bath) {
     const OhmicBath& b = *r.settings.bath;
     double trace = 0, eig = std::numeric_limits<double>::infinity();
@@ -119,6 +123,14 @@ void print_ensemble_json(const EnsembleResult& r, const std::string& csv) {
   put(j, "target", r.settings.target_probability);
   put(j, "propagator", r.settings.simulation.propagator);
   put(j, "tolerance", r.settings.simulation.propagation.tolerance);
+  {
+    // How many anneals (instances x durations) each propagator ran.
+    std::vector<std::string> used;
+    for (const auto& o : r.instances) used.insert(used.end(), o.propagator_used.begin(), o.propagator_used.end());
+    toml::table counts;
+    for (const auto& [name, n] : propagator_counts(used)) put(counts, name, static_cast<long long>(n));
+    j.insert_or_assign("propagator_counts", std::move(counts));
+  }
   toml::array durations;
   for (double d : r.settings.durations_ns) durations.push_back(d);
   j.insert_or_assign("durations_ns", std::move(durations));

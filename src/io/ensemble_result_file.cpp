@@ -81,6 +81,13 @@ void write_ensemble_result(const std::string& path, const EnsembleResult& r, con
   std::vector<double> p;
   for (const auto& o : v) p.insert(p.end(), o.ground_probability.begin(), o.ground_probability.end());
   out.write_matrix(g + "/ground_probability", p, v.size(), st.durations_ns.size(), "1", {g + "/set_index", e + "/durations_ns"});
+  std::vector<std::string> used;
+  for (const auto& o : v)
+    for (std::size_t k = 0; k < st.durations_ns.size(); ++k)
+      used.push_back(k < o.propagator_used.size() && !o.propagator_used[k].empty() ? o.propagator_used[k] : "unknown");
+  out.write_strings(g + "/propagator_used", used,
+                    "the propagator that ran each anneal (with --propagator auto: split-auto or frame, chosen by "
+                    "cost); row-major over (instances, durations_ns), the order of ground_probability's elements");
   if (st.bath) {
     // --bath: the bath (attributes of /ensemble/bath) and the same numbers with it,
     // beside the closed ones; these datasets exist only in a result run with a bath.
@@ -212,6 +219,9 @@ EnsembleResult read_ensemble_result(const std::string& path) {
   const auto p = in.read(g + "/ground_probability");
   if (p.size() != n * k) in.fail(g + "/ground_probability", fmt::format("expected {} x {} values", n, k), "write the file with gapwise");
   const auto wall = in.read_list("/timing/wall_seconds", n);
+  // Files written before the record existed have no propagator_used: "unknown".
+  const std::vector<std::string> used =
+      in.has(g + "/propagator_used") ? in.read_strings(g + "/propagator_used", n * k) : std::vector<std::string>(n * k, "unknown");
   const bool with_bath = in.has(e + "/bath");
   std::vector<double> bp, btts, btd, btrace, beig;
   std::vector<long long> bnever, bedge;
@@ -257,6 +267,7 @@ EnsembleResult read_ensemble_result(const std::string& path) {
     o.tts_at_range_edge = edge[i] != 0;
     o.ground_probability.assign(p.begin() + static_cast<long>(i * k), p.begin() + static_cast<long>((i + 1) * k));
     o.wall_seconds = wall[i];
+    o.propagator_used.assign(used.begin() + static_cast<long>(i * k), used.begin() + static_cast<long>((i + 1) * k));
     if (with_bath) {
       o.bath_ground_probability.assign(bp.begin() + static_cast<long>(i * k), bp.begin() + static_cast<long>((i + 1) * k));
       o.bath_tts_ns = bnever[i] ? kInf : btts[i];

@@ -50,7 +50,9 @@ std::string pause_map_report_text(const PauseMapReport& r) {
                          ? fmt::format("equal total: every run takes {} ns, the pause eats into the ramp", mo.duration_ns)
                          : fmt::format("added time: the ramp takes {} ns, the run {} ns + pause", mo.duration_ns,
                                        mo.duration_ns));
-  out += fmt::format("points    {} simulated, {} read back from {}\n\n", m.simulated, m.resumed, r.journal_file);
+  out += fmt::format("points    {} simulated, {} read back from {}\n", m.simulated, m.resumed, r.journal_file);
+  out += fmt::format("propagators {} (map cells); {} (no-pause references)\n\n", propagator_tally(m.points),
+                     propagator_tally(m.reference));
   const std::vector<std::string> head = grid_head(mo);
   TextTable t(head);
   std::vector<std::string> ref{"no pause (same cost)"};
@@ -116,6 +118,15 @@ std::string pause_map_report_json(const PauseMapReport& r) {
   j.insert_or_assign("pause_ns", std::move(ns));
   j.insert_or_assign("reference_ground_probability", std::move(ref));
   j.insert_or_assign("ground_probability", std::move(rows));
+  toml::array used_rows, used_ref;
+  for (std::size_t i = 0; i < mo.pause_s.size(); ++i) {
+    toml::array row;
+    for (std::size_t k = 0; k < mo.pause_ns.size(); ++k) row.push_back(propagators_used({m.at(i, k)}).front());
+    used_rows.push_back(std::move(row));
+  }
+  for (const auto& name : propagators_used(m.reference)) used_ref.push_back(name);
+  j.insert_or_assign("propagator_used", std::move(used_rows));
+  j.insert_or_assign("reference_propagator_used", std::move(used_ref));
   toml::table b;
   put(b, "pause_s", mo.pause_s[best.i]);
   put(b, "pause_ns", mo.pause_ns[best.j]);
@@ -196,6 +207,11 @@ void write_pause_map_result(const std::string& path, const PauseMapReport& r, co
   for (const auto& x : m.reference) { rp.push_back(x.ground_probability); rt.push_back(x.total_ns); }
   h5.write("/pause_map/reference_ground_probability", rp, "1");
   h5.write("/pause_map/reference_total_ns", rt, "ns");
+  h5.write_strings("/pause_map/propagator_used", propagators_used(m.points),
+                   "the propagator that ran each cell (with --propagator auto: split-auto or frame, chosen by cost); "
+                   "row-major over (pause_s, pause_ns), the order of ground_probability's elements");
+  h5.write_strings("/pause_map/reference_propagator_used", propagators_used(m.reference),
+                   "the propagator that ran each no-pause reference, one per pause_ns");
   h5.attribute("/pause_map", "duration_ns", mo.duration_ns);
   h5.attribute("/pause_map", "cost", cost_name(mo.cost));
   h5.attribute("/pause_map", "target_probability", mo.target_probability);

@@ -15,6 +15,7 @@
 #include "io/input_error.hpp"
 #include "io/result_journal.hpp"
 #include "problem/seeded_random.hpp"
+#include "dynamics/propagator.hpp"
 #include "studies/duration_sweep.hpp"
 #include "studies/work_distribution.hpp"
 
@@ -135,6 +136,7 @@ std::vector<std::string> InstanceOutcome::value_names(std::size_t durations, boo
       n.push_back(b);
     for (std::size_t k = 0; k < durations; ++k) n.push_back(fmt::format("bath_p{}", k));
   }
+  for (std::size_t k = 0; k < durations; ++k) n.push_back(fmt::format("propagator_code{}", k));
   return n;
 }
 
@@ -149,12 +151,14 @@ std::vector<double> InstanceOutcome::to_values() const {
                        bath_min_eigenvalue});
     v.insert(v.end(), bath_ground_probability.begin(), bath_ground_probability.end());
   }
+  for (std::size_t k = 0; k < ground_probability.size(); ++k)
+    v.push_back(propagator_code(k < propagator_used.size() ? propagator_used[k] : std::string()));
   return v;
 }
 
 InstanceOutcome InstanceOutcome::from_values(std::size_t set_index, const std::vector<double>& v, std::size_t durations,
                                              bool with_bath) {
-  const std::size_t expected = kFixedValues + durations + (with_bath ? kBathFixedValues + durations : 0);
+  const std::size_t expected = kFixedValues + 2 * durations + (with_bath ? kBathFixedValues + durations : 0);
   if (v.size() != expected)
     throw std::runtime_error(fmt::format("instance record {} has {} numbers, expected {}", set_index, v.size(),
                                          expected));
@@ -182,8 +186,10 @@ InstanceOutcome InstanceOutcome::from_values(std::size_t set_index, const std::v
     o.bath_tts_at_range_edge = closed_end[2] != 0;
     o.bath_max_trace_error = closed_end[3];
     o.bath_min_eigenvalue = closed_end[4];
-    o.bath_ground_probability.assign(closed_end + kBathFixedValues, v.end());
+    o.bath_ground_probability.assign(closed_end + kBathFixedValues,
+                                     closed_end + static_cast<long>(kBathFixedValues + durations));
   }
+  for (auto c = v.end() - static_cast<long>(durations); c != v.end(); ++c) o.propagator_used.push_back(propagator_name_of_code(*c));
   return o;
 }
 
@@ -232,6 +238,7 @@ InstanceOutcome evaluate_instance(const Instance& instance, std::size_t set_inde
   std::vector<double> p;
   for (const auto& pt : pts) {
     p.push_back(pt.ground_probability);
+    o.propagator_used.push_back(pt.propagator_used);
     o.max_norm_drift = std::max(o.max_norm_drift, pt.norm_drift);
   }
   const TtsOptimum best = best_time_to_solution(settings.durations_ns, p, settings.target_probability);

@@ -92,6 +92,9 @@ struct InstanceOutcome {
   double tts_duration_ns = 0;          ///< where it is reached
   bool tts_at_range_edge = false;      ///< at the first or last duration: the optimum may lie outside
   double wall_seconds = 0;             ///< the only number that differs between runs
+  /// The propagator that ran each duration's anneal (with --propagator auto:
+  /// split-auto or frame), one per duration.
+  std::vector<std::string> propagator_used;
   // With a bath (empty / unused otherwise): the same per duration, open system.
   std::vector<double> bath_ground_probability;  ///< p(t_f) with the bath, one per duration
   double bath_tts_ns = 0, bath_tts_duration_ns = 0;
@@ -100,7 +103,8 @@ struct InstanceOutcome {
   double bath_min_eigenvalue = 0;      ///< smallest eigenvalue of rho at the end of any run
 
   /// Flat, exact encoding (journal records and messages between ranks); the
-  /// bath values follow the closed ones when `with_bath`.
+  /// bath values follow the closed ones when `with_bath`, then one propagator
+  /// code (propagator_code) per duration.
   std::vector<double> to_values() const;
   static InstanceOutcome from_values(std::size_t set_index, const std::vector<double>& v, std::size_t durations,
                                      bool with_bath = false);

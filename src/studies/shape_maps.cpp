@@ -8,6 +8,7 @@
 
 #include <fmt/format.h>
 
+#include "dynamics/propagator.hpp"
 #include "io/input_error.hpp"
 #include "platform/thread_count.hpp"
 
@@ -18,7 +19,8 @@
 namespace gapwise {
 namespace {
 
-const std::vector<std::string> kValues{"ground_probability", "start_probability", "norm_drift", "total_ns"};
+const std::vector<std::string> kValues{"ground_probability", "start_probability", "norm_drift", "total_ns",
+                                       "propagator_code"};
 
 /// Runs every keyed path not yet known (journal or earlier in this call) and
 /// returns the values of all of them.
@@ -32,7 +34,7 @@ std::map<std::vector<double>, MapPoint> evaluate_paths(const AnnealSetup& setup,
   for (const auto& [key, path] : jobs) {
     if (journal)
       if (auto v = journal->find(key)) {
-        out[key] = {(*v)[0], (*v)[1], (*v)[2], (*v)[3], true};
+        out[key] = {(*v)[0], (*v)[1], (*v)[2], (*v)[3], true, propagator_name_of_code((*v)[4])};
         ++resumed;
         continue;
       }
@@ -60,10 +62,12 @@ std::map<std::vector<double>, MapPoint> evaluate_paths(const AnnealSetup& setup,
       const AnnealResult r =
           simulate_anneal(setup.hamiltonian, setup.ground, setup.schedule.scales, *path, setup.start, setup.options);
       MapPoint p{r.ground_probability, start_state ? std::norm(r.final_state[*start_state]) : 0.0, r.norm_drift,
-                 path->duration_ns(), false};
+                 path->duration_ns(), false, r.propagator};
       std::lock_guard<std::mutex> g(lock);
       if (stop) continue;
-      if (journal) journal->append(key, {p.ground_probability, p.start_probability, p.norm_drift, p.total_ns});
+      if (journal)
+        journal->append(key, {p.ground_probability, p.start_probability, p.norm_drift, p.total_ns,
+                              propagator_code(p.propagator_used)});
       out[key] = p;
       ++simulated;
       ++done;
@@ -98,6 +102,15 @@ AnnealPath shape_or_refuse(F&& make, const std::string& option) {
 }
 
 }  // namespace
+
+std::vector<std::string> propagators_used(const std::vector<MapPoint>& points) {
+  std::vector<std::string> out;
+  out.reserve(points.size());
+  for (const auto& x : points) out.push_back(x.propagator_used.empty() ? "unknown" : x.propagator_used);
+  return out;
+}
+
+std::string propagator_tally(const std::vector<MapPoint>& points) { return propagator_tally(propagators_used(points)); }
 
 JournalLayout pause_map_journal_layout() { return {"pause-map", {"pause_s", "pause_ns"}, kValues}; }
 JournalLayout reverse_map_journal_layout() { return {"reverse-map", {"turn_s", "dwell_ns"}, kValues}; }

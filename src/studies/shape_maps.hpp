@@ -36,6 +36,9 @@ struct MapPoint {
   double norm_drift = 0;
   double total_ns = 0;           ///< the run's end time
   bool resumed = false;
+  /// The propagator that ran this cell (with --propagator auto: split-auto or
+  /// frame); "" when read back from a journal that did not record it.
+  std::string propagator_used;
 };
 
 /// Called after each newly simulated point (under a lock): done, total.
@@ -77,6 +80,12 @@ struct ReverseMap {
   std::size_t simulated = 0, resumed = 0;
   const MapPoint& at(std::size_t i, std::size_t j) const { return points[i * options.dwell_ns.size() + j]; }
 };
+
+/// "split-auto 40, frame 8": how many of the points (and references) each
+/// propagator ran, in order of first appearance; "unknown" for unrecorded ones.
+std::string propagator_tally(const std::vector<MapPoint>& points);
+/// Each point's propagator_used ("unknown" where empty), in the points' order.
+std::vector<std::string> propagators_used(const std::vector<MapPoint>& points);
 
 JournalLayout pause_map_journal_layout();
 JournalLayout reverse_map_journal_layout();
