@@ -20,7 +20,7 @@ inline std::string ensemble_difference(const std::string& a_path, const std::str
     for (const auto& n : names) {
       const std::string path = group + "/" + n;
       if (n == "instances" || n == "by_size" || n == "bath") continue;  // groups (bath: attributes only)
-      if (n == "name") {
+      if (n == "name" || n == "propagator_used") {  // string datasets
         if (a.read_strings(path) != b.read_strings(path)) return path + " differs";
         continue;
       }
