@@ -223,6 +223,41 @@ TEST_CASE("propagator_used per anneal in ensemble results (text, JSON, HDF5, sha
   CHECK(back.ground_probability == o.ground_probability);
 }
 
+TEST_CASE("the anneal report names the split kernels that ran (variant and phase method), and 'not used' for the frame") {
+  TempDir dir;
+  // A problem with many distinct diagonal values (Gaussian couplings, 8 qubits):
+  // the report must name the phase method the propagator object itself chose.
+  const std::string glass = (source_dir() / "data-samples/ring-chords-glasses/n08-000.toml").string();
+  const IsingProblem p = read_problem_file(glass);
+  const TransverseIsingHamiltonian H(p);
+  const std::string expected = make_propagator("split-auto", H, {.tolerance = 1e-6})->kernels();
+  REQUIRE(!expected.empty());
+  const std::string sch = quoted("schedules/linear.toml");
+  const auto a = run_gapwise("anneal '" + glass + "' " + sch + " -d 20 --json --out '" + (dir.path / "a.h5").string() + "'", dir);
+  INFO(a.err);
+  REQUIRE(a.exit_code == 0);
+  dir.write("a.json", a.out);
+  // GAPWISE_KERNELS picks the instruction-set variant; the report must say so.
+  ::setenv("GAPWISE_KERNELS", "baseline", 1);
+  const auto b = run_gapwise("anneal '" + glass + "' " + sch + " -d 20 --out '" + (dir.path / "b.h5").string() + "'", dir);
+  ::unsetenv("GAPWISE_KERNELS");
+  INFO(b.err);
+  REQUIRE(b.exit_code == 0);
+  CHECK(b.out.find("kernels      baseline, ") != std::string::npos);
+  const auto f = run_gapwise("anneal " + quoted("data-samples/weak-field-ring.toml") + " " + sch +
+                                 " -d 1500 --propagator frame --json --out '" + (dir.path / "f.h5").string() + "'",
+                             dir);
+  REQUIRE(f.exit_code == 0);
+  dir.write("f.json", f.out);
+  const std::string seen = python(dir, "import h5py\n"
+      "d = '" + dir.path.string() + "/'\n"
+      "assert h5py.File(d + 'a.h5', 'r')['/anneal'].attrs['kernels'] == '" + expected + "'\n"
+      "assert h5py.File(d + 'b.h5', 'r')['/anneal'].attrs['kernels'].startswith('baseline, ')\n"
+      "assert h5py.File(d + 'f.h5', 'r')['/anneal'].attrs['kernels'] == 'not used'\n"
+      "print('ok')\n");
+  CHECK(seen.find("ok") != std::string::npos);
+}
+
 TEST_CASE("--frame-above is refused without --propagator auto and for a non-positive duration") {
   TempDir dir;
   const std::string prob = quoted("data-samples/weak-field-ring.toml"), sch = quoted("schedules/linear.toml");

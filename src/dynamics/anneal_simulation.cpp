@@ -92,6 +92,7 @@ AnnealResult simulate_anneal(const TransverseIsingHamiltonian& h, const GroundMa
   AnnealDrive drive{&scales, path};
   r.duration_ns = path.duration_ns();
   r.propagator = prop->name();
+  r.kernels = prop->kernels();
   // Where to stop and observe: waypoints, evenly spaced samples inside each
   // piece, and every passage through a requested s (exact s kept for those).
   struct Stop {

@@ -54,6 +54,7 @@ struct AnnealResult {
   QuantumState final_state;
   double wall_seconds = 0;
   std::string propagator;  ///< the propagator that ran (propagator_used in results; never "auto")
+  std::string kernels;     ///< Propagator::kernels() of it: "" when it has no split kernels
   PropagatorChoice choice; ///< with "auto": the predictions and their basis (choice.chosen empty otherwise)
 };
 

@@ -110,6 +110,11 @@ class Propagator {
  public:
   virtual ~Propagator() = default;
   virtual std::string name() const = 0;
+  /// The kernels a split propagator runs, e.g. "avx512, table phases (195
+  /// levels)": the instruction-set variant chosen at run time (or by
+  /// GAPWISE_KERNELS) and how the diagonal's phases are found. Empty for
+  /// propagators without these kernels (odeint, frame).
+  virtual std::string kernels() const { return {}; }
   /// Advances psi from t0 to t1 (ns); the drive is smooth on [t0, t1].
   virtual void advance(const AnnealDrive& drive, double t0_ns, double t1_ns, QuantumState& psi,
                        PropagationStats& stats) = 0;

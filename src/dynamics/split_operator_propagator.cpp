@@ -79,6 +79,12 @@ SplitOperatorPropagator::SplitOperatorPropagator(const TransverseIsingHamiltonia
     for (int q = 0; q < h.qubits(); ++q) flip_max_ = std::max(flip_max_, std::abs(d[b ^ (std::size_t{1} << q)] - d[b]));
 }
 
+std::string SplitOperatorPropagator::kernels() const {
+  const std::string method = ex_.phase_method_name();
+  return method == "table" ? fmt::format("{}, table phases ({} levels)", ex_.kernels(), ex_.distinct_levels())
+                           : fmt::format("{}, {} phases", ex_.kernels(), method);
+}
+
 std::string SplitOperatorPropagator::name() const {
   if (adaptive_) return "split-auto";
   switch (composition_) {

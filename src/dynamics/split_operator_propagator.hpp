@@ -83,7 +83,8 @@ class SplitOperatorPropagator final : public Propagator {
  public:
   SplitOperatorPropagator(const TransverseIsingHamiltonian& h, PropagatorOptions options, SplitComposition composition);
   std::string name() const override;
-  /// Auto: Blanes-Moan is taken (from the start, or after Strang's first pair)
+  std::string kernels() const override;
+  /// Auto: Blanes-Moan is taken (from the start, or after any pair of Strang runs)
   /// when Strang's predicted remaining work exceeds this fraction of a
   /// Blanes-Moan first pair (work in exponential stages; see prepare()).
   static constexpr double kSwitchBias = 0.65;

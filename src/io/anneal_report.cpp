@@ -80,6 +80,7 @@ std::string anneal_report_json(const AnnealReport& a) {
   if (a.delta_p) put(j, "convergence_delta_p", *a.delta_p);
   put_propagation(j, r.propagator, a.tolerance, a.p_only);
   put(j, "propagator_used", r.propagator);
+  put(j, "kernels", r.kernels.empty() ? std::string("not used") : r.kernels);
   if (!r.choice.chosen.empty()) {
     toml::table c;
     put(c, "requested", std::string("auto"));
@@ -155,6 +156,7 @@ std::string anneal_report_text(const AnnealReport& a) {
                            r.duration_ns, sch.start.kind == StartKind::Ground ? "ground state of H(s0)" : "classical state");
   os << fmt::format("propagator   {} (tolerance {:.0e}): {} steps, {} H applications, {:.3f} s\n", r.propagator,
                            a.tolerance, r.stats.steps, r.stats.hamiltonian_applications, r.wall_seconds);
+  os << fmt::format("kernels      {}\n", r.kernels.empty() ? "not used (no split kernels in this propagator)" : r.kernels);
   if (!r.choice.chosen.empty()) {
     auto secs = [](double x) { return std::isfinite(x) ? fmt::format("{:.3g} s", x) : std::string("not needed"); };
     os << fmt::format("choice       auto chose {} ({}; predicted split-auto {}, frame {})\n", r.choice.chosen,
@@ -224,6 +226,7 @@ void write_anneal_result(const std::string& path, const AnnealReport& a, const s
   h5.attribute("/anneal", "p_only", static_cast<long long>(a.p_only));
   h5.attribute("/anneal", "propagator", r.propagator);
   h5.attribute("/anneal", "propagator_used", r.propagator);
+  h5.attribute("/anneal", "kernels", r.kernels.empty() ? std::string("not used") : r.kernels);
   if (!r.choice.chosen.empty()) {
     h5.attribute("/anneal", "propagator_choice_basis", r.choice.basis);
     h5.attribute_allowing_inf_nan("/anneal", "split_seconds_predicted", r.choice.split_seconds);
