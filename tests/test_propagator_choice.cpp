@@ -76,6 +76,21 @@ TEST_CASE("auto picks split for a short anneal and the frame where the measured 
   CHECK(long_run.frame_seconds == doctest::Approx(0.05));
   CHECK(long_run.frame_seconds < long_run.split_seconds);
   CHECK(choose_propagator(H, sch.scales, sch.path_for(0.01), 1e-6, {}, ledger).chosen == "split-auto");
+  // Where split-auto is predicted to take under kMinSplitSecondsForFrame the
+  // frame is not considered, however cheap its solves were measured: the choice
+  // must not follow timing noise there.
+  PropagatorCostLedger fast;
+  PropagatorCostLedger::Entry tiny;
+  tiny.stage_seconds = 1e-9;
+  tiny.solve_seconds = 1e-15;
+  tiny.frame_solves = 500;
+  fast.put(H.dim(), tiny);
+  const PropagatorChoice quick = choose_propagator(H, sch.scales, sch.path_for(5000.0), 1e-6, {}, fast);
+  CHECK(quick.split_seconds < kMinSplitSecondsForFrame);
+  CHECK(quick.chosen == "split-auto");
+  tiny.stage_seconds = 1e-3;  // the same run predicted slow: now the frame
+  fast.put(H.dim(), tiny);
+  CHECK(choose_propagator(H, sch.scales, sch.path_for(5000.0), 1e-6, {}, fast).chosen == "frame");
 
   PropagatorChoiceOptions forced;
   forced.frame_above_ns = 1000.0;

@@ -99,6 +99,11 @@ PropagatorChoice choose_propagator(const TransverseIsingHamiltonian& h, const En
   }
   const double stages = split_stages(split, scales, path, tolerance);
   c.split_seconds = stages * e.stage_seconds * e.split_factor;
+  if (c.split_seconds < kMinSplitSecondsForFrame) {
+    c.chosen = "split-auto";
+    c.basis = fmt::format("split predicted under {} s", kMinSplitSecondsForFrame);
+    return c;
+  }
   const double solves = e.frame_solves > 0 ? e.frame_solves : kModelFrameSolves;
   if (stages * e.split_factor <= solves * kLeastStagesPerSolve) {
     c.chosen = "split-auto";
